@@ -1,0 +1,72 @@
+"""``sdofreport build``: project file → results → site, in that order (gather, then write)."""
+
+from __future__ import annotations
+
+import logging
+import os
+import time
+from dataclasses import dataclass
+from pathlib import Path
+
+from sdofreport.engine import Progress, Results, run_project
+from sdofreport.errors import ProjectError
+from sdofreport.project import load_project
+from sdofreport.site.render import gather_site, write_site
+
+log = logging.getLogger("sdofreport.build")
+
+
+@dataclass(frozen=True)
+class BuildOutcome:
+    output: Path
+    results: Results
+    file_count: int
+    seconds: float
+
+
+def _check_inside(project, allow_outside: bool) -> None:
+    if allow_outside:
+        return
+    root = project.root
+    outside = []
+    paths = [("project.notes", project.info.notes_path)] + [
+        (f"records id {spec.id!r} file", spec.path) for spec in project.records]
+    for label, path in paths:
+        if path is None:
+            continue
+        try:
+            path.resolve().relative_to(root)
+        except ValueError:
+            outside.append(f"  {label}: '{path}' is outside the project folder {root}")
+    if outside:
+        raise ProjectError(f"{project.path}: {len(outside)} input file(s) lie outside the "
+                           f"project folder, so the site could not be archived with them "
+                           f"in place:\n" + "\n".join(outside) +
+                           "\n  Move them into the project folder, or pass --allow-outside.")
+
+
+def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
+               jobs: int | None = None, cache_dir: str | os.PathLike | None = None,
+               use_cache: bool = True, allow_outside: bool = False,
+               progress: Progress | None = None) -> BuildOutcome:
+    """
+    Validate the project, compute every result, render every page, then write the site.
+
+    Raises :class:`~sdofreport.errors.SdofreportError` subclasses for bad input; in that
+    case nothing is written and any previous site at ``output`` is left intact.
+    """
+    started = time.perf_counter()
+    project = load_project(project_file)
+    _check_inside(project, allow_outside)
+    results = run_project(project, jobs=jobs, cache_dir=cache_dir, use_cache=use_cache,
+                          progress=progress)
+    render_started = time.perf_counter()
+    files = gather_site(results, jobs=jobs or os.cpu_count() or 1)
+    write_started = time.perf_counter()
+    path = write_site(files, output)
+    finished = time.perf_counter()
+    results.timings_s.update({"render_s": write_started - render_started,
+                              "write_s": finished - write_started,
+                              "total_s": finished - started})
+    log.info("built %d files in %.2f s", len(files), finished - started)
+    return BuildOutcome(path, results, len(files), finished - started)

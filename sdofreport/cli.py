@@ -1,0 +1,220 @@
+"""Command-line interface: each command parses its options, calls one function, reports.
+
+Errors caused by the input are :class:`~sdofreport.errors.SdofreportError` and end the
+program with a one-paragraph message and exit status 2; ``-v`` adds the debug log and,
+for unexpected failures, the traceback.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import logging
+import sys
+
+import click
+
+from sdofreport import __version__
+from sdofreport.core.spectra import SPECTRUM_METHODS
+from sdofreport.errors import SdofreportError
+
+log = logging.getLogger("sdofreport")
+
+
+def _version_text() -> str:
+    import numba
+    import numpy
+    import scipy
+
+    return (f"sdofreport {__version__} (numpy {numpy.__version__}, "
+            f"scipy {scipy.__version__}, numba {numba.__version__})")
+
+
+def _print_version(ctx: click.Context, _param: click.Parameter, value: bool) -> None:
+    if not value or ctx.resilient_parsing:
+        return
+    click.echo(_version_text())
+    ctx.exit(0)
+
+
+def _float_list(text: str | None, option: str) -> list[float] | None:
+    """Parse ``"0.1,0.2, 0.5"`` into floats, or raise a user error naming the option."""
+    if text is None:
+        return None
+    values = []
+    for token in text.replace(";", ",").split(","):
+        token = token.strip()
+        if not token:
+            continue
+        try:
+            values.append(float(token))
+        except ValueError:
+            raise SdofreportError(
+                f"{option}: expected numbers separated by commas, found {token!r}."
+            ) from None
+    if not values:
+        raise SdofreportError(f"{option}: expected at least one number, found {text!r}.")
+    return values
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.option("--version", is_flag=True, expose_value=False, is_eager=True,
+              callback=_print_version, help="Print the version and the versions of numpy, "
+              "scipy and numba, then exit.")
+@click.option("-v", "--verbose", is_flag=True, help="Debug log and tracebacks.")
+@click.pass_context
+def cli(ctx: click.Context, verbose: bool) -> None:
+    """Earthquake response of single-oscillator structures, as a review site.
+
+    \b
+    Example:
+      sdofreport build site_examples/harbourview_cold_store/sdofreport.toml -o _site
+    """
+    ctx.ensure_object(dict)
+    ctx.obj["verbose"] = verbose
+    logging.basicConfig(
+        level=logging.DEBUG if verbose else logging.WARNING,
+        format="%(levelname)s: %(message)s",
+        stream=sys.stderr,
+    )
+
+
+def _record_options(func):
+    from sdofreport.core.units import acceleration_unit_names
+    from sdofreport.records import RECORD_FORMATS
+
+    func = click.option("--dt", "dt_s", type=float, default=None,
+                        help="Time step [s], for files that do not state it.")(func)
+    func = click.option("--units", type=click.Choice(acceleration_unit_names(),
+                        case_sensitive=False), default=None,
+                        help="Units of the acceleration values in the file (default g).")(func)
+    func = click.option("--format", "file_format", type=click.Choice(RECORD_FORMATS),
+                        default="auto", show_default=True,
+                        help="Record file layout; auto detects it and says which.")(func)
+    return func
+
+
+@cli.command("spectrum")
+@click.argument("file", type=click.Path(dir_okay=False, path_type=str))
+@_record_options
+@click.option("--damping", "damping", type=float, multiple=True,
+              help="Damping ratio (repeatable), e.g. 0.05. Default 0.05.")
+@click.option("--periods", "periods_text", default=None,
+              help="Comma-separated periods [s]. Default 200 log-spaced, 0.01-10 s.")
+@click.option("--method", type=click.Choice(SPECTRUM_METHODS), default="exact", show_default=True, help="Integration method.")
+@click.option("--output", type=click.Choice(["json", "csv"]), default="json",
+              show_default=True, help="Format written to standard output.")
+def spectrum_command(file, file_format, units, dt_s, damping, periods_text, method, output):
+    """Response spectra and intensity measures of one record, to standard output.
+
+    \b
+    Example:
+      sdofreport spectrum record.txt --units g --damping 0.02 --damping 0.05 --output csv
+    """
+    from sdofreport.spectrum_report import spectrum_report
+
+    periods = _float_list(periods_text, "--periods")
+    report = spectrum_report(file, file_format=file_format, units=units, dt_s=dt_s,
+                             damping=list(damping) or [0.05], periods=periods,
+                             method=method)
+    for warning in report["warnings"]:
+        click.echo(f"Warning: {warning}", err=True)
+    for note in report["notes"]:
+        log.info(note)
+    if output == "json":
+        click.echo(json.dumps(report["json"], indent=1))
+    else:
+        buffer = io.StringIO()
+        writer = csv.writer(buffer, lineterminator="\n")
+        writer.writerows(report["csv"])
+        click.echo(buffer.getvalue(), nl=False)
+
+
+@cli.command("build")
+@click.argument("project_file", metavar="PROJECT",
+                type=click.Path(path_type=str), default="sdofreport.toml")
+@click.option("-o", "--output", default=None, type=click.Path(path_type=str),
+              help="Site folder to write (default: _site beside the project file).")
+@click.option("--jobs", "-j", type=click.IntRange(min=1), default=None,
+              help="Worker processes (default: the number of cores).")
+@click.option("--quiet", "-q", is_flag=True, help="No progress bar or summary line.")
+@click.option("--strict", is_flag=True,
+              help="Exit with status 3 when any check exceeds its limit.")
+@click.option("--cache-dir", type=click.Path(file_okay=False, path_type=str), default=None,
+              help="Result cache folder (default: a per-user cache folder).")
+@click.option("--no-cache", is_flag=True, help="Recompute everything; store nothing.")
+@click.option("--allow-outside", is_flag=True,
+              help="Accept input files outside the project folder.")
+def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache,
+                  allow_outside):
+    """Build the review site of a project.
+
+    \b
+    Example:
+      sdofreport build site_examples/harbourview_cold_store/sdofreport.toml -o _site
+    """
+    from pathlib import Path
+
+    from sdofreport.build import build_site
+
+    if output is None:
+        project_path = Path(project_file)
+        folder = project_path if project_path.is_dir() else project_path.parent
+        output = str(folder / "_site")
+    show_bar = not quiet and sys.stderr.isatty()
+    bar = None
+
+    def progress(done, total, label):
+        nonlocal bar
+        if not show_bar:
+            return
+        if bar is None:
+            bar = click.progressbar(length=total, label="Computing", file=sys.stderr,
+                                    show_pos=True)
+            bar.__enter__()
+        bar.update(done - bar.pos)
+        if done >= total:
+            bar.__exit__(None, None, None)
+
+    outcome = build_site(project_file, output, jobs=jobs, cache_dir=cache_dir,
+                         use_cache=not no_cache, allow_outside=allow_outside,
+                         progress=progress)
+    results = outcome.results
+    exceeding = sum(c.verdict == "exceeds limit" for c in results.checks)
+    if not quiet:
+        click.echo(f"Built {outcome.output} ({outcome.file_count} files) in "
+                   f"{outcome.seconds:.1f} s: {len(results.records)} records, "
+                   f"{len(results.project.systems)} systems, {len(results.checks)} checks, "
+                   f"{exceeding} exceeding the stated limit; "
+                   f"{results.cache_hits} cached, {results.cache_misses} computed.",
+                   err=True)
+        click.echo("Verdicts are checks of the stated limits, not an approval; results "
+                   "support but never replace a licensed engineer's judgement.", err=True)
+    if strict and exceeding:
+        if not quiet:
+            click.echo(f"--strict: {exceeding} check(s) exceed the stated limit.", err=True)
+        sys.exit(3)
+
+
+def main(argv: list[str] | None = None) -> None:
+    """Console-script entry point."""
+    try:
+        cli.main(args=argv, prog_name="sdofreport", standalone_mode=False)
+    except click.exceptions.Exit as exc:
+        sys.exit(exc.exit_code)
+    except click.ClickException as exc:
+        exc.show()
+        sys.exit(exc.exit_code)
+    except click.exceptions.Abort:
+        click.echo("Aborted.", err=True)
+        sys.exit(130)
+    except OSError as exc:
+        if "-v" in (argv or sys.argv) or "--verbose" in (argv or sys.argv):
+            raise
+        click.echo(f"Error: {exc.filename or ''}: {exc.strerror or exc}", err=True)
+        sys.exit(2)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    main()

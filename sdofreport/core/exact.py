@@ -1,0 +1,365 @@
+"""
+Exact recurrence for a linear SDOF oscillator under piecewise-linear base acceleration.
+
+The oscillator obeys ``u'' + 2 ζ ω u' + ω² u = −üg(t)`` with ``üg`` linear between
+equally spaced samples. Over one step ``h`` the state ``x = [u, u']`` then advances by the
+two-term recurrence
+
+    u[i+1] = a11 u[i] + a12 v[i] + b1 üg[i] + b2 üg[i+1]
+    v[i+1] = a21 u[i] + a22 v[i] + b3 üg[i] + b4 üg[i+1]
+
+whose coefficients are exact for a linearly varying load, as first given for response
+spectra by Nigam and Jennings [1]_. We obtain them as the first-order-hold discretisation
+of the state equation [2]_: with ``X = A h`` the state matrix times the step,
+
+    Φ = e^X,   x[i+1] = Φ x[i] + h (φ1(X) − φ2(X)) B f[i] + h φ2(X) B f[i+1],
+
+where ``φ1(X) = Σ X^k/(k+1)!`` and ``φ2(X) = Σ X^k/(k+2)!``. Each ``φ`` is summed as a
+power series when ``ω h ≤ 1`` (where the closed form loses digits to cancellation) and
+from the closed form ``φ_{j+1} = X⁻¹(φ_j − I/j!)`` otherwise, so the coefficients keep
+full precision from very long periods to periods far shorter than the step.
+
+The same coefficient layout (an ``(8, n)`` array, rows ``a11 a12 a21 a22 b1 b2 b3 b4``)
+is produced by :func:`sdofreport.core.newmark.newmark_coefficients`, so one compiled
+kernel serves every linear method.
+
+References
+----------
+.. [1] N. C. Nigam and P. C. Jennings, "Calculation of response spectra from
+   strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
+   pp. 909-922, 1969.
+.. [2] G. F. Franklin, J. D. Powell and M. L. Workman, *Digital Control of Dynamic
+   Systems*, 3rd ed. Addison-Wesley, 1998, sec. 6.3 (triangle/first-order-hold
+   equivalent).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from sdofreport.core._jit import JIT_OPTIONS, njit
+
+__all__ = [
+    "COEFFICIENT_ROWS",
+    "exact_coefficients",
+    "exact_response",
+    "recurrence_response",
+]
+
+#: Row names of the ``(8, n)`` coefficient arrays shared by every linear method.
+COEFFICIENT_ROWS = ("a11", "a12", "a21", "a22", "b1", "b2", "b3", "b4")
+
+# Number of power-series terms for |ω h| ≤ 1. With ‖A h‖ ≤ 1 + 2ζ < 3 the remainder
+# after 30 terms is below 3**30/30! ≈ 8e-19, under double-precision round-off.
+_SERIES_TERMS = 30
+# Switch between series and closed form (our choice; any value near 1 works).
+_SERIES_LIMIT = 1.0
+
+
+# --------------------------------------------------------------------------- checks
+def _check_time_step(time_step) -> float:
+    try:
+        dt = float(time_step)
+    except (TypeError, ValueError):
+        raise ValueError(f"time_step must be a number > 0 [s]; got {time_step!r}") from None
+    if not math.isfinite(dt) or dt <= 0.0:
+        raise ValueError(f"time_step must be finite and > 0 [s]; got {time_step!r}")
+    return dt
+
+
+def _check_ground_acceleration(ground_acceleration) -> np.ndarray:
+    try:
+        ag = np.asarray(ground_acceleration, dtype=np.float64)
+    except (TypeError, ValueError):
+        raise ValueError(
+            "ground_acceleration must be a 1-D array of numbers [m/s²]; "
+            f"got {type(ground_acceleration).__name__}"
+        ) from None
+    if ag.ndim != 1:
+        raise ValueError(
+            f"ground_acceleration must be 1-D [m/s²]; got an array of shape {ag.shape}"
+        )
+    if ag.size < 2:
+        raise ValueError(
+            f"ground_acceleration must have at least 2 samples [m/s²]; got {ag.size}"
+        )
+    if not np.all(np.isfinite(ag)):
+        bad = int(np.flatnonzero(~np.isfinite(ag))[0])
+        raise ValueError(
+            "ground_acceleration must be finite [m/s²]; "
+            f"got {float(ag[bad])!r} at sample {bad}"
+        )
+    return np.ascontiguousarray(ag)
+
+
+def _check_oscillators(natural_periods, damping_ratios, *, allow_zero_period=True):
+    """Broadcast periods [s] and damping ratios [-] to two flat float64 arrays."""
+    try:
+        periods = np.asarray(natural_periods, dtype=np.float64)
+    except (TypeError, ValueError):
+        raise ValueError(
+            f"natural_periods must be numbers >= 0 [s]; got {natural_periods!r}"
+        ) from None
+    try:
+        zetas = np.asarray(damping_ratios, dtype=np.float64)
+    except (TypeError, ValueError):
+        raise ValueError(
+            f"damping_ratios must be numbers in [0, 1) [-]; got {damping_ratios!r}"
+        ) from None
+    if periods.size == 0:
+        raise ValueError("natural_periods must hold at least one period [s]; got none")
+    if zetas.size == 0:
+        raise ValueError("damping_ratios must hold at least one ratio [-]; got none")
+    bad = ~np.isfinite(periods) | (periods < 0.0 if allow_zero_period else periods <= 0.0)
+    if np.any(bad):
+        value = float(periods.ravel()[np.flatnonzero(bad.ravel())[0]])
+        allowed = ">= 0" if allow_zero_period else "> 0"
+        raise ValueError(f"natural_period must be finite and {allowed} [s]; got {value!r}")
+    bad = ~np.isfinite(zetas) | (zetas < 0.0) | (zetas >= 1.0)
+    if np.any(bad):
+        value = float(zetas.ravel()[np.flatnonzero(bad.ravel())[0]])
+        hint = " (a percentage? use 0.05 for 5 %)" if np.isfinite(value) and value >= 1 else ""
+        raise ValueError(
+            f"damping_ratio must be in [0, 1) [-] (critical and over-damped systems are "
+            f"not supported); got {value!r}{hint}"
+        )
+    try:
+        periods, zetas = np.broadcast_arrays(periods, zetas)
+    except ValueError:
+        raise ValueError(
+            f"natural_periods (shape {periods.shape}) and damping_ratios "
+            f"(shape {zetas.shape}) must broadcast to one list of oscillators"
+        ) from None
+    return (
+        np.ascontiguousarray(periods.ravel(), dtype=np.float64),
+        np.ascontiguousarray(zetas.ravel(), dtype=np.float64),
+    )
+
+
+# --------------------------------------------------------------- coefficient algebra
+def _mat2(a11, a12, a21, a22):
+    return np.stack([np.stack([a11, a12], -1), np.stack([a21, a22], -1)], -2)
+
+
+def _phi_functions(theta: np.ndarray, zeta: np.ndarray):
+    """
+    φ0 = e^X, φ1, φ2 of ``X = θ A'`` with ``A' = [[0, 1], [−1, −2ζ]]`` (scaled state).
+
+    Returns three arrays of shape (n, 2, 2).
+    """
+    n = theta.size
+    eye = np.broadcast_to(np.eye(2), (n, 2, 2))
+    x = _mat2(np.zeros(n), theta, -theta, -2.0 * zeta * theta)
+    phi0 = np.empty((n, 2, 2))
+    phi1 = np.empty((n, 2, 2))
+    phi2 = np.empty((n, 2, 2))
+
+    small = theta <= _SERIES_LIMIT
+    if np.any(small):
+        xs = x[small]
+        term = np.broadcast_to(np.eye(2), xs.shape).copy()  # X^k / k!
+        s0 = term.copy()
+        s1 = term.copy()  # Σ X^k/(k+1)!
+        s2 = term / 2.0  # Σ X^k/(k+2)!
+        for k in range(1, _SERIES_TERMS):
+            term = term @ xs / k  # X^k / k!
+            s0 += term
+            s1 += term / (k + 1)
+            s2 += term / ((k + 1) * (k + 2))
+        phi0[small] = s0
+        phi1[small] = s1
+        phi2[small] = s2
+
+    large = ~small
+    if np.any(large):
+        th = theta[large]
+        z = zeta[large]
+        thd = th * np.sqrt(1.0 - z * z)
+        # e^X = e^{−ζθ}[cos θd I + sin θd/θd (X + ζθ I)], since (X + ζθI)² = −θd² I.
+        decay = np.exp(-z * th)
+        c = np.cos(thd)
+        s_over = np.sin(thd) / thd
+        xl = x[large]
+        shifted = xl + (z * th)[:, None, None] * eye[large]
+        p0 = decay[:, None, None] * (c[:, None, None] * eye[large] + s_over[:, None, None] * shifted)
+        # X⁻¹ = (1/θ) [[−2ζ, −1], [1, 0]]
+        inv = _mat2(-2.0 * z / th, -1.0 / th, 1.0 / th, np.zeros_like(th))
+        p1 = inv @ (p0 - eye[large])
+        p2 = inv @ (p1 - eye[large])
+        phi0[large] = p0
+        phi1[large] = p1
+        phi2[large] = p2
+    return phi0, phi1, phi2
+
+
+def exact_coefficients(natural_periods, damping_ratios, time_step) -> np.ndarray:
+    """
+    Exact recurrence coefficients for piecewise-linear base acceleration.
+
+    Parameters
+    ----------
+    natural_periods : float or array-like
+        Undamped natural periods, each > 0. [s]
+    damping_ratios : float or array-like
+        Fractions of critical damping in [0, 1); broadcast against the periods. [-]
+    time_step : float
+        Integration step ``h`` the coefficients advance by. [s]
+
+    Returns
+    -------
+    numpy.ndarray
+        Shape ``(8, n)``, rows ``a11 a12 a21 a22 b1 b2 b3 b4`` (see module docstring),
+        in units [-], [s], [1/s], [-], [s²], [s²], [s], [s].
+
+    Raises
+    ------
+    ValueError
+        For a period <= 0, a damping ratio outside [0, 1) or a step <= 0.
+
+    References
+    ----------
+    .. [1] N. C. Nigam and P. C. Jennings, "Calculation of response spectra from
+       strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
+       pp. 909-922, 1969.
+    """
+    h = _check_time_step(time_step)
+    periods, zeta = _check_oscillators(natural_periods, damping_ratios, allow_zero_period=False)
+    wn = 2.0 * np.pi / periods
+    theta = wn * h
+    phi0, phi1, phi2 = _phi_functions(theta, zeta)
+    # Scaled state y = [u, u'/ω], scaled time τ = ωt, scaled load g = f/ω² with f = −üg.
+    # y[i+1] = φ0 y[i] + θ(φ1 − φ2) e2 g[i] + θ φ2 e2 g[i+1]   (first-order hold, [2])
+    p = theta[:, None] * (phi1[:, :, 1] - phi2[:, :, 1])
+    q = theta[:, None] * phi2[:, :, 1]
+    w2 = wn * wn
+    coef = np.empty((8, periods.size))
+    coef[0] = phi0[:, 0, 0]
+    coef[1] = phi0[:, 0, 1] / wn
+    coef[2] = phi0[:, 1, 0] * wn
+    coef[3] = phi0[:, 1, 1]
+    coef[4] = -p[:, 0] / w2
+    coef[5] = -q[:, 0] / w2
+    coef[6] = -p[:, 1] / wn
+    coef[7] = -q[:, 1] / wn
+    return coef
+
+
+# --------------------------------------------------------------------- time histories
+@njit(**JIT_OPTIONS)
+def _recurrence_histories(coef, cdamp, kstiff, ag, u_init, v_init, u_out, v_out, at_out):
+    """Plain recurrence at the samples of ``ag``; fills [n, npts] history arrays."""
+    n = coef.shape[1]
+    npts = ag.size
+    a11 = coef[0]
+    a12 = coef[1]
+    a21 = coef[2]
+    a22 = coef[3]
+    b1 = coef[4]
+    b2 = coef[5]
+    b3 = coef[6]
+    b4 = coef[7]
+    u = u_init.copy()
+    v = v_init.copy()
+    for j in range(n):
+        u_out[j, 0] = u[j]
+        v_out[j, 0] = v[j]
+        at_out[j, 0] = -(cdamp[j] * v[j] + kstiff[j] * u[j])
+    for i in range(npts - 1):
+        g0 = ag[i]
+        g1 = ag[i + 1]
+        for j in range(n):
+            u0 = u[j]
+            v0 = v[j]
+            u1 = a11[j] * u0 + a12[j] * v0 + b1[j] * g0 + b2[j] * g1
+            v1 = a21[j] * u0 + a22[j] * v0 + b3[j] * g0 + b4[j] * g1
+            u[j] = u1
+            v[j] = v1
+            u_out[j, i + 1] = u1
+            v_out[j, i + 1] = v1
+            at_out[j, i + 1] = -(cdamp[j] * v1 + kstiff[j] * u1)
+
+
+def recurrence_response(coefficients, natural_periods, damping_ratios, ground_acceleration,
+                        initial_displacement=0.0, initial_velocity=0.0):
+    """
+    Run a two-term recurrence (``(8, n)`` coefficients) at the record's own samples.
+
+    Parameters
+    ----------
+    coefficients : numpy.ndarray
+        Shape ``(8, n)`` from :func:`exact_coefficients` or
+        :func:`sdofreport.core.newmark.newmark_coefficients`. [mixed, see rows]
+    natural_periods : numpy.ndarray
+        The n periods the coefficients were built for, each > 0. [s]
+    damping_ratios : numpy.ndarray
+        The n damping ratios the coefficients were built for. [-]
+    ground_acceleration : numpy.ndarray
+        Base acceleration samples, spaced by the coefficients' step. [m/s²]
+    initial_displacement : float or array-like
+        Relative displacement at the first sample. [m]
+    initial_velocity : float or array-like
+        Relative velocity at the first sample. [m/s]
+
+    Returns
+    -------
+    tuple of numpy.ndarray
+        Relative displacement [m], relative velocity [m/s] and total acceleration [m/s²],
+        each of shape ``(n, npts)``.
+    """
+    coef = np.ascontiguousarray(coefficients, dtype=np.float64)
+    periods, zeta = _check_oscillators(natural_periods, damping_ratios, allow_zero_period=False)
+    ag = _check_ground_acceleration(ground_acceleration)
+    n = coef.shape[1]
+    if periods.size != n:
+        raise ValueError(
+            f"coefficients describe {n} oscillators but {periods.size} periods were given"
+        )
+    wn = 2.0 * np.pi / periods
+    u0 = np.ascontiguousarray(np.broadcast_to(np.asarray(initial_displacement, float), (n,)))
+    v0 = np.ascontiguousarray(np.broadcast_to(np.asarray(initial_velocity, float), (n,)))
+    u_out = np.empty((n, ag.size))
+    v_out = np.empty((n, ag.size))
+    at_out = np.empty((n, ag.size))
+    _recurrence_histories(coef, 2.0 * zeta * wn, wn * wn, ag, u0, v0, u_out, v_out, at_out)
+    return u_out, v_out, at_out
+
+
+def exact_response(ground_acceleration, time_step, natural_period, damping_ratio, *,
+                   initial_displacement=0.0, initial_velocity=0.0):
+    """
+    Response histories of linear SDOF oscillators by the exact piecewise-linear recurrence.
+
+    Parameters
+    ----------
+    ground_acceleration : array-like
+        Equally spaced base acceleration, linear between samples. [m/s²]
+    time_step : float
+        Sampling interval of ``ground_acceleration``. [s]
+    natural_period : float or array-like
+        Undamped natural period(s), each > 0. [s]
+    damping_ratio : float or array-like
+        Fraction(s) of critical damping in [0, 1); broadcast with the periods. [-]
+    initial_displacement : float or array-like, optional
+        Relative displacement at t = 0 (default at rest). [m]
+    initial_velocity : float or array-like, optional
+        Relative velocity at t = 0 (default at rest). [m/s]
+
+    Returns
+    -------
+    tuple of numpy.ndarray
+        Relative displacement [m], relative velocity [m/s] and total acceleration
+        ``ü + üg`` [m/s²] at the samples, each of shape ``(n_oscillators, npts)``.
+
+    References
+    ----------
+    .. [1] N. C. Nigam and P. C. Jennings, "Calculation of response spectra from
+       strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
+       pp. 909-922, 1969.
+    """
+    dt = _check_time_step(time_step)
+    periods, zeta = _check_oscillators(natural_period, damping_ratio, allow_zero_period=False)
+    coef = exact_coefficients(periods, zeta, dt)
+    return recurrence_response(coef, periods, zeta, ground_acceleration,
+                               initial_displacement, initial_velocity)

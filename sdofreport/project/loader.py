@@ -1,0 +1,469 @@
+"""Read and validate a project file (TOML), reporting every problem at once.
+
+Validation runs in phases: TOML syntax (with the line), then every key of every section
+against :data:`~sdofreport.project.schema.SECTIONS` (unknown keys with a "did you mean"),
+then cross-checks (unique ids, files present, limits that need a mass or height). Each
+problem is ``(location, message)``; the location is a key path such as
+``systems[2].limits.drift_ratio`` (array positions count from 1, in file order).
+"""
+
+from __future__ import annotations
+
+import difflib
+import hashlib
+import math
+import os
+import re
+import tomllib
+from datetime import datetime, timezone
+from pathlib import Path
+
+import numpy as np
+
+from sdofreport.core.units import normalise_acceleration_unit
+from sdofreport.errors import ProjectError
+from sdofreport.project.model import (
+    AnalysisSettings,
+    Limits,
+    ProcessingSettings,
+    Project,
+    ProjectInfo,
+    RecordSpec,
+    SystemSpec,
+)
+from sdofreport.project.quantities import QuantityError, parse_quantity
+from sdofreport.project.schema import SECTIONS, TOP_LEVEL, KeySpec
+
+_ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
+
+
+class _Problems:
+    """Collects ``(location, message)`` pairs in the order they are found."""
+
+    def __init__(self) -> None:
+        self.items: list[tuple[str, str]] = []
+
+    def add(self, location: str, message: str) -> None:
+        self.items.append((location, message))
+
+
+def _did_you_mean(name: str, allowed) -> str:
+    close = difflib.get_close_matches(name, list(allowed), n=1, cutoff=0.6)
+    return f"; did you mean '{close[0]}'?" if close else \
+        f"; allowed keys: {', '.join(allowed)}"
+
+
+def _check_unknown(table: dict, section: str, location: str, problems: _Problems) -> None:
+    allowed = SECTIONS[section]
+    for key in table:
+        if key not in allowed:
+            problems.add(f"{location}.{key}" if location else key,
+                         f"unknown key{_did_you_mean(key, allowed)}")
+
+
+def _read_value(table: dict, spec: KeySpec, location: str, problems: _Problems):
+    """The key's value converted to SI, its default when absent, or None on a problem."""
+    where = f"{location}.{spec.name}"
+    if spec.name not in table:
+        if spec.required:
+            problems.add(where, f"missing; expected {spec.description[0].lower()}"
+                         f"{spec.description[1:].rstrip('.')} (example: {spec.name} = "
+                         f"{spec.example})")
+        return spec.default
+    value = table[spec.name]
+    if spec.type in ("text", "path"):
+        if not isinstance(value, str) or not value.strip():
+            problems.add(where, f"expected non-empty text, found {value!r}")
+            return None
+        return value.strip()
+    if spec.type == "choice":
+        choices = spec.choices or ()
+        if spec.name == "units" and isinstance(value, str):
+            try:
+                return normalise_acceleration_unit(value)
+            except ValueError:
+                pass
+        if value not in choices:
+            problems.add(where, f"expected one of {', '.join(map(str, choices))}, found "
+                         f"{value!r}")
+            return None
+        return value
+    if spec.type in ("number", "ratio", "integer"):
+        if isinstance(value, bool) or not isinstance(value, (int, float)) or \
+                not math.isfinite(float(value)):
+            kind = "a whole number" if spec.type == "integer" else "a number"
+            problems.add(where, f"expected {kind}, found {value!r}")
+            return None
+        if spec.type == "integer" and not isinstance(value, int):
+            problems.add(where, f"expected a whole number, found {value!r}")
+            return None
+        if spec.type == "ratio" and not 0.0 <= value < 1.0:
+            hint = f" (a percentage? use {value / 100:g})" if 1.0 <= value <= 100.0 else ""
+            problems.add(where, f"expected a ratio from 0 up to (not including) 1, found "
+                         f"{value!r}{hint}")
+            return None
+        return float(value) if spec.type != "integer" else int(value)
+    if spec.type == "quantity":
+        try:
+            return parse_quantity(value, spec.dimension)
+        except QuantityError as exc:
+            problems.add(where, str(exc))
+            return None
+    return value  # lists and tables are checked by their own readers
+
+
+def _positive(value, where: str, what: str, problems: _Problems, unit: str) -> bool:
+    if value is not None and not value > 0:
+        problems.add(where, f"{what} must be greater than 0, found {value:g} {unit}")
+        return False
+    return True
+
+
+def _read_processing(table, location: str, problems: _Problems,
+                     base: ProcessingSettings) -> ProcessingSettings:
+    if not isinstance(table, dict):
+        problems.add(location, f"expected a table of processing settings, found {table!r}")
+        return base
+    _check_unknown(table, "processing", location, problems)
+    spec = SECTIONS["processing"]
+    order = _read_value(table, spec["baseline_order"], location, problems) \
+        if "baseline_order" in table else base.baseline_order
+    if order is not None and not 0 <= order <= 3:
+        problems.add(f"{location}.baseline_order", f"expected an order from 0 to 3, found "
+                     f"{order}")
+        order = None
+    band = base.bandpass_hz
+    if "bandpass_hz" in table:
+        raw = table["bandpass_hz"]
+        if (not isinstance(raw, list) or len(raw) != 2 or
+                not all(isinstance(v, (int, float)) and not isinstance(v, bool)
+                        for v in raw)):
+            problems.add(f"{location}.bandpass_hz", f"expected two corner frequencies "
+                         f"[low, high] in Hz, found {raw!r}")
+        elif not 0 < raw[0] < raw[1]:
+            problems.add(f"{location}.bandpass_hz", f"expected 0 < low < high, found "
+                         f"{raw!r}")
+        else:
+            band = (float(raw[0]), float(raw[1]))
+    filter_order = base.filter_order
+    if "filter_order" in table:
+        filter_order = _read_value(table, spec["filter_order"], location, problems)
+        if filter_order is not None and not 1 <= filter_order <= 8:
+            problems.add(f"{location}.filter_order", f"expected an order from 1 to 8, "
+                         f"found {filter_order}")
+        if filter_order is None or not 1 <= filter_order <= 8:
+            filter_order = base.filter_order
+    taper = base.taper_s
+    if "taper_s" in table:
+        taper = _read_value(table, spec["taper_s"], location, problems)
+        if taper is not None and not _positive(taper, f"{location}.taper_s", "the taper",
+                                               problems, "s"):
+            taper = None
+    return ProcessingSettings(order, band, filter_order, taper)
+
+
+def _read_periods(value, problems: _Problems) -> tuple[float, ...]:
+    where = "analysis.periods"
+    if isinstance(value, list):
+        ok = value and all(isinstance(v, (int, float)) and not isinstance(v, bool)
+                           and math.isfinite(v) and v > 0 for v in value)
+        if not ok:
+            problems.add(where, f"expected a list of periods greater than 0 s, found "
+                         f"{value!r}")
+            return (1.0,)
+        return tuple(sorted(float(v) for v in set(value)))
+    if isinstance(value, dict):
+        unknown = [k for k in value if k not in ("min", "max", "count")]
+        for key in unknown:
+            problems.add(f"{where}.{key}", f"unknown key"
+                         f"{_did_you_mean(key, ('min', 'max', 'count'))}")
+        try:
+            low = parse_quantity(value.get("min", 0.01), "time")
+            high = parse_quantity(value.get("max", 10.0), "time")
+        except QuantityError as exc:
+            problems.add(where, str(exc))
+            return (1.0,)
+        count = value.get("count", 200)
+        if isinstance(count, bool) or not isinstance(count, int) or not 2 <= count <= 5000:
+            problems.add(f"{where}.count", f"expected a whole number from 2 to 5000, "
+                         f"found {count!r}")
+            return (1.0,)
+        if not 0 < low < high:
+            problems.add(where, f"expected 0 < min < max, found min {low:g} s, max "
+                         f"{high:g} s")
+            return (1.0,)
+        return tuple(float(v) for v in np.geomspace(low, high, count))
+    problems.add(where, f"expected {{min, max, count}} or a list of periods, found "
+                 f"{value!r}")
+    return (1.0,)
+
+
+def _read_analysis(table, problems: _Problems) -> AnalysisSettings:
+    if not isinstance(table, dict):
+        problems.add("analysis", f"expected a table, found {table!r}")
+        table = {}
+    _check_unknown(table, "analysis", "analysis", problems)
+    spec = SECTIONS["analysis"]
+    method = _read_value(table, spec["method"], "analysis", problems) or "exact"
+    statistic = _read_value(table, spec["statistic"], "analysis", problems) or "auto"
+    damping_raw = table.get("damping", spec["damping"].default)
+    if isinstance(damping_raw, (int, float)) and not isinstance(damping_raw, bool):
+        damping_raw = [damping_raw]
+    damping: list[float] = []
+    if not isinstance(damping_raw, list) or not damping_raw:
+        problems.add("analysis.damping", f"expected a list of damping ratios, found "
+                     f"{damping_raw!r}")
+    else:
+        for i, value in enumerate(damping_raw, start=1):
+            if isinstance(value, bool) or not isinstance(value, (int, float)) or \
+                    not 0.0 <= value < 1.0:
+                hint = f" (a percentage? use {value / 100:g})" if \
+                    isinstance(value, (int, float)) and 1 <= value <= 100 else ""
+                problems.add(f"analysis.damping[{i}]", f"expected ratios from 0 up to "
+                             f"(not including) 1, found {value!r}{hint}")
+            else:
+                damping.append(float(value))
+    periods = _read_periods(table.get("periods", spec["periods"].default), problems)
+    return AnalysisSettings(method, tuple(sorted(set(damping))) or (0.05,), periods,
+                            statistic)
+
+
+def _read_info(table, project_path: Path, problems: _Problems) -> ProjectInfo:
+    if not isinstance(table, dict):
+        problems.add("project", f"expected a table, found {table!r}")
+        table = {}
+    _check_unknown(table, "project", "project", problems)
+    spec = SECTIONS["project"]
+    values = {name: _read_value(table, key, "project", problems) for name, key in
+              spec.items()}
+    notes_path = None
+    if values["notes"]:
+        notes_path = (project_path.parent / values["notes"]).resolve()
+        if not notes_path.is_file():
+            problems.add("project.notes", f"file '{values['notes']}' not found (looked "
+                         f"for {notes_path})")
+            notes_path = None
+    date = values["date"]
+    if date is None and os.environ.get("SOURCE_DATE_EPOCH", "").strip():
+        try:
+            stamp = int(os.environ["SOURCE_DATE_EPOCH"])
+            date = datetime.fromtimestamp(stamp, tz=timezone.utc).strftime("%Y-%m-%d")
+        except ValueError:
+            problems.add("SOURCE_DATE_EPOCH", f"expected whole seconds since 1970, found "
+                         f"{os.environ['SOURCE_DATE_EPOCH']!r}")
+    return ProjectInfo(
+        title=values["title"] or "", reference=values["reference"] or "",
+        revision=values["revision"] or "", prepared_by=values["prepared_by"] or "",
+        checked_by=values["checked_by"], date=date, notes_path=notes_path,
+        notes_file=values["notes"], display_units=values["display_units"] or "SI")
+
+
+def _read_id(table: dict, where: str, seen: dict, problems: _Problems) -> str | None:
+    value = table.get("id")
+    if value is None:
+        problems.add(f"{where}.id", "missing; every entry needs a unique id")
+        return None
+    if not isinstance(value, str) or not _ID_PATTERN.match(value):
+        problems.add(f"{where}.id", f"expected letters, digits, '-', '_' or '.' (up to 64, "
+                     f"starting with a letter or digit), found {value!r}")
+        return None
+    if value in seen:
+        problems.add(f"{where}.id", f"duplicate id {value!r} (also {seen[value]})")
+        return None
+    seen[value] = where
+    return value
+
+
+def _read_records(items, root: Path, processing: ProcessingSettings,
+                  problems: _Problems) -> list[RecordSpec]:
+    if not isinstance(items, list) or not items:
+        problems.add("records", "expected at least one [[records]] entry")
+        return []
+    spec = SECTIONS["records[]"]
+    records, seen = [], {}
+    for index, table in enumerate(items, start=1):
+        where = f"records[{index}]"
+        if not isinstance(table, dict):
+            problems.add(where, f"expected a table, found {table!r}")
+            continue
+        _check_unknown(table, "records[]", where, problems)
+        record_id = _read_id(table, where, seen, problems)
+        file = _read_value(table, spec["file"], where, problems)
+        fmt = _read_value(table, spec["format"], where, problems) or "auto"
+        units = _read_value(table, spec["units"], where, problems) or "g"
+        dt_s = _read_value(table, spec["dt"], where, problems)
+        _positive(dt_s, f"{where}.dt", "the time step", problems, "s")
+        scale = _read_value(table, spec["scale"], where, problems)
+        _positive(scale, f"{where}.scale", "the scale factor", problems, "")
+        own = _read_processing(table.get("processing", {}), f"{where}.processing",
+                               problems, processing)
+        path = None
+        if file:
+            path = (root / file).resolve()
+            if not path.is_file():
+                problems.add(f"{where}.file", f"file '{file}' not found (looked for "
+                             f"{path})")
+        if record_id and file and path is not None:
+            records.append(RecordSpec(record_id, path, file, fmt, units, dt_s,
+                                      scale if scale else 1.0, own))
+    return records
+
+
+def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits:
+    if not isinstance(table, dict):
+        problems.add(where, f"expected a table of limits, found {table!r}")
+        return Limits()
+    _check_unknown(table, "systems[].limits", where, problems)
+    spec = SECTIONS["systems[].limits"]
+    values = {}
+    for name, key in spec.items():
+        value = _read_value(table, key, where, problems) if name in table else None
+        if value is not None and not value > 0:
+            problems.add(f"{where}.{name}", f"a limit must be greater than 0, found "
+                         f"{table[name]!r}")
+            value = None
+        values[name] = value
+    if values["base_shear"] is not None and mass is None:
+        problems.add(f"{where}.base_shear", "a base-shear limit needs the system's mass "
+                     "(give mass with stiffness or period)")
+    if values["drift_ratio"] is not None and height is None:
+        problems.add(f"{where}.drift_ratio", "a drift-ratio limit needs the system's "
+                     "height")
+    return Limits(values["displacement"], values["drift_ratio"], values["base_shear"],
+                  values["total_accel"])
+
+
+def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
+    spec = SECTIONS["systems[]"]
+    _check_unknown(table, "systems[]", where, problems)
+    system_id = _read_id(table, where, seen, problems)
+    name = _read_value(table, spec["name"], where, problems)
+    damping = _read_value(table, spec["damping"], where, problems)
+    mass = _read_value(table, spec["mass"], where, problems)
+    stiffness = _read_value(table, spec["stiffness"], where, problems)
+    period = _read_value(table, spec["period"], where, problems)
+    height = _read_value(table, spec["height"], where, problems)
+    ok = all(_positive(v, f"{where}.{k}", k, problems, u) for k, v, u in (
+        ("mass", mass, "kg"), ("stiffness", stiffness, "N/m"), ("period", period, "s"),
+        ("height", height, "m")))
+    limits = _read_limits(table.get("limits", {}), f"{where}.limits",
+                          mass if "mass" in table else None,
+                          height if "height" in table else None, problems)
+    given = tuple(k for k in ("mass", "stiffness", "period") if k in table)
+    allowed = {("mass", "stiffness"), ("mass", "period"), ("period",)}
+    if given not in allowed:
+        problems.add(where, f"expected mass + stiffness, mass + period, or period alone; "
+                     f"found {' + '.join(given) if given else 'none of them'}")
+        return None
+    if not ok or None in (system_id, name, damping):
+        return None
+    derivation: list[str] = []
+    if given == ("mass", "stiffness"):
+        if mass is None or stiffness is None:
+            return None
+        period = 2.0 * math.pi * math.sqrt(mass / stiffness)
+        derivation.append(f"T = 2π √(m/k) = 2π √({mass:.6g} kg / {stiffness:.6g} N/m) "
+                          f"= {period:.6g} s")
+    elif given == ("mass", "period"):
+        if mass is None or period is None:
+            return None
+        stiffness = mass * (2.0 * math.pi / period) ** 2
+        derivation.append(f"k = m (2π/T)² = {mass:.6g} kg × (2π / {period:.6g} s)² "
+                          f"= {stiffness:.6g} N/m")
+    else:
+        if period is None:
+            return None
+        derivation.append(f"T = {period:.6g} s as given (no mass: forces are not "
+                          "computed)")
+    derivation.append(f"f = 1/T = {1.0 / period:.6g} Hz; ω = 2π/T = "
+                      f"{2.0 * math.pi / period:.6g} rad/s")
+    return SystemSpec(system_id, name, damping, period, mass, stiffness, height, limits,
+                      tuple(derivation))
+
+
+def _read_systems(items, problems: _Problems) -> list[SystemSpec]:
+    if not isinstance(items, list) or not items:
+        problems.add("systems", "expected at least one [[systems]] entry")
+        return []
+    systems, seen = [], {}
+    for index, table in enumerate(items, start=1):
+        where = f"systems[{index}]"
+        if not isinstance(table, dict):
+            problems.add(where, f"expected a table, found {table!r}")
+            continue
+        system = _read_system(table, where, seen, problems)
+        if system is not None:
+            systems.append(system)
+    return systems
+
+
+def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError) -> str:
+    text = str(exc)
+    match = re.search(r"\(at line (\d+), column (\d+)\)", text)
+    reason = re.sub(r"\s*\(at line \d+, column \d+\)", "", text)
+    where = f" line {match.group(1)}, column {match.group(2)}" if match else ""
+    return (f"{path}{where}: not valid TOML: {reason}. Check quotes around text, '=' "
+            f"between key and value, and [section] headers.")
+
+
+def format_problems(path: Path, problems: list[tuple[str, str]]) -> str:
+    """One message listing every problem, each starting with where it is."""
+    count = len(problems)
+    head = f"{path} has {count} problem{'s' if count != 1 else ''}:"
+    return "\n".join([head, *(f"  {where}: {message}" for where, message in problems)])
+
+
+def load_project(path) -> Project:
+    """
+    Read, validate and convert a project file to SI.
+
+    Parameters
+    ----------
+    path : str or Path
+        The project file (TOML). Relative paths inside it are relative to its folder.
+
+    Returns
+    -------
+    Project
+
+    Raises
+    ------
+    ProjectError
+        Listing every problem found, each with its key path (or line, for syntax).
+    """
+    path = Path(path)
+    if path.is_dir():
+        path = path / "sdofreport.toml"
+    if not path.is_file():
+        raise ProjectError(f"{path}: project file not found; expected a TOML file such as "
+                           f"sdofreport.toml.")
+    raw = path.read_bytes()
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = raw[:exc.start].count(b"\n") + 1
+        raise ProjectError(f"{path} line {line}: not UTF-8 text (byte {exc.start}); save "
+                           f"the project file as UTF-8.") from None
+    try:
+        document = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise ProjectError(_syntax_error_message(path, exc)) from None
+    shown = path
+    path = path.resolve()
+    problems = _Problems()
+    for key in document:
+        if key not in TOP_LEVEL:
+            problems.add(key, f"unknown section{_did_you_mean(key, TOP_LEVEL)}")
+    if "project" not in document:
+        problems.add("project", "missing section [project] (title, reference, revision, "
+                     "prepared_by)")
+    info = _read_info(document.get("project", {}), path, problems)
+    analysis = _read_analysis(document.get("analysis", {}), problems)
+    processing = _read_processing(document.get("processing", {}), "processing", problems,
+                                  ProcessingSettings())
+    records = _read_records(document.get("records"), path.parent, processing, problems)
+    systems = _read_systems(document.get("systems"), problems)
+    if problems.items:
+        raise ProjectError(format_problems(shown, problems.items))
+    return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
+                   tuple(records), tuple(systems))

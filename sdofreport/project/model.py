@@ -1,0 +1,118 @@
+"""Validated, SI-only description of a project (what the loader returns)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+
+@dataclass(frozen=True)
+class ProcessingSettings:
+    """Record processing; every step off unless set (Boore & Bommer 2005)."""
+
+    baseline_order: int | None = None
+    bandpass_hz: tuple[float, float] | None = None  # [Hz]
+    filter_order: int = 4
+    taper_s: float | None = None  # [s]
+
+    def as_dict(self) -> dict:
+        return {"baseline_order": self.baseline_order,
+                "bandpass_hz": list(self.bandpass_hz) if self.bandpass_hz else None,
+                "filter_order": self.filter_order, "taper_s": self.taper_s}
+
+
+@dataclass(frozen=True)
+class ProjectInfo:
+    title: str
+    reference: str
+    revision: str
+    prepared_by: str
+    checked_by: str | None = None
+    date: str | None = None
+    notes_path: Path | None = None
+    notes_file: str | None = None  # as written in the project file
+    display_units: str = "SI"
+
+
+@dataclass(frozen=True)
+class AnalysisSettings:
+    method: str = "exact"
+    damping: tuple[float, ...] = (0.05,)
+    periods_s: tuple[float, ...] = ()
+    statistic: str = "auto"
+
+    def as_dict(self) -> dict:
+        return {"method": self.method, "damping": list(self.damping),
+                "periods_s": {"count": len(self.periods_s), "min": min(self.periods_s),
+                              "max": max(self.periods_s)},
+                "statistic": self.statistic}
+
+
+@dataclass(frozen=True)
+class RecordSpec:
+    id: str
+    path: Path  # absolute
+    file: str  # as written in the project file
+    file_format: str = "auto"
+    units: str = "g"
+    dt_s: float | None = None
+    scale: float = 1.0
+    processing: ProcessingSettings = field(default_factory=ProcessingSettings)
+
+
+@dataclass(frozen=True)
+class Limits:
+    """Limits in SI; ``None`` where not checked."""
+
+    displacement_m: float | None = None
+    drift_ratio: float | None = None
+    base_shear_n: float | None = None
+    total_accel_m_s2: float | None = None
+
+    def items(self) -> list[tuple[str, float]]:
+        """(quantity, limit) pairs that are set, in a fixed order."""
+        names = ("displacement", "drift_ratio", "base_shear", "total_accel")
+        values = (self.displacement_m, self.drift_ratio, self.base_shear_n,
+                  self.total_accel_m_s2)
+        return [(n, v) for n, v in zip(names, values) if v is not None]
+
+
+@dataclass(frozen=True)
+class SystemSpec:
+    """A linear single-degree-of-freedom system in SI units."""
+
+    id: str
+    name: str
+    damping: float  # [-]
+    period_s: float
+    mass_kg: float | None = None
+    stiffness_n_m: float | None = None
+    height_m: float | None = None
+    limits: Limits = field(default_factory=Limits)
+    derivation: tuple[str, ...] = ()  # formulas used, human readable
+
+    @property
+    def frequency_hz(self) -> float:
+        return 1.0 / self.period_s
+
+
+@dataclass(frozen=True)
+class Project:
+    path: Path  # the project file, absolute
+    source_sha256: str
+    info: ProjectInfo
+    analysis: AnalysisSettings
+    processing: ProcessingSettings
+    records: tuple[RecordSpec, ...]
+    systems: tuple[SystemSpec, ...]
+
+    @property
+    def root(self) -> Path:
+        return self.path.parent
+
+    @property
+    def statistic_used(self) -> str:
+        """``mean`` or ``max``: ``auto`` resolved by the number of records."""
+        if self.analysis.statistic != "auto":
+            return self.analysis.statistic
+        return "mean" if len(self.records) >= 7 else "max"

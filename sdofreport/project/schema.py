@@ -1,0 +1,136 @@
+"""The single registry of project-file sections and keys.
+
+The loader validates against it, the documentation is generated from it and a test
+checks that the two cannot drift. Each key states its type, its dimension (for values
+that may carry units), whether it is required, its default and an example.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from sdofreport.core.spectra import SPECTRUM_METHODS
+from sdofreport.core.units import acceleration_unit_names
+from sdofreport.records import RECORD_FORMATS
+
+#: Ways the suite statistic may be chosen. ``auto``: mean of the records' peaks when 7
+#: or more records are analysed, otherwise the maximum (ASCE/SEI 7-10 §16.1.4,
+#: EN 1998-1 §4.3.3.4.3).
+STATISTICS = ("auto", "mean", "max")
+
+#: Unit systems the pages may be shown in (results.json always stays SI).
+DISPLAY_UNITS = ("SI", "US")
+
+
+@dataclass(frozen=True)
+class KeySpec:
+    """One project-file key: how to read it and how to document it."""
+
+    name: str
+    type: str  # text | path | number | integer | ratio | quantity | choice | list | table
+    description: str
+    required: bool = False
+    default: object = None
+    dimension: str | None = None  # for quantities: a key of quantities.DIMENSIONS
+    choices: tuple | None = None
+    example: str = ""
+
+
+def _keys(*specs: KeySpec) -> dict[str, KeySpec]:
+    return {spec.name: spec for spec in specs}
+
+
+_PROCESSING_KEYS = _keys(
+    KeySpec("baseline_order", "integer", "Order (0-3) of the least-squares polynomial "
+            "removed as baseline correction (Boore & Bommer 2005). Omit for none.",
+            example="1"),
+    KeySpec("bandpass_hz", "list", "Corner frequencies [low, high] of the acausal "
+            "Butterworth band-pass with zero pads (Boore 2005), in Hz. Omit for none.",
+            example="[0.1, 25.0]"),
+    KeySpec("filter_order", "integer", "Order of the Butterworth band-pass.", default=4,
+            example="4"),
+    KeySpec("taper_s", "number", "Length of the cosine taper at each end, in s. Omit "
+            "for none.", example="0.5"),
+)
+
+SECTIONS: dict[str, dict[str, KeySpec]] = {
+    "project": _keys(
+        KeySpec("title", "text", "Title shown on every page.", required=True,
+                example='"Harbourview Cold Store - seismic checks"'),
+        KeySpec("reference", "text", "Job number or reference.", required=True,
+                example='"KB-2291"'),
+        KeySpec("revision", "text", "Revision of this run.", required=True, example='"B"'),
+        KeySpec("prepared_by", "text", "Who prepared the run.", required=True,
+                example='"A. Engineer"'),
+        KeySpec("checked_by", "text", "Who checked it (optional).", example='"B. Checker"'),
+        KeySpec("date", "text", "Date printed on the pages (optional; otherwise taken "
+                "from SOURCE_DATE_EPOCH, else omitted).", example='"2026-11-30"'),
+        KeySpec("notes", "path", "Markdown file rendered on the summary page, relative "
+                "to the project file (optional).", example='"notes.md"'),
+        KeySpec("display_units", "choice", "Units shown on the pages: SI (mm, kN, m/s², "
+                "g) or US customary (in, kip, in/s², g). results.json stays SI.",
+                default="SI", choices=DISPLAY_UNITS, example='"SI"'),
+    ),
+    "analysis": _keys(
+        KeySpec("method", "choice", "Integration method for spectra and histories.",
+                default="exact", choices=SPECTRUM_METHODS, example='"exact"'),
+        KeySpec("damping", "list", "Damping ratios of the response spectra (fractions "
+                "of critical, 0 <= value < 1).", default=[0.05], example="[0.02, 0.05]"),
+        KeySpec("periods", "table", "Spectrum periods: {min, max, count} log-spaced, "
+                "in s, or an explicit list.", default={"min": 0.01, "max": 10.0,
+                                                        "count": 200},
+                example="{ min = 0.02, max = 5.0, count = 120 }"),
+        KeySpec("statistic", "choice", "Suite statistic of the demands: auto = mean when "
+                "7 or more records, otherwise maximum (ASCE/SEI 7-10 §16.1.4; "
+                "EN 1998-1 §4.3.3.4.3).", default="auto", choices=STATISTICS,
+                example='"auto"'),
+    ),
+    "processing": _PROCESSING_KEYS,
+    "records[]": _keys(
+        KeySpec("id", "text", "Unique short name of the record.", required=True,
+                example='"rec01"'),
+        KeySpec("file", "path", "Record file, relative to the project file.",
+                required=True, example='"records/rec01.txt"'),
+        KeySpec("format", "choice", "File layout.", default="auto", choices=RECORD_FORMATS,
+                example='"auto"'),
+        KeySpec("units", "choice", "Units of the acceleration values.", default="g",
+                choices=tuple(acceleration_unit_names()), example='"g"'),
+        KeySpec("dt", "quantity", "Time step, for files that do not state it.",
+                dimension="time", example='"0.01 s"'),
+        KeySpec("scale", "number", "Amplitude scale factor applied to the record.",
+                default=1.0, example="1.25"),
+        KeySpec("processing", "table", "Per-record overrides of [processing].",
+                example="{ baseline_order = 1 }"),
+    ),
+    "records[].processing": _PROCESSING_KEYS,
+    "systems[]": _keys(
+        KeySpec("id", "text", "Unique short name of the system.", required=True,
+                example='"frame"'),
+        KeySpec("name", "text", "Descriptive name.", required=True,
+                example='"Cold-store portal frame"'),
+        KeySpec("damping", "ratio", "Damping ratio (fraction of critical).", required=True,
+                example="0.05"),
+        KeySpec("mass", "quantity", "Mass.", dimension="mass", example='"120 t"'),
+        KeySpec("stiffness", "quantity", "Lateral stiffness.", dimension="stiffness",
+                example='"4.2 MN/m"'),
+        KeySpec("period", "quantity", "Natural period.", dimension="time",
+                example='"0.35 s"'),
+        KeySpec("height", "quantity", "Height used for the drift ratio.",
+                dimension="length", example='"6 m"'),
+        KeySpec("limits", "table", "Limits checked against the demands.",
+                example="{ displacement = \"40 mm\" }"),
+    ),
+    "systems[].limits": _keys(
+        KeySpec("displacement", "quantity", "Peak relative displacement limit.",
+                dimension="length", example='"40 mm"'),
+        KeySpec("drift_ratio", "ratio", "Peak drift ratio limit (displacement/height).",
+                example="0.015"),
+        KeySpec("base_shear", "quantity", "Peak base shear limit (needs the mass).",
+                dimension="force", example='"450 kN"'),
+        KeySpec("total_accel", "quantity", "Peak total acceleration limit.",
+                dimension="acceleration", example='"0.8 g"'),
+    ),
+}
+
+#: Top-level tables and arrays of tables of the project file.
+TOP_LEVEL = ("project", "analysis", "processing", "records", "systems")

@@ -1,0 +1,125 @@
+"""The machine-readable results document (``data/results.json``) and CSV tables.
+
+Keys are interface: schema tag ``sdofreport/results@1``; every value SI, with the unit
+as a key suffix where it has one (``_g`` values are in standard gravities).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+
+from sdofreport import __version__
+from sdofreport.core.units import G
+from sdofreport.engine import Results
+from sdofreport.serialize import (
+    array_to_list,
+    finite_or_none,
+    intensity_to_dict,
+    spectrum_csv_header,
+    spectrum_csv_rows,
+)
+from sdofreport.site.display import CHECK_SI_UNITS
+
+RESULTS_SCHEMA = "sdofreport/results@1"
+
+
+def project_block(results: Results) -> dict:
+    info = results.project.info
+    return {"title": info.title, "reference": info.reference, "revision": info.revision,
+            "prepared_by": info.prepared_by, "checked_by": info.checked_by,
+            "date": info.date, "display_units": info.display_units,
+            "file": results.project.path.name, "sha256": results.project.source_sha256}
+
+
+def settings_block(results: Results) -> dict:
+    project = results.project
+    return {"analysis": project.analysis.as_dict(),
+            "processing": project.processing.as_dict(),
+            "statistic_used": results.statistic}
+
+
+def results_document(results: Results) -> dict:
+    """The whole results.json document as plain data."""
+    project = results.project
+    records = []
+    for item in results.records:
+        record, spec = item.record, item.spec
+        records.append({
+            "id": record.id, "file": spec.file, "sha256": record.sha256,
+            "dt_s": float(record.dt_s), "npts": int(record.npts), "scale": spec.scale,
+            "units": record.units, "format": record.file_format,
+            "processing": list(record.history),
+            **intensity_to_dict(item.intensity),
+        })
+    spectra: dict = {}
+    if results.records:
+        first = results.records[0].spectrum
+        spectra = {"periods_s": array_to_list(first.periods_s),
+                   "damping": array_to_list(first.damping)}
+    for item in results.records:
+        spectrum = item.spectrum
+        spectra[item.record.id] = {
+            "sd_m": array_to_list(spectrum.sd_m),
+            "psa_g": array_to_list(spectrum.psa_m_s2, 1.0 / G),
+            "sa_g": array_to_list(spectrum.sa_m_s2, 1.0 / G),
+            "sv_m_s": array_to_list(spectrum.sv_m_s),
+        }
+    systems = []
+    for system in project.systems:
+        responses = []
+        for spec in project.records:
+            response = results.response(system.id, spec.id)
+            responses.append({
+                "record": spec.id,
+                "peak_displacement_m": finite_or_none(response.peak_displacement_m),
+                "peak_drift_ratio": None if response.peak_drift_ratio is None else
+                finite_or_none(response.peak_drift_ratio),
+                "peak_base_shear_n": None if response.peak_base_shear_n is None else
+                finite_or_none(response.peak_base_shear_n),
+                "peak_total_accel_g": finite_or_none(response.peak_total_accel_m_s2 / G),
+            })
+        checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
+                   "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
+                   "ratio": c.ratio, "verdict": c.verdict}
+                  for c in results.checks if c.system_id == system.id]
+        systems.append({
+            "id": system.id, "name": system.name, "mass_kg": system.mass_kg,
+            "stiffness_n_m": system.stiffness_n_m, "period_s": system.period_s,
+            "frequency_hz": system.frequency_hz, "damping": system.damping,
+            "height_m": system.height_m, "derivation": "; ".join(system.derivation),
+            "responses": responses, "checks": checks,
+        })
+    return {"schema": RESULTS_SCHEMA, "generator": f"sdofreport {__version__}",
+            "project": project_block(results), "settings": settings_block(results),
+            "statistic": results.statistic, "records": records, "spectra": spectra,
+            "systems": systems}
+
+
+def _csv_text(rows: list[list]) -> str:
+    buffer = io.StringIO()
+    csv.writer(buffer, lineterminator="\n").writerows(rows)
+    return buffer.getvalue()
+
+
+def spectra_csv(results: Results) -> str:
+    rows = [spectrum_csv_header(("record",))]
+    for item in results.records:
+        rows.extend(spectrum_csv_rows(item.spectrum, (item.record.id,)))
+    return _csv_text(rows)
+
+
+PEAKS_CSV_HEADER = ["system", "record", "peak_displacement_m", "peak_drift_ratio",
+                    "peak_base_shear_n", "peak_total_accel_g"]
+
+
+def peaks_csv(results: Results) -> str:
+    rows: list[list] = [PEAKS_CSV_HEADER]
+    for system in results.project.systems:
+        for spec in results.project.records:
+            r = results.response(system.id, spec.id)
+            rows.append([system.id, spec.id, r.peak_displacement_m,
+                         "" if r.peak_drift_ratio is None else r.peak_drift_ratio,
+                         "" if r.peak_base_shear_n is None else r.peak_base_shear_n,
+                         r.peak_total_accel_m_s2 / G])
+    return _csv_text(rows)

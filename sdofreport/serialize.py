@@ -1,0 +1,92 @@
+"""Plain-dict views of core results with unit-suffixed keys, shared by every output.
+
+The keys here are interface (``sdofreport spectrum`` JSON and ``results.json``): they
+carry their unit as a suffix and stay SI except where the suffix says ``_g``.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+import numpy as np
+
+from sdofreport.core.units import G
+
+
+def finite_or_none(value: float) -> float | None:
+    """A float for JSON: NaN and infinities become ``None`` (JSON has no NaN)."""
+    value = float(value)
+    return value if math.isfinite(value) else None
+
+
+def array_to_list(values: np.ndarray, scale: float = 1.0) -> list:
+    """Nested lists of floats from an array, each value multiplied by ``scale``."""
+    arr = np.asarray(values, dtype=float) * scale
+    return [finite_or_none(v) for v in arr] if arr.ndim == 1 else [
+        array_to_list(row) for row in arr
+    ]
+
+
+def record_summary(record: Any) -> dict:
+    """``{"id", "dt_s", "npts", "sha256", "units"}`` of a :class:`~sdofreport.records.Record`."""
+    return {
+        "id": record.id,
+        "dt_s": float(record.dt_s),
+        "npts": int(record.npts),
+        "sha256": record.sha256,
+        "units": record.units,
+    }
+
+
+def intensity_to_dict(measures: Any) -> dict:
+    """Intensity measures keyed as in the interface (PGA in g, the rest SI)."""
+    return {
+        "pga_g": finite_or_none(measures.pga_m_s2 / G),
+        "pgv_m_s": finite_or_none(measures.pgv_m_s),
+        "pgd_m": finite_or_none(measures.pgd_m),
+        "arias_m_s": finite_or_none(measures.arias_m_s),
+        "d5_95_s": finite_or_none(measures.d5_95_s),
+        "d5_75_s": finite_or_none(measures.d5_75_s),
+        "cav_m_s": finite_or_none(measures.cav_m_s),
+        "mean_period_s": finite_or_none(measures.mean_period_s),
+    }
+
+
+def spectrum_to_dict(spectrum: Any) -> dict:
+    """Response spectrum arrays indexed [damping][period], keyed with units."""
+    return {
+        "method": spectrum.method,
+        "damping": array_to_list(spectrum.damping),
+        "periods_s": array_to_list(spectrum.periods_s),
+        "sd_m": array_to_list(spectrum.sd_m),
+        "sv_m_s": array_to_list(spectrum.sv_m_s),
+        "psv_m_s": array_to_list(spectrum.psv_m_s),
+        "psa_g": array_to_list(spectrum.psa_m_s2, 1.0 / G),
+        "sa_g": array_to_list(spectrum.sa_m_s2, 1.0 / G),
+    }
+
+
+#: Columns of the spectrum CSV, in order: (header, attribute, scale).
+SPECTRUM_CSV_COLUMNS = (
+    ("sd_m", "sd_m", 1.0),
+    ("sv_m_s", "sv_m_s", 1.0),
+    ("psv_m_s", "psv_m_s", 1.0),
+    ("psa_g", "psa_m_s2", 1.0 / G),
+    ("sa_g", "sa_m_s2", 1.0 / G),
+)
+
+
+def spectrum_csv_rows(spectrum: Any, prefix: tuple = ()) -> list[list]:
+    """Rows ``[*prefix, damping, period_s, sd_m, sv_m_s, psv_m_s, psa_g, sa_g]``."""
+    rows = []
+    for i, zeta in enumerate(spectrum.damping):
+        for j, period in enumerate(spectrum.periods_s):
+            values = [getattr(spectrum, attr)[i, j] * scale for _, attr, scale in SPECTRUM_CSV_COLUMNS]
+            rows.append([*prefix, float(zeta), float(period), *map(float, values)])
+    return rows
+
+
+def spectrum_csv_header(prefix: tuple = ()) -> list[str]:
+    """Header row matching :func:`spectrum_csv_rows`."""
+    return [*prefix, "damping", "period_s", *(name for name, _, _ in SPECTRUM_CSV_COLUMNS)]

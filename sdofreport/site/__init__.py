@@ -1,0 +1,1 @@
+"""Static review site: page contexts, figures, notes and rendering."""

@@ -1,0 +1,405 @@
+"""Page contexts: everything a template shows, formatted for display, plus the figures
+each page needs (as specifications; drawing happens in :mod:`sdofreport.site.render`).
+
+Nothing here recomputes a result: values come from :class:`sdofreport.engine.Results`.
+"""
+
+from __future__ import annotations
+
+import platform
+from dataclasses import dataclass, field
+from importlib import metadata
+
+import numpy as np
+
+from sdofreport import __version__
+from sdofreport.core.units import G
+from sdofreport.engine import VERDICT_EXCEEDS, Results
+from sdofreport.site.display import CHECK_LABELS, Display, number
+from sdofreport.site.notes import render_notes
+
+CAUTION_SHORT = ("These results support, but never replace, the judgement of a licensed "
+                 "engineer. The governing local code and the authority having jurisdiction "
+                 "prevail. Verdicts are checks of the stated limits, not an approval.")
+
+CAUTION_FULL = (
+    "This site was generated automatically from the inputs listed under Provenance.",
+    "Its results support, but never replace, the judgement of a licensed professional "
+    "engineer, who remains responsible for the model, the inputs and their "
+    "interpretation.",
+    "The governing local building code and the authority having jurisdiction prevail over "
+    "anything shown here.",
+    "A verdict of 'within limit' or 'exceeds limit' only compares a computed demand with "
+    "a limit stated in the project file; it is not a design approval or certification.",
+)
+
+#: Dependencies whose versions are reported in the provenance and the manifest.
+DEPENDENCIES = ("numpy", "scipy", "numba", "matplotlib", "jinja2", "markdown", "click",
+                "pint")
+
+STATISTIC_TEXT = {"mean": "mean", "max": "maximum"}
+
+
+def dependency_versions() -> list[tuple[str, str]]:
+    versions = [("python", platform.python_version())]
+    for name in DEPENDENCIES:
+        try:
+            versions.append((name, metadata.version(name)))
+        except metadata.PackageNotFoundError:
+            versions.append((name, "not installed"))
+    return versions
+
+
+def statistic_reason(results: Results) -> str:
+    chosen = results.project.analysis.statistic
+    count = len(results.records)
+    if chosen == "auto":
+        rule = "7 or more records" if count >= 7 else "fewer than 7 records"
+        return (f"chosen automatically: {rule}, per ASCE/SEI 7-10 §16.1.4 and "
+                f"EN 1998-1 §4.3.3.4.3")
+    return "as set in the project file"
+
+
+@dataclass
+class FigureSpec:
+    """One figure to draw: output path (relative to the site), function name, arguments."""
+
+    path: str
+    function: str
+    kwargs: dict = field(default_factory=dict)
+
+
+@dataclass
+class Page:
+    path: str
+    template: str
+    context: dict
+
+
+def page_name(identifier: str) -> str:
+    return f"{identifier}.html"
+
+
+def _suite_damping_index(results: Results) -> int:
+    damping = results.records[0].spectrum.damping
+    return int(np.argmin(np.abs(np.asarray(damping) - 0.05)))
+
+
+def _log_stats(stack: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Geometric mean and exp(mean ± 1σ) of the natural logarithms across records."""
+    with np.errstate(divide="ignore"):
+        logs = np.log(np.maximum(stack, 1e-300))
+    mean = logs.mean(axis=0)
+    std = logs.std(axis=0, ddof=1) if stack.shape[0] > 1 else np.zeros_like(mean)
+    return np.exp(mean), np.exp(mean - std), np.exp(mean + std)
+
+
+class SiteContext:
+    """Builds every page's context and figure list for one :class:`Results`."""
+
+    def __init__(self, results: Results) -> None:
+        self.results = results
+        self.project = results.project
+        self.display = Display(self.project.info.display_units)
+        self.figures: list[FigureSpec] = []
+        self.system_periods = [s.period_s for s in self.project.systems]
+
+    # -- shared ----------------------------------------------------------------------
+    def common(self, root: str, page_title: str, page_kind: str, current_id: str = "") -> dict:
+        info = self.project.info
+        return {
+            "root": root, "page_title": page_title, "page_kind": page_kind,
+            "current_id": current_id, "version": __version__,
+            "project": {"title": info.title, "reference": info.reference,
+                        "revision": info.revision, "prepared_by": info.prepared_by,
+                        "checked_by": info.checked_by, "date": info.date,
+                        "display_units": info.display_units,
+                        "file": self.project.path.name,
+                        "sha256": self.project.source_sha256,
+                        "sha256_short": self.project.source_sha256[:12]},
+            "nav_systems": [{"id": s.id, "file": page_name(s.id)}
+                            for s in self.project.systems],
+            "cautions": {"short": CAUTION_SHORT, "full": CAUTION_FULL},
+        }
+
+    def _figure(self, path: str, function: str, **kwargs) -> str:
+        self.figures.append(FigureSpec(path, function, kwargs))
+        return path
+
+    def _check_rows(self, checks) -> list[dict]:
+        rows = []
+        for c in checks:
+            system = next(s for s in self.project.systems if s.id == c.system_id)
+            rows.append({
+                "system_id": c.system_id, "system_name": system.name,
+                "system_file": page_name(c.system_id),
+                "label": CHECK_LABELS[c.quantity],
+                "demand": self.display.check_value(c.quantity, c.demand),
+                "limit": self.display.check_value(c.quantity, c.limit),
+                "ratio": f"{c.ratio:.3f}", "verdict": c.verdict,
+                "css": "exceeds" if c.verdict == VERDICT_EXCEEDS else "within",
+            })
+        return rows
+
+    def _statistic_bits(self) -> dict:
+        return {"statistic": self.results.statistic,
+                "statistic_text": STATISTIC_TEXT[self.results.statistic],
+                "statistic_reason": statistic_reason(self.results),
+                "record_count": len(self.results.records)}
+
+    def _record_rows(self) -> list[dict]:
+        rows = []
+        d = self.display
+        for item in self.results.records:
+            im = item.intensity
+            rows.append({"id": item.record.id, "file": item.spec.file,
+                         "file_html": page_name(item.record.id),
+                         "scale": number(item.spec.scale),
+                         "pga": d.show(im.pga_m_s2, "acceleration"),
+                         "pgv": d.show(im.pgv_m_s, "velocity"),
+                         "arias": f"{number(im.arias_m_s)} m/s",
+                         "d5_95": f"{number(im.d5_95_s)} s",
+                         "mean_period": f"{number(im.mean_period_s)} s"})
+        return rows
+
+    # -- pages -----------------------------------------------------------------------
+    def summary(self) -> Page:
+        results = self.results
+        checks = sorted(results.checks, key=lambda c: -c.ratio)
+        exceeding = sum(c.verdict == VERDICT_EXCEEDS for c in checks)
+        if not checks:
+            summary_text = "No limits are checked."
+        elif exceeding:
+            summary_text = (f"{exceeding} of {len(checks)} checks exceed the stated limit "
+                            f"(worst demand / limit {checks[0].ratio:.3f}).")
+        else:
+            summary_text = (f"All {len(checks)} checks are within the stated limits "
+                            f"(highest demand / limit {checks[0].ratio:.3f}).")
+        figure = None
+        if checks:
+            figure = self._figure(
+                "figures/summary-checks.svg", "checks_bar_figure",
+                labels=[f"{c.system_id}: {CHECK_LABELS[c.quantity].lower()}" for c in checks],
+                ratios=[c.ratio for c in checks], title=None)
+        systems = []
+        for s in self.project.systems:
+            peaks = [results.response(s.id, r.id).peak_displacement_m
+                     for r in self.project.records]
+            demand = float(np.mean(peaks)) if results.statistic == "mean" else max(peaks)
+            systems.append({"id": s.id, "name": s.name, "file": page_name(s.id),
+                            "period": f"{number(s.period_s)} s",
+                            "damping": f"{100 * s.damping:.3g} %",
+                            "demand_displacement": self.display.show(demand, "length")})
+        notes_html = ""
+        if self.project.info.notes_path is not None:
+            notes_html = render_notes(self.project.info.notes_path.read_text("utf-8"))
+        input_hashes = [{"label": f"Record {item.record.id}", "file": item.spec.file,
+                         "sha256": item.record.sha256} for item in results.records]
+        analysis = self.project.analysis
+        settings = [
+            ("Method", analysis.method),
+            ("Spectrum damping", ", ".join(f"{z:g}" for z in analysis.damping)),
+            ("Spectrum periods", f"{len(analysis.periods_s)} from "
+                                 f"{number(min(analysis.periods_s))} s to "
+                                 f"{number(max(analysis.periods_s))} s"),
+            ("Suite statistic", f"{analysis.statistic} → {results.statistic}"),
+            ("Default processing", _processing_text(self.project.processing)),
+        ]
+        context = {**self.common("", "Summary", "summary"), **self._statistic_bits(),
+                   "checks": self._check_rows(checks), "checks_summary": summary_text,
+                   "figures": {"checks": figure}, "systems": systems,
+                   "records": self._record_rows(), "notes_html": notes_html,
+                   "dependencies": dependency_versions(), "input_hashes": input_hashes,
+                   "settings": settings}
+        return Page("index.html", "summary.html", context)
+
+    def record_page(self, item) -> Page:
+        record, d = item.record, self.display
+        rid = record.id
+        time = record.time_s
+        panels = [
+            ("Acceleration", np.asarray(record.acceleration_m_s2) / G, "Acceleration [g]"),
+            ("Velocity", d.convert(1.0, "velocity") * item.velocity_m_s,
+             f"Velocity [{d.unit('velocity')}]"),
+            ("Displacement", d.convert(1.0, "length") * item.displacement_m,
+             f"Displacement [{d.unit('length')}]"),
+        ]
+        spectrum = item.spectrum
+        damping_labels = [f"ζ = {100 * z:g} %" for z in spectrum.damping]
+        psa = [{"label": label, "values": spectrum.psa_m_s2[i] / G, "style": "emphasis"}
+               for i, label in enumerate(damping_labels)]
+        sd = [{"label": label, "values": d.convert(1.0, "length") * spectrum.sd_m[i],
+               "style": "emphasis"} for i, label in enumerate(damping_labels)]
+        figures = {
+            "histories": self._figure(f"figures/record-{rid}-histories.svg",
+                                      "histories_figure", time_s=time, panels=panels),
+            "psa": self._figure(f"figures/record-{rid}-psa.svg", "spectra_figure",
+                                periods_s=spectrum.periods_s, curves=psa,
+                                ylabel="Pseudo-spectral acceleration [g]",
+                                highlight_periods=self.system_periods),
+            "sd": self._figure(f"figures/record-{rid}-sd.svg", "spectra_figure",
+                               periods_s=spectrum.periods_s, curves=sd,
+                               ylabel=f"Spectral displacement [{d.unit('length')}]",
+                               highlight_periods=self.system_periods),
+            "fourier": self._figure(f"figures/record-{rid}-fourier.svg", "fourier_figure",
+                                    frequency_hz=item.fourier_frequency_hz,
+                                    amplitude=item.fourier_amplitude_m_s,
+                                    ylabel="Fourier amplitude [m/s]"),
+        }
+        im = item.intensity
+        intensity = [
+            {"name": "PGA", "value": d.show(im.pga_m_s2, "acceleration"),
+             "definition": "peak ground acceleration, max |a|"},
+            {"name": "PGV", "value": d.show(im.pgv_m_s, "velocity"),
+             "definition": "peak ground velocity, by integration from rest"},
+            {"name": "PGD", "value": d.show(im.pgd_m, "length"),
+             "definition": "peak ground displacement, by double integration from rest"},
+            {"name": "Arias intensity", "value": f"{number(im.arias_m_s)} m/s",
+             "definition": "π/(2g) ∫a² dt (Arias 1970)"},
+            {"name": "Significant duration D5–95", "value": f"{number(im.d5_95_s)} s",
+             "definition": "time between 5 % and 95 % of Arias intensity (Trifunac & "
+                           "Brady 1975)"},
+            {"name": "Significant duration D5–75", "value": f"{number(im.d5_75_s)} s",
+             "definition": "time between 5 % and 75 % of Arias intensity"},
+            {"name": "CAV", "value": f"{number(im.cav_m_s)} m/s",
+             "definition": "cumulative absolute velocity ∫|a| dt (EPRI NP-5930, 1988)"},
+            {"name": "Mean period Tm", "value": f"{number(im.mean_period_s)} s",
+             "definition": "Σ(C²/f)/ΣC², 0.25–20 Hz (Rathje et al. 1998)"},
+        ]
+        context = {**self.common("../", f"Record {rid}", "record", rid),
+                   "record": {"id": rid, "file": item.spec.file, "format": record.file_format,
+                              "sha256": record.sha256, "npts": record.npts,
+                              "dt": number(record.dt_s), "duration": number(record.duration_s),
+                              "units": record.units, "scale": number(item.spec.scale),
+                              "history": list(record.history),
+                              "warnings": list(record.warnings)},
+                   "intensity": intensity, "figures": figures,
+                   "method": self.project.analysis.method}
+        return Page(f"records/{page_name(rid)}", "record.html", context)
+
+    def suite_page(self) -> Page:
+        results, d = self.results, self.display
+        index = _suite_damping_index(results)
+        periods = results.records[0].spectrum.periods_s
+        zeta = results.records[0].spectrum.damping[index]
+        figures = {}
+        for key, attr, scale, label in (
+                ("psa", "psa_m_s2", 1.0 / G, "Pseudo-spectral acceleration [g]"),
+                ("sd", "sd_m", d.convert(1.0, "length"),
+                 f"Spectral displacement [{d.unit('length')}]")):
+            stack = np.array([getattr(r.spectrum, attr)[index] * scale
+                              for r in results.records])
+            mean, low, high = _log_stats(stack)
+            curves = [{"label": r.record.id, "values": stack[i], "style": "record"}
+                      for i, r in enumerate(results.records)]
+            curves.append({"label": "mean ± 1σ", "values": mean, "lower": low,
+                           "upper": high, "style": "band"})
+            curves.append({"label": "suite mean", "values": mean, "style": "mean"})
+            figures[key] = self._figure(f"figures/suite-{key}.svg", "spectra_figure",
+                                        periods_s=periods, curves=curves, ylabel=label,
+                                        highlight_periods=self.system_periods)
+        analysis = self.project.analysis
+        context = {**self.common("", "Record suite", "suite"), **self._statistic_bits(),
+                   "figures": figures, "records": self._record_rows(),
+                   "suite_damping": f"{100 * zeta:g} %",
+                   "damping_text": ", ".join(f"{100 * z:g} %" for z in analysis.damping),
+                   "period_text": f"{len(periods)} periods from {number(periods.min())} s "
+                                  f"to {number(periods.max())} s",
+                   "method": analysis.method}
+        return Page("suite.html", "suite.html", context)
+
+    def system_page(self, system) -> Page:
+        results, d = self.results, self.display
+        properties = []
+        if system.mass_kg is not None:
+            properties.append({"name": "Mass", "value": d.show(system.mass_kg, "mass"),
+                               "basis": "as given"})
+        if system.stiffness_n_m is not None:
+            basis = "as given" if not any(s.startswith("k =") for s in system.derivation) \
+                else next(s for s in system.derivation if s.startswith("k ="))
+            properties.append({"name": "Lateral stiffness",
+                               "value": d.show(system.stiffness_n_m, "stiffness"),
+                               "basis": basis})
+        period_basis = next((s for s in system.derivation if s.startswith("T =")),
+                            "as given")
+        properties += [
+            {"name": "Natural period T", "value": f"{number(system.period_s)} s",
+             "basis": period_basis},
+            {"name": "Natural frequency f", "value": f"{number(system.frequency_hz)} Hz",
+             "basis": "f = 1/T"},
+            {"name": "Circular frequency ω", "value":
+             f"{number(2 * np.pi / system.period_s)} rad/s", "basis": "ω = 2π/T"},
+            {"name": "Damping ratio ζ", "value": f"{100 * system.damping:.3g} %",
+             "basis": "as given (fraction of critical)"},
+        ]
+        if system.height_m is not None:
+            properties.append({"name": "Height", "value": d.show(system.height_m, "length"),
+                               "basis": "as given; drift ratio = displacement / height"})
+        checks = [c for c in results.checks if c.system_id == system.id]
+        peaks, histories = [], []
+        responses = [results.response(system.id, r.id) for r in self.project.records]
+        for response in responses:
+            rid = response.record_id
+            peaks.append({"record": rid, "file_html": page_name(rid), "summary": False,
+                          "displacement": d.show(response.peak_displacement_m, "length"),
+                          "drift": number(response.peak_drift_ratio),
+                          "shear": d.show(response.peak_base_shear_n, "force"),
+                          "accel": d.show(response.peak_total_accel_m_s2, "acceleration")})
+            panels = [
+                ("Relative displacement", d.convert(1.0, "length") * response.displacement_m,
+                 f"Displacement [{d.unit('length')}]"),
+                ("Total acceleration", response.total_accel_m_s2 / G,
+                 "Total acceleration [g]"),
+            ]
+            path = self._figure(f"figures/system-{system.id}-{rid}.svg", "histories_figure",
+                                time_s=response.time_s, panels=panels)
+            histories.append({"record": rid, "file_html": page_name(rid), "figure": path})
+        for label, reducer in (("mean", np.mean), ("maximum", np.max)):
+            def stat(attr, dim):
+                values = [getattr(r, attr) for r in responses]
+                if any(v is None for v in values):
+                    return "–"
+                value = float(reducer(values))
+                return number(value) if dim is None else d.show(value, dim)
+            peaks.append({"record": label, "file_html": None, "summary": True,
+                          "displacement": stat("peak_displacement_m", "length"),
+                          "drift": stat("peak_drift_ratio", None),
+                          "shear": stat("peak_base_shear_n", "force"),
+                          "accel": stat("peak_total_accel_m_s2", "acceleration")})
+        spectrum_curves = []
+        periods = results.records[0].spectrum.periods_s
+        damping = results.records[0].spectrum.damping
+        z_index = int(np.argmin(np.abs(damping - system.damping)))
+        for item in results.records:
+            spectrum_curves.append({"label": item.record.id, "style": "record",
+                                    "values": item.spectrum.psa_m_s2[z_index] / G})
+        figure = self._figure(f"figures/system-{system.id}-spectra.svg", "spectra_figure",
+                              periods_s=periods, curves=spectrum_curves,
+                              ylabel=f"PSA at ζ = {100 * damping[z_index]:g} % [g]",
+                              highlight_periods=[system.period_s])
+        context = {**self.common("../", f"System {system.id}", "system", system.id),
+                   **self._statistic_bits(),
+                   "system": {"id": system.id, "name": system.name,
+                              "damping": f"{100 * system.damping:.3g} %"},
+                   "properties": properties, "checks": self._check_rows(checks),
+                   "peaks": peaks, "histories": histories,
+                   "figures": {"spectrum": figure}}
+        return Page(f"systems/{page_name(system.id)}", "system.html", context)
+
+    def pages(self) -> list[Page]:
+        pages = [self.summary(), self.suite_page()]
+        pages += [self.record_page(item) for item in self.results.records]
+        pages += [self.system_page(system) for system in self.project.systems]
+        return pages
+
+
+def _processing_text(settings) -> str:
+    parts = []
+    if settings.baseline_order is not None:
+        parts.append(f"baseline order {settings.baseline_order}")
+    if settings.bandpass_hz:
+        parts.append(f"band-pass {settings.bandpass_hz[0]:g}–{settings.bandpass_hz[1]:g} Hz "
+                     f"(order {settings.filter_order})")
+    if settings.taper_s:
+        parts.append(f"taper {settings.taper_s:g} s")
+    return ", ".join(parts) if parts else "none"

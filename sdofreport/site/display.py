@@ -1,0 +1,89 @@
+"""Display units for the pages (results.json stays SI).
+
+SI pages show mm, kN, t, kN/m, m/s and m/s² (accelerations also in g); US customary
+pages show in, kip, kip·s²/in, kip/in, in/s and in/s² (accelerations also in g).
+Conversion factors are exact by definition of the units (1 in = 0.0254 m,
+1 lbf = 0.45359237 kg × 9.80665 m/s²).
+"""
+
+from __future__ import annotations
+
+import math
+
+from sdofreport.core.units import G, INCH
+
+_KIP_N = 1000.0 * 0.45359237 * G  # [N], exact by definition of the pound-force
+
+#: quantity -> (unit label, factor: shown = SI value × factor), per display system.
+DISPLAY_UNITS: dict[str, dict[str, tuple[str, float]]] = {
+    "SI": {
+        "length": ("mm", 1000.0),
+        "velocity": ("m/s", 1.0),
+        "acceleration": ("m/s²", 1.0),
+        "force": ("kN", 1e-3),
+        "mass": ("t", 1e-3),
+        "stiffness": ("kN/m", 1e-3),
+        "energy": ("kJ", 1e-3),
+    },
+    "US": {
+        "length": ("in", 1.0 / INCH),
+        "velocity": ("in/s", 1.0 / INCH),
+        "acceleration": ("in/s²", 1.0 / INCH),
+        "force": ("kip", 1.0 / _KIP_N),
+        "mass": ("kip·s²/in", INCH / _KIP_N),
+        "stiffness": ("kip/in", INCH / _KIP_N),
+        "energy": ("kip·in", 1.0 / (_KIP_N * INCH)),
+    },
+}
+
+#: Dimension of each checked quantity (None: dimensionless ratio).
+CHECK_DIMENSIONS = {"displacement": "length", "drift_ratio": None, "base_shear": "force",
+                    "total_accel": "acceleration"}
+
+#: Unit of each checked quantity in results.json (SI).
+CHECK_SI_UNITS = {"displacement": "m", "drift_ratio": "-", "base_shear": "N",
+                  "total_accel": "m/s2"}
+
+CHECK_LABELS = {"displacement": "Peak displacement", "drift_ratio": "Peak drift ratio",
+                "base_shear": "Peak base shear", "total_accel": "Peak total acceleration"}
+
+
+def number(value: float | None, digits: int = 4) -> str:
+    """A value to ``digits`` significant figures, without exponent for 1e-4..1e6."""
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        return "–"
+    if value == 0:
+        return "0"
+    magnitude = abs(value)
+    if 1e-4 <= magnitude < 1e6:
+        decimals = max(0, digits - 1 - int(math.floor(math.log10(magnitude))))
+        return f"{value:.{decimals}f}"
+    return f"{value:.{digits - 1}e}"
+
+
+class Display:
+    """Formats SI values for one display system (``"SI"`` or ``"US"``)."""
+
+    def __init__(self, system: str = "SI") -> None:
+        self.system = system
+        self.table = DISPLAY_UNITS[system]
+
+    def unit(self, dimension: str) -> str:
+        return self.table[dimension][0]
+
+    def convert(self, value: float, dimension: str) -> float:
+        return value * self.table[dimension][1]
+
+    def show(self, value: float | None, dimension: str | None, digits: int = 4) -> str:
+        """``"12.34 mm"``; accelerations as ``"0.312 g (3.06 m/s²)"``."""
+        if value is None:
+            return "–"
+        if dimension is None:
+            return number(value, digits)
+        text = f"{number(self.convert(value, dimension), digits)} {self.unit(dimension)}"
+        if dimension == "acceleration":
+            return f"{number(value / G, digits)} g ({text})"
+        return text
+
+    def check_value(self, quantity: str, value: float) -> str:
+        return self.show(value, CHECK_DIMENSIONS[quantity])
