@@ -449,7 +449,7 @@ def _read(path, file_format, units, dt_s, record_id) -> Record:
     else:
         why = f" (auto detection: {reason})" if reason else ""
         raw, dt, steps = _parse_values(lines, path_text, dt_given, why)
-    history.insert(0, f"read {raw.size} values from '{path_text}' as {chosen}")
+    history.insert(0, f"read {raw.size} values from '{Path(path_text).name}' as {chosen}")
     history.extend(steps)
 
     factor = acceleration_factor(canonical_units)

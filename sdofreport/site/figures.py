@@ -710,7 +710,7 @@ def checks_bar_figure(labels, ratios, *, title=None):
         ax.set_ylim(max(len(labels), 1) - 0.5, -0.5)  # first label on top
         ax.set_xlim(0.0, x_max)
         ax.grid(False, axis="y")
-        ax.set_xlabel("Demand / capacity [-]")
+        ax.set_xlabel("Demand / limit [-]")
         if title:
             ax.set_title(_shorten(title, 90), loc="left")
         handles = [h for h, n in ((bar_ok, ok.sum()), (bar_bad, exceeds.sum())) if n]

@@ -1,0 +1,147 @@
+"""End to end: build the bundled example and check the site's structure and promises."""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import re
+from html.parser import HTMLParser
+from pathlib import Path
+from urllib.parse import urldefrag
+
+import pytest
+from click.testing import CliRunner
+
+from sdofreport.cli import cli
+from sdofreport.site.context import CAUTION_SHORT
+from tests.conftest import EXAMPLE
+
+
+class _Links(HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.targets: list[str] = []
+        self.text: list[str] = []
+
+    def handle_starttag(self, tag, attrs):
+        for name, value in attrs:
+            if name in ("href", "src") and value:
+                self.targets.append(value)
+
+    def handle_data(self, data):
+        self.text.append(data)
+
+
+def _parse(path: Path) -> _Links:
+    parser = _Links()
+    parser.feed(path.read_text("utf-8"))
+    return parser
+
+
+@pytest.fixture(scope="module")
+def built(tmp_path_factory):
+    root = tmp_path_factory.mktemp("example")
+    cache = root / "cache"
+    sites = []
+    for name in ("first", "second"):
+        out = root / name / "site"
+        result = CliRunner().invoke(cli, ["build", str(EXAMPLE / "sdofreport.toml"), "-o",
+                                          str(out), "--quiet", "--cache-dir", str(cache)])
+        assert result.exit_code == 0, result.output
+        sites.append(out)
+    return sites
+
+
+def _files(site: Path) -> dict[str, bytes]:
+    return {p.relative_to(site).as_posix(): p.read_bytes() for p in site.rglob("*")
+            if p.is_file()}
+
+
+def test_pages_present(built):
+    site = built[0]
+    example = json.loads((site / "data" / "results.json").read_text())
+    assert (site / "index.html").is_file() and (site / "suite.html").is_file()
+    for record in example["records"]:
+        assert (site / "records" / f"{record['id']}.html").is_file()
+    for system in example["systems"]:
+        assert (site / "systems" / f"{system['id']}.html").is_file()
+    assert len(example["records"]) >= 11 and len(example["systems"]) >= 4
+
+
+def test_second_build_in_another_folder_is_byte_identical(built):
+    assert _files(built[0]) == _files(built[1])
+
+
+def test_every_internal_link_resolves_and_no_external_loads(built):
+    site = built[0]
+    for page in site.rglob("*.html"):
+        for target in _parse(page).targets:
+            if target.startswith(("http://", "https://", "mailto:")):
+                continue
+            path, _ = urldefrag(target)
+            assert (page.parent / path).resolve().is_file(), f"{page}: {target}"
+
+
+def test_cautions_on_every_page(built):
+    for page in built[0].rglob("*.html"):
+        text = " ".join(_parse(page).text)
+        assert CAUTION_SHORT in text, page
+        assert "not an approval" in text and "licensed" in text
+
+
+def test_manifest_hashes_are_true(built):
+    site = built[0]
+    manifest = json.loads((site / "manifest.json").read_text())
+    assert manifest["schema"] == "sdofreport/manifest@1"
+    listed = set(manifest["files"])
+    present = {p.relative_to(site).as_posix() for p in site.rglob("*") if p.is_file()}
+    assert listed == present - {"manifest.json"}
+    for path, digest in manifest["files"].items():
+        # Independent reference: hashlib's SHA-256 of the file bytes.
+        assert hashlib.sha256((site / path).read_bytes()).hexdigest() == digest
+    # The inputs are all there, byte for byte.
+    assert (site / "inputs" / "sdofreport.toml").read_bytes() == \
+        (EXAMPLE / "sdofreport.toml").read_bytes()
+    for record in (EXAMPLE / "records").glob("hcs*"):
+        assert (site / "inputs" / "records" / record.name).read_bytes() == \
+            record.read_bytes()
+
+
+def test_results_json_interface(built):
+    doc = json.loads((built[0] / "data" / "results.json").read_text())
+    assert doc["schema"] == "sdofreport/results@1"
+    record = doc["records"][0]
+    for key in ("id", "file", "sha256", "dt_s", "npts", "scale", "pga_g", "pgv_m_s",
+                "pgd_m", "arias_m_s", "d5_95_s", "d5_75_s", "cav_m_s", "mean_period_s"):
+        assert key in record
+    spectra = doc["spectra"]
+    assert len(spectra["periods_s"]) == 200
+    for key in ("sd_m", "psa_g", "sa_g", "sv_m_s"):
+        assert len(spectra[record["id"]][key]) == len(spectra["damping"])
+    system = doc["systems"][0]
+    for key in ("id", "name", "mass_kg", "stiffness_n_m", "period_s", "frequency_hz",
+                "damping", "height_m", "responses", "checks"):
+        assert key in system
+    assert set(system["responses"][0]) == {"record", "peak_displacement_m",
+                                           "peak_drift_ratio", "peak_base_shear_n",
+                                           "peak_total_accel_g"}
+    verdicts = [c["verdict"] for s in doc["systems"] for c in s["checks"]]
+    assert "exceeds limit" in verdicts and "within limit" in verdicts
+    for s in doc["systems"]:
+        for c in s["checks"]:
+            assert c["ratio"] == pytest.approx(c["demand"] / c["limit"])
+
+
+def test_summary_sorts_worst_first_and_shows_verdicts(built):
+    html = (built[0] / "index.html").read_text()
+    ratios = [float(x) for x in re.findall(r'<td class="num">(\d+\.\d{3})</td><td '
+                                           r'class="verdict">', html)]
+    assert ratios == sorted(ratios, reverse=True) and ratios
+    assert "exceeds limit" in html
+
+
+def test_figures_are_deterministic_svg(built):
+    for svg in (built[0] / "figures").glob("*.svg"):
+        text = svg.read_text()
+        assert text.lstrip().startswith("<?xml") and "<svg" in text
+        assert "dc:date" not in text

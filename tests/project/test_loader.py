@@ -1,0 +1,184 @@
+"""Project-file loader: conversions to SI, and every bad-input message.
+
+Expected unit conversions are by definition of the units (NIST SP 811, Appendix B):
+1 in = 0.0254 m, 1 ft = 0.3048 m, 1 lbf = 4.4482216152605 N, 1 t = 1000 kg,
+g = 9.80665 m/s² (ISO 80000-3).
+"""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+
+from sdofreport.errors import ProjectError
+from sdofreport.project import load_project
+from tests.conftest import ONE_SYSTEM, PROJECT_HEAD, TWO_RECORDS
+
+
+def test_valid_project_loads_in_si(project_factory, valid_project_text):
+    project = load_project(project_factory(valid_project_text))
+    system = project.systems[0]
+    # Definition: 1 t = 1000 kg.
+    assert system.mass_kg == pytest.approx(100_000.0)
+    # Closed form: k = m (2π/T)² for T = 0.5 s.
+    assert system.stiffness_n_m == pytest.approx(100_000.0 * (2 * math.pi / 0.5) ** 2)
+    assert system.limits.displacement_m == pytest.approx(0.050)
+    assert system.height_m == pytest.approx(4.0)
+    assert [r.id for r in project.records] == ["r1", "r2"]
+    # ASCE/SEI 7-10 §16.1.4: fewer than 7 records -> the maximum is used.
+    assert project.statistic_used == "max"
+    assert len(project.analysis.periods_s) == 200
+
+
+@pytest.mark.parametrize("text, dimension_key, expected", [
+    # Definition: 1 kip = 4448.2216152605 N, 1 in = 0.0254 m.
+    ('stiffness = "26 kip/in"', "stiffness_n_m", 26 * 4448.2216152605 / 0.0254),
+    # Definition: 1 MN = 1e6 N.
+    ('stiffness = "4.2 MN/m"', "stiffness_n_m", 4.2e6),
+])
+def test_units_strings(project_factory, text, dimension_key, expected):
+    system = ONE_SYSTEM.replace('period = "0.5 s"', text)
+    project = load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + system))
+    assert getattr(project.systems[0], dimension_key) == pytest.approx(expected, rel=1e-12)
+
+
+def test_acceleration_in_g_is_standard_gravity_not_gram(project_factory):
+    system = ONE_SYSTEM.replace('displacement = "50 mm"', 'total_accel = "0.35 g"')
+    project = load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + system))
+    # ISO 80000-3: standard gravity 9.80665 m/s² (a bare 'g' is read as gravity here).
+    assert project.systems[0].limits.total_accel_m_s2 == pytest.approx(0.35 * 9.80665)
+
+
+def test_height_in_feet(project_factory):
+    system = ONE_SYSTEM.replace('height = "4 m"', 'height = "18 ft"')
+    project = load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + system))
+    # Definition: 1 ft = 0.3048 m.
+    assert project.systems[0].height_m == pytest.approx(18 * 0.3048)
+
+
+def test_statistic_auto_uses_mean_from_seven_records(project_factory):
+    records = "".join(f'[[records]]\nid = "x{i}"\nfile = "records/r1.csv"\n\n'
+                      for i in range(7))
+    project = load_project(project_factory(PROJECT_HEAD + records + ONE_SYSTEM))
+    # ASCE/SEI 7-10 §16.1.4, EN 1998-1 §4.3.3.4.3: mean when 7 or more records.
+    assert project.statistic_used == "mean"
+
+
+# Each row: a change to the valid project, then fragments the message must contain.
+BAD_CASES = [
+    ("analysis", '[analysis]\ndamping = [5]\n',
+     ["analysis.damping[1]", "expected ratios from 0 up to (not including) 1", "found 5",
+      "a percentage? use 0.05"]),
+    ("unknown key", '[analysis]\nmethdo = "exact"\n',
+     ["analysis.methdo", "unknown key", "did you mean 'method'"]),
+    ("unknown section", '[analysys]\nmethod = "exact"\n',
+     ["analysys", "unknown section", "did you mean 'analysis'"]),
+    ("bad method", '[analysis]\nmethod = "rk4"\n',
+     ["analysis.method", "expected one of exact, newmark-average, newmark-linear",
+      "found 'rk4'"]),
+    ("bad periods", '[analysis]\nperiods = { min = 2.0, max = 1.0, count = 10 }\n',
+     ["analysis.periods", "expected 0 < min < max"]),
+    ("bad statistic", '[analysis]\nstatistic = "median"\n',
+     ["analysis.statistic", "expected one of auto, mean, max"]),
+]
+
+
+@pytest.mark.parametrize("name, extra, fragments", BAD_CASES, ids=[c[0] for c in BAD_CASES])
+def test_bad_analysis_sections(project_factory, valid_project_text, name, extra, fragments):
+    path = project_factory(valid_project_text + "\n" + extra)
+    with pytest.raises(ProjectError) as info:
+        load_project(path)
+    message = info.value.message
+    assert str(path.name) in message
+    for fragment in fragments:
+        assert fragment in message
+    assert info.value.exit_code == 2
+
+
+SYSTEM_CASES = [
+    ("zero mass", ('mass = "100 t"', 'mass = 0'),
+     ["systems[1].mass", "mass must be greater than 0"]),
+    ("negative damping", ("damping = 0.05", "damping = -0.01"),
+     ["systems[1].damping", "expected a ratio from 0 up to (not including) 1"]),
+    ("damping one", ("damping = 0.05", "damping = 1.0"),
+     ["systems[1].damping", "found 1.0"]),
+    ("period negative", ('period = "0.5 s"', 'period = "-0.5 s"'),
+     ["systems[1].period", "greater than 0"]),
+    ("wrong dimension", ('mass = "100 t"', 'mass = "100 m"'),
+     ["systems[1].mass", "expected a mass", "'100 m'"]),
+    ("unreadable units", ('mass = "100 t"', 'mass = "100 tonnez"'),
+     ["systems[1].mass", "cannot read '100 tonnez' as a mass"]),
+    ("limit typo", ('displacement = "50 mm"', 'displacment = "50 mm"'),
+     ["systems[1].limits.displacment", "did you mean 'displacement'"]),
+    ("drift without height", ('height = "4 m"\n', ''),
+     ["systems[1].limits.drift_ratio", "needs the system's height"]),
+    ("stiffness and period", ('period = "0.5 s"', 'period = "0.5 s"\nstiffness = 1e6'),
+     ["systems[1]", "expected mass + stiffness, mass + period, or period alone"]),
+]
+
+
+@pytest.mark.parametrize("name, change, fragments", SYSTEM_CASES,
+                         ids=[c[0] for c in SYSTEM_CASES])
+def test_bad_systems(project_factory, name, change, fragments):
+    system = ONE_SYSTEM.replace(*change)
+    if name == "drift without height":
+        system = system.replace('displacement = "50 mm"', "drift_ratio = 0.01")
+    path = project_factory(PROJECT_HEAD + TWO_RECORDS + system)
+    with pytest.raises(ProjectError) as info:
+        load_project(path)
+    for fragment in fragments:
+        assert fragment in info.value.message
+
+
+def test_every_problem_reported_at_once(project_factory):
+    system = ONE_SYSTEM.replace("damping = 0.05", "damping = 5").replace(
+        'mass = "100 t"', 'mass = "-3 t"')
+    records = TWO_RECORDS.replace('records/r2.txt', 'records/missing.txt')
+    path = project_factory(PROJECT_HEAD + records + system)
+    with pytest.raises(ProjectError) as info:
+        load_project(path)
+    message = info.value.message
+    assert "has 3 problems:" in message
+    assert "records[2].file: file 'records/missing.txt' not found" in message
+    assert "systems[1].damping" in message and "systems[1].mass" in message
+
+
+def test_duplicate_ids(project_factory):
+    records = TWO_RECORDS.replace('id = "r2"', 'id = "r1"')
+    with pytest.raises(ProjectError, match=r"records\[2\]\.id: duplicate id 'r1' "
+                                           r"\(also records\[1\]\)"):
+        load_project(project_factory(PROJECT_HEAD + records + ONE_SYSTEM))
+
+
+def test_toml_syntax_error_names_the_line(project_factory, valid_project_text):
+    broken = valid_project_text.replace('reference = "T-1"', 'reference = "T-1')
+    with pytest.raises(ProjectError, match=r"sdofreport\.toml line 3, column \d+: not "
+                                           r"valid TOML"):
+        load_project(project_factory(broken))
+
+
+def test_missing_project_file(tmp_path):
+    with pytest.raises(ProjectError, match="project file not found"):
+        load_project(tmp_path / "nope.toml")
+
+
+def test_not_utf8(project_factory, valid_project_text):
+    path = project_factory(valid_project_text)
+    path.write_bytes(path.read_bytes() + b"\n# caf\xe9\n")
+    with pytest.raises(ProjectError, match=r"line \d+: not UTF-8 text"):
+        load_project(path)
+
+
+def test_missing_required_keys(project_factory):
+    head = PROJECT_HEAD.replace('prepared_by = "tester"\n', "")
+    with pytest.raises(ProjectError, match=r"project\.prepared_by: missing"):
+        load_project(project_factory(head + TWO_RECORDS + ONE_SYSTEM))
+
+
+def test_base_shear_needs_mass(project_factory):
+    system = ONE_SYSTEM.replace('mass = "100 t"\n', "").replace(
+        'displacement = "50 mm"', 'base_shear = "100 kN"')
+    with pytest.raises(ProjectError, match=r"systems\[1\]\.limits\.base_shear: a "
+                                           r"base-shear limit needs the system's mass"):
+        load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + system))

@@ -1,0 +1,142 @@
+"""The command-line interface: spectrum output, exit statuses and messages."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+
+import numpy as np
+import pytest
+from click.testing import CliRunner
+
+from sdofreport import __version__
+from sdofreport.cli import cli
+from sdofreport.core.units import G
+from tests.conftest import write_test_records
+from tests.test_engine import lsim_peak_displacement
+
+
+@pytest.fixture
+def records(tmp_path):
+    return tmp_path, write_test_records(tmp_path)
+
+
+def run(*args):
+    return CliRunner().invoke(cli, list(args), catch_exceptions=False)
+
+
+def test_version_names_dependencies():
+    result = run("--version")
+    assert result.exit_code == 0
+    for name in (f"sdofreport {__version__}", "numpy", "scipy", "numba"):
+        assert name in result.output
+
+
+def test_spectrum_json_interface_and_values(records):
+    folder, accelerations = records
+    result = run("spectrum", str(folder / "records" / "r1.csv"), "--damping", "0.05",
+                 "--damping", "0.02", "--periods", "0.2,1.0")
+    assert result.exit_code == 0, result.output
+    doc = json.loads(result.output)
+    assert list(doc) == ["record", "intensity", "method", "damping", "periods_s", "sd_m",
+                         "sv_m_s", "psv_m_s", "psa_g", "sa_g"]
+    assert set(doc["record"]) == {"id", "dt_s", "npts", "sha256", "units"}
+    assert set(doc["intensity"]) == {"pga_g", "pgv_m_s", "pgd_m", "arias_m_s", "d5_95_s",
+                                     "d5_75_s", "cav_m_s", "mean_period_s"}
+    acc = accelerations["r1"]
+    # Definition: PGA = max |a|; the file holds the values in g to 9 significant figures.
+    assert doc["intensity"]["pga_g"] == pytest.approx(np.max(np.abs(acc)) / G, rel=1e-7)
+    assert doc["damping"] == [0.05, 0.02]  # in the order given
+    assert np.array(doc["sd_m"]).shape == (2, 2)
+    for i, zeta in enumerate(doc["damping"]):
+        for j, period in enumerate(doc["periods_s"]):
+            # Independent reference: scipy.signal.lsim on a 32x finer grid.
+            expected = lsim_peak_displacement(acc, 0.01, period, zeta)
+            assert doc["sd_m"][i][j] == pytest.approx(expected, rel=5e-3)
+            # Definition: PSA = ω² SD, in g.
+            omega = 2 * np.pi / period
+            assert doc["psa_g"][i][j] == pytest.approx(omega ** 2 * doc["sd_m"][i][j] / G)
+
+
+def test_spectrum_csv(records):
+    folder, _ = records
+    result = run("spectrum", str(folder / "records" / "r2.txt"), "--output", "csv",
+                 "--periods", "0.1,0.5,2", "--method", "newmark-average")
+    assert result.exit_code == 0, result.output
+    rows = list(csv.reader(io.StringIO(result.output)))
+    assert rows[0] == ["damping", "period_s", "sd_m", "sv_m_s", "psv_m_s", "psa_g", "sa_g"]
+    assert len(rows) == 1 + 3
+
+
+def test_spectrum_values_file_needs_dt(tmp_path):
+    path = tmp_path / "v.txt"
+    path.write_text("\n".join(f"{np.sin(i / 5):.5f}" for i in range(100)) + "\n")
+    result = run("spectrum", str(path), "--format", "values")
+    assert result.exit_code == 2
+    assert "v.txt" in result.output and "time step" in result.output
+    ok = run("spectrum", str(path), "--format", "values", "--dt", "0.01", "--units", "m/s2",
+             "--periods", "0.5")
+    assert ok.exit_code == 0, ok.output
+
+
+@pytest.mark.parametrize("args, fragment", [
+    (["spectrum", "missing.txt"], "missing.txt"),
+    (["spectrum", "{rec}", "--damping", "5"], "damping"),
+    (["spectrum", "{rec}", "--periods", "0.1,abc"], "--periods: expected numbers"),
+])
+def test_spectrum_bad_input_exit_2(records, args, fragment):
+    folder, _ = records
+    args = [a.replace("{rec}", str(folder / "records" / "r1.csv")) for a in args]
+    result = CliRunner().invoke(cli, args)
+    assert result.exit_code == 2
+    assert fragment in result.output
+    assert "Traceback" not in result.output
+
+
+def test_build_strict_exit_3_and_bad_project_exit_2(project_factory, valid_project_text,
+                                                     tmp_path):
+    tight = valid_project_text.replace('displacement = "50 mm"', 'displacement = "0.1 mm"')
+    path = project_factory(tight)
+    out = tmp_path / "site"
+    cache = tmp_path / "cache"
+    result = run("build", str(path), "-o", str(out), "--strict", "--quiet", "--jobs", "1",
+                 "--cache-dir", str(cache))
+    assert result.exit_code == 3
+    assert (out / "index.html").is_file()
+    before = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
+    broken = project_factory(tight.replace("damping = 0.05", "damping = 7"), "bad.toml")
+    result = CliRunner().invoke(cli, ["build", str(broken), "-o", str(out), "--quiet"])
+    assert result.exit_code == 2
+    assert "systems[1].damping" in result.output
+    # Nothing half-written: the previous site is untouched and no staging folder remains.
+    after = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
+    assert after == before
+    assert not [p for p in tmp_path.iterdir() if p.name.startswith(".site.")]
+
+
+def test_build_refuses_foreign_folder(project_factory, valid_project_text, tmp_path):
+    path = project_factory(valid_project_text)
+    foreign = tmp_path / "precious"
+    foreign.mkdir()
+    (foreign / "thesis.txt").write_text("do not delete")
+    result = CliRunner().invoke(cli, ["build", str(path), "-o", str(foreign), "--quiet"])
+    assert result.exit_code == 2
+    assert "not a site built by sdofreport" in result.output
+    assert (foreign / "thesis.txt").read_text() == "do not delete"
+
+
+def test_build_refuses_outside_inputs(project_factory, valid_project_text, tmp_path):
+    sub = tmp_path / "proj"
+    sub.mkdir()
+    text = valid_project_text.replace("records/r1.csv", "../records/r1.csv").replace(
+        "records/r2.txt", "../records/r2.txt")
+    path = sub / "sdofreport.toml"
+    path.write_text(text)
+    result = CliRunner().invoke(cli, ["build", str(path), "-o", str(tmp_path / "o"), "-q"])
+    assert result.exit_code == 2
+    assert "outside the project folder" in result.output and "--allow-outside" in \
+        result.output
+    ok = CliRunner().invoke(cli, ["build", str(path), "-o", str(tmp_path / "o"), "-q",
+                                  "--allow-outside", "--jobs", "1"])
+    assert ok.exit_code == 0, ok.output
