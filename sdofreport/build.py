@@ -8,7 +8,7 @@ import time
 from dataclasses import dataclass
 from pathlib import Path
 
-from sdofreport.engine import Progress, Results, run_project
+from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir, run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
 from sdofreport.site.render import gather_site, write_site
@@ -48,7 +48,8 @@ def _check_inside(project, allow_outside: bool) -> None:
 def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
                jobs: int | None = None, cache_dir: str | os.PathLike | None = None,
                use_cache: bool = True, allow_outside: bool = False,
-               progress: Progress | None = None) -> BuildOutcome:
+               progress: Progress | None = None, scheduler: str | None = None,
+               dask_local: int | None = None) -> BuildOutcome:
     """
     Validate the project, compute every result, render every page, then write the site.
 
@@ -59,9 +60,12 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     project = load_project(project_file)
     _check_inside(project, allow_outside)
     results = run_project(project, jobs=jobs, cache_dir=cache_dir, use_cache=use_cache,
-                          progress=progress)
+                          progress=progress, scheduler=scheduler, dask_local=dask_local)
     render_started = time.perf_counter()
-    files = gather_site(results, jobs=jobs or os.cpu_count() or 1)
+    figure_cache = None
+    if use_cache:
+        figure_cache = ResultCache(Path(cache_dir or default_cache_dir()) / "figures")
+    files = gather_site(results, jobs=jobs or os.cpu_count() or 1, figure_cache=figure_cache)
     write_started = time.perf_counter()
     path = write_site(files, output)
     finished = time.perf_counter()

@@ -146,8 +146,12 @@ def spectrum_command(file, file_format, units, dt_s, damping, periods_text, meth
 @click.option("--no-cache", is_flag=True, help="Recompute everything; store nothing.")
 @click.option("--allow-outside", is_flag=True,
               help="Accept input files outside the project folder.")
+@click.option("--scheduler", default=None, metavar="tcp://HOST:PORT",
+              help="Send the jobs to a running Dask scheduler (needs sdofreport[dask]).")
+@click.option("--dask-local", type=click.IntRange(min=1), default=None, metavar="N",
+              help="Start a local Dask cluster of N worker processes for the jobs.")
 def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache,
-                  allow_outside):
+                  allow_outside, scheduler, dask_local):
     """Build the review site of a project.
 
     \b
@@ -179,7 +183,7 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
 
     outcome = build_site(project_file, output, jobs=jobs, cache_dir=cache_dir,
                          use_cache=not no_cache, allow_outside=allow_outside,
-                         progress=progress)
+                         progress=progress, scheduler=scheduler, dask_local=dask_local)
     results = outcome.results
     exceeding = sum(c.verdict == "exceeds limit" for c in results.checks)
     if not quiet:

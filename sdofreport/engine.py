@@ -17,7 +17,6 @@ import os
 import pickle
 import tempfile
 import time
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Callable
@@ -35,7 +34,8 @@ from sdofreport.core.intensity import (
 )
 from sdofreport.core.spectra import ResponseSpectrum, oscillator_histories, response_spectrum
 from sdofreport.core.units import G
-from sdofreport.errors import BuildError, RecordError
+from sdofreport.errors import RecordError
+from sdofreport.executors import execute
 from sdofreport.project.model import Project, RecordSpec, SystemSpec
 from sdofreport.records import Record, process_record, read_record
 
@@ -264,7 +264,8 @@ def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseR
 
 def run_project(project: Project, *, jobs: int | None = None,
                 cache_dir: str | os.PathLike | None = None, use_cache: bool = True,
-                progress: Progress | None = None) -> Results:
+                progress: Progress | None = None, scheduler: str | None = None,
+                dask_local: int | None = None) -> Results:
     """
     Compute every result of a project.
 
@@ -280,6 +281,10 @@ def run_project(project: Project, *, jobs: int | None = None,
         False computes everything afresh and stores nothing.
     progress : callable(done, total, label), optional
         Called after each job.
+    scheduler : str, optional
+        Address of a running Dask scheduler (``tcp://host:port``) to send the jobs to.
+    dask_local : int, optional
+        Start a local Dask cluster of this many worker processes instead.
 
     Returns
     -------
@@ -297,7 +302,7 @@ def run_project(project: Project, *, jobs: int | None = None,
         key = _hash({**base, "job": "record", "sha": _array_hash(record),
                      "dt": record.dt_s, "periods": list(analysis.periods_s),
                      "damping": list(analysis.damping)})
-        plan.append((f"spectra {record.id}", ("record", (record, analysis.periods_s,
+        plan.append((f"record {record.id} (spectra)", ("record", (record, analysis.periods_s,
                                                           analysis.damping,
                                                           analysis.method)), key))
     for system in project.systems:
@@ -305,7 +310,7 @@ def run_project(project: Project, *, jobs: int | None = None,
             key = _hash({**base, "job": "response", "sha": _array_hash(record),
                          "dt": record.dt_s, "period": system.period_s,
                          "damping": system.damping})
-            plan.append((f"{system.id} × {record.id}", (
+            plan.append((f"system {system.id} × record {record.id}", (
                 "response", (record.acceleration_m_s2, record.dt_s, system.period_s,
                              system.damping, analysis.method)), key))
 
@@ -322,29 +327,19 @@ def run_project(project: Project, *, jobs: int | None = None,
     if progress:
         progress(done, len(plan), "cached")
     compute_started = time.perf_counter()
-    workers = max(1, min(jobs or os.cpu_count() or 1, len(todo) or 1))
-    try:
-        if workers == 1 or len(todo) <= 1:
-            for index in todo:
-                outputs[index] = _run_job(plan[index][1])
-                cache.put(plan[index][2], outputs[index])
-                done += 1
-                if progress:
-                    progress(done, len(plan), plan[index][0])
-        else:
-            import multiprocessing
+    job_list = [(plan[i][0], _run_job, (plan[i][1],)) for i in todo]
 
-            context = multiprocessing.get_context("fork" if os.name == "posix" else None)
-            with ProcessPoolExecutor(max_workers=workers, mp_context=context) as pool:
-                futures = {index: pool.submit(_run_job, plan[index][1]) for index in todo}
-                for index in todo:
-                    outputs[index] = futures[index].result()
-                    cache.put(plan[index][2], outputs[index])
-                    done += 1
-                    if progress:
-                        progress(done, len(plan), plan[index][0])
-    except ValueError as exc:
-        raise BuildError(f"computation refused its input: {exc}") from None
+    def finished(position: int, output) -> None:
+        nonlocal done
+        index = todo[position]
+        outputs[index] = output
+        cache.put(plan[index][2], output)
+        done += 1
+        if progress:
+            progress(done, len(plan), plan[index][0])
+
+    execute(job_list, finished, workers=jobs or os.cpu_count() or 1, scheduler=scheduler,
+            dask_local=dask_local)
     compute_time = time.perf_counter() - compute_started
 
     record_results = []

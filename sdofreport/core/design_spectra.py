@@ -83,7 +83,7 @@ def _as_periods(periods_s, name: str = "periods_s") -> np.ndarray:
     except (TypeError, ValueError):
         raise ValueError(f"{name} must be numbers >= 0 [s]; got {periods_s!r}") from None
     if t.size and not (np.all(np.isfinite(t)) and np.all(t >= 0.0)):
-        bad = t[~(np.isfinite(t) & (t >= 0.0))].flat[0]
+        bad = float(t[~(np.isfinite(t) & (t >= 0.0))].flat[0])
         raise ValueError(f"{name} must be finite and >= 0 [s]; got {bad!r}")
     return t
 
@@ -292,7 +292,7 @@ def _check_table(table_periods_s, table_sa_g) -> tuple[np.ndarray, np.ndarray]:
     if np.any(np.diff(tp) <= 0.0):
         raise ValueError("table_periods_s must increase strictly [s]")
     if not (np.all(np.isfinite(sa)) and np.all(sa > 0.0)):
-        bad = sa[~(np.isfinite(sa) & (sa > 0.0))][0]
+        bad = float(sa[~(np.isfinite(sa) & (sa > 0.0))][0])
         raise ValueError(f"table_sa_g must be finite and > 0 [g]; got {bad!r}")
     if tp[0] == 0.0 and tp.size < 3:
         raise ValueError(

@@ -97,8 +97,9 @@ def _log_stats(stack: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
 class SiteContext:
     """Builds every page's context and figure list for one :class:`Results`."""
 
-    def __init__(self, results: Results) -> None:
+    def __init__(self, results: Results, fingerprint: str = "") -> None:
         self.results = results
+        self.fingerprint = fingerprint
         self.project = results.project
         self.display = Display(self.project.info.display_units)
         self.figures: list[FigureSpec] = []
@@ -120,6 +121,7 @@ class SiteContext:
             "nav_systems": [{"id": s.id, "file": page_name(s.id)}
                             for s in self.project.systems],
             "cautions": {"short": CAUTION_SHORT, "full": CAUTION_FULL},
+            "fingerprint": self.fingerprint,
         }
 
     def _figure(self, path: str, function: str, **kwargs) -> str:

@@ -16,6 +16,7 @@ import tempfile
 from pathlib import Path
 
 import jinja2
+import numpy as np
 
 from sdofreport import __version__
 from sdofreport.engine import Results
@@ -55,17 +56,68 @@ def draw_figure(spec: FigureSpec) -> str:
     return getattr(figures, spec.function)(**spec.kwargs)
 
 
-def draw_figures(specs: list[FigureSpec], jobs: int = 1) -> dict[str, str]:
-    """Every figure's SVG text by site path, drawn in ``jobs`` processes."""
-    if jobs <= 1 or len(specs) < 4:
-        return {spec.path: draw_figure(spec) for spec in specs}
-    import multiprocessing
-    from concurrent.futures import ProcessPoolExecutor
+def _feed(digest, value) -> None:
+    """Feed a figure argument into a hash: arrays by dtype, shape and bytes."""
+    if isinstance(value, np.ndarray):
+        array = np.ascontiguousarray(value)
+        digest.update(f"a{array.dtype.str}{array.shape}".encode())
+        digest.update(array.tobytes())
+    elif isinstance(value, dict):
+        digest.update(b"{")
+        for key in sorted(value):
+            digest.update(repr(key).encode())
+            _feed(digest, value[key])
+        digest.update(b"}")
+    elif isinstance(value, (list, tuple)):
+        digest.update(b"[")
+        for item in value:
+            _feed(digest, item)
+        digest.update(b"]")
+    else:
+        digest.update(repr(value).encode())
 
-    context = multiprocessing.get_context("fork" if os.name == "posix" else None)
-    with ProcessPoolExecutor(max_workers=jobs, mp_context=context) as pool:
-        texts = list(pool.map(draw_figure, specs, chunksize=max(1, len(specs) // (4 * jobs))))
-    return {spec.path: text for spec, text in zip(specs, texts)}
+
+def figure_key(spec: FigureSpec) -> str:
+    """Content hash of a figure: function, arguments and the versions that draw it."""
+    import matplotlib
+
+    digest = hashlib.sha256(f"figure|{__version__}|{matplotlib.__version__}|"
+                            f"{spec.function}".encode())
+    _feed(digest, spec.kwargs)
+    return digest.hexdigest()
+
+
+def draw_figures(specs: list[FigureSpec], jobs: int = 1, cache=None) -> dict[str, str]:
+    """
+    Every figure's SVG text by site path, drawn in ``jobs`` processes.
+
+    With a ``cache`` (:class:`sdofreport.engine.ResultCache`), figures whose inputs did
+    not change are taken from it instead of being drawn again.
+    """
+    texts: dict[str, str] = {}
+    keys = {spec.path: figure_key(spec) for spec in specs} if cache is not None else {}
+    todo = []
+    for spec in specs:
+        cached = cache.get(keys[spec.path]) if cache is not None else None
+        if isinstance(cached, str):
+            texts[spec.path] = cached
+        else:
+            todo.append(spec)
+    if jobs <= 1 or len(todo) < 4:
+        drawn = [draw_figure(spec) for spec in todo]
+    else:
+        import multiprocessing
+        from concurrent.futures import ProcessPoolExecutor
+
+        context = multiprocessing.get_context("fork" if os.name == "posix" else None)
+        with ProcessPoolExecutor(max_workers=jobs, mp_context=context) as pool:
+            drawn = list(pool.map(draw_figure, todo,
+                                  chunksize=max(1, len(todo) // (4 * jobs))))
+    for spec, text in zip(todo, drawn):
+        texts[spec.path] = text
+        if cache is not None:
+            cache.put(keys[spec.path], text)
+    return {spec.path: texts[spec.path] for spec in specs}
 
 
 def _json_text(document: dict) -> str:
@@ -99,35 +151,56 @@ def is_site(folder: Path) -> bool:
     return isinstance(manifest, dict) and manifest.get("schema") == MANIFEST_SCHEMA
 
 
-def gather_site(results: Results, *, jobs: int = 1) -> dict[str, bytes]:
+def gather_site(results: Results, *, jobs: int = 1, figure_cache=None) -> dict[str, bytes]:
     """Every file of the site (path → bytes), manifest included, computed in memory."""
-    context = SiteContext(results)
+    files: dict[str, bytes] = {}
+    files["data/results.json"] = _json_text(results_document(results)).encode("utf-8")
+    for site_path, source in _input_files(results).items():
+        files[site_path] = source.read_bytes()
+    run_fingerprint = manifest_document(results, files)["fingerprint"]
+    context = SiteContext(results, fingerprint=run_fingerprint)
     pages = context.pages()
     env = _environment()
-    files: dict[str, bytes] = {}
     for page in pages:
         try:
             html = env.get_template(page.template).render(**page.context)
         except jinja2.TemplateError as exc:
             raise BuildError(f"page {page.path} could not be rendered: {exc}") from None
         files[page.path] = html.encode("utf-8")
-    for path, svg in draw_figures(context.figures, jobs).items():
+    for path, svg in draw_figures(context.figures, jobs, figure_cache).items():
         files[path] = svg.encode("utf-8")
     files["static/style.css"] = (template_dir() / "static" / "style.css").read_bytes()
-    files["data/results.json"] = _json_text(results_document(results)).encode("utf-8")
     files["data/spectra.csv"] = spectra_csv(results).encode("utf-8")
     files["data/peaks.csv"] = peaks_csv(results).encode("utf-8")
-    for site_path, source in _input_files(results).items():
-        files[site_path] = source.read_bytes()
     files[MANIFEST_NAME] = _json_text(manifest_document(results, files)).encode("utf-8")
     return files
 
 
+#: Manifest fields the fingerprint covers (besides the hashes of inputs and results).
+FINGERPRINT_FIELDS = ("package", "dependencies", "platform", "settings")
+
+
+def fingerprint(manifest: dict) -> str:
+    """
+    Short fingerprint of a run: SHA-256 over the versions, platform, settings and the
+    hashes of every input and of ``data/results.json``, in canonical JSON; 16 hex digits.
+
+    Pages are left out so the summary page can show it; ``verify`` recomputes it.
+    """
+    files = manifest.get("files", {})
+    covered = {name: manifest.get(name) for name in FINGERPRINT_FIELDS}
+    covered["files"] = {path: digest for path, digest in sorted(files.items())
+                        if path.startswith("inputs/") or path == "data/results.json"}
+    text = json.dumps(covered, sort_keys=True, separators=(",", ":"), ensure_ascii=True)
+    return hashlib.sha256(text.encode("ascii")).hexdigest()[:16]
+
+
 def manifest_document(results: Results, files: dict[str, bytes]) -> dict:
+    """The manifest: versions, platform, settings and the SHA-256 of every site file."""
     hashes = {path: hashlib.sha256(data).hexdigest() for path, data in sorted(files.items())
               if path != MANIFEST_NAME}
     inputs = sorted(path for path in files if path.startswith("inputs/"))
-    return {
+    document = {
         "schema": MANIFEST_SCHEMA,
         "package": {"name": "sdofreport", "version": __version__},
         "dependencies": dict(dependency_versions()),
@@ -144,6 +217,8 @@ def manifest_document(results: Results, files: dict[str, bytes]) -> dict:
         "inputs": inputs,
         "files": hashes,
     }
+    document["fingerprint"] = fingerprint(document)
+    return document
 
 
 def write_site(files: dict[str, bytes], output: str | os.PathLike) -> Path:

@@ -1,0 +1,160 @@
+"""Reading a built run into memory: a site folder or a zip made by ``sdofreport pack``.
+
+Everything here returns plain ``{site path: bytes}`` mappings, so verification,
+comparison and the register work the same on a folder and on an archive.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+import zipfile
+from dataclasses import dataclass
+from pathlib import Path, PurePosixPath
+
+from sdofreport.errors import SdofreportError
+from sdofreport.site.render import MANIFEST_NAME, MANIFEST_SCHEMA
+
+RESULTS_PATH = "data/results.json"
+
+
+class ArchiveError(SdofreportError):
+    """A site, archive or results file given to verify, compare, pack or register is unusable."""
+
+
+@dataclass
+class RunFiles:
+    """Every file of one run, read into memory."""
+
+    label: str                 # what the user named (path as given)
+    kind: str                  # "folder" or "zip"
+    files: dict[str, bytes]    # site path (POSIX, relative) → bytes
+
+    def manifest(self) -> dict:
+        """The parsed manifest.json; :class:`ArchiveError` when absent or not ours."""
+        return parse_manifest(self.files, self.label)
+
+
+def read_folder(folder: Path) -> dict[str, bytes]:
+    """Every regular file under ``folder`` by POSIX relative path (symlinks are refused)."""
+    files = {}
+    for path in sorted(folder.rglob("*")):
+        relative = path.relative_to(folder)
+        if path.is_symlink():
+            raise ArchiveError(f"{folder}: '{relative.as_posix()}' is a symbolic link; "
+                               f"expected a site of plain files as sdofreport build writes "
+                               f"it. Replace the link with the file or rebuild the site.")
+        if path.is_file():
+            files[relative.as_posix()] = path.read_bytes()
+    return files
+
+
+def _safe_member(name: str, label: str) -> str | None:
+    """The member's relative POSIX path, None for a folder entry; refuse escaping names."""
+    if name.endswith("/"):
+        return None
+    posix = PurePosixPath(name.replace("\\", "/"))
+    if posix.is_absolute() or ".." in posix.parts or re.match(r"^[A-Za-z]:", name):
+        raise ArchiveError(f"{label}: archive member '{name}' points outside the archive "
+                           f"(absolute path or '..'); expected relative paths as sdofreport "
+                           f"pack writes them. The archive was not extracted.")
+    return posix.as_posix()
+
+
+def read_zip(path: Path) -> dict[str, bytes]:
+    """Every file in the zip at ``path``; a single top-level folder is stripped."""
+    try:
+        with zipfile.ZipFile(path) as archive:
+            files = {}
+            for info in archive.infolist():
+                name = _safe_member(info.filename, str(path))
+                if name is not None:
+                    files[name] = archive.read(info)
+    except (zipfile.BadZipFile, zipfile.LargeZipFile, EOFError, ValueError) as exc:
+        raise ArchiveError(f"{path}: not a readable zip archive ({exc}); expected a site "
+                           f"folder or a zip made by sdofreport pack.") from None
+    if MANIFEST_NAME not in files:
+        tops = {name.split("/", 1)[0] for name in files}
+        if len(tops) == 1 and all("/" in name for name in files):
+            prefix = tops.pop() + "/"
+            files = {name[len(prefix):]: data for name, data in files.items()}
+    return dict(sorted(files.items()))
+
+
+def read_run(path: str | Path) -> RunFiles:
+    """
+    Read a site folder or a packed zip into memory.
+
+    Raises :class:`ArchiveError` when ``path`` is neither, or holds no manifest.json.
+    """
+    path = Path(path)
+    if path.is_dir():
+        run = RunFiles(str(path), "folder", read_folder(path))
+    elif path.is_file() and zipfile.is_zipfile(path):
+        run = RunFiles(str(path), "zip", read_zip(path))
+    elif path.exists():
+        raise ArchiveError(f"{path}: expected a site folder or a zip made by sdofreport "
+                           f"pack, found a file that is not a zip archive.")
+    else:
+        raise ArchiveError(f"{path}: not found; expected a site folder or a zip made by "
+                           f"sdofreport pack.")
+    run.manifest()  # refuse early when there is no manifest of ours
+    return run
+
+
+def parse_manifest(files: dict[str, bytes], label: str) -> dict:
+    """manifest.json of a run, checked for the fields verification relies on."""
+    if MANIFEST_NAME not in files:
+        raise ArchiveError(f"{label}: no {MANIFEST_NAME} found; expected a site folder "
+                           f"built by sdofreport build (or a zip made by sdofreport pack), "
+                           f"which always carries one.")
+    try:
+        manifest = json.loads(files[MANIFEST_NAME].decode("utf-8"))
+    except (UnicodeDecodeError, ValueError) as exc:
+        raise ArchiveError(f"{label}: {MANIFEST_NAME} is not valid JSON ({exc}); expected "
+                           f"the manifest written by sdofreport build.") from None
+    if not isinstance(manifest, dict) or manifest.get("schema") != MANIFEST_SCHEMA:
+        found = manifest.get("schema") if isinstance(manifest, dict) else type(manifest)
+        raise ArchiveError(f"{label}: {MANIFEST_NAME} has schema {found!r}; expected "
+                           f"{MANIFEST_SCHEMA!r} as written by sdofreport build.")
+    hashes = manifest.get("files")
+    if not isinstance(hashes, dict) or not all(
+            isinstance(k, str) and isinstance(v, str) for k, v in hashes.items()):
+        raise ArchiveError(f"{label}: {MANIFEST_NAME} key 'files': expected a table of site "
+                           f"path → SHA-256 text, found {type(hashes).__name__}.")
+    if not isinstance(manifest.get("inputs"), list):
+        raise ArchiveError(f"{label}: {MANIFEST_NAME} key 'inputs': expected a list of "
+                           f"paths under inputs/, found "
+                           f"{type(manifest.get('inputs')).__name__}.")
+    if not isinstance(manifest.get("project"), dict):
+        raise ArchiveError(f"{label}: {MANIFEST_NAME} key 'project': expected a table with "
+                           f"file, title, reference, revision and date.")
+    return manifest
+
+
+def parse_results(data: bytes, label: str) -> dict:
+    """A results.json document, checked only for being our schema."""
+    try:
+        document = json.loads(data.decode("utf-8"))
+    except (UnicodeDecodeError, ValueError) as exc:
+        raise ArchiveError(f"{label}: not valid JSON ({exc}); expected data/results.json "
+                           f"as written by sdofreport build.") from None
+    schema = document.get("schema") if isinstance(document, dict) else None
+    if not isinstance(schema, str) or not schema.startswith("sdofreport/results@"):
+        raise ArchiveError(f"{label}: schema {schema!r}; expected 'sdofreport/results@1' "
+                           f"(data/results.json as written by sdofreport build).")
+    return document
+
+
+def safe_name(text: str, fallback: str = "unnamed") -> str:
+    """``text`` with every character outside ``A-Z a-z 0-9 . _ -`` replaced by '-'."""
+    cleaned = re.sub(r"[^A-Za-z0-9._-]+", "-", str(text)).strip("-.")
+    return cleaned or fallback
+
+
+def run_name(manifest: dict) -> str:
+    """``<reference>_rev<revision>_<fingerprint>``, safe as a file or folder name."""
+    project = manifest.get("project") or {}
+    return (f"{safe_name(project.get('reference') or '', 'noref')}_rev"
+            f"{safe_name(project.get('revision') or '', 'none')}_"
+            f"{safe_name(manifest.get('fingerprint') or '', 'nofingerprint')}")

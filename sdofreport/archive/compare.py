@@ -1,0 +1,384 @@
+"""``sdofreport compare``: what changed between two runs, and the revision page of a site.
+
+The comparison is a plain document (``sdofreport/comparison@1``): every check whose
+demand, limit, ratio or verdict changed, systems and records added, removed or changed
+(record scale, data and file SHA-256, ...), settings and project details changed, each
+number with its relative change ``(new - old) / |old|``. It renders as text, JSON or a
+page in the site's look.
+"""
+
+from __future__ import annotations
+
+import base64
+import json
+import os
+from dataclasses import dataclass
+from pathlib import Path
+
+from sdofreport.archive._pages import common_context, render, stylesheet
+from sdofreport.archive._sitefiles import (
+    RESULTS_PATH,
+    ArchiveError,
+    parse_manifest,
+    parse_results,
+    read_folder,
+    read_zip,
+)
+from sdofreport.site.render import MANIFEST_NAME
+
+COMPARISON_SCHEMA = "sdofreport/comparison@1"
+CHECK_FIELDS = ("demand", "limit", "ratio", "verdict", "statistic")
+RECORD_FIELDS = ("file", "file_sha256", "sha256", "scale", "dt_s", "npts", "units", "format",
+                 "processing", "pga_g")
+SYSTEM_FIELDS = ("name", "mass_kg", "stiffness_n_m", "period_s", "damping", "height_m")
+PROJECT_FIELDS = ("title", "reference", "revision", "date", "prepared_by", "checked_by",
+                  "display_units")
+#: Damping of the overlaid spectra on the revision page [-].
+REVISION_DAMPING = 0.05
+
+
+@dataclass
+class Run:
+    """A run to compare: its results document and, for a site or archive, its manifest."""
+
+    label: str
+    results: dict
+    manifest: dict | None = None
+
+
+def load_run(path: str | os.PathLike) -> Run:
+    """A site folder, a packed zip or a results.json file, read for comparison."""
+    path = Path(path)
+    if path.is_dir():
+        files = {}
+        for name in (RESULTS_PATH, MANIFEST_NAME):
+            if (path / name).is_file():
+                files[name] = (path / name).read_bytes()
+    elif path.is_file():
+        data = path.read_bytes()
+        if data[:2] == b"PK":
+            files = read_zip(path)
+        else:
+            return Run(str(path), parse_results(data, str(path)))
+    else:
+        raise ArchiveError(f"{path}: not found; expected a site folder, a zip made by "
+                           f"sdofreport pack or a results.json file.")
+    if RESULTS_PATH not in files:
+        raise ArchiveError(f"{path}: no {RESULTS_PATH} found; expected a site folder, a zip "
+                           f"made by sdofreport pack or a results.json file.")
+    manifest = parse_manifest(files, str(path)) if MANIFEST_NAME in files else None
+    return Run(str(path), parse_results(files[RESULTS_PATH], f"{path}: {RESULTS_PATH}"),
+               manifest)
+
+
+# -- the comparison document ---------------------------------------------------------------
+
+def _is_number(value: object) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+def relative_change(old: object, new: object) -> float | None:
+    """``(new - old) / |old|`` for two numbers with ``old`` not zero, else None."""
+    if _is_number(old) and _is_number(new) and old != 0:
+        return (new - old) / abs(old)
+    return None
+
+
+def _field_changes(identifier: str, old: dict, new: dict, fields) -> list[dict]:
+    return [{"id": identifier, "field": name, "old": old.get(name), "new": new.get(name),
+             "relative": relative_change(old.get(name), new.get(name))}
+            for name in fields if old.get(name) != new.get(name)]
+
+
+def _by_id(items) -> dict[str, dict]:
+    return {item["id"]: item for item in items or [] if isinstance(item, dict) and "id" in item}
+
+
+def _flatten(value, prefix: str = "") -> dict[str, object]:
+    if isinstance(value, dict):
+        out = {}
+        for key in sorted(value):
+            out.update(_flatten(value[key], f"{prefix}.{key}" if prefix else str(key)))
+        return out
+    return {prefix: value}
+
+
+def _file_hashes(run_manifest: dict | None, records: dict[str, dict]) -> dict[str, str]:
+    """Record id → SHA-256 of its file copy under inputs/, from the manifest."""
+    if not run_manifest:
+        return {}
+    listed = run_manifest.get("files") or {}
+    return {rid: listed[f"inputs/{record.get('file')}"] for rid, record in records.items()
+            if f"inputs/{record.get('file')}" in listed}
+
+
+def _header(run: Run) -> dict:
+    project = run.results.get("project") or {}
+    return {"label": run.label, "title": project.get("title"),
+            "reference": project.get("reference"), "revision": project.get("revision"),
+            "date": project.get("date"), "generator": run.results.get("generator"),
+            "fingerprint": (run.manifest or {}).get("fingerprint")}
+
+
+def _check_rows(old: dict, new: dict) -> list[dict]:
+    def checks(document):
+        out = {}
+        for system in document.get("systems") or []:
+            for check in system.get("checks") or []:
+                out[(system.get("id"), check.get("quantity"))] = check
+        return out
+
+    before, after = checks(old), checks(new)
+    rows = []
+    for key in sorted(set(before) | set(after), key=lambda k: (str(k[0]), str(k[1]))):
+        a, b = before.get(key), after.get(key)
+        if a is not None and b is not None and all(a.get(f) == b.get(f) for f in CHECK_FIELDS):
+            continue
+        status = "added" if a is None else "removed" if b is None else "changed"
+        pick = (lambda c: None if c is None else {f: c.get(f) for f in CHECK_FIELDS})
+        rows.append({"system": key[0], "quantity": key[1],
+                     "unit": (b or a).get("unit"), "status": status,
+                     "old": pick(a), "new": pick(b),
+                     "relative": {f: relative_change(a.get(f), b.get(f))
+                                  for f in ("demand", "limit", "ratio")} if a and b else {},
+                     "verdict_changed": bool(a and b and a.get("verdict") != b.get("verdict"))})
+    return rows
+
+
+def compare_runs(old: Run, new: Run) -> dict:
+    """The comparison document of two runs (plain data, JSON-ready)."""
+    old_doc, new_doc = old.results, new.results
+    old_systems, new_systems = _by_id(old_doc.get("systems")), _by_id(new_doc.get("systems"))
+    old_records, new_records = _by_id(old_doc.get("records")), _by_id(new_doc.get("records"))
+    if old.manifest and new.manifest:  # file hashes only when both sides have them
+        for records, run in ((old_records, old), (new_records, new)):
+            for rid, digest in _file_hashes(run.manifest, records).items():
+                records[rid] = {**records[rid], "file_sha256": digest}
+    record_changes = []
+    for rid in sorted(set(old_records) & set(new_records)):
+        record_changes += _field_changes(rid, old_records[rid], new_records[rid], RECORD_FIELDS)
+    system_changes = []
+    for sid in sorted(set(old_systems) & set(new_systems)):
+        system_changes += _field_changes(sid, old_systems[sid], new_systems[sid], SYSTEM_FIELDS)
+    old_settings = _flatten({"settings": old_doc.get("settings"),
+                             "statistic": old_doc.get("statistic")})
+    new_settings = _flatten({"settings": new_doc.get("settings"),
+                             "statistic": new_doc.get("statistic")})
+    settings = [{"path": key, "old": old_settings.get(key), "new": new_settings.get(key)}
+                for key in sorted(set(old_settings) | set(new_settings))
+                if old_settings.get(key) != new_settings.get(key)]
+    project = _field_changes("project", old_doc.get("project") or {},
+                             new_doc.get("project") or {}, PROJECT_FIELDS)
+    document = {
+        "schema": COMPARISON_SCHEMA, "old": _header(old), "new": _header(new),
+        "checks": _check_rows(old_doc, new_doc),
+        "systems": {"added": sorted(set(new_systems) - set(old_systems)),
+                    "removed": sorted(set(old_systems) - set(new_systems)),
+                    "changed": system_changes},
+        "records": {"added": sorted(set(new_records) - set(old_records)),
+                    "removed": sorted(set(old_records) - set(new_records)),
+                    "changed": record_changes},
+        "settings": settings, "project": project,
+    }
+    document["identical"] = not (document["checks"] or settings or project or any(
+        document[group][kind] for group in ("systems", "records")
+        for kind in ("added", "removed", "changed")))
+    return document
+
+
+def compare_results(old_results: dict, new_results: dict) -> dict:
+    """The comparison document of two results.json documents."""
+    return compare_runs(Run("old", old_results), Run("new", new_results))
+
+
+def compare_paths(old: str | os.PathLike, new: str | os.PathLike) -> tuple[dict, Run, Run]:
+    """Load two runs (site, zip or results.json) and compare them."""
+    old_run, new_run = load_run(old), load_run(new)
+    return compare_runs(old_run, new_run), old_run, new_run
+
+
+# -- text and JSON ---------------------------------------------------------------------------
+
+def _value(value: object) -> str:
+    if value is None:
+        return "–"
+    if _is_number(value):
+        return f"{value:.6g}"
+    if isinstance(value, (list, dict)):
+        return json.dumps(value, ensure_ascii=False)
+    return str(value)
+
+
+def _percent(relative: float | None) -> str:
+    return "" if relative is None else f"{100 * relative:+.3g} %"
+
+
+def _change(old: object, new: object, relative: float | None = None) -> str:
+    if old == new:
+        return _value(new)
+    if isinstance(old, list) and isinstance(new, list):  # e.g. processing steps
+        steps = ([f"- {_value(x)}" for x in old if x not in new] +
+                 [f"+ {_value(x)}" for x in new if x not in old])
+        return "; ".join(steps) if steps else "same items, reordered"
+    text = f"{_value(old)} → {_value(new)}"
+    return f"{text} ({_percent(relative)})" if relative is not None else text
+
+
+def _run_line(header: dict) -> str:
+    date = f", {header['date']}" if header.get("date") else ""
+    fp = f", fingerprint {header['fingerprint']}" if header.get("fingerprint") else ""
+    return (f"{header['label']} ({header.get('reference')} revision "
+            f"{header.get('revision')}{date}{fp})")
+
+
+def _check_cells(row: dict) -> dict:
+    old, new, rel = row["old"] or {}, row["new"] or {}, row["relative"]
+    if row["status"] != "changed":
+        side = new if row["status"] == "added" else old
+        return {f: f"{_value(side.get(f))} ({row['status']})" for f in
+                ("demand", "limit", "ratio", "verdict")}
+    return {"demand": _change(old.get("demand"), new.get("demand"), rel.get("demand")),
+            "limit": _change(old.get("limit"), new.get("limit"), rel.get("limit")),
+            "ratio": _change(old.get("ratio"), new.get("ratio"), rel.get("ratio")),
+            "verdict": _change(old.get("verdict"), new.get("verdict"))}
+
+
+def comparison_text(document: dict) -> str:
+    """The comparison as plain text (one section per kind of change)."""
+    lines = [f"Old: {_run_line(document['old'])}", f"New: {_run_line(document['new'])}"]
+    if document["identical"]:
+        lines.append("No check, system, record, setting or project detail changed.")
+    if document["checks"]:
+        lines.append(f"Checks changed ({len(document['checks'])}):")
+        for row in document["checks"]:
+            cells = _check_cells(row)
+            lines.append(f"  {row['system']} {row['quantity']} [{row['unit']}]: demand "
+                         f"{cells['demand']}; limit {cells['limit']}; ratio {cells['ratio']}; "
+                         f"verdict {cells['verdict']}")
+    for group in ("systems", "records"):
+        section = document[group]
+        for kind in ("added", "removed"):
+            if section[kind]:
+                lines.append(f"{group.capitalize()} {kind}: {', '.join(section[kind])}")
+        if section["changed"]:
+            lines.append(f"{group.capitalize()} changed:")
+            lines += [f"  {item['id']} {item['field']}: "
+                      f"{_change(item['old'], item['new'], item['relative'])}"
+                      for item in section["changed"]]
+    if document["settings"]:
+        lines.append("Settings changed:")
+        lines += [f"  {item['path']}: {_change(item['old'], item['new'])}"
+                  for item in document["settings"]]
+    if document["project"]:
+        lines.append("Project details changed:")
+        lines += [f"  {item['field']}: {_change(item['old'], item['new'])}"
+                  for item in document["project"]]
+    lines.append("A changed verdict is a changed check of a stated limit, not an approval.")
+    return "\n".join(lines) + "\n"
+
+
+def comparison_json(document: dict) -> str:
+    return json.dumps(document, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+# -- pages ---------------------------------------------------------------------------------
+
+def _damping_index(spectra: dict) -> int:
+    damping = spectra.get("damping") or []
+    return min(range(len(damping)), key=lambda i: abs(damping[i] - REVISION_DAMPING),
+               default=-1)
+
+
+def spectra_overlays(old_doc: dict, new_doc: dict) -> tuple[dict[str, str], str]:
+    """
+    SVG text of old/new PSA spectra (damping nearest 5 %) of every record in both runs
+    whose spectrum or record entry changed, by record id; and a note when none can be
+    overlaid.
+    """
+    from sdofreport.site.figures import spectra_figure
+
+    old_spectra, new_spectra = old_doc.get("spectra") or {}, new_doc.get("spectra") or {}
+    periods = new_spectra.get("periods_s")
+    if not periods or old_spectra.get("periods_s") != periods:
+        return {}, ("Spectra are not overlaid: the two runs use different period grids."
+                    if periods and old_spectra.get("periods_s") else "")
+    i_old, i_new = _damping_index(old_spectra), _damping_index(new_spectra)
+    if i_old < 0 or i_new < 0:
+        return {}, ""
+    old_records, new_records = _by_id(old_doc.get("records")), _by_id(new_doc.get("records"))
+    labels = []
+    for doc, index in ((old_doc, i_old), (new_doc, i_new)):
+        project = doc.get("project") or {}
+        zeta = (doc.get("spectra") or {})["damping"][index]
+        labels.append(f"revision {project.get('revision')} (ζ = {100 * zeta:g} %)")
+    if labels[0] == labels[1]:
+        labels = ["old " + labels[0], "new " + labels[1]]
+    figures = {}
+    for rid in sorted(set(old_records) & set(new_records)):
+        try:
+            before = old_spectra[rid]["psa_g"][i_old]
+            after = new_spectra[rid]["psa_g"][i_new]
+        except (KeyError, IndexError, TypeError):
+            continue
+        if before == after and all(old_records[rid].get(f) == new_records[rid].get(f)
+                                   for f in RECORD_FIELDS):
+            continue
+        curves = [{"label": labels[0], "values": before, "style": "emphasis"},
+                  {"label": labels[1], "values": after, "style": "emphasis"}]
+        figures[rid] = spectra_figure(periods, curves,
+                                      ylabel="Pseudo-spectral acceleration [g]",
+                                      title=f"Record {rid}: old and new")
+    return figures, ""
+
+
+def _page_context(document: dict, figure_sources: dict[str, str], note: str) -> dict:
+    rows = []
+    for row in document["checks"]:
+        cells = _check_cells(row)
+        css = ("exceeds" if (row["new"] or {}).get("verdict") == "exceeds limit" else
+               "within")
+        rows.append({**row, **cells, "css": css})
+    return {"comparison": document, "check_rows": rows,
+            "figures": [{"record": rid, "src": src} for rid, src in
+                        sorted(figure_sources.items())],
+            "figure_note": note, "show": _value, "change": _change}
+
+
+def _project_of(doc: dict) -> dict:
+    project = doc.get("project") or {}
+    return {key: project.get(key) for key in ("title", "reference", "revision", "date",
+                                               "file", "sha256")}
+
+
+def comparison_html(document: dict, old_doc: dict, new_doc: dict) -> str:
+    """A self-contained comparison page: stylesheet inlined, figures as data URIs."""
+    figures, note = spectra_overlays(old_doc, new_doc)
+    sources = {rid: "data:image/svg+xml;base64," +
+               base64.b64encode(svg.encode("utf-8")).decode("ascii")
+               for rid, svg in figures.items()}
+    context = {**common_context(root="", page_title="Comparison", page_kind="comparison",
+                                project=_project_of(new_doc)),
+               **_page_context(document, sources, note),
+               "standalone": True, "inline_css": stylesheet()}
+    return render("compare.html", context).decode("utf-8")
+
+
+def revision_page(old_results_doc: dict, new_results_doc: dict, *,
+                  fingerprint: str = "") -> dict[str, bytes]:
+    """
+    Files of a revision page for the new run's site: ``revision.html`` (at the site's
+    root) and ``figures/revision-<record>.svg`` for each changed record's spectra.
+    """
+    document = compare_results(old_results_doc, new_results_doc)
+    figures, note = spectra_overlays(old_results_doc, new_results_doc)
+    files = {f"figures/revision-{rid}.svg": svg.encode("utf-8") for rid, svg in figures.items()}
+    sources = {rid: f"figures/revision-{rid}.svg" for rid in figures}
+    nav = [{"id": s.get("id"), "file": f"{s.get('id')}.html"}
+           for s in new_results_doc.get("systems") or []]
+    context = {**common_context(root="", page_title="Revision", page_kind="revision",
+                                project=_project_of(new_results_doc), nav_systems=nav,
+                                fingerprint=fingerprint),
+               **_page_context(document, sources, note),
+               "standalone": False, "inline_css": ""}
+    files["revision.html"] = render("compare.html", context)
+    return dict(sorted(files.items()))

@@ -1,0 +1,408 @@
+"""
+Inelastic response spectra of bilinear SDOF systems: constant strength and constant ductility.
+
+Every system is worked per unit mass with initial period T, damping ratio ζ on the
+initial stiffness, and bilinear kinematic hardening (ratio α), integrated by
+:mod:`sdofreport.core.nonlinear` (Newmark average acceleration with Newton–Raphson).
+
+Strength is normalised by the elastic force ``Fe = k · SD`` of the same system kept
+linear (same integrator, same sub-steps): ``η = Fy/Fe`` (the normalised yield strength of
+[1]_ §7.5) and the strength reduction factor ``R = Fe/Fy = 1/η``. Also given:
+``Fy/m`` [m/s²] and ``Fy/(m·PGA)`` [-].
+
+Integration steps: each record step is split into the smallest power of two of sub-steps
+that gives ``h <= T / steps_per_period`` (ground acceleration linear in between), with
+:data:`DEFAULT_STEPS_PER_PERIOD` = 20 — our choice (no source): the Newmark
+average-acceleration period error is then ``(πh/T)²/3 ≈ 0.8 %`` ([2]_, elongation
+``x/arctan x`` with ``x = πh/T``).
+
+Constant ductility: the ductility reached, ``μ(η)``, is not monotonic in η, so a target
+can be met by several strengths (well known, e.g. [1]_ §7.5). Common practice takes the
+largest strength that achieves the target; we scan η downward from 1 by the factor
+:data:`SCAN_RATIO` until the target is reached, then bisect between the last two scan
+points to ``strength_tolerance`` (relative). A crossing of the target narrower than one
+scan interval above that bracket can be missed. Targets not reached down to
+``η =`` :data:`SCAN_MIN_STRENGTH` give NaN.
+
+References
+----------
+.. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson, 2017.
+.. [2] N. M. Newmark, "A method of computation for structural dynamics," J. Eng. Mech.
+   Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
+.. [3] A. S. Veletsos and N. M. Newmark, "Effect of inelastic behavior on the response of
+   simple systems to earthquake motions," in Proc. 2nd World Conf. Earthq. Eng., Tokyo,
+   1960, vol. 2, pp. 895-912.
+.. [4] N. M. Newmark and W. J. Hall, *Earthquake Spectra and Design*. Oakland, CA, USA:
+   Earthquake Engineering Research Institute, 1982.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from sdofreport.core._jit import JIT_OPTIONS, njit
+from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
+from sdofreport.core.nonlinear import (
+    DEFAULT_MAX_HALVINGS,
+    DEFAULT_MAX_ITERATIONS,
+    DEFAULT_TOLERANCE,
+    _check_damping,
+    _check_solver,
+    _check_workers,
+    _for_each_period,
+    _number,
+    _peak_displacement,
+)
+from sdofreport.core.spectra import substep_counts
+
+__all__ = [
+    "DEFAULT_STEPS_PER_PERIOD",
+    "SCAN_MIN_STRENGTH",
+    "SCAN_RATIO",
+    "ConstantDuctilitySpectrum",
+    "ConstantStrengthSpectrum",
+    "constant_ductility_spectrum",
+    "constant_strength_spectrum",
+]
+
+#: Minimum integration steps per initial period (module docstring). Our choice.
+DEFAULT_STEPS_PER_PERIOD = 20.0
+#: Factor between successive normalised strengths η in the downward scan. Our choice: a
+#: 10 % step keeps the scan short and rarely steps over a second crossing.
+SCAN_RATIO = 0.9
+#: Smallest normalised strength η = Fy/Fe scanned (R = 100). Our choice.
+SCAN_MIN_STRENGTH = 0.01
+
+
+# ------------------------------------------------------------------------ results
+@dataclass(frozen=True)
+class ConstantStrengthSpectrum:
+    """Ductility demand of systems whose strength is the elastic force over R."""
+
+    #: initial periods [s], shape (nT,)
+    periods_s: np.ndarray
+    #: damping ratio on the initial stiffness [-]
+    damping: float
+    #: post-yield stiffness ratio α [-]
+    hardening_ratio: float
+    #: strength reduction factors R = Fe/Fy [-], shape (nR,)
+    strength_reduction_factors: np.ndarray
+    #: ductility demand max|u|/u_y [-], shape (nR, nT); below 1 means it stayed elastic
+    ductility: np.ndarray
+    #: yield strength per unit mass Fy/m = Fe/(m R) [m/s²], shape (nR, nT)
+    yield_strength_m_s2: np.ndarray
+    #: elastic peak displacement SD [m], shape (nT,)
+    elastic_displacement_m: np.ndarray
+    #: elastic force per unit mass Fe/m = ω² SD [m/s²], shape (nT,)
+    elastic_force_m_s2: np.ndarray
+    #: peak ground acceleration [m/s²]
+    pga_m_s2: float
+    #: True where every integration step converged, shape (nR, nT)
+    converged: np.ndarray
+
+
+@dataclass(frozen=True)
+class ConstantDuctilitySpectrum:
+    """Strength needed to hold the ductility demand to each target."""
+
+    #: initial periods [s], shape (nT,)
+    periods_s: np.ndarray
+    #: damping ratio on the initial stiffness [-]
+    damping: float
+    #: post-yield stiffness ratio α [-]
+    hardening_ratio: float
+    #: target ductilities μ, each >= 1 [-], shape (nμ,)
+    target_ductilities: np.ndarray
+    #: normalised yield strength η = Fy/Fe (elastic force of the same system) [-],
+    #: shape (nμ, nT); NaN where the target was not reached down to SCAN_MIN_STRENGTH
+    normalized_strength: np.ndarray
+    #: strength reduction factor R = Fe/Fy = 1/η [-], shape (nμ, nT)
+    strength_reduction_factor: np.ndarray
+    #: yield strength per unit mass Fy/m [m/s²], shape (nμ, nT)
+    yield_strength_m_s2: np.ndarray
+    #: yield strength over the inertia force at the peak ground acceleration,
+    #: Fy/(m·PGA) [-], shape (nμ, nT)
+    strength_over_pga: np.ndarray
+    #: ductility reached at the reported strength (>= target, within the tolerance) [-]
+    achieved_ductility: np.ndarray
+    #: elastic peak displacement SD [m], shape (nT,)
+    elastic_displacement_m: np.ndarray
+    #: elastic force per unit mass Fe/m = ω² SD [m/s²], shape (nT,)
+    elastic_force_m_s2: np.ndarray
+    #: peak ground acceleration [m/s²]
+    pga_m_s2: float
+
+
+# ------------------------------------------------------------------------ kernels
+@njit(**JIT_OPTIONS)
+def _strength_period(ag, dt, n_sub, c, k, alpha, r_factors, tol, max_iter, max_halv,
+                     mu_out, ok_out):
+    """Elastic SD [m] of one period, then the ductility for each R (fills the outputs)."""
+    sd, _ = _peak_displacement(ag, dt, n_sub, c, k, np.inf, alpha, np.inf, tol, max_iter,
+                               max_halv)
+    fe = k * sd
+    for i in range(r_factors.size):
+        fy = fe / r_factors[i]
+        peak, ok = _peak_displacement(ag, dt, n_sub, c, k, fy, alpha, np.inf, tol, max_iter,
+                                      max_halv)
+        mu_out[i] = peak / (fy / k)
+        ok_out[i] = ok
+    return sd
+
+
+@njit(**JIT_OPTIONS)
+def _ductility_period(ag, dt, n_sub, c, k, alpha, targets, ratio, eta_min, rel_tol, tol,
+                      max_iter, max_halv, eta_out, mu_out):
+    """
+    Elastic SD [m] of one period; fills ``eta_out`` (largest Fy/Fe reaching each target,
+    ``targets`` sorted ascending) and ``mu_out`` (ductility reached there).
+    """
+    sd, _ = _peak_displacement(ag, dt, n_sub, c, k, np.inf, alpha, np.inf, tol, max_iter,
+                               max_halv)
+    fe = k * sd
+    nt = targets.size
+    t = 0
+    # Fy = Fe keeps the system elastic: it just reaches yield, μ = 1.
+    while t < nt and targets[t] <= 1.0:
+        eta_out[t] = 1.0
+        mu_out[t] = 1.0
+        t += 1
+    if fe <= 0.0:
+        for j in range(t, nt):
+            eta_out[j] = np.nan
+            mu_out[j] = np.nan
+        return sd
+    mu_top = targets[nt - 1]
+    eta_hi = 1.0
+    while t < nt:
+        eta = eta_hi * ratio
+        if eta < eta_min:
+            for j in range(t, nt):
+                eta_out[j] = np.nan
+                mu_out[j] = np.nan
+            break
+        uy = eta * fe / k
+        peak, _ = _peak_displacement(ag, dt, n_sub, c, k, eta * fe, alpha, mu_top * uy,
+                                     tol, max_iter, max_halv)
+        mu = peak / uy
+        while t < nt and mu >= targets[t]:
+            # Bisection on η in (lo, hi): μ(lo) >= target > μ(hi).
+            lo = eta
+            hi = eta_hi
+            while hi - lo > rel_tol * lo:
+                mid = 0.5 * (lo + hi)
+                uy_mid = mid * fe / k
+                p_mid, _ = _peak_displacement(ag, dt, n_sub, c, k, mid * fe, alpha,
+                                              targets[t] * uy_mid, tol, max_iter, max_halv)
+                if p_mid / uy_mid >= targets[t]:
+                    lo = mid
+                else:
+                    hi = mid
+            uy_lo = lo * fe / k
+            p_lo, _ = _peak_displacement(ag, dt, n_sub, c, k, lo * fe, alpha, np.inf, tol,
+                                         max_iter, max_halv)
+            eta_out[t] = lo
+            mu_out[t] = p_lo / uy_lo
+            t += 1
+        eta_hi = eta
+    return sd
+
+
+# ---------------------------------------------------------------------- plumbing
+def _check_common(ground_acceleration, time_step, periods, damping, alpha,
+                  steps_per_period):
+    ag = _check_ground_acceleration(ground_acceleration)
+    dt = _check_time_step(time_step)
+    try:
+        t = np.atleast_1d(np.asarray(periods, dtype=np.float64))
+    except (TypeError, ValueError):
+        raise ValueError(f"periods must be numbers > 0 [s]; got {periods!r}") from None
+    if t.ndim != 1 or t.size == 0:
+        raise ValueError(f"periods must be a non-empty 1-D list [s]; got shape {t.shape}")
+    bad = ~np.isfinite(t) | (t <= 0.0)
+    if np.any(bad):
+        raise ValueError(
+            f"periods must be finite and > 0 [s]; got {float(t[np.flatnonzero(bad)[0]])!r}"
+        )
+    zeta = _check_damping(damping)
+    a = _number(alpha, "alpha", "-")
+    if not (0.0 <= a < 1.0):
+        raise ValueError(f"alpha must be in [0, 1) [-]; got {alpha!r}")
+    spp = _number(steps_per_period, "steps_per_period", "-")
+    if not (math.isfinite(spp) and spp >= 0.0):
+        raise ValueError(
+            f"steps_per_period must be finite and >= 0 [-] (0 turns sub-steps off); "
+            f"got {steps_per_period!r}"
+        )
+    n_sub = substep_counts(t, dt, spp)
+    w = 2.0 * np.pi / t
+    return ag, dt, t, zeta, a, n_sub, w * w, 2.0 * zeta * w
+
+
+def _check_factors(values, name: str, minimum: float, strict: bool) -> np.ndarray:
+    try:
+        x = np.atleast_1d(np.asarray(values, dtype=np.float64))
+    except (TypeError, ValueError):
+        raise ValueError(f"{name} must be numbers [-]; got {values!r}") from None
+    if x.ndim != 1 or x.size == 0:
+        raise ValueError(f"{name} must be a non-empty 1-D list [-]; got shape {x.shape}")
+    bad = ~np.isfinite(x) | ((x <= minimum) if strict else (x < minimum))
+    if np.any(bad):
+        rule = f"> {minimum:g}" if strict else f">= {minimum:g}"
+        raise ValueError(
+            f"{name} must be finite and {rule} [-]; got {float(x[np.flatnonzero(bad)[0]])!r}"
+        )
+    return x
+
+
+# ------------------------------------------------------------------------- public
+def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
+                               strength_reduction_factors, alpha=0.0, *,
+                               steps_per_period=DEFAULT_STEPS_PER_PERIOD,
+                               tolerance=DEFAULT_TOLERANCE,
+                               max_iterations=DEFAULT_MAX_ITERATIONS,
+                               max_halvings=DEFAULT_MAX_HALVINGS,
+                               workers=1) -> ConstantStrengthSpectrum:
+    """
+    Ductility demand of bilinear systems with yield strength ``Fy = Fe / R``.
+
+    Parameters
+    ----------
+    ground_acceleration : array-like
+        Equally spaced base acceleration, linear between samples. [m/s²]
+    time_step : float
+        Sampling interval, > 0. [s]
+    periods : array-like
+        Initial (elastic) periods, each > 0. [s]
+    damping : float
+        Viscous damping ratio on the initial stiffness, in [0, 1). [-]
+    strength_reduction_factors : array-like
+        R = Fe/Fy, each > 0 (R <= 1 stays elastic). [-]
+    alpha : float, optional
+        Post-yield stiffness ratio, 0 <= α < 1. [-]
+    steps_per_period : float, optional
+        Minimum integration steps per initial period (module docstring). [-]
+    tolerance, max_iterations, max_halvings : optional
+        Newton–Raphson settings as in :func:`sdofreport.core.nonlinear.nonlinear_response`.
+        [-]
+    workers : int or None, optional
+        Threads running periods side by side (None: every available core). [-]
+
+    Returns
+    -------
+    ConstantStrengthSpectrum
+
+    References
+    ----------
+    .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
+       2017, sec. 7.4.
+    """
+    ag, dt, t, zeta, a, n_sub, k, c = _check_common(ground_acceleration, time_step, periods,
+                                                    damping, alpha, steps_per_period)
+    r = _check_factors(strength_reduction_factors, "strength_reduction_factors", 0.0, True)
+    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
+    n_workers = _check_workers(workers)
+    mu = np.empty((t.size, r.size))
+    ok = np.empty((t.size, r.size))
+    sd = np.empty(t.size)
+
+    def work(j):
+        sd[j] = _strength_period(ag, dt, n_sub[j], c[j], k[j], a, r, tol, max_iter,
+                                 max_halv, mu[j], ok[j])
+
+    _for_each_period(t.size, n_workers, work)
+    fe = k * sd
+    return ConstantStrengthSpectrum(
+        periods_s=t, damping=zeta, hardening_ratio=a, strength_reduction_factors=r,
+        ductility=mu.T.copy(), yield_strength_m_s2=fe[None, :] / r[:, None],
+        elastic_displacement_m=sd, elastic_force_m_s2=fe, pga_m_s2=float(np.max(np.abs(ag))),
+        converged=ok.T.astype(bool),
+    )
+
+
+def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping,
+                                target_ductilities, alpha=0.0, *,
+                                steps_per_period=DEFAULT_STEPS_PER_PERIOD,
+                                strength_tolerance=1e-3, tolerance=DEFAULT_TOLERANCE,
+                                max_iterations=DEFAULT_MAX_ITERATIONS,
+                                max_halvings=DEFAULT_MAX_HALVINGS,
+                                workers=1) -> ConstantDuctilitySpectrum:
+    """
+    Largest yield strength that holds the ductility demand to each target.
+
+    Parameters
+    ----------
+    ground_acceleration : array-like
+        Equally spaced base acceleration, linear between samples. [m/s²]
+    time_step : float
+        Sampling interval, > 0. [s]
+    periods : array-like
+        Initial (elastic) periods, each > 0. [s]
+    damping : float
+        Viscous damping ratio on the initial stiffness, in [0, 1). [-]
+    target_ductilities : array-like
+        Ductility targets μ = max|u|/u_y, each >= 1. [-]
+    alpha : float, optional
+        Post-yield stiffness ratio, 0 <= α < 1. [-]
+    steps_per_period : float, optional
+        Minimum integration steps per initial period (module docstring). [-]
+    strength_tolerance : float, optional
+        Relative width at which the bisection on η stops, in (0, 0.1]. [-]
+    tolerance, max_iterations, max_halvings : optional
+        Newton–Raphson settings as in :func:`sdofreport.core.nonlinear.nonlinear_response`.
+        [-]
+    workers : int or None, optional
+        Threads running periods side by side (None: every available core). [-]
+
+    Returns
+    -------
+    ConstantDuctilitySpectrum
+        η = Fy/Fe (normalised by the elastic force of the same system), R = Fe/Fy,
+        Fy/m and Fy/(m·PGA), in the order of ``target_ductilities``.
+
+    References
+    ----------
+    .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
+       2017, sec. 7.5.
+    .. [2] A. S. Veletsos and N. M. Newmark, "Effect of inelastic behavior on the
+       response of simple systems to earthquake motions," in Proc. 2nd World Conf.
+       Earthq. Eng., Tokyo, 1960, vol. 2, pp. 895-912.
+    """
+    ag, dt, t, zeta, a, n_sub, k, c = _check_common(ground_acceleration, time_step, periods,
+                                                    damping, alpha, steps_per_period)
+    mu_t = _check_factors(target_ductilities, "target_ductilities", 1.0, False)
+    st = _number(strength_tolerance, "strength_tolerance", "-")
+    if not (0.0 < st <= 0.1):
+        raise ValueError(f"strength_tolerance must be in (0, 0.1] [-]; got {strength_tolerance!r}")
+    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
+    n_workers = _check_workers(workers)
+    order = np.argsort(mu_t, kind="stable")
+    sorted_targets = np.ascontiguousarray(mu_t[order])
+    eta = np.empty((t.size, mu_t.size))
+    got = np.empty((t.size, mu_t.size))
+    sd = np.empty(t.size)
+
+    def work(j):
+        sd[j] = _ductility_period(ag, dt, n_sub[j], c[j], k[j], a, sorted_targets,
+                                  SCAN_RATIO, SCAN_MIN_STRENGTH, st, tol, max_iter,
+                                  max_halv, eta[j], got[j])
+
+    _for_each_period(t.size, n_workers, work)
+    back = np.empty_like(order)
+    back[order] = np.arange(order.size)
+    eta = eta[:, back].T.copy()
+    got = got[:, back].T.copy()
+    fe = k * sd
+    pga = float(np.max(np.abs(ag)))
+    fy = eta * fe[None, :]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        over_pga = fy / pga if pga > 0.0 else np.full_like(fy, np.nan)
+    return ConstantDuctilitySpectrum(
+        periods_s=t, damping=zeta, hardening_ratio=a, target_ductilities=mu_t,
+        normalized_strength=eta, strength_reduction_factor=1.0 / eta,
+        yield_strength_m_s2=fy, strength_over_pga=over_pga, achieved_ductility=got,
+        elastic_displacement_m=sd, elastic_force_m_s2=fe, pga_m_s2=pga,
+    )

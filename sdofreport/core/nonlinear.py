@@ -1,0 +1,734 @@
+"""
+Nonlinear SDOF response: bilinear hysteresis and the sliding (friction) pendulum.
+
+Equation of motion (relative displacement u, base acceleration üg):
+
+    m ü + c u̇ + F(u) = −m üg(t).
+
+Both restoring-force models are one parallel pair: a linear spring ``k_lin`` and an
+elastic–perfectly-plastic element (stiffness ``k_p``, yield force ``f_p``) with a
+committed plastic displacement ``u_p``:
+
+* bilinear with kinematic hardening (initial stiffness k, yield strength Fy, ratio α):
+  ``k_lin = αk``, ``k_p = (1−α)k``, ``f_p = (1−α)Fy``; yield at ``u_y = Fy/k``, post-yield
+  stiffness ``αk``, and the yield surface translates with the spring (kinematic);
+* sliding pendulum [3]_: ``F = (W/R) u + μW z`` with the friction sign z regularised as an
+  elastic–perfectly-plastic element of yield force ``μW`` and initial stiffness
+  ``μW/u_y``: ``k_lin = W/R``, ``k_p = μW/u_y``, ``f_p = μW``. The default
+  ``u_y = 0.25 mm`` (:data:`DEFAULT_FRICTION_YIELD_DISPLACEMENT_M`) is common practice
+  (no source): small against the slips of interest, large enough that the stick-phase
+  period ``2π √(u_y/(μ g))`` is not far below the usual record steps.
+
+Integration: Newmark average acceleration (γ = ½, β = ¼) [1]_ with Newton–Raphson
+iteration on the equilibrium at the end of each step, the total-displacement form of the
+algorithm in [2]_ §5.7 (Table 5.7.1). The residual ``p₁ − m ü₁ − c u̇₁ − F(u₁)`` is driven
+below ``tolerance × force scale``. When a step does not converge within
+``max_iterations``, the whole record step is redone with 2, 4, ... equal sub-steps (up to
+``max_halvings`` halvings) under linearly interpolated ground acceleration; if even the
+finest split fails, the last iterate is accepted and ``converged`` is False.
+
+Energy (relative formulation, Uang and Bertero [4]_): input ``−∫ m üg du``, damping
+``∫ c u̇ du``, restoring work ``∫ F du``, all by the trapezoidal rule over each step, and
+kinetic ``½ m u̇²``. For Newmark average acceleration ``Δu = h (u̇₀ + u̇₁)/2``, so the
+trapezoidal sums balance to the equilibrium residual: a large imbalance flags a bug or an
+unconverged step, and a fine step makes the sums close to the true integrals.
+
+References
+----------
+.. [1] N. M. Newmark, "A method of computation for structural dynamics," J. Eng. Mech.
+   Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
+.. [2] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson, 2017.
+.. [3] V. A. Zayas, S. S. Low and S. A. Mahin, "A simple pendulum technique for achieving
+   seismic isolation," Earthquake Spectra, vol. 6, no. 2, pp. 317-333, 1990,
+   doi: 10.1193/1.1585564.
+.. [4] C.-M. Uang and V. V. Bertero, "Evaluation of seismic energy in structures,"
+   Earthquake Eng. Struct. Dyn., vol. 19, no. 1, pp. 77-90, 1990,
+   doi: 10.1002/eqe.4290190108.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from concurrent.futures import ThreadPoolExecutor
+from dataclasses import dataclass
+
+import numpy as np
+
+from sdofreport.core._jit import JIT_OPTIONS, njit
+from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
+from sdofreport.core.units import G
+
+__all__ = [
+    "DEFAULT_FRICTION_YIELD_DISPLACEMENT_M",
+    "DEFAULT_MAX_HALVINGS",
+    "DEFAULT_MAX_ITERATIONS",
+    "DEFAULT_TOLERANCE",
+    "Bilinear",
+    "NonlinearResponse",
+    "SlidingPendulum",
+    "bilinear",
+    "nonlinear_response",
+    "peak_ductilities",
+    "sliding_pendulum_model",
+]
+
+#: Yield displacement that regularises the friction sign [m]. Common practice (no source).
+DEFAULT_FRICTION_YIELD_DISPLACEMENT_M = 0.25e-3
+#: Newton–Raphson iterations allowed per step before the step is split. Our choice: a
+#: bilinear step converges in 1 (elastic) to 3 (two branch changes) iterations.
+DEFAULT_MAX_ITERATIONS = 10
+#: Largest number of step halvings (2**8 = 256 sub-steps). Our choice; no source.
+DEFAULT_MAX_HALVINGS = 8
+#: Residual tolerance relative to the force scale (module docstring). Our choice: far
+#: above round-off (~1e-12 of the scale for long periods and fine steps), far below
+#: any engineering significance.
+DEFAULT_TOLERANCE = 1e-8
+
+
+# ------------------------------------------------------------------------ models
+@dataclass(frozen=True)
+class Bilinear:
+    """Bilinear hysteresis with kinematic hardening.
+
+    Per unit mass (``mass_kg=None`` in :func:`nonlinear_response`) the stiffness is in
+    [N/(m·kg)] = [1/s²] (that is ω²) and the strength in [N/kg] = [m/s²].
+    """
+
+    #: initial (elastic) stiffness k [N/m]
+    stiffness_n_m: float
+    #: yield strength Fy [N]
+    yield_strength_n: float
+    #: post-yield stiffness ratio α, 0 <= α < 1 (0: elastic–perfectly-plastic) [-]
+    hardening_ratio: float = 0.0
+
+    @property
+    def yield_displacement_m(self) -> float:
+        """u_y = Fy / k [m]."""
+        return self.yield_strength_n / self.stiffness_n_m
+
+
+@dataclass(frozen=True)
+class SlidingPendulum:
+    """Friction pendulum bearing; ``weight_n=None`` means per unit mass (W/m = g)."""
+
+    #: weight carried W [N], or None for per-unit-mass work
+    weight_n: float | None
+    #: radius of the sliding surface R [m]; inf for a flat slider (W/R = 0)
+    radius_m: float
+    #: friction coefficient μ, 0 <= μ < 1 [-]
+    friction: float
+    #: regularising yield displacement of the friction element [m]
+    yield_displacement_m: float = DEFAULT_FRICTION_YIELD_DISPLACEMENT_M
+
+
+def _number(value, name: str, unit: str) -> float:
+    if isinstance(value, bool):
+        raise ValueError(f"{name} must be a number [{unit}]; got {value!r}")
+    try:
+        return float(value)
+    except (TypeError, ValueError):
+        raise ValueError(f"{name} must be a number [{unit}]; got {value!r}") from None
+
+
+def _positive(value, name: str, unit: str, *, allow_inf=False) -> float:
+    x = _number(value, name, unit)
+    if math.isnan(x) or x <= 0.0 or (math.isinf(x) and not allow_inf):
+        kind = "> 0 (inf allowed)" if allow_inf else "finite and > 0"
+        raise ValueError(f"{name} must be {kind} [{unit}]; got {value!r}")
+    return x
+
+
+def bilinear(stiffness_n_m, *, yield_strength_n=None, yield_displacement_m=None,
+             hardening_ratio=0.0) -> Bilinear:
+    """
+    A checked bilinear model from the strength Fy or the yield displacement u_y.
+
+    Parameters
+    ----------
+    stiffness_n_m : float
+        Initial stiffness k, > 0. [N/m]
+    yield_strength_n : float, optional
+        Yield strength Fy, > 0; inf gives a linear system. Give this or
+        ``yield_displacement_m``. [N]
+    yield_displacement_m : float, optional
+        Yield displacement u_y = Fy/k, > 0. [m]
+    hardening_ratio : float, optional
+        Post-yield stiffness ratio α, 0 <= α < 1. [-]
+
+    Returns
+    -------
+    Bilinear
+
+    References
+    ----------
+    .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
+       2017, sec. 7.1.
+    """
+    k = _positive(stiffness_n_m, "stiffness_n_m", "N/m")
+    if (yield_strength_n is None) == (yield_displacement_m is None):
+        raise ValueError(
+            "bilinear: give exactly one of yield_strength_n [N] and yield_displacement_m "
+            f"[m]; got yield_strength_n={yield_strength_n!r}, "
+            f"yield_displacement_m={yield_displacement_m!r}"
+        )
+    if yield_strength_n is not None:
+        fy = _positive(yield_strength_n, "yield_strength_n", "N", allow_inf=True)
+    else:
+        fy = k * _positive(yield_displacement_m, "yield_displacement_m", "m", allow_inf=True)
+    a = _number(hardening_ratio, "hardening_ratio", "-")
+    if not (0.0 <= a < 1.0):
+        raise ValueError(f"hardening_ratio must be in [0, 1) [-]; got {hardening_ratio!r}")
+    return Bilinear(stiffness_n_m=k, yield_strength_n=fy, hardening_ratio=a)
+
+
+def sliding_pendulum_model(weight_n, radius_m, friction,
+                           yield_displacement_m=DEFAULT_FRICTION_YIELD_DISPLACEMENT_M
+                           ) -> SlidingPendulum:
+    """
+    A checked sliding-pendulum model.
+
+    Parameters
+    ----------
+    weight_n : float or None
+        Weight carried W, > 0; None for per-unit-mass work (W/m = g). [N]
+    radius_m : float
+        Radius of curvature R, > 0; ``inf`` for a flat slider (pure friction). [m]
+    friction : float
+        Friction coefficient μ, 0 <= μ < 1. [-]
+    yield_displacement_m : float, optional
+        Regularising yield displacement u_y of the friction element, > 0; default
+        0.25 mm, common practice (no source). [m]
+
+    Returns
+    -------
+    SlidingPendulum
+
+    References
+    ----------
+    .. [1] V. A. Zayas, S. S. Low and S. A. Mahin, "A simple pendulum technique for
+       achieving seismic isolation," Earthquake Spectra, vol. 6, no. 2, pp. 317-333,
+       1990, doi: 10.1193/1.1585564.
+    """
+    w = None if weight_n is None else _positive(weight_n, "weight_n", "N")
+    r = _positive(radius_m, "radius_m", "m", allow_inf=True)
+    mu = _number(friction, "friction", "-")
+    if not (0.0 <= mu < 1.0):
+        raise ValueError(f"friction must be in [0, 1) [-]; got {friction!r}")
+    uy = _positive(yield_displacement_m, "yield_displacement_m", "m")
+    return SlidingPendulum(weight_n=w, radius_m=r, friction=mu, yield_displacement_m=uy)
+
+
+# ------------------------------------------------------------------------ kernels
+@njit(**JIT_OPTIONS)
+def _state(u, up_c, k_lin, k_p, f_p):
+    """Force, plastic displacement and tangent at u from committed ``up_c``."""
+    fe = k_p * (u - up_c)
+    if fe > f_p:
+        return k_lin * u + f_p, u - f_p / k_p, k_lin
+    if fe < -f_p:
+        return k_lin * u - f_p, u + f_p / k_p, k_lin
+    return k_lin * u + fe, up_c, k_lin + k_p
+
+
+@njit(**JIT_OPTIONS)
+def _integrate(ag, dt, n_sub, m, c, k_lin, k_p, f_p, u_init, v_init, tol_force,
+               max_iter, max_halvings, u_stop, store, hist, stats):
+    """
+    Newmark average acceleration + Newton–Raphson through one record.
+
+    ``hist`` (8, npts) receives u, v, total acceleration, F, E_input, E_damping, E_F
+    (cumulative) and the plastic displacement at the record's samples when ``store``.
+    ``stats`` (12,) receives: peak|u|, final u, final v, final F, peak|F|, max iterations,
+    subdivided record steps, all converged (1/0), E_input, E_damping, E_F, final u_p.
+    The run stops early (after the step in which it happens) once |u| >= ``u_stop``.
+    """
+    npts = ag.size
+    u = u_init
+    v = v_init
+    up = 0.0
+    f = _state(u, up, k_lin, k_p, f_p)[0]
+    a = (-m * ag[0] - c * v - f) / m
+    e_in = 0.0
+    e_d = 0.0
+    e_f = 0.0
+    peak_u = abs(u)
+    peak_f = abs(f)
+    iters_max = 0
+    n_split = 0
+    all_ok = 1
+    if store:
+        hist[0, 0] = u
+        hist[1, 0] = v
+        hist[2, 0] = a + ag[0]
+        hist[3, 0] = f
+        hist[4, 0] = 0.0
+        hist[5, 0] = 0.0
+        hist[6, 0] = 0.0
+        hist[7, 0] = up
+    for i in range(npts - 1):
+        g_lo = ag[i]
+        g_hi = ag[i + 1]
+        n_try = n_sub
+        for attempt in range(max_halvings + 1):
+            last = attempt == max_halvings
+            tu = u
+            tv = v
+            ta = a
+            tf = f
+            tup = up
+            t_in = e_in
+            t_d = e_d
+            t_f = e_f
+            t_pu = peak_u
+            t_pf = peak_f
+            t_it = iters_max
+            ok = True
+            h = dt / n_try
+            kdyn = 4.0 * m / (h * h) + 2.0 * c / h
+            for s in range(n_try):
+                g0 = g_lo + (g_hi - g_lo) * s / n_try
+                g1 = g_lo + (g_hi - g_lo) * (s + 1) / n_try
+                p1 = -m * g1
+                # Newton–Raphson on r(u1) = p1 − m ü1 − c u̇1 − F(u1) with Newmark γ=½,
+                # β=¼: ü1 = 4(u1−u0)/h² − 4u̇0/h − ü0, u̇1 = 2(u1−u0)/h − u̇0, so
+                # −dr/du1 = 4m/h² + 2c/h + k_t ([2] Table 5.7.1 in total form).
+                # The unknown is the increment du (incremental form, as in [2]): ü1 and
+                # u̇1 then carry no cancellation error from a large total displacement.
+                du = 0.0
+                it = 0
+                conv = False
+                while True:
+                    u1 = tu + du
+                    a1 = 4.0 * du / (h * h) - 4.0 * tv / h - ta
+                    v1 = 2.0 * du / h - tv
+                    f1, up1, kt1 = _state(u1, tup, k_lin, k_p, f_p)
+                    r = p1 - m * a1 - c * v1 - f1
+                    if abs(r) <= tol_force:
+                        conv = True
+                        break
+                    if it == max_iter:
+                        break
+                    du = du + r / (kdyn + kt1)
+                    it += 1
+                if it > t_it:
+                    t_it = it
+                if not conv:
+                    ok = False
+                    if not last:
+                        break
+                t_in += -m * 0.5 * (g0 + g1) * du
+                t_d += c * 0.5 * (tv + v1) * du
+                t_f += 0.5 * (tf + f1) * du
+                tu = u1
+                tv = v1
+                ta = a1
+                tf = f1
+                tup = up1
+                if abs(u1) > t_pu:
+                    t_pu = abs(u1)
+                if abs(f1) > t_pf:
+                    t_pf = abs(f1)
+            if ok or last:
+                if attempt > 0:
+                    n_split += 1
+                if not ok:
+                    all_ok = 0
+                u = tu
+                v = tv
+                a = ta
+                f = tf
+                up = tup
+                e_in = t_in
+                e_d = t_d
+                e_f = t_f
+                peak_u = t_pu
+                peak_f = t_pf
+                iters_max = t_it
+                break
+            n_try *= 2
+        if store:
+            hist[0, i + 1] = u
+            hist[1, i + 1] = v
+            hist[2, i + 1] = a + g_hi
+            hist[3, i + 1] = f
+            hist[4, i + 1] = e_in
+            hist[5, i + 1] = e_d
+            hist[6, i + 1] = e_f
+            hist[7, i + 1] = up
+        if peak_u >= u_stop:
+            break
+    stats[0] = peak_u
+    stats[1] = u
+    stats[2] = v
+    stats[3] = f
+    stats[4] = peak_f
+    stats[5] = iters_max
+    stats[6] = n_split
+    stats[7] = all_ok
+    stats[8] = e_in
+    stats[9] = e_d
+    stats[10] = e_f
+    stats[11] = up
+
+
+@njit(**JIT_OPTIONS)
+def _peak_displacement(ag, dt, n_sub, c, k, fy, alpha, u_stop, tol_rel, max_iter,
+                       max_halvings):
+    """Peak |u| of a unit-mass bilinear system at rest; stops once |u| >= u_stop."""
+    stats = np.empty(12)
+    hist = np.empty((8, 1))
+    pga = 0.0
+    for x in ag:
+        if abs(x) > pga:
+            pga = abs(x)
+    f_p = (1.0 - alpha) * fy
+    scale = pga if pga > 0.0 else 1.0
+    _integrate(ag, dt, n_sub, 1.0, c, alpha * k, (1.0 - alpha) * k, f_p, 0.0, 0.0,
+               tol_rel * scale, max_iter, max_halvings, u_stop, False, hist, stats)
+    return stats[0], stats[7]
+
+
+@njit(**JIT_OPTIONS)
+def _peak_grid(ag, dt, n_sub, c, k, fy, alpha, tol_rel, max_iter, max_halvings, out,
+               ok):
+    """Peak |u| for each (period j, strength i) pair: ``fy[j, i]``; fills ``out``, ``ok``."""
+    for j in range(fy.shape[0]):
+        for i in range(fy.shape[1]):
+            out[j, i], ok[j, i] = _peak_displacement(
+                ag, dt, n_sub[j], c[j], k[j], fy[j, i], alpha, np.inf, tol_rel,
+                max_iter, max_halvings)
+
+
+# ------------------------------------------------------------------------ results
+@dataclass(frozen=True)
+class NonlinearResponse:
+    """Response histories, peaks, energies and convergence of one nonlinear run.
+
+    Forces are in [N] and energies in [J] when a mass was given; per unit mass they are
+    in [N/kg] = [m/s²] and [J/kg].
+    """
+
+    #: sample times [s]
+    time_s: np.ndarray
+    #: relative displacement u [m]
+    displacement_m: np.ndarray
+    #: relative velocity u̇ [m/s]
+    velocity_m_s: np.ndarray
+    #: total acceleration ü + üg [m/s²]
+    total_accel_m_s2: np.ndarray
+    #: restoring force F(u) [N]
+    force_n: np.ndarray
+    #: max |u| over every integration step [m]
+    peak_displacement_m: float
+    #: displacement at the end of the record (no free-vibration tail is added) [m]
+    residual_displacement_m: float
+    #: max|u| / u_y for bilinear systems; None for the sliding pendulum [-]
+    ductility: float | None
+    #: max |F| over every integration step [N]
+    peak_force_n: float
+    #: input energy −∫ m üg du at the end [J]
+    input_j: float
+    #: kinetic energy ½ m u̇² at the end [J]
+    kinetic_j: float
+    #: viscous damping energy ∫ c u̇ du [J]
+    damping_j: float
+    #: recoverable strain energy at the end [J] (bilinear: F²/(2k); pendulum:
+    #: ½ (W/R) u² + F_f²/(2 k_f))
+    strain_j: float
+    #: hysteretic (or friction) energy ∫ F du − strain [J]
+    hysteretic_j: float
+    #: |input + E0 − (kinetic + damping + strain + hysteretic)| / max(|input + E0|, tiny),
+    #: E0 the kinetic plus strain energy at t = 0 (zero from rest) [-]
+    imbalance: float
+    #: cumulative energy histories, keys input, kinetic, damping, strain, hysteretic [J]
+    energy_histories_j: dict
+    #: largest Newton–Raphson iteration count in any accepted step (attempts that were
+    #: abandoned and split are counted in ``subdivided_steps`` instead) [-]
+    max_iterations_used: int
+    #: record steps that had to be split into sub-steps [-]
+    subdivided_steps: int
+    #: True when every step met the tolerance
+    converged: bool
+
+
+def _check_workers(workers) -> int:
+    """Threads to use: None means every core the process may run on."""
+    if workers is None:
+        try:
+            return max(1, len(os.sched_getaffinity(0)))
+        except AttributeError:  # not on Linux
+            return max(1, os.cpu_count() or 1)
+    return _check_positive_int(workers, "workers", 1)
+
+
+def _for_each_period(count: int, workers: int, work) -> None:
+    """
+    Call ``work(j)`` for j = 0 .. count−1, on ``workers`` threads.
+
+    The compiled kernels release the GIL (``nogil``), so threads run them in parallel
+    without copying the record to other processes. Periods are dealt out round-robin
+    (short and long periods cost about the same once sub-steps are counted).
+    """
+    if workers <= 1 or count <= 1:
+        for j in range(count):
+            work(j)
+        return
+    n = min(workers, count)
+
+    def chunk(first):
+        for j in range(first, count, n):
+            work(j)
+
+    with ThreadPoolExecutor(max_workers=n) as pool:
+        for future in [pool.submit(chunk, first) for first in range(n)]:
+            future.result()
+
+
+def _check_positive_int(value, name: str, minimum: int) -> int:
+    if isinstance(value, bool) or not isinstance(value, (int, np.integer)) or value < minimum:
+        raise ValueError(f"{name} must be an integer >= {minimum} [-]; got {value!r}")
+    return int(value)
+
+
+def _check_damping(damping_ratio) -> float:
+    z = _number(damping_ratio, "damping_ratio", "-")
+    if not (0.0 <= z < 1.0):
+        hint = " (a percentage? use 0.05 for 5 %)" if z >= 1.0 else ""
+        raise ValueError(f"damping_ratio must be in [0, 1) [-]; got {damping_ratio!r}{hint}")
+    return z
+
+
+def _check_solver(tolerance, max_iterations, max_halvings):
+    tol = _number(tolerance, "tolerance", "-")
+    if not (math.isfinite(tol) and tol > 0.0):
+        raise ValueError(f"tolerance must be finite and > 0 [-]; got {tolerance!r}")
+    return (tol, _check_positive_int(max_iterations, "max_iterations", 1),
+            _check_positive_int(max_halvings, "max_halvings", 0))
+
+
+def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
+                       mass_kg=None, initial_displacement_m=0.0, initial_velocity_m_s=0.0,
+                       substeps=1, tolerance=DEFAULT_TOLERANCE,
+                       max_iterations=DEFAULT_MAX_ITERATIONS,
+                       max_halvings=DEFAULT_MAX_HALVINGS) -> NonlinearResponse:
+    """
+    Response of a bilinear or sliding-pendulum SDOF system to base acceleration.
+
+    Parameters
+    ----------
+    ground_acceleration : array-like
+        Equally spaced base acceleration, linear between samples. [m/s²]
+    time_step : float
+        Sampling interval, > 0. [s]
+    system : Bilinear or SlidingPendulum
+        Restoring-force model (see :func:`bilinear`, :func:`sliding_pendulum_model`). [-]
+    damping_ratio : float
+        Viscous damping ratio in [0, 1): ``c = 2 ζ m ω`` with ω from the initial
+        stiffness k (bilinear) or the pendulum stiffness W/R (pendulum; 0 when flat). [-]
+    mass_kg : float or None, optional
+        Mass, > 0, for a bilinear system; None works per unit mass (m = 1, forces in
+        N/kg, energies in J/kg). A pendulum's mass is W/g: leave this None. [kg]
+    initial_displacement_m : float, optional
+        Relative displacement at t = 0 (start on the elastic branch). [m]
+    initial_velocity_m_s : float, optional
+        Relative velocity at t = 0. [m/s]
+    substeps : int, optional
+        Equal integration steps per record step (>= 1) before any halving. [-]
+    tolerance : float, optional
+        Residual-force tolerance relative to the force scale
+        ``max(m·max|üg|, k₀|u₀|, √(k₀ m)|u̇₀|)``, k₀ the initial stiffness. [-]
+    max_iterations : int, optional
+        Newton–Raphson iterations per step before the step is split, >= 1. [-]
+    max_halvings : int, optional
+        Most times a record step may be halved, >= 0. [-]
+
+    Returns
+    -------
+    NonlinearResponse
+
+    References
+    ----------
+    .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
+       2017, sec. 5.7, Table 5.7.1.
+    .. [2] N. M. Newmark, "A method of computation for structural dynamics," J. Eng.
+       Mech. Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
+    .. [3] C.-M. Uang and V. V. Bertero, "Evaluation of seismic energy in structures,"
+       Earthquake Eng. Struct. Dyn., vol. 19, no. 1, pp. 77-90, 1990,
+       doi: 10.1002/eqe.4290190108.
+    .. [4] V. A. Zayas, S. S. Low and S. A. Mahin, "A simple pendulum technique for
+       achieving seismic isolation," Earthquake Spectra, vol. 6, no. 2, pp. 317-333,
+       1990, doi: 10.1193/1.1585564.
+    """
+    ag = _check_ground_acceleration(ground_acceleration)
+    dt = _check_time_step(time_step)
+    zeta = _check_damping(damping_ratio)
+    u0 = _number(initial_displacement_m, "initial_displacement_m", "m")
+    v0 = _number(initial_velocity_m_s, "initial_velocity_m_s", "m/s")
+    if not (math.isfinite(u0) and math.isfinite(v0)):
+        raise ValueError(
+            f"initial_displacement_m [m] and initial_velocity_m_s [m/s] must be finite; "
+            f"got {initial_displacement_m!r}, {initial_velocity_m_s!r}"
+        )
+    n_sub = _check_positive_int(substeps, "substeps", 1)
+    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
+
+    if isinstance(system, Bilinear):
+        m = 1.0 if mass_kg is None else _positive(mass_kg, "mass_kg", "kg")
+        k = system.stiffness_n_m
+        alpha = system.hardening_ratio
+        fy = system.yield_strength_n
+        k_lin, k_p, f_p = alpha * k, (1.0 - alpha) * k, (1.0 - alpha) * fy
+        omega = math.sqrt(k / m)
+        if abs(k_p * u0) > f_p:
+            raise ValueError(
+                f"initial_displacement_m must lie on the elastic branch, |u0| <= u_y = "
+                f"{fy / k!r} [m]; got {initial_displacement_m!r}"
+            )
+    elif isinstance(system, SlidingPendulum):
+        if mass_kg is not None:
+            raise ValueError(
+                f"mass_kg must be None for a sliding pendulum (its mass is W/g) [kg]; "
+                f"got {mass_kg!r}"
+            )
+        w = G if system.weight_n is None else system.weight_n
+        m = w / G
+        k_lin = w / system.radius_m
+        f_p = system.friction * w
+        k_p = f_p / system.yield_displacement_m
+        omega = math.sqrt(k_lin / m)
+        if abs(k_p * u0) > f_p:
+            raise ValueError(
+                f"initial_displacement_m must be within the friction element's elastic "
+                f"range |u0| <= {system.yield_displacement_m!r} [m]; got "
+                f"{initial_displacement_m!r}"
+            )
+    else:
+        raise ValueError(
+            f"system must be a Bilinear or SlidingPendulum model; got {type(system).__name__}"
+        )
+    c = 2.0 * zeta * m * omega
+    # Force scale of the residual test: the largest of the ground inertia force and the
+    # forces the initial conditions imply; 1 when nothing at all moves.
+    scale = max(m * float(np.max(np.abs(ag))), (k_lin + k_p) * abs(u0),
+                math.sqrt((k_lin + k_p) * m) * abs(v0)) or 1.0
+
+    hist = np.empty((8, ag.size))
+    stats = np.empty(12)
+    _integrate(ag, dt, n_sub, m, c, k_lin, k_p, f_p, u0, v0, tol * scale, max_iter,
+               max_halv, np.inf, True, hist, stats)
+    u, v, at, f, e_in, e_d, e_f, up = hist
+
+    kinetic = 0.5 * m * v * v
+    if isinstance(system, Bilinear):
+        strain = f * f / (2.0 * (k_lin + k_p))
+        ductility = float(stats[0] / system.yield_displacement_m)
+    else:
+        f_fric = f - k_lin * u
+        strain = 0.5 * k_lin * u * u
+        if k_p > 0.0:
+            strain = strain + f_fric * f_fric / (2.0 * k_p)
+        ductility = None
+    # ∫F du = ΔE_strain + E_hysteretic; initial energy E0 enters the balance ([3]).
+    hysteretic = e_f - (strain - strain[0])
+    supplied = e_in[-1] + kinetic[0] + strain[0]
+    total = kinetic[-1] + e_d[-1] + strain[-1] + hysteretic[-1]
+    imbalance = abs(supplied - total) / max(abs(supplied), 1e-300)
+    return NonlinearResponse(
+        time_s=np.arange(ag.size) * dt,
+        displacement_m=u.copy(),
+        velocity_m_s=v.copy(),
+        total_accel_m_s2=at.copy(),
+        force_n=f.copy(),
+        peak_displacement_m=float(stats[0]),
+        residual_displacement_m=float(stats[1]),
+        ductility=ductility,
+        peak_force_n=float(stats[4]),
+        input_j=float(e_in[-1]),
+        kinetic_j=float(kinetic[-1]),
+        damping_j=float(e_d[-1]),
+        strain_j=float(strain[-1]),
+        hysteretic_j=float(hysteretic[-1]),
+        imbalance=float(imbalance),
+        energy_histories_j={"input": e_in.copy(), "kinetic": kinetic, "damping": e_d.copy(),
+                            "strain": strain, "hysteretic": hysteretic},
+        max_iterations_used=int(stats[5]),
+        subdivided_steps=int(stats[6]),
+        converged=bool(stats[7]),
+    )
+
+
+def peak_ductilities(ground_acceleration, time_step, periods_s, damping_ratio,
+                     yield_strengths_m_s2, hardening_ratio=0.0, *, substeps=None,
+                     tolerance=DEFAULT_TOLERANCE, max_iterations=DEFAULT_MAX_ITERATIONS,
+                     max_halvings=DEFAULT_MAX_HALVINGS, workers=1):
+    """
+    Peak displacements of many unit-mass bilinear systems in one compiled call.
+
+    Parameters
+    ----------
+    ground_acceleration : array-like
+        Equally spaced base acceleration, linear between samples. [m/s²]
+    time_step : float
+        Sampling interval, > 0. [s]
+    periods_s : array-like
+        Initial (elastic) periods, shape (nT,), each > 0. [s]
+    damping_ratio : float
+        Viscous damping ratio in [0, 1), on the initial stiffness. [-]
+    yield_strengths_m_s2 : array-like
+        Yield strength per unit mass Fy/m, shape (nT, nS), each > 0 (inf: linear). [m/s²]
+    hardening_ratio : float, optional
+        Post-yield stiffness ratio α in [0, 1). [-]
+    substeps : array-like of int or None, optional
+        Integration steps per record step for each period (None: 1). [-]
+    tolerance, max_iterations, max_halvings : optional
+        Newton–Raphson settings as in :func:`nonlinear_response`. [-]
+    workers : int or None, optional
+        Threads running periods side by side (None: every available core). [-]
+
+    Returns
+    -------
+    tuple of numpy.ndarray
+        Peak |u| [m] and ductility max|u|/u_y [-], each (nT, nS); and a boolean array
+        (nT, nS), True where every step converged.
+    """
+    ag = _check_ground_acceleration(ground_acceleration)
+    dt = _check_time_step(time_step)
+    zeta = _check_damping(damping_ratio)
+    periods = np.atleast_1d(np.asarray(periods_s, dtype=np.float64))
+    if periods.ndim != 1 or periods.size == 0 or not np.all(np.isfinite(periods)) or np.any(
+            periods <= 0.0):
+        raise ValueError(f"periods_s must be a 1-D list of finite periods > 0 [s]; got {periods_s!r}")
+    fy = np.asarray(yield_strengths_m_s2, dtype=np.float64)
+    if fy.ndim != 2 or fy.shape[0] != periods.size or fy.shape[1] == 0:
+        raise ValueError(
+            f"yield_strengths_m_s2 must have shape (n_periods, n_strengths) = "
+            f"({periods.size}, ...) [m/s²]; got shape {fy.shape}"
+        )
+    if np.any(~(fy > 0.0)):
+        raise ValueError("yield_strengths_m_s2 must all be > 0 [m/s²]; got a value <= 0 or nan")
+    a = _number(hardening_ratio, "hardening_ratio", "-")
+    if not (0.0 <= a < 1.0):
+        raise ValueError(f"hardening_ratio must be in [0, 1) [-]; got {hardening_ratio!r}")
+    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
+    if substeps is None:
+        n_sub = np.ones(periods.size, dtype=np.int64)
+    else:
+        n_sub = np.broadcast_to(np.asarray(substeps, dtype=np.int64), periods.shape).copy()
+        if np.any(n_sub < 1):
+            raise ValueError(f"substeps must be integers >= 1 [-]; got {substeps!r}")
+    w = 2.0 * np.pi / periods
+    k = w * w
+    c = 2.0 * zeta * w
+    n_workers = _check_workers(workers)
+    fy = np.ascontiguousarray(fy)
+    out = np.empty(fy.shape)
+    ok = np.empty(fy.shape)
+
+    def work(j):
+        _peak_grid(ag, dt, n_sub[j:j + 1], c[j:j + 1], k[j:j + 1], fy[j:j + 1], a, tol,
+                   max_iter, max_halv, out[j:j + 1], ok[j:j + 1])
+
+    _for_each_period(periods.size, n_workers, work)
+    uy = fy / k[:, None]
+    return out, out / uy, ok.astype(bool)
