@@ -201,6 +201,11 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
         sys.exit(3)
 
 
+from sdofreport.archive.commands import register_commands  # noqa: E402
+
+register_commands(cli)
+
+
 def main(argv: list[str] | None = None) -> None:
     """Console-script entry point."""
     try:

@@ -1,52 +1,54 @@
-"""Batch engine: plan every job of a project, run them in a process pool, cache results.
+"""Batch engine: plan every job of a project, run them, cache them, assemble the results.
 
-Jobs are (1) per record: processing, intensity measures, Fourier amplitude and response
-spectra; (2) per record × system: the response history and its peaks. Each job's result
-is cached under a content hash of its inputs, its settings and the package version, so a
-rebuild with nothing changed recomputes nothing. Results are assembled in plan order,
-never completion order, so the same inputs always give the same outputs.
+Phases (each a batch of independent jobs, see :mod:`sdofreport.jobs`):
+
+1. per record: intensity measures, ground velocity and displacement, Fourier amplitude,
+   response spectra; per horizontal pair: RotD spectra (Boore 2010);
+2. suite scaling against the design spectrum (:mod:`sdofreport.suite`; fast, in this
+   process) — the records are then scaled, their spectra multiplied by the factor
+   (exact: a linear oscillator's response is proportional to its excitation);
+3. per system × record: the response history of the system to the scaled record.
+
+Each job's result is cached under a content hash of its inputs, its settings and the
+package version, so a rebuild with nothing changed recomputes nothing. Outputs are
+assembled in plan order, never completion order, so the same inputs give the same results.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import hashlib
-import json
 import logging
 import os
-import pickle
-import tempfile
 import time
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Callable
 
 import numpy as np
 
 from sdofreport import __version__
-from sdofreport._cachedir import user_cache_dir
-from sdofreport.core.intensity import (
-    IntensityMeasures,
-    fourier_amplitude,
-    ground_displacement,
-    ground_velocity,
-    intensity_measures,
-)
-from sdofreport.core.spectra import ResponseSpectrum, oscillator_histories, response_spectrum
+from sdofreport.cache import ResultCache, content_hash, default_cache_dir
+from sdofreport.core.intensity import IntensityMeasures
+from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
 from sdofreport.errors import RecordError
 from sdofreport.executors import execute
+from sdofreport.jobs import record_products, run_job
 from sdofreport.project.model import Project, RecordSpec, SystemSpec
 from sdofreport.records import Record, process_record, read_record
+from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling
 
 log = logging.getLogger("sdofreport.engine")
 
 Progress = Callable[[int, int, str], None]
 
+VERDICT_WITHIN = "within limit"
+VERDICT_EXCEEDS = "exceeds limit"
+
 
 @dataclass(frozen=True)
 class RecordResult:
-    """Everything computed for one record (after processing and scaling)."""
+    """Everything computed for one record, as used (processed and scaled)."""
 
     spec: RecordSpec
     record: Record
@@ -56,6 +58,17 @@ class RecordResult:
     displacement_m: np.ndarray
     fourier_frequency_hz: np.ndarray
     fourier_amplitude_m_s: np.ndarray
+    scale_factor: float = 1.0  # the suite-scaling factor applied on top of spec.scale
+
+
+@dataclass(frozen=True)
+class PairResult:
+    """RotD spectra of a horizontal pair (scaled records), 5 % damping."""
+
+    name: str
+    h1: str
+    h2: str
+    rotd: object  # sdofreport.core.rotd.RotDSpectrum (scaled)
 
 
 @dataclass(frozen=True)
@@ -72,6 +85,14 @@ class ResponseResult:
     time_s: np.ndarray
     displacement_m: np.ndarray
     total_accel_m_s2: np.ndarray
+    model: str = "linear"
+    force_n: np.ndarray | None = None  # restoring force history (nonlinear)
+    ductility: float | None = None
+    residual_displacement_m: float | None = None
+    peak_force_n: float | None = None
+    energy: dict | None = None  # input_j, kinetic_j, damping_j, strain_j, hysteretic_j, ...
+    energy_histories_j: dict | None = None
+    convergence: dict | None = None
 
 
 @dataclass(frozen=True)
@@ -79,16 +100,12 @@ class Check:
     """One limit check of one system over the suite."""
 
     system_id: str
-    quantity: str  # displacement | drift_ratio | base_shear | total_accel
-    limit: float  # SI (m, -, N, m/s²)
+    quantity: str
+    limit: float  # SI
     demand: float  # SI, the suite statistic of the per-record peaks
     statistic: str  # mean | max
     ratio: float
-    verdict: str  # "within limit" | "exceeds limit"
-
-
-VERDICT_WITHIN = "within limit"
-VERDICT_EXCEEDS = "exceeds limit"
+    verdict: str  # VERDICT_WITHIN | VERDICT_EXCEEDS
 
 
 @dataclass
@@ -98,6 +115,8 @@ class Results:
     responses: dict[tuple[str, str], ResponseResult]  # (system id, record id)
     checks: list[Check]
     statistic: str
+    scaling: SuiteScaling | None = None
+    pairs: list[PairResult] = field(default_factory=list)
     timings_s: dict[str, float] = field(default_factory=dict)
     cache_hits: int = 0
     cache_misses: int = 0
@@ -111,97 +130,14 @@ class Results:
 
 
 # ---------------------------------------------------------------------------------------
-# Jobs (top-level functions so the process pool can pickle them)
+# Records
 
 
-def _record_job(record: Record, periods_s, damping, method) -> dict:
-    acc, dt = record.acceleration_m_s2, record.dt_s
-    spectrum = response_spectrum(acc, dt, np.asarray(periods_s), np.asarray(damping),
-                                 method=method)
-    freq, amp = fourier_amplitude(acc, dt)
-    return {
-        "intensity": intensity_measures(acc, dt),
-        "spectrum": spectrum,
-        "velocity_m_s": ground_velocity(acc, dt),
-        "displacement_m": ground_displacement(acc, dt),
-        "fourier_frequency_hz": freq,
-        "fourier_amplitude_m_s": amp,
-    }
-
-
-def _response_job(acceleration, dt_s, period_s, damping, method) -> dict:
-    hist = oscillator_histories(acceleration, dt_s, np.array([period_s]),
-                                np.array([damping]), method=method)
-    return {
-        "time_s": hist.time_s,
-        "displacement_m": hist.displacement_m[0],
-        "total_accel_m_s2": hist.total_acceleration_m_s2[0],
-        "peak_displacement_m": float(hist.peaks.displacement_m[0]),
-        "peak_velocity_m_s": float(hist.peaks.velocity_m_s[0]),
-        "peak_total_accel_m_s2": float(hist.peaks.total_acceleration_m_s2[0]),
-    }
-
-
-def _run_job(job: tuple) -> dict:
-    kind, args = job
-    return _record_job(*args) if kind == "record" else _response_job(*args)
-
-
-# ---------------------------------------------------------------------------------------
-# Cache
-
-
-class ResultCache:
-    """Pickled job results in a folder, keyed by a content hash; writes are atomic."""
-
-    def __init__(self, folder: str | os.PathLike | None) -> None:
-        self.folder = Path(folder) if folder else None
-        if self.folder is not None:
-            self.folder.mkdir(parents=True, exist_ok=True)
-
-    def _path(self, key: str) -> Path:
-        return self.folder / key[:2] / f"{key}.pickle"
-
-    def get(self, key: str):
-        if self.folder is None:
-            return None
-        path = self._path(key)
-        try:
-            with open(path, "rb") as handle:
-                return pickle.load(handle)
-        except FileNotFoundError:
-            return None
-        except Exception:  # a damaged entry is a miss, never an error
-            log.debug("cache entry %s unreadable; recomputing", path)
-            return None
-
-    def put(self, key: str, value) -> None:
-        if self.folder is None:
-            return
-        path = self._path(key)
-        path.parent.mkdir(parents=True, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(dir=path.parent, suffix=".tmp")
-        try:
-            with os.fdopen(fd, "wb") as handle:
-                pickle.dump(value, handle, protocol=pickle.HIGHEST_PROTOCOL)
-            os.replace(tmp, path)
-        except BaseException:
-            Path(tmp).unlink(missing_ok=True)
-            raise
-
-
-def default_cache_dir() -> str:
-    """The default result cache folder (per user)."""
-    return user_cache_dir("results")
-
-
-def _hash(payload: dict) -> str:
-    text = json.dumps(payload, sort_keys=True, separators=(",", ":"), default=str)
-    return hashlib.sha256(text.encode("utf-8")).hexdigest()
-
-
-# ---------------------------------------------------------------------------------------
-# Planning and running
+def _with_acceleration(record: Record, acceleration: np.ndarray, note: str) -> Record:
+    acceleration = np.array(acceleration, dtype=float)
+    acceleration.flags.writeable = False
+    return dataclasses.replace(record, acceleration_m_s2=acceleration,
+                               history=record.history + (note,))
 
 
 def load_records(project: Project) -> list[Record]:
@@ -219,19 +155,83 @@ def load_records(project: Project) -> list[Record]:
                                         filter_order=settings.filter_order,
                                         taper_s=settings.taper_s)
             if spec.scale != 1.0:
-                scaled = np.array(record.acceleration_m_s2) * spec.scale
-                scaled.flags.writeable = False
-                record = dataclasses.replace(
-                    record, acceleration_m_s2=scaled,
-                    history=record.history + (f"scaled by {spec.scale:g}",))
+                record = _with_acceleration(record, record.acceleration_m_s2 * spec.scale,
+                                            f"scaled by {spec.scale:g} (as given)")
             records.append(record)
         except RecordError as exc:
             problems.append(f"records id {spec.id!r}: {exc.message}")
+    _check_pair_steps(project, records, problems)
     if problems:
         count = len(problems)
-        raise RecordError(f"{count} record{'s' if count > 1 else ''} could not be used:\n  "
+        raise RecordError(f"{count} record problem{'s' if count > 1 else ''}:\n  "
                           + "\n  ".join(problems))
     return records
+
+
+def _check_pair_steps(project: Project, records: list[Record], problems: list[str]) -> None:
+    by_id = {r.id: r for r in records}
+    pairs: dict[str, list[Record]] = {}
+    for spec in project.records:
+        if spec.pair and spec.id in by_id:
+            pairs.setdefault(spec.pair, []).append(by_id[spec.id])
+    for name, members in pairs.items():
+        if len(members) == 2 and abs(members[0].dt_s - members[1].dt_s) > \
+                1e-6 * members[0].dt_s:
+            problems.append(f"pair {name!r}: the components have different time steps "
+                            f"({members[0].id}: {members[0].dt_s:g} s, {members[1].id}: "
+                            f"{members[1].dt_s:g} s); resample one so both match")
+
+
+def _array_hash(acceleration: np.ndarray) -> str:
+    data = np.ascontiguousarray(acceleration, dtype=np.float64)
+    return hashlib.sha256(data.tobytes()).hexdigest()
+
+
+# ---------------------------------------------------------------------------------------
+# Systems
+
+
+def system_model(system: SystemSpec) -> dict:
+    """The response job's description of a system (plain data, part of the cache key)."""
+    model = {"model": "linear", "period_s": system.period_s, "damping": system.damping}
+    model.update(getattr(system, "model", None) or {})
+    return model
+
+
+def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseResult:
+    if raw["model"] == "linear":
+        u_peak = raw["peak_displacement_m"]
+        drift = u_peak / system.height_m if system.height_m else None
+        shear = system.stiffness_n_m * u_peak if system.stiffness_n_m is not None else None
+        return ResponseResult(system.id, record_id, u_peak, raw["peak_velocity_m_s"],
+                              raw["peak_total_accel_m_s2"], drift, shear, raw["time_s"],
+                              raw["displacement_m"], raw["total_accel_m_s2"])
+    r = raw["response"]
+    u_peak = float(r.peak_displacement_m)
+    drift = u_peak / system.height_m if system.height_m else None
+    energy = {"input_j": r.input_j, "kinetic_j": r.kinetic_j, "damping_j": r.damping_j,
+              "strain_j": r.strain_j, "hysteretic_j": r.hysteretic_j,
+              "imbalance": r.imbalance}
+    return ResponseResult(
+        system.id, record_id, u_peak, float(np.max(np.abs(r.velocity_m_s))),
+        float(np.max(np.abs(r.total_accel_m_s2))), drift, float(r.peak_force_n),
+        r.time_s, r.displacement_m, r.total_accel_m_s2, model=raw["model"],
+        force_n=r.force_n, ductility=r.ductility,
+        residual_displacement_m=float(r.residual_displacement_m),
+        peak_force_n=float(r.peak_force_n), energy=energy,
+        energy_histories_j=r.energy_histories_j,
+        convergence={"converged": bool(r.converged),
+                     "max_iterations_used": int(r.max_iterations_used),
+                     "subdivided_steps": int(r.subdivided_steps)})
+
+
+#: Check quantity -> ResponseResult attribute read for its per-record peak.
+CHECK_ATTRIBUTES = {
+    "displacement": "peak_displacement_m", "drift_ratio": "peak_drift_ratio",
+    "base_shear": "peak_base_shear_n", "total_accel": "peak_total_accel_m_s2",
+    "ductility": "ductility", "residual_displacement": "residual_displacement_m",
+    "bearing_displacement": "peak_displacement_m",
+}
 
 
 def _statistic(values: list[float], statistic: str) -> float:
@@ -239,13 +239,14 @@ def _statistic(values: list[float], statistic: str) -> float:
 
 
 def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
-    attribute = {"displacement": "peak_displacement_m", "drift_ratio": "peak_drift_ratio",
-                 "base_shear": "peak_base_shear_n", "total_accel": "peak_total_accel_m_s2"}
     checks = []
     for system in project.systems:
         for quantity, limit in system.limits.items():
-            peaks = [getattr(responses[(system.id, r.id)], attribute[quantity])
+            peaks = [getattr(responses[(system.id, r.id)], CHECK_ATTRIBUTES[quantity])
                      for r in project.records]
+            peaks = [abs(p) for p in peaks if p is not None]
+            if not peaks:
+                continue
             demand = _statistic(peaks, statistic)
             ratio = demand / limit
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
@@ -253,13 +254,49 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
     return checks
 
 
-def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseResult:
-    u_peak = raw["peak_displacement_m"]
-    drift = u_peak / system.height_m if system.height_m else None
-    shear = system.stiffness_n_m * u_peak if system.stiffness_n_m is not None else None
-    return ResponseResult(system.id, record_id, u_peak, raw["peak_velocity_m_s"],
-                          raw["peak_total_accel_m_s2"], drift, shear, raw["time_s"],
-                          raw["displacement_m"], raw["total_accel_m_s2"])
+# ---------------------------------------------------------------------------------------
+# Running
+
+
+class _Phase:
+    """Runs planned jobs through the cache and the executor; counts hits and misses."""
+
+    def __init__(self, cache: ResultCache, progress: Progress | None, total: int,
+                 executor: dict) -> None:
+        self.cache, self.progress, self.total = cache, progress, total
+        self.executor = executor
+        self.done = self.hits = self.misses = 0
+        self.seconds = 0.0
+
+    def run(self, plan: list[tuple[str, str, tuple, str]]) -> list:
+        """``plan`` rows are (label, job kind, arguments, cache key)."""
+        outputs: list = [None] * len(plan)
+        todo = []
+        for index, (_, _, _, key) in enumerate(plan):
+            cached = self.cache.get(key)
+            if cached is not None:
+                outputs[index] = cached
+                self.hits += 1
+                self.done += 1
+            else:
+                todo.append(index)
+        if self.progress:
+            self.progress(self.done, self.total, "cached")
+        started = time.perf_counter()
+
+        def finished(position: int, output) -> None:
+            index = todo[position]
+            outputs[index] = output
+            self.cache.put(plan[index][3], output)
+            self.done += 1
+            self.misses += 1
+            if self.progress:
+                self.progress(self.done, self.total, plan[index][0])
+
+        jobs = [(plan[i][0], run_job, (plan[i][1], plan[i][2])) for i in todo]
+        execute(jobs, finished, **self.executor)
+        self.seconds += time.perf_counter() - started
+        return outputs
 
 
 def run_project(project: Project, *, jobs: int | None = None,
@@ -276,7 +313,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     jobs : int, optional
         Worker processes; default the number of cores. 1 runs in this process.
     cache_dir : path, optional
-        Result cache folder; default :func:`default_cache_dir`.
+        Result cache folder; default :func:`sdofreport.cache.default_cache_dir`.
     use_cache : bool
         False computes everything afresh and stores nothing.
     progress : callable(done, total, label), optional
@@ -296,73 +333,101 @@ def run_project(project: Project, *, jobs: int | None = None,
     analysis = project.analysis
     cache = ResultCache((cache_dir or default_cache_dir()) if use_cache else None)
     base = {"version": __version__, "method": analysis.method}
+    pairs = _pairs(project)
+    total = len(records) + len(pairs) + len(records) * len(project.systems)
+    phase = _Phase(cache, progress, total, {"workers": jobs or os.cpu_count() or 1,
+                                            "scheduler": scheduler,
+                                            "dask_local": dask_local})
+    by_id = {r.id: r for r in records}
 
-    plan: list[tuple[str, tuple, str]] = []  # (label, job, cache key)
+    # Phase 1: spectra of every record (as given) and RotD spectra of every pair.
+    plan = []
     for record in records:
-        key = _hash({**base, "job": "record", "sha": _array_hash(record),
-                     "dt": record.dt_s, "periods": list(analysis.periods_s),
-                     "damping": list(analysis.damping)})
-        plan.append((f"record {record.id} (spectra)", ("record", (record, analysis.periods_s,
-                                                          analysis.damping,
-                                                          analysis.method)), key))
+        args = (record.acceleration_m_s2, record.dt_s, analysis.periods_s, analysis.damping,
+                analysis.method)
+        key = content_hash({**base, "job": "record", "sha": _array_hash(args[0]),
+                            "dt": record.dt_s, "periods": list(analysis.periods_s),
+                            "damping": list(analysis.damping)})
+        plan.append((f"record {record.id} (spectra)", "record", args, key))
+    for name, (h1, h2) in pairs.items():
+        a1, a2 = by_id[h1].acceleration_m_s2, by_id[h2].acceleration_m_s2
+        args = (a1, a2, by_id[h1].dt_s, analysis.periods_s, SCALING_DAMPING, analysis.method)
+        key = content_hash({**base, "job": "pair", "sha1": _array_hash(a1),
+                            "sha2": _array_hash(a2), "dt": by_id[h1].dt_s,
+                            "periods": list(analysis.periods_s), "damping": SCALING_DAMPING})
+        plan.append((f"pair {name} (RotD)", "pair", args, key))
+    first = phase.run(plan)
+    record_outputs = first[:len(records)]
+    pair_outputs = dict(zip(pairs, first[len(records):]))
+
+    # Phase 2: suite scaling; scale records and (linearly) their spectra.
+    scaling = compute_scaling(project, {r.id: o["spectrum"] for r, o in
+                                        zip(records, record_outputs)},
+                              {name: o["rotd"] for name, o in pair_outputs.items()})
+    record_results, scaled = [], {}
+    for record, spec, output in zip(records, project.records, record_outputs):
+        factor = scaling.factors.get(record.id, 1.0)
+        if factor != 1.0:
+            record = _with_acceleration(record, np.asarray(record.acceleration_m_s2) * factor,
+                                        f"suite scaling ({scaling.rule}): × {factor:.6g}")
+            output = {**output, **record_products(record.acceleration_m_s2, record.dt_s),
+                      "spectrum": _scaled_spectrum(output["spectrum"], factor)}
+        scaled[record.id] = record
+        record_results.append(RecordResult(spec, record, scale_factor=factor, **output))
+    pair_results = [PairResult(name, h1, h2, _scaled_rotd(pair_outputs[name]["rotd"],
+                                                          scaling.factors.get(h1, 1.0)))
+                    for name, (h1, h2) in pairs.items()]
+
+    # Phase 3: every system's response to every (scaled) record.
+    plan = []
     for system in project.systems:
-        for record in records:
-            key = _hash({**base, "job": "response", "sha": _array_hash(record),
-                         "dt": record.dt_s, "period": system.period_s,
-                         "damping": system.damping})
-            plan.append((f"system {system.id} × record {record.id}", (
-                "response", (record.acceleration_m_s2, record.dt_s, system.period_s,
-                             system.damping, analysis.method)), key))
-
-    outputs: list = [None] * len(plan)
-    todo = []
-    for index, (_, job, key) in enumerate(plan):
-        cached = cache.get(key)
-        if cached is not None:
-            outputs[index] = cached
-        else:
-            todo.append(index)
-    hits = len(plan) - len(todo)
-    done = hits
-    if progress:
-        progress(done, len(plan), "cached")
-    compute_started = time.perf_counter()
-    job_list = [(plan[i][0], _run_job, (plan[i][1],)) for i in todo]
-
-    def finished(position: int, output) -> None:
-        nonlocal done
-        index = todo[position]
-        outputs[index] = output
-        cache.put(plan[index][2], output)
-        done += 1
-        if progress:
-            progress(done, len(plan), plan[index][0])
-
-    execute(job_list, finished, workers=jobs or os.cpu_count() or 1, scheduler=scheduler,
-            dask_local=dask_local)
-    compute_time = time.perf_counter() - compute_started
-
-    record_results = []
-    for record, spec, output in zip(records, project.records, outputs[:len(records)]):
-        record_results.append(RecordResult(spec, record, **output))
-    responses = {}
-    index = len(records)
+        model = system_model(system)
+        for record in (scaled[r.id] for r in project.records):
+            args = (record.acceleration_m_s2, record.dt_s, model, analysis.method)
+            key = content_hash({**base, "job": "response", "sha": _array_hash(args[0]),
+                                "dt": record.dt_s, "model": model})
+            plan.append((f"system {system.id} × record {record.id}", "response", args, key))
+    outputs = phase.run(plan)
+    responses, index = {}, 0
     for system in project.systems:
-        for record in records:
-            responses[(system.id, record.id)] = _response_result(system, record.id,
-                                                                 outputs[index])
+        for spec in project.records:
+            responses[(system.id, spec.id)] = _response_result(system, spec.id,
+                                                               outputs[index])
             index += 1
     statistic = project.statistic_used
     checks = _checks(project, responses, statistic)
-    return Results(project, record_results, responses, checks, statistic,
-                   {"read_s": read_time, "compute_s": compute_time,
-                    "total_s": time.perf_counter() - started}, hits, len(todo))
+    return Results(project, record_results, responses, checks, statistic, scaling,
+                   pair_results,
+                   {"read_s": read_time, "compute_s": phase.seconds,
+                    "total_s": time.perf_counter() - started}, phase.hits, phase.misses)
 
 
-def _array_hash(record: Record) -> str:
-    data = np.ascontiguousarray(record.acceleration_m_s2, dtype=np.float64)
-    return hashlib.sha256(data.tobytes()).hexdigest()
+def _pairs(project: Project) -> dict[str, tuple[str, str]]:
+    """Pair name -> (H1 record id, H2 record id), in file order."""
+    pairs: dict[str, dict[str, str]] = {}
+    for spec in project.records:
+        if spec.pair:
+            pairs.setdefault(spec.pair, {})[spec.component] = spec.id
+    return {name: (members["H1"], members["H2"]) for name, members in pairs.items()}
 
 
-__all__ = ["Check", "RecordResult", "ResponseResult", "Results", "run_project",
-           "load_records", "default_cache_dir", "VERDICT_WITHIN", "VERDICT_EXCEEDS", "G"]
+def _scaled_spectrum(spectrum: ResponseSpectrum, factor: float) -> ResponseSpectrum:
+    """Spectra of the record multiplied by ``factor`` (linear oscillators: exact)."""
+    return dataclasses.replace(
+        spectrum, sd_m=spectrum.sd_m * factor, sv_m_s=spectrum.sv_m_s * factor,
+        psv_m_s=spectrum.psv_m_s * factor, psa_m_s2=spectrum.psa_m_s2 * factor,
+        sa_m_s2=spectrum.sa_m_s2 * factor, pga_m_s2=spectrum.pga_m_s2 * factor)
+
+
+def _scaled_rotd(rotd, factor: float):
+    if factor == 1.0:
+        return rotd
+    names = ("rotd50_m", "rotd100_m", "rotd50_psa_g", "rotd100_psa_g", "psa_by_angle_g",
+             "sd_h1_m", "sd_h2_m", "psa_h1_g", "psa_h2_g", "geomean_psa_g", "srss_psa_g")
+    return dataclasses.replace(rotd, **{n: np.asarray(getattr(rotd, n)) * factor
+                                        for n in names})
+
+
+__all__ = ["Check", "PairResult", "RecordResult", "ResponseResult", "Results",
+           "run_project", "load_records", "default_cache_dir", "ResultCache",
+           "VERDICT_WITHIN", "VERDICT_EXCEEDS", "CHECK_ATTRIBUTES", "G"]

@@ -89,6 +89,8 @@ def read_run(path: str | Path) -> RunFiles:
     """
     path = Path(path)
     if path.is_dir():
+        if not (path / MANIFEST_NAME).is_file():  # refuse before reading a whole tree
+            parse_manifest({}, str(path))
         run = RunFiles(str(path), "folder", read_folder(path))
     elif path.is_file() and zipfile.is_zipfile(path):
         run = RunFiles(str(path), "zip", read_zip(path))

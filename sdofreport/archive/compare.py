@@ -21,7 +21,6 @@ from sdofreport.archive._sitefiles import (
     ArchiveError,
     parse_manifest,
     parse_results,
-    read_folder,
     read_zip,
 )
 from sdofreport.site.render import MANIFEST_NAME

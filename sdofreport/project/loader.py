@@ -24,6 +24,8 @@ from sdofreport.core.units import normalise_acceleration_unit
 from sdofreport.errors import ProjectError
 from sdofreport.project.model import (
     AnalysisSettings,
+    DesignSpectrumSpec,
+    ScalingSpec,
     Limits,
     ProcessingSettings,
     Project,
@@ -32,7 +34,7 @@ from sdofreport.project.model import (
     SystemSpec,
 )
 from sdofreport.project.quantities import QuantityError, parse_quantity
-from sdofreport.project.schema import SECTIONS, TOP_LEVEL, KeySpec
+from sdofreport.project.schema import DESIGN_SPECTRUM_KEYS, SECTIONS, TOP_LEVEL, KeySpec
 
 _ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
 
@@ -297,6 +299,11 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         _positive(scale, f"{where}.scale", "the scale factor", problems, "")
         own = _read_processing(table.get("processing", {}), f"{where}.processing",
                                problems, processing)
+        pair = _read_value(table, spec["pair"], where, problems)
+        component = _read_value(table, spec["component"], where, problems)
+        if ("pair" in table) != ("component" in table):
+            problems.add(where, "a paired record needs both pair and component "
+                         "(H1 or H2)")
         path = None
         if file:
             path = (root / file).resolve()
@@ -305,8 +312,23 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
                              f"{path})")
         if record_id and file and path is not None:
             records.append(RecordSpec(record_id, path, file, fmt, units, dt_s,
-                                      scale if scale else 1.0, own))
+                                      scale if scale else 1.0, own, pair, component))
+    _check_pairs(records, problems)
     return records
+
+
+def _check_pairs(records: list[RecordSpec], problems: _Problems) -> None:
+    """Every pair has exactly one H1 and one H2."""
+    members: dict[str, list[RecordSpec]] = {}
+    for record in records:
+        if record.pair:
+            members.setdefault(record.pair, []).append(record)
+    for pair, items in members.items():
+        components = sorted(r.component or "" for r in items)
+        if components != ["H1", "H2"]:
+            found = ", ".join(f"{r.id} ({r.component})" for r in items)
+            problems.add(f"records pair {pair!r}", f"expected one H1 and one H2 record, "
+                         f"found {found}")
 
 
 def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits:
@@ -397,6 +419,90 @@ def _read_systems(items, problems: _Problems) -> list[SystemSpec]:
     return systems
 
 
+def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | None:
+    if table is None:
+        return None
+    where = "design_spectrum"
+    if not isinstance(table, dict):
+        problems.add(where, f"expected a table, found {table!r}")
+        return None
+    _check_unknown(table, "design_spectrum", where, problems)
+    spec = SECTIONS["design_spectrum"]
+    kind = _read_value(table, spec["kind"], where, problems)
+    if kind is None:
+        return None
+    mapping = DESIGN_SPECTRUM_KEYS[kind]
+    for key in table:
+        if key != "kind" and key in spec and key not in mapping:
+            problems.add(f"{where}.{key}", f"does not apply to kind {kind!r}; its keys are "
+                         f"{', '.join(mapping)}")
+    values, parameters = {}, {}
+    count = len(problems.items)
+    for key, name in mapping.items():
+        if key not in table:
+            if spec[key].default is None:
+                problems.add(f"{where}.{key}", f"missing; kind {kind!r} needs it "
+                             f"({spec[key].description})")
+            continue
+        if key in ("periods", "sa"):
+            raw = table[key]
+            if not isinstance(raw, list) or len(raw) < 2 or not all(
+                    isinstance(v, (int, float)) and not isinstance(v, bool) and
+                    math.isfinite(v) and v >= 0 for v in raw):
+                problems.add(f"{where}.{key}", f"expected a list of at least 2 numbers "
+                             f">= 0, found {raw!r}")
+                continue
+            value = [float(v) for v in raw]
+        else:
+            value = _read_value(table, spec[key], where, problems)
+            if value is None:
+                continue
+        values[key] = value
+        parameters[name] = value
+    if len(problems.items) > count:
+        return None
+    try:
+        DesignSpectrumSpec(kind, values, parameters).spectrum()
+    except ValueError as exc:
+        problems.add(where, str(exc))
+        return None
+    return DesignSpectrumSpec(kind, values, parameters)
+
+
+def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
+                  problems: _Problems) -> ScalingSpec:
+    if table is None:
+        return ScalingSpec()
+    where = "scaling"
+    if not isinstance(table, dict):
+        problems.add(where, f"expected a table, found {table!r}")
+        return ScalingSpec()
+    _check_unknown(table, "scaling", where, problems)
+    spec = SECTIONS["scaling"]
+    rule = _read_value(table, spec["rule"], where, problems) or "none"
+    period = _read_value(table, spec["period"], where, problems)
+    _positive(period, f"{where}.period", "the period", problems, "s")
+    suite = _read_value(table, spec["suite_factor"], where, problems)
+    _positive(suite, f"{where}.suite_factor", "the suite factor", problems, "")
+    period_range = None
+    if "period_range" in table:
+        raw = table["period_range"]
+        if (not isinstance(raw, list) or len(raw) != 2 or not all(
+                isinstance(v, (int, float)) and not isinstance(v, bool) for v in raw)
+                or not 0 < raw[0] < raw[1]):
+            problems.add(f"{where}.period_range", f"expected [low, high] in s with "
+                         f"0 < low < high, found {raw!r}")
+        else:
+            period_range = (float(raw[0]), float(raw[1]))
+    if rule != "none" and not had_design:
+        problems.add(f"{where}.rule", f"rule {rule!r} needs a [design_spectrum] section "
+                     f"(the target)")
+    if rule == "en1998-1" and design is not None and design.kind != "en1998-1":
+        problems.add(f"{where}.rule", f"rule 'en1998-1' needs kind = \"en1998-1\" in "
+                     f"[design_spectrum] (for a_g·S), found {design.kind!r}")
+    return ScalingSpec(rule, period, period_range, suite if suite else 1.0)
+
+
 def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError) -> str:
     text = str(exc)
     match = re.search(r"\(at line (\d+), column (\d+)\)", text)
@@ -463,7 +569,10 @@ def load_project(path) -> Project:
                                   ProcessingSettings())
     records = _read_records(document.get("records"), path.parent, processing, problems)
     systems = _read_systems(document.get("systems"), problems)
+    design = _read_design_spectrum(document.get("design_spectrum"), problems)
+    scaling = _read_scaling(document.get("scaling"), design, "design_spectrum" in document,
+                            problems)
     if problems.items:
         raise ProjectError(format_problems(shown, problems.items))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
-                   tuple(records), tuple(systems))
+                   tuple(records), tuple(systems), design, scaling)

@@ -58,6 +58,30 @@ class RecordSpec:
     dt_s: float | None = None
     scale: float = 1.0
     processing: ProcessingSettings = field(default_factory=ProcessingSettings)
+    pair: str | None = None
+    component: str | None = None  # "H1" | "H2"
+
+
+@dataclass(frozen=True)
+class DesignSpectrumSpec:
+    """A design spectrum: its kind, the project-file values and the core parameters."""
+
+    kind: str
+    values: dict  # as written (SI/g numbers), for display and results.json
+    parameters: dict  # keyword arguments of sdofreport.core.design_spectra.design_spectrum
+
+    def spectrum(self):
+        from sdofreport.core.design_spectra import design_spectrum
+
+        return design_spectrum(self.kind, **self.parameters)
+
+
+@dataclass(frozen=True)
+class ScalingSpec:
+    rule: str = "none"
+    period_s: float | None = None
+    period_range_s: tuple[float, float] | None = None
+    suite_factor: float = 1.0
 
 
 @dataclass(frozen=True)
@@ -105,6 +129,8 @@ class Project:
     processing: ProcessingSettings
     records: tuple[RecordSpec, ...]
     systems: tuple[SystemSpec, ...]
+    design_spectrum: DesignSpectrumSpec | None = None
+    scaling: ScalingSpec = field(default_factory=ScalingSpec)
 
     @property
     def root(self) -> Path:

@@ -9,6 +9,12 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from sdofreport.core.design_spectra import (
+    ASCE7_16_LEVELS,
+    DESIGN_SPECTRUM_KINDS,
+    EN1998_1_GROUND_TYPES,
+    EN1998_1_SPECTRUM_TYPES,
+)
 from sdofreport.core.spectra import SPECTRUM_METHODS
 from sdofreport.core.units import acceleration_unit_names
 from sdofreport.records import RECORD_FORMATS
@@ -17,6 +23,21 @@ from sdofreport.records import RECORD_FORMATS
 #: or more records are analysed, otherwise the maximum (ASCE/SEI 7-10 §16.1.4,
 #: EN 1998-1 §4.3.3.4.3).
 STATISTICS = ("auto", "mean", "max")
+
+#: Suite scaling rules: the core rules plus "none" (factors as given).
+SCALING_RULES = ("asce7-16", "en1998-1", "fit", "none")
+
+#: Components of a horizontal pair.
+COMPONENTS = ("H1", "H2")
+
+#: Design-spectrum keys of the project file per kind: TOML key -> core parameter name.
+DESIGN_SPECTRUM_KEYS: dict[str, dict[str, str]] = {
+    "asce7-16": {"sds": "sds_g", "sd1": "sd1_g", "tl": "tl_s", "level": "level"},
+    "en1998-1": {"agr": "agr_g", "importance_factor": "importance_factor",
+                 "ground_type": "ground_type", "spectrum_type": "spectrum_type",
+                 "damping": "damping"},
+    "table": {"periods": "table_periods_s", "sa": "table_sa_g"},
+}
 
 #: Unit systems the pages may be shown in (results.json always stays SI).
 DISPLAY_UNITS = ("SI", "US")
@@ -86,6 +107,46 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 example='"auto"'),
     ),
     "processing": _PROCESSING_KEYS,
+    "design_spectrum": _keys(
+        KeySpec("kind", "choice", "Which design spectrum: ASCE/SEI 7-16 §11.4.6, "
+                "EN 1998-1 §3.2.2.2, or a table of (T, Sa) points for any other code.",
+                required=True, choices=DESIGN_SPECTRUM_KINDS, example='"asce7-16"'),
+        KeySpec("sds", "number", "asce7-16: S_DS, design short-period spectral "
+                "acceleration, in g.", example="1.0"),
+        KeySpec("sd1", "number", "asce7-16: S_D1, design 1-s spectral acceleration, in g.",
+                example="0.6"),
+        KeySpec("tl", "quantity", "asce7-16: long-period transition period T_L.",
+                dimension="time", example='"8 s"'),
+        KeySpec("level", "choice", "asce7-16: design spectrum or MCE_R (1.5 × design).",
+                default="design", choices=tuple(ASCE7_16_LEVELS), example='"mce"'),
+        KeySpec("agr", "number", "en1998-1: reference peak ground acceleration a_gR on "
+                "ground type A, in g.", example="0.25"),
+        KeySpec("importance_factor", "number", "en1998-1: importance factor γ_I.",
+                default=1.0, example="1.0"),
+        KeySpec("ground_type", "choice", "en1998-1: ground type (Tables 3.2/3.3).",
+                choices=EN1998_1_GROUND_TYPES, example='"B"'),
+        KeySpec("spectrum_type", "choice", "en1998-1: spectrum type 1 or 2.",
+                choices=EN1998_1_SPECTRUM_TYPES, example="1"),
+        KeySpec("damping", "ratio", "en1998-1: viscous damping ratio for η "
+                "(Eq. 3.6).", default=0.05, example="0.05"),
+        KeySpec("periods", "list", "table: periods of the points, in s.",
+                example="[0.0, 0.2, 1.0, 4.0]"),
+        KeySpec("sa", "list", "table: spectral accelerations of the points, in g.",
+                example="[0.4, 1.0, 0.5, 0.1]"),
+    ),
+    "scaling": _keys(
+        KeySpec("rule", "choice", "Suite scaling rule: asce7-16 (§16.2.3, pairs' RotD100 "
+                "mean ≥ 90 % of the target over 0.2T–2T), en1998-1 (§3.2.3.1.2), fit "
+                "(per-record log least squares, common practice) or none (factors as "
+                "given).", default="none", choices=SCALING_RULES, example='"asce7-16"'),
+        KeySpec("period", "quantity", "Governing period T for the period range (default: "
+                "the range covers every system, 0.2 × shortest to 2 × longest).",
+                dimension="time", example='"0.8 s"'),
+        KeySpec("period_range", "list", "Explicit [low, high] period range in s "
+                "(overrides period).", example="[0.1, 2.0]"),
+        KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
+                "per-record factors.", default=1.0, example="1.0"),
+    ),
     "records[]": _keys(
         KeySpec("id", "text", "Unique short name of the record.", required=True,
                 example='"rec01"'),
@@ -101,6 +162,10 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 default=1.0, example="1.25"),
         KeySpec("processing", "table", "Per-record overrides of [processing].",
                 example="{ baseline_order = 1 }"),
+        KeySpec("pair", "text", "Name of the horizontal pair this record belongs to "
+                "(two records share it, one H1 and one H2).", example='"p1"'),
+        KeySpec("component", "choice", "Component of the pair.", choices=COMPONENTS,
+                example='"H1"'),
     ),
     "records[].processing": _PROCESSING_KEYS,
     "systems[]": _keys(
@@ -133,4 +198,5 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
 }
 
 #: Top-level tables and arrays of tables of the project file.
-TOP_LEVEL = ("project", "analysis", "processing", "records", "systems")
+TOP_LEVEL = ("project", "analysis", "processing", "design_spectrum", "scaling", "records",
+             "systems")

@@ -115,7 +115,8 @@ def test_spring_network_series_of_parallel():
 def test_springs_shows_each_reduction():
     net = {"series": [{"k": 2.0e7}, {"parallel": [{"k": 1e6}, {"k": 2e6}]}]}
     d = springs(net, 1000.0)
-    assert d.derivation[0] == "network.series[1]: parallel k = Σkᵢ = 1e+06 + 2e+06 = 3e+06 N/m"
+    assert d.derivation[0] == (
+        "network.series[1]: parallel k = Σkᵢ = 1e+06 + 2e+06 = 3e+06 N/m")
     assert d.derivation[1].startswith("network: series 1/k = Σ1/kᵢ = 1/2e+07 + 1/3e+06 → k = ")
     # Hand calculation: T = 2π √(1000 / 2 608 695.65) = 2π √(3.83333e-4)
     #                   = 2π × 0.0195789 = 0.123018 s.

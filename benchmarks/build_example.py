@@ -1,0 +1,135 @@
+"""Build-speed benchmark (not a test): the bundled example cold and warm, and a larger
+synthetic study at 1 and 2 workers.
+
+Prints wall time, CPU time and peak memory of each build, the share of time spent
+computing (integration), rendering (figures and pages) and writing, and for the large
+study the records per second and the speed-up from 1 to 2 workers.
+
+Goals on the 2-core reference machine (from the issue): cold <= 20 s, warm <= 2 s, peak
+memory <= 600 MB; a near-2x speed-up from 1 to 2 workers on the large study.
+
+Run: python benchmarks/build_example.py [--quick]
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import subprocess
+import sys
+import tempfile
+import textwrap
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+EXAMPLE = ROOT / "site_examples" / "harbourview_cold_store" / "sdofreport.toml"
+
+_CHILD = textwrap.dedent("""
+    import json, resource, sys, time
+    t0, c0 = time.perf_counter(), time.process_time()
+    from sdofreport.build import build_site
+    project, output, cache, jobs = sys.argv[1:5]
+    outcome = build_site(project, output, cache_dir=cache, jobs=int(jobs))
+    wall = time.perf_counter() - t0
+    own = resource.getrusage(resource.RUSAGE_SELF)
+    kids = resource.getrusage(resource.RUSAGE_CHILDREN)
+    print(json.dumps({
+        "wall_s": wall,
+        "cpu_s": own.ru_utime + own.ru_stime + kids.ru_utime + kids.ru_stime,
+        "peak_mb": max(own.ru_maxrss, kids.ru_maxrss) / 1024.0,
+        "timings": outcome.results.timings_s,
+        "records": len(outcome.results.records),
+        "computed": outcome.results.cache_misses,
+    }))
+""")
+
+
+def run_build(project: Path, output: Path, cache: Path, jobs: int) -> dict:
+    result = subprocess.run([sys.executable, "-c", _CHILD, str(project), str(output),
+                             str(cache), str(jobs)], capture_output=True, text=True,
+                            check=False)
+    if result.returncode != 0:
+        raise SystemExit(f"build failed:\n{result.stderr}")
+    return json.loads(result.stdout.strip().splitlines()[-1])
+
+
+def report(name: str, figures: dict, goals: dict) -> None:
+    t = figures["timings"]
+    total = max(figures["wall_s"], 1e-9)
+    shares = {"integration": t.get("compute_s", 0.0), "plotting+pages": t.get("render_s", 0.0),
+              "writing": t.get("write_s", 0.0)}
+    other = total - sum(shares.values())
+    print(f"{name}: wall {figures['wall_s']:.2f} s, CPU {figures['cpu_s']:.2f} s, peak "
+          f"memory {figures['peak_mb']:.0f} MB, {figures['computed']} jobs computed")
+    print("    shares: " + ", ".join(f"{k} {100 * v / total:.0f} %" for k, v in
+                                      shares.items()) + f", other (start-up, reading, "
+          f"hashing) {100 * other / total:.0f} %")
+    for key, (limit, label) in goals.items():
+        value = figures[key]
+        print(f"    goal {label} <= {limit}: {value:.2f} -> "
+              f"{'PASS' if value <= limit else 'MISS'}")
+
+
+def make_study(folder: Path, n_records: int, n_systems: int) -> Path:
+    """A synthetic parametric study: seeded Kanai-Tajimi records, many systems."""
+    sys.path.insert(0, str(ROOT))
+    from sdofreport.core.stochastic import kanai_tajimi_accelerogram
+    from sdofreport.core.units import G
+    from sdofreport.records.writers import write_two_column
+
+    (folder / "records").mkdir(parents=True, exist_ok=True)
+    lines = ['[project]\ntitle = "Synthetic study"\nreference = "BENCH"\nrevision = "1"\n'
+             'prepared_by = "benchmark"\n\n[analysis]\ndamping = [0.02, 0.05, 0.10]\n'
+             'periods = { min = 0.01, max = 10.0, count = 200 }\n']
+    for i in range(n_records):
+        acc = kanai_tajimi_accelerogram(20.0, 0.01, seed=1000 + i, target_pga_m_s2=0.3 * G,
+                                        ground_frequency_hz=1.5 + 3.0 * (i % 7) / 6,
+                                        high_pass_hz=0.15)
+        write_two_column(folder / "records" / f"b{i:03d}.csv", 0.01, acc / G, units="g")
+        lines.append(f'[[records]]\nid = "b{i:03d}"\nfile = "records/b{i:03d}.csv"\n')
+    for j in range(n_systems):
+        period = 0.1 * (30.0 ** (j / max(1, n_systems - 1)))
+        lines.append(f'[[systems]]\nid = "s{j:02d}"\nname = "system {j}"\ndamping = 0.05\n'
+                     f'mass = "50 t"\nperiod = {period:.4f}\n[systems.limits]\n'
+                     f'displacement = "100 mm"\n')
+    path = folder / "sdofreport.toml"
+    path.write_text("\n".join(lines), encoding="utf-8")
+    return path
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--quick", action="store_true", help="a smaller study (20 x 5)")
+    args = parser.parse_args()
+    print(f"cores: {os.cpu_count()}; python {sys.version.split()[0]}")
+    with tempfile.TemporaryDirectory() as tmp:
+        tmp = Path(tmp)
+        cache = tmp / "cache"
+        cold = run_build(EXAMPLE, tmp / "site", cache, os.cpu_count() or 1)
+        report("example, cold (empty cache)", cold,
+               {"wall_s": (20.0, "wall s"), "peak_mb": (600.0, "peak MB")})
+        warm = run_build(EXAMPLE, tmp / "site", cache, os.cpu_count() or 1)
+        report("example, warm (nothing changed)", warm,
+               {"wall_s": (2.0, "wall s"), "peak_mb": (600.0, "peak MB")})
+
+        n_rec, n_sys = (20, 5) if args.quick else (100, 20)
+        study = make_study(tmp / "study", n_rec, n_sys)
+        runs = {}
+        for jobs in (1, 2):
+            figures = run_build(study, tmp / f"study-site-{jobs}", tmp / f"cache-{jobs}", jobs)
+            compute = figures["timings"]["compute_s"]
+            runs[jobs] = figures
+            print(f"study {n_rec} records x {n_sys} systems, 3 damping ratios, {jobs} "
+                  f"worker(s): wall {figures['wall_s']:.1f} s, integration {compute:.1f} s, "
+                  f"{n_rec / compute:.1f} records/s (integration), peak "
+                  f"{figures['peak_mb']:.0f} MB")
+        speedup = runs[1]["timings"]["compute_s"] / runs[2]["timings"]["compute_s"]
+        print(f"integration speed-up 1 -> 2 workers: {speedup:.2f}x (goal near 2x: "
+              f"{'PASS' if speedup >= 1.7 else 'MISS'})")
+        whole = runs[1]["wall_s"] / runs[2]["wall_s"]
+        print(f"whole-build speed-up 1 -> 2 workers: {whole:.2f}x")
+
+
+if __name__ == "__main__":
+    main()

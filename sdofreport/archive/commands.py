@@ -1,0 +1,167 @@
+"""Click commands for archival and revisions: verify, compare, pack and register.
+
+Each command parses its options, calls one function and reports. Exit status: 0 clean,
+4 when something differs from its manifest (or a re-run differs), 2 for bad input
+(an :class:`~sdofreport.errors.SdofreportError`).
+"""
+
+from __future__ import annotations
+
+import contextlib
+import json
+import os
+import sys
+import tempfile
+from pathlib import Path
+
+import click
+
+#: Exit status when a file, manifest entry or re-run result differs.
+EXIT_DIFFERS = 4
+
+
+def _write_text_atomically(text: str, target: Path) -> None:
+    target.parent.mkdir(parents=True, exist_ok=True)
+    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".partial",
+                                         dir=target.parent)
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as stream:
+            stream.write(text)
+        os.chmod(temporary, 0o644)
+        os.replace(temporary, target)
+    except BaseException:
+        with contextlib.suppress(OSError):
+            os.unlink(temporary)
+        raise
+
+
+@click.command("verify")
+@click.argument("site", type=click.Path(path_type=str))
+@click.option("--rerun", is_flag=True,
+              help="Also recompute every result from the site's inputs/ with the installed "
+                   "version and compare every number in data/results.json.")
+@click.option("--rtol", type=click.FloatRange(min=0.0), default=None,
+              help="Relative tolerance of --rerun (default 1e-9 when the site was built by "
+                   "another version; exact with the same version unless given).")
+@click.option("--jobs", "-j", type=click.IntRange(min=1), default=None,
+              help="Worker processes for --rerun (default: the number of cores).")
+@click.option("--output", type=click.Choice(["text", "json"]), default="text",
+              show_default=True, help="Report format written to standard output.")
+def verify_command(site, rerun, rtol, jobs, output):
+    """Check a site folder or packed zip against its manifest.json.
+
+    Re-hashes every file (SHA-256) and lists any file added, missing or changed; checks
+    that the manifest lists every input and the project file and that its fingerprint
+    recomputes. Exit status 0 when everything matches, 4 when anything differs, 2 when
+    SITE is not a site (no manifest.json).
+
+    \b
+    Example:
+      sdofreport verify _site --rerun
+    """
+    from sdofreport.archive.verify import verify_site
+
+    report = verify_site(site, rerun=rerun, rtol=rtol, jobs=jobs)
+    if output == "json":
+        click.echo(json.dumps(report.as_dict(), indent=1, ensure_ascii=False))
+    else:
+        for line in report.lines():
+            click.echo(line)
+    if not report.ok:
+        sys.exit(EXIT_DIFFERS)
+
+
+@click.command("compare")
+@click.argument("old", type=click.Path(path_type=str))
+@click.argument("new", type=click.Path(path_type=str))
+@click.option("--output", "output_format", type=click.Choice(["text", "json", "html"]),
+              default="text", show_default=True,
+              help="Format: text or json tables, or a self-contained html page.")
+@click.option("-o", "--output-file", type=click.Path(dir_okay=False, path_type=str),
+              default=None, help="Write to this file instead of standard output.")
+def compare_command(old, new, output_format, output_file):
+    """Compare two runs: checks, systems, records and settings that changed.
+
+    OLD and NEW are each a site folder, a zip made by 'sdofreport pack' or a
+    results.json file. Every check whose demand, limit, ratio or verdict changed is
+    listed with its relative change (new - old) / |old|.
+
+    \b
+    Example:
+      sdofreport compare old_site new_site --output html -o revision.html
+    """
+    from sdofreport.archive.compare import (
+        compare_paths,
+        comparison_html,
+        comparison_json,
+        comparison_text,
+    )
+
+    document, old_run, new_run = compare_paths(old, new)
+    if output_format == "json":
+        text = comparison_json(document)
+    elif output_format == "html":
+        text = comparison_html(document, old_run.results, new_run.results)
+    else:
+        text = comparison_text(document)
+    if output_file is None:
+        click.echo(text, nl=False)
+    else:
+        _write_text_atomically(text, Path(output_file))
+        click.echo(f"Wrote {output_file}", err=True)
+
+
+@click.command("pack")
+@click.argument("site", type=click.Path(path_type=str))
+@click.option("-o", "--output", default=None, type=click.Path(path_type=str),
+              help="Zip file to write, or a folder to put "
+                   "<reference>_rev<revision>_<fingerprint>.zip in (default: the current "
+                   "folder).")
+def pack_command(site, output):
+    """Pack a verified site into a deterministic zip archive.
+
+    The same site always gives the same bytes (sorted entries, fixed timestamps and
+    permissions). A site that does not match its manifest is refused (exit status 4).
+
+    \b
+    Example:
+      sdofreport pack _site -o archive/
+    """
+    from sdofreport.archive.pack import pack_site
+
+    click.echo(str(pack_site(site, output)))
+
+
+@click.command("register")
+@click.argument("folder", type=click.Path(path_type=str))
+@click.option("-o", "--output", required=True, type=click.Path(path_type=str),
+              help="Register folder to write (a new or empty folder, or a register built "
+                   "before).")
+def register_command(folder, output):
+    """Build a landing site over every archived run found under FOLDER.
+
+    Packed zips and site folders become one row each, copied into the register so
+    links work offline. Each run is verified; a run that fails verification is marked,
+    never hidden, and the exit status is then 4.
+
+    \b
+    Example:
+      sdofreport register ci-artifacts/ -o register_site
+    """
+    from sdofreport.archive.register import build_register
+
+    outcome = build_register(folder, output)
+    click.echo(f"Register of {len(outcome.rows)} run(s) written to {outcome.output}.")
+    for row in outcome.failed:
+        click.echo(f"  {row.source}: {row.verification}")
+    if outcome.failed:
+        sys.exit(EXIT_DIFFERS)
+
+
+COMMANDS = (verify_command, compare_command, pack_command, register_command)
+
+
+def register_commands(group: click.Group) -> None:
+    """Add the verify, compare, pack and register commands to a click group."""
+    for command in COMMANDS:
+        group.add_command(command)

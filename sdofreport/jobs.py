@@ -1,0 +1,100 @@
+"""The engine's jobs: pure functions of numpy data, run in workers and cached.
+
+* :func:`record_job` — intensity measures, ground velocity and displacement, Fourier
+  amplitude and response spectra of one record;
+* :func:`pair_job` — RotD50/RotD100, geometric-mean and SRSS spectra of a horizontal pair
+  (Boore 2010);
+* :func:`response_job` — the response history of one system to one record.
+
+They are top-level functions so a process pool or a Dask cluster can pickle them.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from sdofreport.core.intensity import (
+    fourier_amplitude,
+    ground_displacement,
+    ground_velocity,
+    intensity_measures,
+)
+from sdofreport.core.rotd import rotd_spectrum
+from sdofreport.core.spectra import oscillator_histories, response_spectrum
+
+
+def record_products(acceleration, dt_s) -> dict:
+    """Everything about a ground motion except its response spectra (cheap)."""
+    freq, amp = fourier_amplitude(acceleration, dt_s)
+    return {
+        "intensity": intensity_measures(acceleration, dt_s),
+        "velocity_m_s": ground_velocity(acceleration, dt_s),
+        "displacement_m": ground_displacement(acceleration, dt_s),
+        "fourier_frequency_hz": freq,
+        "fourier_amplitude_m_s": amp,
+    }
+
+
+def record_job(acceleration, dt_s, periods_s, damping, method) -> dict:
+    """Record products plus response spectra at every (damping, period)."""
+    spectrum = response_spectrum(acceleration, dt_s, np.asarray(periods_s),
+                                 np.asarray(damping), method=method)
+    return {"spectrum": spectrum, **record_products(acceleration, dt_s)}
+
+
+def pair_job(acc_h1, acc_h2, dt_s, periods_s, damping, method) -> dict:
+    """RotD spectra of two components, the shorter padded with zeros to equal length."""
+    n = max(acc_h1.size, acc_h2.size)
+    a1 = np.zeros(n)
+    a2 = np.zeros(n)
+    a1[:acc_h1.size] = acc_h1
+    a2[:acc_h2.size] = acc_h2
+    return {"rotd": rotd_spectrum(a1, a2, dt_s, np.asarray(periods_s), damping,
+                                  method=method)}
+
+
+def _linear_response(acceleration, dt_s, model: dict, method: str) -> dict:
+    hist = oscillator_histories(acceleration, dt_s, np.array([model["period_s"]]),
+                                np.array([model["damping"]]), method=method)
+    return {
+        "model": "linear",
+        "time_s": hist.time_s,
+        "displacement_m": hist.displacement_m[0],
+        "total_accel_m_s2": hist.total_acceleration_m_s2[0],
+        "peak_displacement_m": float(hist.peaks.displacement_m[0]),
+        "peak_velocity_m_s": float(hist.peaks.velocity_m_s[0]),
+        "peak_total_accel_m_s2": float(hist.peaks.total_acceleration_m_s2[0]),
+    }
+
+
+def _nonlinear_response(acceleration, dt_s, model: dict) -> dict:
+    from sdofreport.core import nonlinear
+
+    if model["model"] == "bilinear":
+        system = nonlinear.bilinear(model["stiffness_n_m"],
+                                    yield_strength_n=model["yield_strength_n"],
+                                    hardening_ratio=model["post_yield_ratio"])
+    else:
+        system = nonlinear.sliding_pendulum_model(
+            model["weight_n"], model["radius_m"], model["friction"],
+            yield_displacement_m=model["slip_displacement_m"])
+    substeps = max(1, int(np.ceil(dt_s / (model["period_s"] / 100.0))))
+    mass = model.get("mass_kg") if model["model"] == "bilinear" else None
+    result = nonlinear.nonlinear_response(acceleration, dt_s, system, model["damping"],
+                                          mass_kg=mass, substeps=substeps)
+    return {"model": model["model"], "response": result}
+
+
+def response_job(acceleration, dt_s, model: dict, method: str) -> dict:
+    """Response of one system (``model`` dict, see the engine) to one record."""
+    if model["model"] == "linear":
+        return _linear_response(acceleration, dt_s, model, method)
+    return _nonlinear_response(acceleration, dt_s, model)
+
+
+JOBS = {"record": record_job, "pair": pair_job, "response": response_job}
+
+
+def run_job(kind: str, args: tuple) -> dict:
+    """Dispatch one planned job by kind."""
+    return JOBS[kind](*args)

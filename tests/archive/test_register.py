@@ -1,0 +1,140 @@
+"""sdofreport register: every run listed, tampered runs marked, stable rebuilds."""
+
+from __future__ import annotations
+
+import json
+import shutil
+from html.parser import HTMLParser
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from tests.archive.conftest import flip_byte
+
+
+def _register(group, folder, output):
+    return CliRunner().invoke(group, ["register", str(folder), "-o", str(output)])
+
+
+def _files(folder: Path) -> dict[str, bytes]:
+    return {p.relative_to(folder).as_posix(): p.read_bytes() for p in folder.rglob("*")
+            if p.is_file()}
+
+
+@pytest.fixture
+def artifacts(group, sites, tmp_path):
+    """A CI-like folder: rev0 packed, rev1 as a site folder, a tampered copy of rev0."""
+    folder = tmp_path / "artifacts"
+    (folder / "job1").mkdir(parents=True)
+    result = CliRunner().invoke(group, ["pack", str(sites["rev0"]), "-o",
+                                        str(folder / "job1")])
+    assert result.exit_code == 0, result.output
+    shutil.copytree(sites["rev1"], folder / "job2" / "_site")
+    shutil.copytree(sites["rev0"], folder / "job3" / "_site")
+    flip_byte(folder / "job3" / "_site" / "figures" / "record-r1-psa.svg")
+    flip_byte(folder / "job3" / "_site" / "inputs" / "records" / "r2.txt")
+    return folder
+
+
+class _Links(HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.links = []
+
+    def handle_starttag(self, tag, attrs):
+        self.links += [v for k, v in attrs if k in ("href", "src") and v]
+
+
+def test_every_run_listed_and_tampered_run_marked(group, artifacts, tmp_path):
+    output = tmp_path / "register"
+    result = _register(group, artifacts, output)
+    # Exit 4: one run failed verification; the register is still written.
+    assert result.exit_code == 4, result.output
+    rows = json.loads((output / "register.json").read_text("utf-8"))["runs"]
+    assert sorted(r["source"] for r in rows) == ["job1/" + next(
+        p.name for p in (artifacts / "job1").iterdir()), "job2/_site", "job3/_site"]
+    tampered = next(r for r in rows if r["source"] == "job3/_site")
+    assert tampered["verified"] is False
+    assert tampered["verification"] == "FAILED verification: 2 files changed"
+    assert all(r["verified"] for r in rows if r is not tampered)
+    page = (output / "index.html").read_text("utf-8")
+    assert "FAILED verification: 2 files changed" in page
+    # Ordered by reference, revision, fingerprint.
+    keys = [(r["reference"], r["revision"], r["fingerprint"]) for r in rows]
+    assert keys == sorted(keys)
+    # Counts from each run's own results.json.
+    rev1 = next(r for r in rows if r["source"] == "job2/_site")
+    results = json.loads((artifacts / "job2" / "_site" / "data" / "results.json").read_text())
+    checks = [c for s in results["systems"] for c in s["checks"]]
+    assert rev1["checks"] == len(checks) == 2
+    assert rev1["worst_ratio"] == max(c["ratio"] for c in checks)
+
+
+def test_links_work_offline(group, artifacts, tmp_path):
+    output = tmp_path / "register"
+    _register(group, artifacts, output)
+    parser = _Links()
+    parser.feed((output / "index.html").read_text("utf-8"))
+    assert parser.links
+    for link in parser.links:
+        assert not link.startswith(("http:", "https:", "//")), link
+        assert (output / link).is_file(), link
+    # The copies are the archived bytes: each verifies from the register exactly as it
+    # did where it was found (0 for verified runs, 4 for the tampered one).
+    rows = json.loads((output / "register.json").read_text("utf-8"))["runs"]
+    assert sorted(r["link"] for r in rows) == sorted(
+        link for link in parser.links if link.startswith("runs/"))
+    for row in rows:
+        result = CliRunner().invoke(group, ["verify", str((output / row["link"]).parent)])
+        assert result.exit_code == (0 if row["verified"] else 4), row
+
+
+def test_rebuild_after_adding_a_run_changes_only_what_it_adds(group, artifacts, sites,
+                                                             tmp_path):
+    output = tmp_path / "register"
+    _register(group, artifacts, output)
+    before = _files(output)
+    shutil.copytree(sites["rev2"], artifacts / "job4" / "_site")
+    assert _register(group, artifacts, output).exit_code == 4
+    after = _files(output)
+    changed = {p for p in before if p in after and before[p] != after[p]}
+    assert changed == {"index.html", "register.json"}
+    assert set(before) <= set(after)
+    added = set(after) - set(before)
+    manifest = json.loads((sites["rev2"] / "manifest.json").read_text("utf-8"))
+    prefix = f"runs/T-1_rev2_{manifest['fingerprint']}/"
+    assert added and all(p.startswith(prefix) for p in added)
+    # Same inputs, same bytes: a rebuild with nothing new changes nothing.
+    _register(group, artifacts, output)
+    assert _files(output) == after
+
+
+def test_unreadable_zip_is_listed_as_failed(group, tmp_path):
+    folder = tmp_path / "artifacts"
+    folder.mkdir()
+    (folder / "broken.zip").write_bytes(b"PK\x03\x04 truncated")
+    result = _register(group, folder, tmp_path / "register")
+    assert result.exit_code == 4
+    rows = json.loads((tmp_path / "register" / "register.json").read_text())["runs"]
+    assert len(rows) == 1 and rows[0]["source"] == "broken.zip"
+    assert rows[0]["verification"].startswith("FAILED verification: ")
+    assert str(tmp_path) not in (tmp_path / "register" / "register.json").read_text()
+
+
+def test_refuses_to_overwrite_a_folder_that_is_not_a_register(group, artifacts, tmp_path):
+    output = tmp_path / "precious"
+    output.mkdir()
+    (output / "keep.txt").write_text("mine", "utf-8")
+    result = _register(group, artifacts, output)
+    assert result.exit_code == 2
+    assert "not a register built by sdofreport" in result.output
+    assert _files(output) == {"keep.txt": b"mine"}
+
+
+def test_output_inside_the_scanned_folder_is_not_registered(group, artifacts):
+    output = artifacts / "register"
+    _register(group, artifacts, output)
+    _register(group, artifacts, output)
+    rows = json.loads((output / "register.json").read_text())["runs"]
+    assert len(rows) == 3
