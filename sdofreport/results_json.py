@@ -48,6 +48,8 @@ def results_document(results: Results) -> dict:
         records.append({
             "id": record.id, "file": spec.file, "sha256": record.sha256,
             "dt_s": float(record.dt_s), "npts": int(record.npts), "scale": spec.scale,
+            "scale_factor": item.scale_factor, "total_scale": spec.scale * item.scale_factor,
+            "pair": spec.pair, "component": spec.component,
             "units": record.units, "format": record.file_format,
             "processing": list(record.history),
             **intensity_to_dict(item.intensity),
@@ -90,10 +92,52 @@ def results_document(results: Results) -> dict:
             "height_m": system.height_m, "derivation": "; ".join(system.derivation),
             "responses": responses, "checks": checks,
         })
-    return {"schema": RESULTS_SCHEMA, "generator": f"sdofreport {__version__}",
-            "project": project_block(results), "settings": settings_block(results),
-            "statistic": results.statistic, "records": records, "spectra": spectra,
-            "systems": systems}
+    document = {"schema": RESULTS_SCHEMA, "generator": f"sdofreport {__version__}",
+                "project": project_block(results), "settings": settings_block(results),
+                "statistic": results.statistic, "records": records, "spectra": spectra,
+                "systems": systems}
+    document.update(suite_blocks(results))
+    return document
+
+
+def suite_blocks(results: Results) -> dict:
+    """``design_spectrum``, ``scaling`` and ``pairs`` blocks (present when they apply)."""
+    blocks: dict = {}
+    project = results.project
+    periods = results.records[0].spectrum.periods_s if results.records else []
+    if project.design_spectrum is not None:
+        design = project.design_spectrum
+        blocks["design_spectrum"] = {
+            "kind": design.kind, "parameters": dict(design.values),
+            "periods_s": array_to_list(periods),
+            "sa_g": array_to_list(design.spectrum().sa_g(periods))}
+    scaling = results.scaling
+    if scaling is not None:
+        criteria = []
+        if scaling.result is not None:
+            criteria = [{"name": c.name, "required": c.required, "achieved": c.achieved,
+                         "passed": bool(c.passed), "severity": c.severity,
+                         "source": c.source, "comparison": c.comparison}
+                        for c in scaling.result.criteria]
+        blocks["scaling"] = {
+            "rule": scaling.rule,
+            "period_range_s": list(scaling.period_range_s) if scaling.period_range_s
+            else None,
+            "records": [{"id": r.id, "factor": scaling.factors.get(r.id, 1.0)}
+                        for r in project.records],
+            "criteria": criteria,
+            "motions": [{"id": name, "records": members}
+                        for name, members in scaling.motions],
+            "notes": list(scaling.notes)}
+    if results.pairs:
+        blocks["pairs"] = [{
+            "id": pair.name, "h1": pair.h1, "h2": pair.h2,
+            "damping": float(pair.rotd.damping),
+            "rotd50_psa_g": array_to_list(pair.rotd.rotd50_psa_g),
+            "rotd100_psa_g": array_to_list(pair.rotd.rotd100_psa_g),
+            "geomean_psa_g": array_to_list(pair.rotd.geomean_psa_g),
+            "srss_psa_g": array_to_list(pair.rotd.srss_psa_g)} for pair in results.pairs]
+    return blocks
 
 
 def _csv_text(rows: list[list]) -> str:

@@ -193,11 +193,12 @@ class _Matcher:
         self.n, self.dt, self.grid, self.zeta, self.shape = n, dt, grid, zeta, shape
         self.target = target_grid
         self.time = np.arange(n) * dt
-        delta = np.zeros(n)
-        delta[0] = 1.0
-        # Discrete impulse response of every grid oscillator (exact for linear-between-
-        # samples input), rows = grid periods [m per (m/s²) at sample 0].
-        self.impulse = exact_response(delta, dt, grid, zeta)[0]
+        # Discrete impulse response of every grid oscillator: the response to one unit
+        # sample (a hat function, as the input is linear between samples), counted from
+        # that sample; rows = grid periods [m per (m/s²)]. Exact by linearity.
+        delta = np.zeros(n + 1)
+        delta[1] = 1.0
+        self.impulse = exact_response(delta, dt, grid, zeta)[0][:, 1:]
         self._lags: dict[int, float] = {}
         # Half-power bandwidth (±ζ in ln f) expressed in grid steps.
         step = math.log(grid[1] / grid[0])
@@ -226,35 +227,51 @@ class _Matcher:
             self._lags[j] = float(np.argmax(np.abs(u)) * self.dt - centre)
         return self._lags[j]
 
-    def select(self, deviation, threshold):
-        """Grid indices whose |deviation| > threshold and is largest within a half-width."""
+    def _select(self, deviation, peak, threshold):
+        """
+        Grid indices that get a wavelet: |deviation| > threshold, taken largest first,
+        skipping a period whose peak falls within one period of the peak of a chosen
+        period less than a half-power bandwidth away (their wavelets would be nearly
+        the same).
+        """
         size = np.abs(deviation)
         chosen = []
         for i in np.argsort(-size, kind="stable"):
             if size[i] <= threshold:
                 break
-            if all(abs(int(i) - c) > self.half_width for c in chosen):
+            near = (abs(int(i) - c) <= self.half_width
+                    and abs(int(peak[i]) - int(peak[c])) * self.dt < self.grid[i]
+                    for c in chosen)
+            if not any(near):
                 chosen.append(int(i))
         return sorted(chosen)
 
-    def adjust(self, acc, psa_g, chosen):
-        """One pass: add the wavelets that bring the chosen peaks onto the target."""
-        u = exact_response(acc, self.dt, self.grid[chosen], self.zeta)[0]
+    def adjust(self, acc, psa_g, threshold):
+        """One pass: wavelets at the failing periods, fitted to every period's misfit."""
+        u = exact_response(acc, self.dt, self.grid, self.zeta)[0]
         peak = np.argmax(np.abs(u), axis=1)
-        u_peak = u[np.arange(len(chosen)), peak]
+        u_peak = u[np.arange(self.grid.size), peak]
+        chosen = self._select(psa_g / self.target - 1.0, peak, threshold)
         # Wanted change of the signed displacement at each peak time: scale the peak by
-        # target / computed (the sampled peak stands in for the refined one).
-        wanted = u_peak * (self.target[chosen] / psa_g[chosen] - 1.0)
+        # target / computed (the sampled peak stands in for the refined one). Periods
+        # already on target ask for no change, which keeps the wavelets local.
+        wanted = u_peak * (self.target / psa_g - 1.0)
         waves = np.empty((len(chosen), self.n))
-        reversed_h = np.zeros((len(chosen), self.n))
-        for row, (j, k) in enumerate(zip(chosen, peak)):
-            w = self._wavelet(j, k * self.dt - self._lag(j)) * self.shape
+        for row, j in enumerate(chosen):
+            w = self._wavelet(j, peak[j] * self.dt - self._lag(j)) * self.shape
             waves[row] = baseline_correction(w, self.dt, _BASELINE_ORDER)
-            reversed_h[row, : k + 1] = self.impulse[j, k::-1]
+        reversed_h = np.zeros((self.grid.size, self.n))
+        for i, k in enumerate(peak):
+            reversed_h[i, : k + 1] = self.impulse[i, k::-1]
         influence = reversed_h @ waves.T  # C_ij = u_i(t_i) due to wavelet j
-        normal = influence.T @ influence
+        # Scale rows by the peak and columns to a unit diagonal so that every period
+        # weighs alike (displacements grow as T², so unscaled the long periods dominate).
+        row = 1.0 / np.abs(u_peak)
+        col = np.abs(u_peak[chosen]) / influence[chosen, np.arange(len(chosen))]
+        scaled = influence * row[:, None] * col[None, :]
+        normal = scaled.T @ scaled
         normal += _REGULARISATION * np.mean(np.diag(normal)) * np.eye(len(chosen))
-        amplitude = np.linalg.solve(normal, influence.T @ wanted)
+        amplitude = col * np.linalg.solve(normal, scaled.T @ (wanted * row))
         return acc + amplitude @ waves
 
 
@@ -402,8 +419,7 @@ def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, 
     for step in range(1, adjustments + 1):
         if worst <= tol:
             break
-        chosen = matcher.select(psa_g / target_grid - 1.0, _SELECT_SHARE * tol)
-        acc = matcher.adjust(acc, psa_g, chosen)
+        acc = matcher.adjust(acc, psa_g, _SELECT_SHARE * tol)
         psa_g, worst = measure(acc)
         if worst < best[0]:
             best = (worst, used, step, acc, psa_g)

@@ -347,10 +347,12 @@ def _recurrence_peaks(ag, shift, h, coef, cdamp, kstiff, u_init, v_init, peaks):
                 w[_MU * _BLOCK + j] = abs(u)
                 w[_MV * _BLOCK + j] = abs(v)
                 w[_MA * _BLOCK + j] = abs(a)
-                w[_MR * _BLOCK + j] = abs(a + gb)  # = |ü|
+                w[_MR * _BLOCK + j] = abs(gb)  # max |üg|, below
+            gmax = 0.0
             for step in range(lo, hi):
                 ga = gb
                 gb = _forcing(ag, step + 1, shift, mask, inv)
+                gmax = max(gmax, abs(gb))
                 for j in range(_BLOCK):
                     u0 = w[_U * _BLOCK + j]
                     v0 = w[_V * _BLOCK + j]
@@ -365,7 +367,9 @@ def _recurrence_peaks(ag, shift, h, coef, cdamp, kstiff, u_init, v_init, peaks):
                     w[_MU * _BLOCK + j] = max(w[_MU * _BLOCK + j], abs(u1))
                     w[_MV * _BLOCK + j] = max(w[_MV * _BLOCK + j], abs(v1))
                     w[_MA * _BLOCK + j] = max(w[_MA * _BLOCK + j], abs(a1))
-                    w[_MR * _BLOCK + j] = max(w[_MR * _BLOCK + j], abs(a1 + gb))
+            for j in range(_BLOCK):
+                # |ü| = |ü_t − üg| <= max|ü_t| + max|üg| over the segment
+                w[_MR * _BLOCK + j] = w[_MA * _BLOCK + j] + max(w[_MR * _BLOCK + j], gmax)
             for r in range(2, _SAVED):
                 for j in range(_BLOCK):
                     saved[sg, r * _BLOCK + j] = w[(_MU - 2 + r) * _BLOCK + j]

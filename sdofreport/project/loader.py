@@ -443,6 +443,8 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
             if spec[key].default is None:
                 problems.add(f"{where}.{key}", f"missing; kind {kind!r} needs it "
                              f"({spec[key].description})")
+            else:
+                values[key] = parameters[name] = spec[key].default
             continue
         if key in ("periods", "sa"):
             raw = table[key]

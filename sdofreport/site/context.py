@@ -124,6 +124,14 @@ class SiteContext:
             "fingerprint": self.fingerprint,
         }
 
+    def _design(self, periods) -> tuple | None:
+        """(periods, Sa [g], label) of the design spectrum for a figure, or None."""
+        design = self.project.design_spectrum
+        if design is None:
+            return None
+        return (np.asarray(periods), design.spectrum().sa_g(np.asarray(periods)),
+                _design_label(design))
+
     def _figure(self, path: str, function: str, **kwargs) -> str:
         self.figures.append(FigureSpec(path, function, kwargs))
         return path
@@ -157,6 +165,8 @@ class SiteContext:
             rows.append({"id": item.record.id, "file": item.spec.file,
                          "file_html": page_name(item.record.id),
                          "scale": number(item.spec.scale),
+                         "suite_factor": number(item.scale_factor),
+                         "total_scale": number(item.spec.scale * item.scale_factor),
                          "pga": d.show(im.pga_m_s2, "acceleration"),
                          "pgv": d.show(im.pgv_m_s, "velocity"),
                          "arias": f"{number(im.arias_m_s)} m/s",
@@ -238,7 +248,8 @@ class SiteContext:
             "psa": self._figure(f"figures/record-{rid}-psa.svg", "spectra_figure",
                                 periods_s=spectrum.periods_s, curves=psa,
                                 ylabel="Pseudo-spectral acceleration [g]",
-                                highlight_periods=self.system_periods),
+                                highlight_periods=self.system_periods,
+                                design=self._design(spectrum.periods_s)),
             "sd": self._figure(f"figures/record-{rid}-sd.svg", "spectra_figure",
                                periods_s=spectrum.periods_s, curves=sd,
                                ylabel=f"Spectral displacement [{d.unit('length')}]",
@@ -284,6 +295,10 @@ class SiteContext:
         index = _suite_damping_index(results)
         periods = results.records[0].spectrum.periods_s
         zeta = results.records[0].spectrum.damping[index]
+        scaling = results.scaling
+        shaded = None
+        if scaling is not None and scaling.period_range_s:
+            shaded = (*scaling.period_range_s, "scaling period range")
         figures = {}
         for key, attr, scale, label in (
                 ("psa", "psa_m_s2", 1.0 / G, "Pseudo-spectral acceleration [g]"),
@@ -291,15 +306,48 @@ class SiteContext:
                  f"Spectral displacement [{d.unit('length')}]")):
             stack = np.array([getattr(r.spectrum, attr)[index] * scale
                               for r in results.records])
-            mean, low, high = _log_stats(stack)
-            curves = [{"label": r.record.id, "values": stack[i], "style": "record"}
-                      for i, r in enumerate(results.records)]
-            curves.append({"label": "mean ± 1σ", "values": mean, "lower": low,
-                           "upper": high, "style": "band"})
-            curves.append({"label": "suite mean", "values": mean, "style": "mean"})
-            figures[key] = self._figure(f"figures/suite-{key}.svg", "spectra_figure",
-                                        periods_s=periods, curves=curves, ylabel=label,
-                                        highlight_periods=self.system_periods)
+            figures[key] = self._figure(
+                f"figures/suite-{key}.svg", "spectra_figure", periods_s=periods,
+                curves=_suite_curves([r.record.id for r in results.records], stack),
+                ylabel=label, highlight_periods=self.system_periods,
+                design=self._design(periods) if key == "psa" else None,
+                shaded_range=shaded if key == "psa" else None)
+        motion_figure, motion_label = None, ""
+        if scaling is not None and scaling.rule == "asce7-16":
+            stack, names = [], []
+            pairs = {p.name: p for p in results.pairs}
+            by_id = {r.record.id: r for r in results.records}
+            for name, members in scaling.motions:
+                if len(members) == 2:
+                    stack.append(np.asarray(pairs[name].rotd.rotd100_psa_g))
+                else:
+                    stack.append(by_id[members[0]].spectrum.psa_m_s2[index] / G)
+                names.append(name)
+            motion_label = "RotD100"
+            motion_figure = self._figure(
+                "figures/suite-rotd100.svg", "spectra_figure", periods_s=periods,
+                curves=_suite_curves(names, np.array(stack)),
+                ylabel="RotD100 pseudo-spectral acceleration [g]",
+                highlight_periods=self.system_periods, design=self._design(periods),
+                shaded_range=shaded)
+        pair_rows = []
+        for pair in results.pairs:
+            rotd = pair.rotd
+            curves = [
+                {"label": f"{pair.h1} (H1)", "values": rotd.psa_h1_g, "style": "record"},
+                {"label": f"{pair.h2} (H2)", "values": rotd.psa_h2_g, "style": "record"},
+                {"label": "geometric mean", "values": rotd.geomean_psa_g,
+                 "style": "emphasis"},
+                {"label": "RotD50", "values": rotd.rotd50_psa_g, "style": "emphasis"},
+                {"label": "RotD100", "values": rotd.rotd100_psa_g, "style": "mean"},
+            ]
+            path = self._figure(f"figures/pair-{pair.name}.svg", "spectra_figure",
+                                periods_s=periods, curves=curves,
+                                ylabel=f"PSA at ζ = {100 * rotd.damping:g} % [g]",
+                                design=self._design(periods))
+            pair_rows.append({"name": pair.name, "h1": pair.h1, "h2": pair.h2,
+                              "h1_file": page_name(pair.h1), "h2_file": page_name(pair.h2),
+                              "figure": path})
         analysis = self.project.analysis
         context = {**self.common("", "Record suite", "suite"), **self._statistic_bits(),
                    "figures": figures, "records": self._record_rows(),
@@ -307,8 +355,58 @@ class SiteContext:
                    "damping_text": ", ".join(f"{100 * z:g} %" for z in analysis.damping),
                    "period_text": f"{len(periods)} periods from {number(periods.min())} s "
                                   f"to {number(periods.max())} s",
-                   "method": analysis.method}
+                   "method": analysis.method, "design": self._design_block(),
+                   "scaling": self._scaling_block(), "motion_figure": motion_figure,
+                   "motion_label": motion_label, "pairs": pair_rows}
         return Page("suite.html", "suite.html", context)
+
+    def _design_block(self) -> dict | None:
+        design = self.project.design_spectrum
+        if design is None:
+            return None
+        return {"label": _design_label(design),
+                "values": [(_DESIGN_KEY_LABELS.get(k, k), v if not isinstance(v, list) else
+                            ", ".join(f"{x:g}" for x in v)) for k, v in design.values.items()]}
+
+    def _scaling_block(self) -> dict | None:
+        scaling = self.results.scaling
+        if scaling is None or scaling.rule == "none":
+            return None
+        criteria = []
+        for c in scaling.result.criteria:
+            margin = c.achieved - c.required if c.comparison == ">=" else \
+                c.required - c.achieved
+            criteria.append({
+                "name": c.name, "source": c.source,
+                "required": f"{c.comparison} {number(c.required)}",
+                "achieved": number(c.achieved), "margin": number(round(margin, 9)),
+                "status": "met" if c.passed else ("warning" if c.severity == "warning"
+                                                  else "not met"),
+                "css": "within" if c.passed else ("warning" if c.severity == "warning"
+                                                  else "exceeds")})
+        errors = [c for c in scaling.result.criteria if not c.passed and
+                  c.severity == "error"]
+        warnings = [c for c in scaling.result.criteria if not c.passed and
+                    c.severity == "warning"]
+        if errors:
+            verdict = f"{len(errors)} scaling criterion/criteria not met."
+        elif warnings:
+            verdict = (f"Every required scaling criterion is met; {len(warnings)} "
+                       f"warning(s) below.")
+        else:
+            verdict = "Every scaling criterion is met."
+        flagged = set()
+        if getattr(scaling.result, "flagged", None) is not None:
+            for (name, members), flag in zip(scaling.motions, scaling.result.flagged):
+                if flag:
+                    flagged.update(members)
+        factors = [{"id": r.id, "factor": number(scaling.factors.get(r.id, 1.0)),
+                    "flag": r.id in flagged} for r in self.project.records]
+        low, high = scaling.period_range_s
+        return {"rule": scaling.rule, "rule_text": _RULE_TEXT[scaling.rule],
+                "range": f"{number(low)} s to {number(high)} s", "criteria": criteria,
+                "verdict": verdict, "ok": not errors, "factors": factors,
+                "notes": list(scaling.notes)}
 
     def system_page(self, system) -> Page:
         results, d = self.results, self.display
@@ -378,7 +476,8 @@ class SiteContext:
         figure = self._figure(f"figures/system-{system.id}-spectra.svg", "spectra_figure",
                               periods_s=periods, curves=spectrum_curves,
                               ylabel=f"PSA at ζ = {100 * damping[z_index]:g} % [g]",
-                              highlight_periods=[system.period_s])
+                              highlight_periods=[system.period_s],
+                              design=self._design(periods))
         context = {**self.common("../", f"System {system.id}", "system", system.id),
                    **self._statistic_bits(),
                    "system": {"id": system.id, "name": system.name,
@@ -393,6 +492,48 @@ class SiteContext:
         pages += [self.record_page(item) for item in self.results.records]
         pages += [self.system_page(system) for system in self.project.systems]
         return pages
+
+
+_DESIGN_KEY_LABELS = {
+    "sds": "S_DS [g]", "sd1": "S_D1 [g]", "tl": "T_L [s]", "level": "level",
+    "agr": "a_gR [g]", "importance_factor": "γ_I", "ground_type": "ground type",
+    "spectrum_type": "spectrum type", "damping": "damping ratio ξ",
+    "periods": "periods [s]", "sa": "Sa [g]",
+}
+
+_RULE_TEXT = {
+    "asce7-16": "ASCE/SEI 7-16 §16.2.3: one factor per motion (pairs share one); the mean "
+                "of the scaled RotD100 spectra is at least 90 % of the target over the "
+                "period range, touching 90 % at one period",
+    "en1998-1": "EN 1998-1 §3.2.3.1.2: one suite factor; mean zero-period value at least "
+                "a_g·S and mean 5 % spectrum at least 90 % of the elastic spectrum over "
+                "the period range",
+    "fit": "per-record factor minimising the log misfit to the target over the period "
+           "range (common practice), times the suite factor",
+}
+
+
+def _design_label(design) -> str:
+    values = design.values
+    if design.kind == "asce7-16":
+        level = "MCE_R" if values.get("level") == "mce" else "design"
+        return (f"ASCE/SEI 7-16 {level} spectrum (S_DS {values['sds']:g} g, S_D1 "
+                f"{values['sd1']:g} g, T_L {values['tl']:g} s)")
+    if design.kind == "en1998-1":
+        return (f"EN 1998-1 type {values['spectrum_type']} elastic spectrum (a_gR "
+                f"{values['agr']:g} g, ground {values['ground_type']})")
+    return "design spectrum (table)"
+
+
+def _suite_curves(names: list[str], stack: np.ndarray) -> list[dict]:
+    """Each record's curve, the log-normal band and the suite mean."""
+    mean, low, high = _log_stats(stack)
+    curves = [{"label": name, "values": stack[i], "style": "record"}
+              for i, name in enumerate(names)]
+    curves.append({"label": "mean ± 1σ", "values": mean, "lower": low, "upper": high,
+                   "style": "band"})
+    curves.append({"label": "suite mean", "values": mean, "style": "mean"})
+    return curves
 
 
 def _processing_text(settings) -> str:
