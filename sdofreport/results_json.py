@@ -72,7 +72,7 @@ def results_document(results: Results) -> dict:
         responses = []
         for spec in project.records:
             response = results.response(system.id, spec.id)
-            responses.append({
+            entry = {
                 "record": spec.id,
                 "peak_displacement_m": finite_or_none(response.peak_displacement_m),
                 "peak_drift_ratio": None if response.peak_drift_ratio is None else
@@ -80,7 +80,19 @@ def results_document(results: Results) -> dict:
                 "peak_base_shear_n": None if response.peak_base_shear_n is None else
                 finite_or_none(response.peak_base_shear_n),
                 "peak_total_accel_g": finite_or_none(response.peak_total_accel_m_s2 / G),
-            })
+            }
+            if response.model != "linear":
+                entry.update({
+                    "ductility": None if response.ductility is None else
+                    finite_or_none(response.ductility),
+                    "residual_displacement_m": finite_or_none(
+                        response.residual_displacement_m),
+                    "peak_force_n": finite_or_none(response.peak_force_n),
+                    "energy": {k: finite_or_none(v) for k, v in response.energy.items()},
+                    "energy_units": "J",
+                    "convergence": response.convergence,
+                })
+            responses.append(entry)
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
                    "ratio": c.ratio, "verdict": c.verdict}
@@ -89,7 +101,8 @@ def results_document(results: Results) -> dict:
             "id": system.id, "name": system.name, "mass_kg": system.mass_kg,
             "stiffness_n_m": system.stiffness_n_m, "period_s": system.period_s,
             "frequency_hz": system.frequency_hz, "damping": system.damping,
-            "height_m": system.height_m, "derivation": "; ".join(system.derivation),
+            "height_m": system.height_m, "kind": system.kind, "model": system.model_name,
+            "derivation": "; ".join(system.derivation),
             "responses": responses, "checks": checks,
         })
     document = {"schema": RESULTS_SCHEMA, "generator": f"sdofreport {__version__}",

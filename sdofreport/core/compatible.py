@@ -195,14 +195,23 @@ class _Matcher:
         self.time = np.arange(n) * dt
         # Discrete impulse response of every grid oscillator: the response to one unit
         # sample (a hat function, as the input is linear between samples), counted from
-        # that sample; rows = grid periods [m per (m/s²)]. Exact by linearity.
+        # that sample; rows = grid periods [m per (m/s²)]. By linearity and time
+        # invariance, convolving a record with it gives the exact response at the
+        # samples (the first sample's half hat aside, negligible under an envelope).
         delta = np.zeros(n + 1)
         delta[1] = 1.0
         self.impulse = exact_response(delta, dt, grid, zeta)[0][:, 1:]
+        self._fft_size = 2 * n
+        self._impulse_fft = np.fft.rfft(self.impulse, n=self._fft_size, axis=1)
         self._lags: dict[int, float] = {}
         # Half-power bandwidth (±ζ in ln f) expressed in grid steps.
         step = math.log(grid[1] / grid[0])
         self.half_width = max(1, int(math.ceil(zeta / step)))
+
+    def displacement(self, acc):
+        """Relative displacement of every grid oscillator at the samples [m], (nC, n)."""
+        spectrum = np.fft.rfft(acc, n=self._fft_size)
+        return np.fft.irfft(self._impulse_fft * spectrum, n=self._fft_size, axis=1)[:, : self.n]
 
     def psa(self, acc):
         return response_spectrum(acc, self.dt, self.grid, self.zeta).psa_m_s2[0] / G
@@ -248,7 +257,7 @@ class _Matcher:
 
     def adjust(self, acc, psa_g, threshold):
         """One pass: wavelets at the failing periods, fitted to every period's misfit."""
-        u = exact_response(acc, self.dt, self.grid, self.zeta)[0]
+        u = self.displacement(acc)
         peak = np.argmax(np.abs(u), axis=1)
         u_peak = u[np.arange(self.grid.size), peak]
         chosen = self._select(psa_g / self.target - 1.0, peak, threshold)
@@ -258,8 +267,7 @@ class _Matcher:
         wanted = u_peak * (self.target / psa_g - 1.0)
         waves = np.empty((len(chosen), self.n))
         for row, j in enumerate(chosen):
-            w = self._wavelet(j, peak[j] * self.dt - self._lag(j)) * self.shape
-            waves[row] = baseline_correction(w, self.dt, _BASELINE_ORDER)
+            waves[row] = self._wavelet(j, peak[j] * self.dt - self._lag(j)) * self.shape
         reversed_h = np.zeros((self.grid.size, self.n))
         for i, k in enumerate(peak):
             reversed_h[i, : k + 1] = self.impulse[i, k::-1]
@@ -272,7 +280,9 @@ class _Matcher:
         normal = scaled.T @ scaled
         normal += _REGULARISATION * np.mean(np.diag(normal)) * np.eye(len(chosen))
         amplitude = col * np.linalg.solve(normal, scaled.T @ (wanted * row))
-        return acc + amplitude @ waves
+        # The baseline of the sum is removed (a projection, so ``acc`` is unchanged by
+        # it); the influence above ignores this small low-order polynomial.
+        return acc + baseline_correction(amplitude @ waves, self.dt, _BASELINE_ORDER)
 
 
 def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, *, seed,

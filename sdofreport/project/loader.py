@@ -34,7 +34,14 @@ from sdofreport.project.model import (
     SystemSpec,
 )
 from sdofreport.project.quantities import QuantityError, parse_quantity
-from sdofreport.project.schema import DESIGN_SPECTRUM_KEYS, SECTIONS, TOP_LEVEL, KeySpec
+from sdofreport.core.units import G
+from sdofreport.project.schema import (
+    DESIGN_SPECTRUM_KEYS,
+    SECTIONS,
+    SYSTEM_KIND_KEYS,
+    TOP_LEVEL,
+    KeySpec,
+)
 
 _ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
 
@@ -352,7 +359,91 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
         problems.add(f"{where}.drift_ratio", "a drift-ratio limit needs the system's "
                      "height")
     return Limits(values["displacement"], values["drift_ratio"], values["base_shear"],
-                  values["total_accel"])
+                  values["total_accel"], values["ductility"],
+                  values["residual_displacement"], values["bearing_displacement"])
+
+
+_COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits")
+
+
+def _network_to_si(node, path: str, problems: _Problems):
+    """A copy of a spring network with every leaf stiffness converted to N/m."""
+    if isinstance(node, dict):
+        out = {}
+        for key, value in node.items():
+            if key == "k":
+                try:
+                    out[key] = parse_quantity(value, "stiffness")
+                except QuantityError as exc:
+                    problems.add(f"{path}.k", str(exc))
+                    return None
+            elif isinstance(value, list):
+                items = [_network_to_si(v, f"{path}.{key}[{i}]", problems)
+                         for i, v in enumerate(value)]
+                if any(item is None for item in items):
+                    return None
+                out[key] = items
+            else:
+                out[key] = value
+        return out
+    return node
+
+
+def _build(kind: str, values: dict, where: str, problems: _Problems):
+    """Call the kind's builder; its ValueError becomes a problem naming the key."""
+    from sdofreport.core import builders
+
+    try:
+        if kind == "lumped":
+            return builders.lumped(values.get("mass"), values.get("stiffness"),
+                                   values.get("period"))
+        if kind == "columns":
+            return builders.columns(values["count"], values["elastic_modulus"],
+                                    values["second_moment"], values["height"],
+                                    values["end_condition"], values["mass"])
+        if kind == "springs":
+            return builders.springs(values["network"], values["mass"])
+        if kind == "static-deflection":
+            return builders.static_deflection(values["weight"], values["deflection"])
+        if kind == "sliding-pendulum":
+            return builders.sliding_pendulum(values["weight"], values["radius"],
+                                             values["friction"])
+        return builders.hanging(values["mass"], values["pivot_inertia"],
+                                values["pivot_to_centre"])
+    except ValueError as exc:
+        text = str(exc)
+        location = where
+        if text.startswith("network"):
+            location = f"{where}.{text.split(' ', 1)[0].rstrip(':')}"
+        problems.add(location, text)
+        return None
+
+
+def _nonlinear_model(kind: str, values: dict, derived, where: str, problems: _Problems):
+    """The engine's model dict for a yielding or sliding system, or None (linear)."""
+    if kind == "sliding-pendulum":
+        return {"model": "sliding-pendulum", "weight_n": values["weight"],
+                "radius_m": values["radius"], "friction": values["friction"],
+                "slip_displacement_m": values.get("slip_displacement", 0.25e-3)}
+    strength = values.get("yield_strength")
+    displacement = values.get("yield_displacement")
+    if strength is None and displacement is None:
+        if "post_yield_ratio" in values and values.get("_post_given"):
+            problems.add(f"{where}.post_yield_ratio", "applies only with yield_strength "
+                         "or yield_displacement")
+        return None
+    if strength is not None and displacement is not None:
+        problems.add(where, "give yield_strength or yield_displacement, not both")
+        return None
+    if derived.stiffness_n_m is None or derived.mass_kg is None:
+        problems.add(where, "a yielding system needs its mass and stiffness (give mass "
+                     "with stiffness or period)")
+        return None
+    if strength is None:
+        strength = derived.stiffness_n_m * displacement
+    return {"model": "bilinear", "stiffness_n_m": derived.stiffness_n_m,
+            "yield_strength_n": strength, "post_yield_ratio": values.get(
+                "post_yield_ratio", 0.0), "mass_kg": derived.mass_kg}
 
 
 def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
@@ -361,46 +452,69 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
     system_id = _read_id(table, where, seen, problems)
     name = _read_value(table, spec["name"], where, problems)
     damping = _read_value(table, spec["damping"], where, problems)
-    mass = _read_value(table, spec["mass"], where, problems)
-    stiffness = _read_value(table, spec["stiffness"], where, problems)
-    period = _read_value(table, spec["period"], where, problems)
-    height = _read_value(table, spec["height"], where, problems)
-    ok = all(_positive(v, f"{where}.{k}", k, problems, u) for k, v, u in (
-        ("mass", mass, "kg"), ("stiffness", stiffness, "N/m"), ("period", period, "s"),
-        ("height", height, "m")))
+    kind = _read_value(table, spec["kind"], where, problems) or "lumped"
+    required, optional = SYSTEM_KIND_KEYS[kind]
+    before = len(problems.items)
+    for key in table:
+        if key in spec and key not in _COMMON_SYSTEM_KEYS and key not in required + \
+                optional:
+            problems.add(f"{where}.{key}", f"does not apply to kind {kind!r}; it reads "
+                         f"{', '.join(required + optional) or 'mass, stiffness, period'}")
+    values: dict = {}
+    for key in required + optional + ("height",):
+        if key not in table:
+            if key in required:
+                problems.add(f"{where}.{key}", f"missing; kind {kind!r} needs it "
+                             f"({spec[key].description})")
+            continue
+        if key == "network":
+            values[key] = _network_to_si(table[key], f"{where}.network", problems)
+            continue
+        value = _read_value(table, spec[key], where, problems)
+        if value is None:
+            continue
+        if spec[key].type in ("quantity", "number", "integer") and key != "post_yield_ratio" \
+                and not value > 0:
+            problems.add(f"{where}.{key}", f"{key} must be greater than 0, found "
+                         f"{table[key]!r}")
+            continue
+        values[key] = value
+    values["_post_given"] = "post_yield_ratio" in table
+    if kind == "sliding-pendulum" and "friction" in values and values["friction"] <= 0:
+        pass  # μ = 0 is a frictionless pendulum: allowed
+    if kind == "lumped":
+        given = tuple(k for k in ("mass", "stiffness", "period") if k in table)
+        if given not in {("mass", "stiffness"), ("mass", "period"), ("period",)}:
+            problems.add(where, f"expected mass + stiffness, mass + period, or period "
+                         f"alone; found {' + '.join(given) if given else 'none of them'}")
+            return None
+    if len(problems.items) > before or None in (system_id, name, damping):
+        return None
+    derived = _build(kind, values, where, problems)
+    if derived is None:
+        return None
+    model = _nonlinear_model(kind, values, derived, where, problems)
+    height = values.get("height")
+    mass = derived.mass_kg
+    if kind in ("static-deflection", "sliding-pendulum"):
+        mass = values["weight"] / G
     limits = _read_limits(table.get("limits", {}), f"{where}.limits",
-                          mass if "mass" in table else None,
-                          height if "height" in table else None, problems)
-    given = tuple(k for k in ("mass", "stiffness", "period") if k in table)
-    allowed = {("mass", "stiffness"), ("mass", "period"), ("period",)}
-    if given not in allowed:
-        problems.add(where, f"expected mass + stiffness, mass + period, or period alone; "
-                     f"found {' + '.join(given) if given else 'none of them'}")
-        return None
-    if not ok or None in (system_id, name, damping):
-        return None
-    derivation: list[str] = []
-    if given == ("mass", "stiffness"):
-        if mass is None or stiffness is None:
-            return None
-        period = 2.0 * math.pi * math.sqrt(mass / stiffness)
-        derivation.append(f"T = 2π √(m/k) = 2π √({mass:.6g} kg / {stiffness:.6g} N/m) "
-                          f"= {period:.6g} s")
-    elif given == ("mass", "period"):
-        if mass is None or period is None:
-            return None
-        stiffness = mass * (2.0 * math.pi / period) ** 2
-        derivation.append(f"k = m (2π/T)² = {mass:.6g} kg × (2π / {period:.6g} s)² "
-                          f"= {stiffness:.6g} N/m")
-    else:
-        if period is None:
-            return None
-        derivation.append(f"T = {period:.6g} s as given (no mass: forces are not "
-                          "computed)")
-    derivation.append(f"f = 1/T = {1.0 / period:.6g} Hz; ω = 2π/T = "
-                      f"{2.0 * math.pi / period:.6g} rad/s")
-    return SystemSpec(system_id, name, damping, period, mass, stiffness, height, limits,
-                      tuple(derivation))
+                          mass if mass is not None else None, height, problems)
+    if limits.ductility is not None and (model is None or model["model"] != "bilinear"):
+        problems.add(f"{where}.limits.ductility", "a ductility limit needs a yielding "
+                     "system (yield_strength or yield_displacement)")
+    if limits.bearing_displacement_m is not None and kind != "sliding-pendulum":
+        problems.add(f"{where}.limits.bearing_displacement", "applies only to kind "
+                     "'sliding-pendulum'")
+    stiffness = derived.stiffness_n_m
+    if kind == "hanging":
+        # Linearised compound pendulum under base acceleration: the centre of mass moves
+        # as an oscillator driven by Γ üg with Γ = m d²/I (moments about the moving pivot).
+        gamma = values["mass"] * values["pivot_to_centre"] ** 2 / values["pivot_inertia"]
+        model = {"model": "linear", "participation": gamma}
+    inputs = {k: v for k, v in values.items() if not k.startswith("_")}
+    return SystemSpec(system_id, name, damping, derived.period_s, mass, stiffness, height,
+                      limits, tuple(derived.derivation), kind, model, inputs)
 
 
 def _read_systems(items, problems: _Problems) -> list[SystemSpec]:

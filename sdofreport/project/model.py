@@ -92,12 +92,17 @@ class Limits:
     drift_ratio: float | None = None
     base_shear_n: float | None = None
     total_accel_m_s2: float | None = None
+    ductility: float | None = None
+    residual_displacement_m: float | None = None
+    bearing_displacement_m: float | None = None
 
     def items(self) -> list[tuple[str, float]]:
         """(quantity, limit) pairs that are set, in a fixed order."""
-        names = ("displacement", "drift_ratio", "base_shear", "total_accel")
+        names = ("displacement", "drift_ratio", "base_shear", "total_accel", "ductility",
+                 "residual_displacement", "bearing_displacement")
         values = (self.displacement_m, self.drift_ratio, self.base_shear_n,
-                  self.total_accel_m_s2)
+                  self.total_accel_m_s2, self.ductility, self.residual_displacement_m,
+                  self.bearing_displacement_m)
         return [(n, v) for n, v in zip(names, values) if v is not None]
 
 
@@ -114,10 +119,18 @@ class SystemSpec:
     height_m: float | None = None
     limits: Limits = field(default_factory=Limits)
     derivation: tuple[str, ...] = ()  # formulas used, human readable
+    kind: str = "lumped"
+    model: dict | None = None  # nonlinear model parameters for the engine (SI)
+    inputs: dict = field(default_factory=dict)  # the builder's inputs (SI), for display
 
     @property
     def frequency_hz(self) -> float:
         return 1.0 / self.period_s
+
+    @property
+    def model_name(self) -> str:
+        """``linear``, ``bilinear`` or ``sliding-pendulum``."""
+        return (self.model or {}).get("model", "linear")
 
 
 @dataclass(frozen=True)

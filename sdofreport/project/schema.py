@@ -39,6 +39,24 @@ DESIGN_SPECTRUM_KEYS: dict[str, dict[str, str]] = {
     "table": {"periods": "table_periods_s", "sa": "table_sa_g"},
 }
 
+#: How a system may be described (the builders of sdofreport.core.builders).
+SYSTEM_KINDS = ("lumped", "columns", "springs", "static-deflection", "sliding-pendulum",
+                "hanging")
+
+#: Keys each system kind reads besides id, name, kind, damping, height and limits.
+SYSTEM_KIND_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
+    # kind: (required, optional)
+    "lumped": ((), ("mass", "stiffness", "period", "yield_strength", "yield_displacement",
+                    "post_yield_ratio")),
+    "columns": (("count", "elastic_modulus", "second_moment", "height", "end_condition",
+                 "mass"), ("yield_strength", "yield_displacement", "post_yield_ratio")),
+    "springs": (("network", "mass"), ("yield_strength", "yield_displacement",
+                                      "post_yield_ratio")),
+    "static-deflection": (("weight", "deflection"), ()),
+    "sliding-pendulum": (("weight", "radius", "friction"), ("slip_displacement",)),
+    "hanging": (("mass", "pivot_inertia", "pivot_to_centre"), ()),
+}
+
 #: Unit systems the pages may be shown in (results.json always stays SI).
 DISPLAY_UNITS = ("SI", "US")
 
@@ -173,15 +191,55 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 example='"frame"'),
         KeySpec("name", "text", "Descriptive name.", required=True,
                 example='"Cold-store portal frame"'),
+        KeySpec("kind", "choice", "How the system is described: lumped (mass with "
+                "stiffness or period), columns, springs, static-deflection, "
+                "sliding-pendulum or hanging.", default="lumped", choices=SYSTEM_KINDS,
+                example='"columns"'),
         KeySpec("damping", "ratio", "Damping ratio (fraction of critical).", required=True,
                 example="0.05"),
-        KeySpec("mass", "quantity", "Mass.", dimension="mass", example='"120 t"'),
+        KeySpec("mass", "quantity", "Mass (lumped, columns, springs, hanging).",
+                dimension="mass", example='"120 t"'),
         KeySpec("stiffness", "quantity", "Lateral stiffness.", dimension="stiffness",
                 example='"4.2 MN/m"'),
         KeySpec("period", "quantity", "Natural period.", dimension="time",
                 example='"0.35 s"'),
-        KeySpec("height", "quantity", "Height used for the drift ratio.",
-                dimension="length", example='"6 m"'),
+        KeySpec("height", "quantity", "Height used for the drift ratio (columns: the "
+                "column height).", dimension="length", example='"6 m"'),
+        KeySpec("count", "integer", "columns: number of columns.", example="4"),
+        KeySpec("elastic_modulus", "quantity", "columns: Young's modulus E.",
+                dimension="pressure", example='"200 GPa"'),
+        KeySpec("second_moment", "quantity", "columns: second moment of area I of one "
+                "column about the bending axis.", dimension="second_moment",
+                example='"8.36e-5 m**4"'),
+        KeySpec("end_condition", "choice", "columns: fixed-fixed (both ends fixed "
+                "against rotation, 12EI/h³) or fixed-pinned (one end pinned, 3EI/h³).",
+                choices=("fixed-fixed", "fixed-pinned"), example='"fixed-fixed"'),
+        KeySpec("network", "table", "springs: a spring network; a node is {k = ...}, "
+                "{series = [nodes]} or {parallel = [nodes]}.",
+                example='{ series = [{ k = "80 MN/m" }, { parallel = [{ k = "3 MN/m" }, '
+                        '{ k = "3 MN/m" }] }] }'),
+        KeySpec("weight", "quantity", "static-deflection, sliding-pendulum: supported "
+                "weight W.", dimension="force", example='"850 kN"'),
+        KeySpec("deflection", "quantity", "static-deflection: static deflection δ under "
+                "the weight.", dimension="length", example='"12 mm"'),
+        KeySpec("radius", "quantity", "sliding-pendulum: effective radius R of the "
+                "curved sliding surface.", dimension="length", example='"2.2 m"'),
+        KeySpec("friction", "ratio", "sliding-pendulum: friction coefficient μ.",
+                example="0.06"),
+        KeySpec("slip_displacement", "quantity", "sliding-pendulum: elastic displacement "
+                "before sliding, which regularises friction (default 0.25 mm: common "
+                "practice, no source).", dimension="length", default=0.25e-3,
+                example='"0.25 mm"'),
+        KeySpec("pivot_inertia", "quantity", "hanging: moment of inertia about the pivot.",
+                dimension="inertia", example='"2400 kg*m**2"'),
+        KeySpec("pivot_to_centre", "quantity", "hanging: distance from the pivot to the "
+                "centre of mass.", dimension="length", example='"1.5 m"'),
+        KeySpec("yield_strength", "quantity", "Bilinear hysteresis: yield strength F_y "
+                "(or give yield_displacement).", dimension="force", example='"300 kN"'),
+        KeySpec("yield_displacement", "quantity", "Bilinear hysteresis: yield "
+                "displacement u_y.", dimension="length", example='"25 mm"'),
+        KeySpec("post_yield_ratio", "ratio", "Bilinear hysteresis: post-yield stiffness "
+                "ratio α (0 = elastic-perfectly plastic).", default=0.0, example="0.03"),
         KeySpec("limits", "table", "Limits checked against the demands.",
                 example="{ displacement = \"40 mm\" }"),
     ),
@@ -194,6 +252,12 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 dimension="force", example='"450 kN"'),
         KeySpec("total_accel", "quantity", "Peak total acceleration limit.",
                 dimension="acceleration", example='"0.8 g"'),
+        KeySpec("ductility", "number", "Ductility demand limit μ = max|u|/u_y (yielding "
+                "systems).", example="4.0"),
+        KeySpec("residual_displacement", "quantity", "Residual (final) displacement "
+                "limit.", dimension="length", example='"10 mm"'),
+        KeySpec("bearing_displacement", "quantity", "sliding-pendulum: displacement "
+                "capacity of the bearing.", dimension="length", example='"250 mm"'),
     ),
 }
 

@@ -408,23 +408,31 @@ class SiteContext:
                 "verdict": verdict, "ok": not errors, "factors": factors,
                 "notes": list(scaling.notes)}
 
-    def system_page(self, system) -> Page:
-        results, d = self.results, self.display
-        properties = []
+    def _properties(self, system) -> list[dict]:
+        d = self.display
+        rows = [{"name": "Description", "value": _KIND_TEXT[system.kind],
+                 "basis": f"kind = {system.kind}"}]
+        for key, value in system.inputs.items():
+            if key in _INPUT_LABELS and value is not None:
+                dimension = _INPUT_DIMENSIONS.get(key)
+                if isinstance(value, str):
+                    shown = value
+                elif dimension in d.table:
+                    shown = d.show(value, dimension)
+                else:
+                    shown = f"{number(value)} {_SI_LABELS.get(dimension, '')}".strip()
+                rows.append({"name": _INPUT_LABELS.get(key, key), "value": shown,
+                             "basis": "as given"})
         if system.mass_kg is not None:
-            properties.append({"name": "Mass", "value": d.show(system.mass_kg, "mass"),
-                               "basis": "as given"})
+            rows.append({"name": "Mass m", "value": d.show(system.mass_kg, "mass"),
+                         "basis": _basis(system, ("m =",), "as given")})
         if system.stiffness_n_m is not None:
-            basis = "as given" if not any(s.startswith("k =") for s in system.derivation) \
-                else next(s for s in system.derivation if s.startswith("k ="))
-            properties.append({"name": "Lateral stiffness",
-                               "value": d.show(system.stiffness_n_m, "stiffness"),
-                               "basis": basis})
-        period_basis = next((s for s in system.derivation if s.startswith("T =")),
-                            "as given")
-        properties += [
+            rows.append({"name": "Lateral stiffness k",
+                         "value": d.show(system.stiffness_n_m, "stiffness"),
+                         "basis": _basis(system, ("k =", "k_eq", "network"), "as given")})
+        rows += [
             {"name": "Natural period T", "value": f"{number(system.period_s)} s",
-             "basis": period_basis},
+             "basis": _basis(system, ("T =",), "as given")},
             {"name": "Natural frequency f", "value": f"{number(system.frequency_hz)} Hz",
              "basis": "f = 1/T"},
             {"name": "Circular frequency ω", "value":
@@ -433,18 +441,49 @@ class SiteContext:
              "basis": "as given (fraction of critical)"},
         ]
         if system.height_m is not None:
-            properties.append({"name": "Height", "value": d.show(system.height_m, "length"),
-                               "basis": "as given; drift ratio = displacement / height"})
+            rows.append({"name": "Height h", "value": d.show(system.height_m, "length"),
+                         "basis": "as given; drift ratio = displacement / h"})
+        model = system.model or {}
+        if system.model_name == "bilinear":
+            fy = model["yield_strength_n"]
+            rows += [
+                {"name": "Yield strength F_y", "value": d.show(fy, "force"),
+                 "basis": "as given" if "yield_strength" in system.inputs else
+                 "F_y = k u_y"},
+                {"name": "Yield displacement u_y", "value":
+                 d.show(fy / model["stiffness_n_m"], "length"), "basis": "u_y = F_y / k"},
+                {"name": "Post-yield stiffness ratio α",
+                 "value": number(model["post_yield_ratio"]),
+                 "basis": "bilinear, kinematic hardening (α = 0: elastic-perfectly "
+                          "plastic)"}]
+        elif system.model_name == "sliding-pendulum":
+            rows.append({"name": "Friction regularisation", "value":
+                         d.show(model["slip_displacement_m"], "length"),
+                         "basis": "elastic displacement before sliding (common practice, "
+                                  "no source)"})
+        elif model.get("participation") is not None:
+            rows.append({"name": "Participation Γ", "value": number(model["participation"]),
+                         "basis": "Γ = m d²/I: the centre of mass obeys ü + 2ζωu̇ + ω²u "
+                                  "= −Γ üg (linearised compound pendulum)"})
+        return rows
+
+    def system_page(self, system) -> Page:
+        results, d = self.results, self.display
+        nonlinear = system.model_name != "linear"
         checks = [c for c in results.checks if c.system_id == system.id]
-        peaks, histories = [], []
+        peaks, histories, energies = [], [], []
         responses = [results.response(system.id, r.id) for r in self.project.records]
         for response in responses:
             rid = response.record_id
-            peaks.append({"record": rid, "file_html": page_name(rid), "summary": False,
-                          "displacement": d.show(response.peak_displacement_m, "length"),
-                          "drift": number(response.peak_drift_ratio),
-                          "shear": d.show(response.peak_base_shear_n, "force"),
-                          "accel": d.show(response.peak_total_accel_m_s2, "acceleration")})
+            row = {"record": rid, "file_html": page_name(rid), "summary": False,
+                   "displacement": d.show(response.peak_displacement_m, "length"),
+                   "drift": number(response.peak_drift_ratio),
+                   "shear": d.show(response.peak_base_shear_n, "force"),
+                   "accel": d.show(response.peak_total_accel_m_s2, "acceleration")}
+            if nonlinear:
+                row.update({"ductility": number(response.ductility),
+                            "residual": d.show(response.residual_displacement_m, "length")})
+            peaks.append(row)
             panels = [
                 ("Relative displacement", d.convert(1.0, "length") * response.displacement_m,
                  f"Displacement [{d.unit('length')}]"),
@@ -453,26 +492,50 @@ class SiteContext:
             ]
             path = self._figure(f"figures/system-{system.id}-{rid}.svg", "histories_figure",
                                 time_s=response.time_s, panels=panels)
-            histories.append({"record": rid, "file_html": page_name(rid), "figure": path})
+            item = {"record": rid, "file_html": page_name(rid), "figure": path,
+                    "loop": None}
+            if nonlinear:
+                item["loop"] = self._figure(
+                    f"figures/system-{system.id}-{rid}-loop.svg", "hysteresis_figure",
+                    displacement=d.convert(1.0, "length") * response.displacement_m,
+                    force=d.convert(1.0, "force") * response.force_n,
+                    xlabel=f"Displacement [{d.unit('length')}]",
+                    ylabel=f"Restoring force [{d.unit('force')}]")
+                energy = response.energy
+                imbalance = energy["imbalance"]
+                energies.append({
+                    "record": rid, "input": d.show(energy["input_j"], "energy"),
+                    "kinetic": d.show(energy["kinetic_j"], "energy"),
+                    "damping": d.show(energy["damping_j"], "energy"),
+                    "strain": d.show(energy["strain_j"], "energy"),
+                    "hysteretic": d.show(energy["hysteretic_j"], "energy"),
+                    "imbalance": f"{100 * imbalance:.2f} %",
+                    "flag": imbalance > ENERGY_IMBALANCE_FLAG,
+                    "convergence": _convergence_text(response.convergence)})
+            histories.append(item)
         for label, reducer in (("mean", np.mean), ("maximum", np.max)):
-            def stat(attr, dim):
+            def stat(attr, dim, absolute=False):
                 values = [getattr(r, attr) for r in responses]
                 if any(v is None for v in values):
                     return "–"
+                values = [abs(v) for v in values] if absolute else values
                 value = float(reducer(values))
                 return number(value) if dim is None else d.show(value, dim)
-            peaks.append({"record": label, "file_html": None, "summary": True,
-                          "displacement": stat("peak_displacement_m", "length"),
-                          "drift": stat("peak_drift_ratio", None),
-                          "shear": stat("peak_base_shear_n", "force"),
-                          "accel": stat("peak_total_accel_m_s2", "acceleration")})
-        spectrum_curves = []
+            row = {"record": label, "file_html": None, "summary": True,
+                   "displacement": stat("peak_displacement_m", "length"),
+                   "drift": stat("peak_drift_ratio", None),
+                   "shear": stat("peak_base_shear_n", "force"),
+                   "accel": stat("peak_total_accel_m_s2", "acceleration")}
+            if nonlinear:
+                row.update({"ductility": stat("ductility", None),
+                            "residual": stat("residual_displacement_m", "length", True)})
+            peaks.append(row)
         periods = results.records[0].spectrum.periods_s
         damping = results.records[0].spectrum.damping
         z_index = int(np.argmin(np.abs(damping - system.damping)))
-        for item in results.records:
-            spectrum_curves.append({"label": item.record.id, "style": "record",
-                                    "values": item.spectrum.psa_m_s2[z_index] / G})
+        spectrum_curves = [{"label": item.record.id, "style": "record",
+                            "values": item.spectrum.psa_m_s2[z_index] / G}
+                           for item in results.records]
         figure = self._figure(f"figures/system-{system.id}-spectra.svg", "spectra_figure",
                               periods_s=periods, curves=spectrum_curves,
                               ylabel=f"PSA at ζ = {100 * damping[z_index]:g} % [g]",
@@ -481,9 +544,13 @@ class SiteContext:
         context = {**self.common("../", f"System {system.id}", "system", system.id),
                    **self._statistic_bits(),
                    "system": {"id": system.id, "name": system.name,
-                              "damping": f"{100 * system.damping:.3g} %"},
-                   "properties": properties, "checks": self._check_rows(checks),
-                   "peaks": peaks, "histories": histories,
+                              "damping": f"{100 * system.damping:.3g} %",
+                              "model": _MODEL_TEXT[system.model_name],
+                              "derivation": list(system.derivation)},
+                   "properties": self._properties(system),
+                   "checks": self._check_rows(checks), "nonlinear": nonlinear,
+                   "peaks": peaks, "histories": histories, "energies": energies,
+                   "energy_flag": f"{100 * ENERGY_IMBALANCE_FLAG:g} %",
                    "figures": {"spectrum": figure}}
         return Page(f"systems/{page_name(system.id)}", "system.html", context)
 
@@ -492,6 +559,59 @@ class SiteContext:
         pages += [self.record_page(item) for item in self.results.records]
         pages += [self.system_page(system) for system in self.project.systems]
         return pages
+
+
+#: Energy-balance imbalance above which a response is flagged (issue requirement; a few
+#: percent at most is expected for a fine step, Uang & Bertero 1990).
+ENERGY_IMBALANCE_FLAG = 0.02
+
+_KIND_TEXT = {
+    "lumped": "lumped mass on a spring",
+    "columns": "mass on parallel columns (sway stiffness per column c·EI/h³)",
+    "springs": "mass on a series/parallel spring network",
+    "static-deflection": "weight on a spring of measured static deflection",
+    "sliding-pendulum": "platform on curved sliding (friction pendulum) bearings",
+    "hanging": "suspended item, compound pendulum",
+}
+
+_MODEL_TEXT = {
+    "linear": "linear elastic",
+    "bilinear": "bilinear hysteresis with kinematic hardening (Newmark average "
+                "acceleration with Newton–Raphson iteration, Chopra §5.7)",
+    "sliding-pendulum": "sliding pendulum: (W/R)·u + μW·sgn(u̇), friction regularised "
+                        "(Zayas, Low & Mahin 1990); Newmark average acceleration with "
+                        "Newton–Raphson iteration",
+}
+
+_INPUT_LABELS = {
+    "count": "Number of columns n", "elastic_modulus": "Young's modulus E",
+    "second_moment": "Second moment of area I", "end_condition": "End condition",
+    "weight": "Weight W", "deflection": "Static deflection δ", "radius": "Radius R",
+    "friction": "Friction coefficient μ", "pivot_inertia": "Inertia about the pivot I",
+    "pivot_to_centre": "Pivot to centre of mass d",
+}
+
+_INPUT_DIMENSIONS = {
+    "count": None, "elastic_modulus": "pressure", "second_moment": "second_moment",
+    "weight": "force", "deflection": "length", "radius": "length", "friction": None,
+    "pivot_inertia": "inertia", "pivot_to_centre": "length",
+}
+
+_SI_LABELS = {"pressure": "Pa", "second_moment": "m⁴", "inertia": "kg·m²"}
+
+
+def _basis(system, prefixes: tuple[str, ...], default: str) -> str:
+    """The derivation lines that start with one of ``prefixes``, or ``default``."""
+    lines = [line for line in system.derivation if line.startswith(prefixes)]
+    return "; ".join(lines) if lines else default
+
+
+def _convergence_text(convergence: dict | None) -> str:
+    if not convergence:
+        return ""
+    state = "converged" if convergence["converged"] else "NOT converged"
+    return (f"{state}; at most {convergence['max_iterations_used']} iterations, "
+            f"{convergence['subdivided_steps']} steps subdivided")
 
 
 _DESIGN_KEY_LABELS = {

@@ -38,14 +38,18 @@ DISPLAY_UNITS: dict[str, dict[str, tuple[str, float]]] = {
 
 #: Dimension of each checked quantity (None: dimensionless ratio).
 CHECK_DIMENSIONS = {"displacement": "length", "drift_ratio": None, "base_shear": "force",
-                    "total_accel": "acceleration"}
+                    "total_accel": "acceleration", "ductility": None,
+                    "residual_displacement": "length", "bearing_displacement": "length"}
 
 #: Unit of each checked quantity in results.json (SI).
 CHECK_SI_UNITS = {"displacement": "m", "drift_ratio": "-", "base_shear": "N",
-                  "total_accel": "m/s2"}
+                  "total_accel": "m/s2", "ductility": "-", "residual_displacement": "m",
+                  "bearing_displacement": "m"}
 
 CHECK_LABELS = {"displacement": "Peak displacement", "drift_ratio": "Peak drift ratio",
-                "base_shear": "Peak base shear", "total_accel": "Peak total acceleration"}
+                "base_shear": "Peak base shear", "total_accel": "Peak total acceleration",
+                "ductility": "Ductility demand", "residual_displacement":
+                "Residual displacement", "bearing_displacement": "Bearing displacement"}
 
 
 def number(value: float | None, digits: int = 4) -> str:
