@@ -64,6 +64,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+import scipy.fft
 
 from sdofreport.core.design_spectra import table_spectrum
 from sdofreport.core.exact import exact_response
@@ -201,8 +202,8 @@ class _Matcher:
         delta = np.zeros(n + 1)
         delta[1] = 1.0
         self.impulse = exact_response(delta, dt, grid, zeta)[0][:, 1:]
-        self._fft_size = 2 * n
-        self._impulse_fft = np.fft.rfft(self.impulse, n=self._fft_size, axis=1)
+        self._fft_size = scipy.fft.next_fast_len(2 * n, real=True)
+        self._impulse_fft = scipy.fft.rfft(self.impulse, n=self._fft_size, axis=1)
         self._lags: dict[int, float] = {}
         # Half-power bandwidth (±ζ in ln f) expressed in grid steps.
         step = math.log(grid[1] / grid[0])
@@ -210,8 +211,9 @@ class _Matcher:
 
     def displacement(self, acc):
         """Relative displacement of every grid oscillator at the samples [m], (nC, n)."""
-        spectrum = np.fft.rfft(acc, n=self._fft_size)
-        return np.fft.irfft(self._impulse_fft * spectrum, n=self._fft_size, axis=1)[:, : self.n]
+        spectrum = scipy.fft.rfft(acc, n=self._fft_size)
+        product = self._impulse_fft * spectrum
+        return scipy.fft.irfft(product, n=self._fft_size, axis=1)[:, : self.n]
 
     def psa(self, acc):
         return response_spectrum(acc, self.dt, self.grid, self.zeta).psa_m_s2[0] / G

@@ -545,6 +545,7 @@ class SiteContext:
                    **self._statistic_bits(),
                    "system": {"id": system.id, "name": system.name,
                               "damping": f"{100 * system.damping:.3g} %",
+                              "spectrum_damping": f"{100 * damping[z_index]:g} %",
                               "model": _MODEL_TEXT[system.model_name],
                               "derivation": list(system.derivation)},
                    "properties": self._properties(system),
