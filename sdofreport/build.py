@@ -49,7 +49,8 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
                jobs: int | None = None, cache_dir: str | os.PathLike | None = None,
                use_cache: bool = True, allow_outside: bool = False,
                progress: Progress | None = None, scheduler: str | None = None,
-               dask_local: int | None = None) -> BuildOutcome:
+               dask_local: int | None = None,
+               compare_to: str | os.PathLike | None = None) -> BuildOutcome:
     """
     Validate the project, compute every result, render every page, then write the site.
 
@@ -57,6 +58,11 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     case nothing is written and any previous site at ``output`` is left intact.
     """
     started = time.perf_counter()
+    old = None
+    if compare_to is not None:  # read it first: a bad OLD fails before any work
+        from sdofreport.archive.compare import load_run
+
+        old = load_run(compare_to).results
     project = load_project(project_file)
     _check_inside(project, allow_outside)
     results = run_project(project, jobs=jobs, cache_dir=cache_dir, use_cache=use_cache,
@@ -65,7 +71,14 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     figure_cache = None
     if use_cache:
         figure_cache = ResultCache(Path(cache_dir or default_cache_dir()) / "figures")
-    files = gather_site(results, jobs=jobs or os.cpu_count() or 1, figure_cache=figure_cache)
+    extra = None
+    if old is not None:
+        from sdofreport.archive.compare import revision_page
+
+        def extra(document, fingerprint):
+            return revision_page(old, document, fingerprint=fingerprint)
+    files = gather_site(results, jobs=jobs or os.cpu_count() or 1, figure_cache=figure_cache,
+                        extra_pages=extra)
     write_started = time.perf_counter()
     path = write_site(files, output)
     finished = time.perf_counter()

@@ -150,8 +150,12 @@ def spectrum_command(file, file_format, units, dt_s, damping, periods_text, meth
               help="Send the jobs to a running Dask scheduler (needs sdofreport[dask]).")
 @click.option("--dask-local", type=click.IntRange(min=1), default=None, metavar="N",
               help="Start a local Dask cluster of N worker processes for the jobs.")
+@click.option("--compare-to", "compare_to", default=None, metavar="OLD",
+              type=click.Path(exists=True, path_type=str),
+              help="An earlier run (site folder, packed zip or results.json): add a "
+                   "revision page listing what changed.")
 def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache,
-                  allow_outside, scheduler, dask_local):
+                  allow_outside, scheduler, dask_local, compare_to):
     """Build the review site of a project.
 
     \b
@@ -183,7 +187,8 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
 
     outcome = build_site(project_file, output, jobs=jobs, cache_dir=cache_dir,
                          use_cache=not no_cache, allow_outside=allow_outside,
-                         progress=progress, scheduler=scheduler, dask_local=dask_local)
+                         progress=progress, scheduler=scheduler, dask_local=dask_local,
+                         compare_to=compare_to)
     results = outcome.results
     exceeding = sum(c.verdict == "exceeds limit" for c in results.checks)
     if not quiet:

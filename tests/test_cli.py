@@ -140,3 +140,23 @@ def test_build_refuses_outside_inputs(project_factory, valid_project_text, tmp_p
     ok = CliRunner().invoke(cli, ["build", str(path), "-o", str(tmp_path / "o"), "-q",
                                   "--allow-outside", "--jobs", "1"])
     assert ok.exit_code == 0, ok.output
+
+
+def test_build_compare_to_adds_a_revision_page(project_factory, valid_project_text,
+                                               tmp_path):
+    cache = str(tmp_path / "cache")
+    old = tmp_path / "old"
+    first = run("build", str(project_factory(valid_project_text)), "-o", str(old), "-q",
+                "--jobs", "1", "--cache-dir", cache)
+    assert first.exit_code == 0, first.output
+    revised = valid_project_text.replace('displacement = "50 mm"', 'displacement = "40 mm"')
+    new = tmp_path / "new"
+    second = run("build", str(project_factory(revised, "rev.toml")), "-o", str(new), "-q",
+                 "--jobs", "1", "--cache-dir", cache, "--compare-to", str(old))
+    assert second.exit_code == 0, second.output
+    page = (new / "revision.html").read_text()
+    # The one change made above: the limit 0.05 m -> 0.04 m (relative change -20 %).
+    assert "s1" in page and "0.05" in page and "0.04" in page and "-20" in page
+    manifest = json.loads((new / "manifest.json").read_text())
+    assert "revision.html" in manifest["files"]
+    assert 'href="revision.html"' in (new / "index.html").read_text()

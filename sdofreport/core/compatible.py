@@ -106,6 +106,8 @@ _WAVELET_WIDTH = 1.25
 _WAVELET_CUT = 3.5
 # Periods are selected for a wavelet when their deviation exceeds this share of tolerance.
 _SELECT_SHARE = 0.5
+# Weight of the equations of periods already within the selection threshold.
+_IN_BAND_WEIGHT = 0.3
 # Tikhonov term relative to the mean diagonal of CᵀC.
 _REGULARISATION = 1e-3
 
@@ -277,6 +279,7 @@ class _Matcher:
         # Scale rows by the peak and columns to a unit diagonal so that every period
         # weighs alike (displacements grow as T², so unscaled the long periods dominate).
         row = 1.0 / np.abs(u_peak)
+        row[np.abs(psa_g / self.target - 1.0) <= threshold] *= _IN_BAND_WEIGHT
         col = np.abs(u_peak[chosen]) / influence[chosen, np.arange(len(chosen))]
         scaled = influence * row[:, None] * col[None, :]
         normal = scaled.T @ scaled

@@ -97,9 +97,11 @@ def _log_stats(stack: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
 class SiteContext:
     """Builds every page's context and figure list for one :class:`Results`."""
 
-    def __init__(self, results: Results, fingerprint: str = "") -> None:
+    def __init__(self, results: Results, fingerprint: str = "",
+                 revision: bool = False) -> None:
         self.results = results
         self.fingerprint = fingerprint
+        self.revision = revision
         self.project = results.project
         self.display = Display(self.project.info.display_units)
         self.figures: list[FigureSpec] = []
@@ -122,6 +124,7 @@ class SiteContext:
                             for s in self.project.systems],
             "cautions": {"short": CAUTION_SHORT, "full": CAUTION_FULL},
             "fingerprint": self.fingerprint,
+            "has_revision": self.revision,
         }
 
     def _design(self, periods) -> tuple | None:

@@ -151,14 +151,24 @@ def is_site(folder: Path) -> bool:
     return isinstance(manifest, dict) and manifest.get("schema") == MANIFEST_SCHEMA
 
 
-def gather_site(results: Results, *, jobs: int = 1, figure_cache=None) -> dict[str, bytes]:
-    """Every file of the site (path → bytes), manifest included, computed in memory."""
+def gather_site(results: Results, *, jobs: int = 1, figure_cache=None,
+                extra_pages=None) -> dict[str, bytes]:
+    """
+    Every file of the site (path → bytes), manifest included, computed in memory.
+
+    ``extra_pages(results_document, fingerprint) -> dict[path, bytes]`` may add pages
+    (the revision page of ``--compare-to``); they are linked from the summary page's
+    navigation when one of them is ``revision.html``.
+    """
     files: dict[str, bytes] = {}
-    files["data/results.json"] = _json_text(results_document(results)).encode("utf-8")
+    document = results_document(results)
+    files["data/results.json"] = _json_text(document).encode("utf-8")
     for site_path, source in _input_files(results).items():
         files[site_path] = source.read_bytes()
     run_fingerprint = manifest_document(results, files)["fingerprint"]
-    context = SiteContext(results, fingerprint=run_fingerprint)
+    extra = extra_pages(document, run_fingerprint) if extra_pages else {}
+    context = SiteContext(results, fingerprint=run_fingerprint,
+                          revision="revision.html" in extra)
     pages = context.pages()
     env = _environment()
     for page in pages:
@@ -170,6 +180,7 @@ def gather_site(results: Results, *, jobs: int = 1, figure_cache=None) -> dict[s
     for path, svg in draw_figures(context.figures, jobs, figure_cache).items():
         files[path] = svg.encode("utf-8")
     files["static/style.css"] = (template_dir() / "static" / "style.css").read_bytes()
+    files.update(extra)
     files["data/spectra.csv"] = spectra_csv(results).encode("utf-8")
     files["data/peaks.csv"] = peaks_csv(results).encode("utf-8")
     files[MANIFEST_NAME] = _json_text(manifest_document(results, files)).encode("utf-8")
@@ -221,14 +232,56 @@ def manifest_document(results: Results, files: dict[str, bytes]) -> dict:
     return document
 
 
+def _exchange(a: Path, b: Path) -> bool:
+    """Atomically swap two paths (Linux renameat2 RENAME_EXCHANGE); False if unsupported."""
+    if os.name != "posix":
+        return False
+    try:
+        import ctypes
+        import ctypes.util
+
+        libc = ctypes.CDLL(ctypes.util.find_library("c") or None, use_errno=True)
+        renameat2 = libc.renameat2
+    except (OSError, AttributeError):
+        return False
+    at_fdcwd, rename_exchange = -100, 2
+    result = renameat2(at_fdcwd, os.fsencode(str(a)), at_fdcwd, os.fsencode(str(b)),
+                       rename_exchange)
+    return result == 0
+
+
+def _recover(output: Path) -> None:
+    """Put back a previous site left aside by a build killed between two renames."""
+    if output.exists():
+        return
+    parent = output.resolve().parent
+    for candidate in sorted(parent.glob(f".{output.name}.previous-*/site")):
+        if is_site(candidate):
+            os.replace(candidate, output)
+            log.warning("restored the previous site from %s (an earlier build was "
+                        "interrupted)", candidate.parent)
+            return
+
+
+def _tidy(output: Path) -> None:
+    """Remove staging and retired folders that interrupted builds left beside the site."""
+    parent = output.resolve().parent
+    for pattern in (f".{output.name}.building-*", f".{output.name}.previous-*"):
+        for folder in parent.glob(pattern):
+            shutil.rmtree(folder, ignore_errors=True)
+
+
 def write_site(files: dict[str, bytes], output: str | os.PathLike) -> Path:
     """
     Write ``files`` into ``output`` through a temporary sibling folder and a swap.
 
     Refuses to replace an existing non-empty folder that is not a site built by this
-    tool. A failure at any point leaves the previous site (if any) intact.
+    tool. The swap is atomic where the system allows (Linux ``renameat2`` exchange), so a
+    build killed at any moment leaves either the previous site or the new one in place;
+    elsewhere a previous site left aside is restored by the next build.
     """
     output = Path(output)
+    _recover(output)
     if output.exists() and not output.is_dir():
         raise BuildError(f"{output}: exists and is not a folder; choose another -o.")
     if output.is_dir() and any(output.iterdir()) and not is_site(output):
@@ -237,6 +290,7 @@ def write_site(files: dict[str, bytes], output: str | os.PathLike) -> Path:
                          f"it. Choose an empty or new folder with -o.")
     parent = output.resolve().parent
     parent.mkdir(parents=True, exist_ok=True)
+    _tidy(output)
     staging = Path(tempfile.mkdtemp(prefix=f".{output.name}.building-", dir=parent))
     try:
         for path, data in sorted(files.items()):
@@ -249,10 +303,14 @@ def write_site(files: dict[str, bytes], output: str | os.PathLike) -> Path:
             if file.is_file():
                 file.chmod(0o644)
         if output.exists():
-            retired = Path(tempfile.mkdtemp(prefix=f".{output.name}.previous-", dir=parent))
-            os.replace(output, retired / "site")
-            os.replace(staging, output)
-            shutil.rmtree(retired, ignore_errors=True)
+            if _exchange(staging, output):
+                shutil.rmtree(staging, ignore_errors=True)  # now holds the old site
+            else:
+                retired = Path(tempfile.mkdtemp(prefix=f".{output.name}.previous-",
+                                                dir=parent))
+                os.replace(output, retired / "site")
+                os.replace(staging, output)
+                shutil.rmtree(retired, ignore_errors=True)
         else:
             os.replace(staging, output)
     except BaseException:
