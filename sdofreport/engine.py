@@ -117,6 +117,7 @@ class Results:
     statistic: str
     scaling: SuiteScaling | None = None
     pairs: list[PairResult] = field(default_factory=list)
+    inelastic: dict[str, dict] = field(default_factory=dict)  # record id -> spectra
     timings_s: dict[str, float] = field(default_factory=dict)
     cache_hits: int = 0
     cache_misses: int = 0
@@ -335,6 +336,8 @@ def run_project(project: Project, *, jobs: int | None = None,
     base = {"version": __version__, "method": analysis.method}
     pairs = _pairs(project)
     total = len(records) + len(pairs) + len(records) * len(project.systems)
+    if project.inelastic is not None:
+        total += len(records)
     phase = _Phase(cache, progress, total, {"workers": jobs or os.cpu_count() or 1,
                                             "scheduler": scheduler,
                                             "dask_local": dask_local})
@@ -387,7 +390,22 @@ def run_project(project: Project, *, jobs: int | None = None,
             key = content_hash({**base, "job": "response", "sha": _array_hash(args[0]),
                                 "dt": record.dt_s, "model": model})
             plan.append((f"system {system.id} × record {record.id}", "response", args, key))
+    inelastic_spec = project.inelastic
+    if inelastic_spec is not None:
+        for record in (scaled[r.id] for r in project.records):
+            args = (record.acceleration_m_s2, record.dt_s, inelastic_spec.periods_s,
+                    inelastic_spec.damping, inelastic_spec.ductility,
+                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio)
+            key = content_hash({**base, "job": "inelastic", "sha": _array_hash(args[0]),
+                                "dt": record.dt_s, "spec": dataclasses.asdict(
+                                    inelastic_spec)})
+            plan.append((f"record {record.id} (inelastic spectra)", "inelastic", args,
+                         key))
     outputs = phase.run(plan)
+    inelastic = {}
+    if inelastic_spec is not None:
+        tail = outputs[len(project.systems) * len(project.records):]
+        inelastic = {spec.id: out for spec, out in zip(project.records, tail)}
     responses, index = {}, 0
     for system in project.systems:
         for spec in project.records:
@@ -397,7 +415,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     statistic = project.statistic_used
     checks = _checks(project, responses, statistic)
     return Results(project, record_results, responses, checks, statistic, scaling,
-                   pair_results,
+                   pair_results, inelastic,
                    {"read_s": read_time, "compute_s": phase.seconds,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses)
 

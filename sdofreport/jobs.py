@@ -101,7 +101,25 @@ def response_job(acceleration, dt_s, model: dict, method: str) -> dict:
     return _nonlinear_response(acceleration, dt_s, model)
 
 
-JOBS = {"record": record_job, "pair": pair_job, "response": response_job}
+def inelastic_job(acceleration, dt_s, periods_s, damping, ductility, reduction,
+                  alpha) -> dict:
+    """Constant-ductility and constant-strength spectra of one record (bilinear SDOF)."""
+    from sdofreport.core.inelastic_spectra import (
+        constant_ductility_spectrum,
+        constant_strength_spectrum,
+    )
+
+    periods = np.asarray(periods_s)
+    return {
+        "ductility": constant_ductility_spectrum(acceleration, dt_s, periods, damping,
+                                                 np.asarray(ductility), alpha),
+        "strength": constant_strength_spectrum(acceleration, dt_s, periods, damping,
+                                               np.asarray(reduction), alpha),
+    }
+
+
+JOBS = {"record": record_job, "pair": pair_job, "response": response_job,
+        "inelastic": inelastic_job}
 
 
 def run_job(kind: str, args: tuple) -> dict:

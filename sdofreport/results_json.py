@@ -142,6 +142,18 @@ def suite_blocks(results: Results) -> dict:
             "motions": [{"id": name, "records": members}
                         for name, members in scaling.motions],
             "notes": list(scaling.notes)}
+    if results.inelastic:
+        spec = project.inelastic
+        blocks["inelastic_spectra"] = {
+            "periods_s": list(spec.periods_s), "damping": spec.damping,
+            "post_yield_ratio": spec.post_yield_ratio,
+            "ductility_targets": list(spec.ductility),
+            "strength_reduction_factors": list(spec.strength_reduction),
+            "records": {rid: {
+                "strength_reduction_factor": array_to_list(
+                    out["ductility"].strength_reduction_factor),
+                "ductility_demand": array_to_list(out["strength"].ductility)}
+                for rid, out in results.inelastic.items()}}
     if results.pairs:
         blocks["pairs"] = [{
             "id": pair.name, "h1": pair.h1, "h2": pair.h2,

@@ -138,3 +138,24 @@ def test_impossible_systems_name_the_key(project_factory, body, fragment):
         _load(project_factory, body)
     assert fragment in info.value.message, info.value.message
     assert info.value.exit_code == 2
+
+
+def test_inelastic_spectra_section(project_factory):
+    from tests.conftest import ONE_SYSTEM
+
+    text = PROJECT_HEAD + ('[inelastic_spectra]\nductility = [1, 3]\nstrength_reduction '
+                           '= [1, 3]\nperiods = { min = 0.2, max = 1.5, count = 5 }\n') + \
+        TWO_RECORDS + ONE_SYSTEM
+    doc = results_document(run_project(load_project(project_factory(text)), jobs=1,
+                                       use_cache=False))
+    block = doc["inelastic_spectra"]
+    assert block["ductility_targets"] == [1.0, 3.0]
+    for record in block["records"].values():
+        r = np.array(record["strength_reduction_factor"])
+        mu = np.array(record["ductility_demand"])
+        # Definition: a system that may stay elastic (μ = 1) needs R = 1, and R = 1
+        # (strength = elastic force) gives μ <= 1 (Chopra §7.5).
+        np.testing.assert_allclose(r[0], 1.0, rtol=2e-2)
+        assert np.all(mu[0] <= 1.0 + 1e-6)
+        # Common practice (no source): a larger allowed ductility permits a larger R.
+        assert np.all(r[1] > r[0])

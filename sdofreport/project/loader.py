@@ -25,6 +25,7 @@ from sdofreport.errors import ProjectError
 from sdofreport.project.model import (
     AnalysisSettings,
     DesignSpectrumSpec,
+    InelasticSpectraSpec,
     ScalingSpec,
     Limits,
     ProcessingSettings,
@@ -171,8 +172,8 @@ def _read_processing(table, location: str, problems: _Problems,
     return ProcessingSettings(order, band, filter_order, taper)
 
 
-def _read_periods(value, problems: _Problems) -> tuple[float, ...]:
-    where = "analysis.periods"
+def _read_periods(value, problems: _Problems,
+                  where: str = "analysis.periods") -> tuple[float, ...]:
     if isinstance(value, list):
         ok = value and all(isinstance(v, (int, float)) and not isinstance(v, bool)
                            and math.isfinite(v) and v > 0 for v in value)
@@ -619,6 +620,42 @@ def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
     return ScalingSpec(rule, period, period_range, suite if suite else 1.0)
 
 
+def _number_list(value, where: str, minimum: float, problems: _Problems,
+                 strict: bool = False):
+    ok = isinstance(value, list) and value and all(
+        isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v) and
+        (v > minimum if strict else v >= minimum) for v in value)
+    if not ok:
+        relation = ">" if strict else ">="
+        problems.add(where, f"expected a list of numbers {relation} {minimum:g}, found "
+                     f"{value!r}")
+        return None
+    return tuple(sorted(set(float(v) for v in value)))
+
+
+def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
+    if table is None:
+        return None
+    where = "inelastic_spectra"
+    if not isinstance(table, dict):
+        problems.add(where, f"expected a table, found {table!r}")
+        return None
+    _check_unknown(table, "inelastic_spectra", where, problems)
+    spec = SECTIONS["inelastic_spectra"]
+    ductility = _number_list(table.get("ductility", spec["ductility"].default),
+                             f"{where}.ductility", 1.0, problems)
+    reduction = _number_list(table.get("strength_reduction",
+                                       spec["strength_reduction"].default),
+                             f"{where}.strength_reduction", 1.0, problems)
+    periods = _read_periods(table.get("periods", spec["periods"].default), problems,
+                            f"{where}.periods")
+    damping = _read_value(table, spec["damping"], where, problems)
+    alpha = _read_value(table, spec["post_yield_ratio"], where, problems)
+    if None in (ductility, reduction, damping, alpha):
+        return None
+    return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha)
+
+
 def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError) -> str:
     text = str(exc)
     match = re.search(r"\(at line (\d+), column (\d+)\)", text)
@@ -688,7 +725,8 @@ def load_project(path) -> Project:
     design = _read_design_spectrum(document.get("design_spectrum"), problems)
     scaling = _read_scaling(document.get("scaling"), design, "design_spectrum" in document,
                             problems)
+    inelastic = _read_inelastic(document.get("inelastic_spectra"), problems)
     if problems.items:
         raise ProjectError(format_problems(shown, problems.items))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
-                   tuple(records), tuple(systems), design, scaling)
+                   tuple(records), tuple(systems), design, scaling, inelastic)

@@ -85,6 +85,17 @@ class ScalingSpec:
 
 
 @dataclass(frozen=True)
+class InelasticSpectraSpec:
+    """Optional constant-ductility and constant-strength spectra of every record."""
+
+    ductility: tuple[float, ...] = (2.0, 4.0, 6.0)
+    strength_reduction: tuple[float, ...] = (2.0, 4.0)
+    periods_s: tuple[float, ...] = ()
+    damping: float = 0.05
+    post_yield_ratio: float = 0.0
+
+
+@dataclass(frozen=True)
 class Limits:
     """Limits in SI; ``None`` where not checked."""
 
@@ -144,6 +155,7 @@ class Project:
     systems: tuple[SystemSpec, ...]
     design_spectrum: DesignSpectrumSpec | None = None
     scaling: ScalingSpec = field(default_factory=ScalingSpec)
+    inelastic: InelasticSpectraSpec | None = None
 
     @property
     def root(self) -> Path:

@@ -165,6 +165,19 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
     ),
+    "inelastic_spectra": _keys(
+        KeySpec("ductility", "list", "Target ductilities μ of the constant-ductility "
+                "spectra (strength found by bisection).", default=[2.0, 4.0, 6.0],
+                example="[2, 4, 6]"),
+        KeySpec("strength_reduction", "list", "Strength reduction factors R of the "
+                "constant-strength spectra.", default=[2.0, 4.0], example="[2, 4]"),
+        KeySpec("periods", "table", "Periods: {min, max, count} log-spaced, in s.",
+                default={"min": 0.05, "max": 3.0, "count": 30},
+                example="{ min = 0.05, max = 3.0, count = 30 }"),
+        KeySpec("damping", "ratio", "Damping ratio.", default=0.05, example="0.05"),
+        KeySpec("post_yield_ratio", "ratio", "Post-yield stiffness ratio α.",
+                default=0.0, example="0.0"),
+    ),
     "records[]": _keys(
         KeySpec("id", "text", "Unique short name of the record.", required=True,
                 example='"rec01"'),
@@ -262,5 +275,5 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
 }
 
 #: Top-level tables and arrays of tables of the project file.
-TOP_LEVEL = ("project", "analysis", "processing", "design_spectrum", "scaling", "records",
-             "systems")
+TOP_LEVEL = ("project", "analysis", "processing", "design_spectrum", "scaling",
+             "inelastic_spectra", "records", "systems")

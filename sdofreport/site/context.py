@@ -351,9 +351,11 @@ class SiteContext:
             pair_rows.append({"name": pair.name, "h1": pair.h1, "h2": pair.h2,
                               "h1_file": page_name(pair.h1), "h2_file": page_name(pair.h2),
                               "figure": path})
+        inelastic = self._inelastic_block()
         analysis = self.project.analysis
         context = {**self.common("", "Record suite", "suite"), **self._statistic_bits(),
                    "figures": figures, "records": self._record_rows(),
+                   "inelastic": inelastic,
                    "suite_damping": f"{100 * zeta:g} %",
                    "damping_text": ", ".join(f"{100 * z:g} %" for z in analysis.damping),
                    "period_text": f"{len(periods)} periods from {number(periods.min())} s "
@@ -362,6 +364,44 @@ class SiteContext:
                    "scaling": self._scaling_block(), "motion_figure": motion_figure,
                    "motion_label": motion_label, "pairs": pair_rows}
         return Page("suite.html", "suite.html", context)
+
+    def _inelastic_block(self) -> dict | None:
+        """Suite means of the inelastic spectra with the classic R–μ–T rules drawn."""
+        results = self.results
+        spec = self.project.inelastic
+        if not results.inelastic:
+            return None
+        periods = np.asarray(spec.periods_s)
+        outs = list(results.inelastic.values())
+        r_stack = np.array([o["ductility"].strength_reduction_factor for o in outs])
+        mu_stack = np.array([o["strength"].ductility for o in outs])
+        with np.errstate(invalid="ignore"):
+            r_mean = np.nanmean(r_stack, axis=0)
+            mu_mean = np.nanmean(mu_stack, axis=0)
+        curves = []
+        for i, mu in enumerate(spec.ductility):
+            curves.append({"label": f"μ = {mu:g}: suite mean R", "values": r_mean[i],
+                           "style": "emphasis"})
+        for mu in spec.ductility:
+            curves.append({"label": f"equal displacement R = {mu:g}",
+                           "values": np.full(periods.size, mu), "style": "record"})
+            curves.append({"label": f"equal energy R = √(2μ−1) = "
+                                    f"{np.sqrt(2 * mu - 1):.2f}",
+                           "values": np.full(periods.size, np.sqrt(2 * mu - 1)),
+                           "style": "record"})
+        r_figure = self._figure("figures/suite-inelastic-r.svg", "spectra_figure",
+                                periods_s=periods, curves=curves,
+                                ylabel="Strength reduction factor R = Fe/Fy [-]")
+        mu_curves = [{"label": f"R = {r:g}: suite mean μ", "values": mu_mean[i],
+                      "style": "emphasis"} for i, r in enumerate(spec.strength_reduction)]
+        mu_figure = self._figure("figures/suite-inelastic-mu.svg", "spectra_figure",
+                                 periods_s=periods, curves=mu_curves,
+                                 ylabel="Ductility demand μ [-]")
+        return {"r_figure": r_figure, "mu_figure": mu_figure,
+                "damping": f"{100 * spec.damping:g} %",
+                "alpha": number(spec.post_yield_ratio),
+                "ductility": ", ".join(f"{m:g}" for m in spec.ductility),
+                "reduction": ", ".join(f"{r:g}" for r in spec.strength_reduction)}
 
     def _design_block(self) -> dict | None:
         design = self.project.design_spectrum

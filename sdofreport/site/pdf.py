@@ -1,0 +1,372 @@
+"""Print a built site into one review-packet PDF through headless Chromium.
+
+The packet is assembled from the site as written, never recomputed: the ``<main>`` of
+the summary, the suite, every record page and every system page (in that order) are
+placed into ``templates/print.html``, figures are loaded from the site folder by
+relative path, and Chromium prints the document with the DevTools command
+``Page.printToPDF``. Every PDF page carries the project in its header and the caution
+with "page X of Y" in its footer.
+
+Chromium and its chromedriver are system programs and ``selenium`` is an optional
+dependency (``pip install 'sdofreport[pdf]'``); when one is missing, :func:`write_pdf`
+raises :class:`~sdofreport.errors.BuildError` saying how to install it. The browser
+loads only ``file:`` URLs from the site and a temporary folder; it is started with
+background networking, component updates, sync and extensions turned off.
+
+Determinism: Chromium writes the print time into the PDF's ``/CreationDate`` and
+``/ModDate``; they are replaced by ``SOURCE_DATE_EPOCH`` when set, else by the
+project's ``[project] date``. With neither, the two dates (and so the bytes) vary from
+print to print. Everything else depends only on the site and the Chromium version.
+"""
+
+from __future__ import annotations
+
+import base64
+import html
+import json
+import logging
+import os
+import posixpath
+import re
+import shutil
+import tempfile
+import time
+from contextlib import contextmanager
+from datetime import datetime, timezone
+from pathlib import Path
+from urllib.parse import urlsplit
+
+from markupsafe import Markup
+
+from sdofreport import __version__
+from sdofreport.errors import BuildError
+from sdofreport.site.context import CAUTION_FULL, CAUTION_SHORT
+
+log = logging.getLogger("sdofreport.site.pdf")
+
+#: Flags for every headless Chromium we start: no sandbox (containers), and nothing
+#: that talks to the network on its own (updates, sync, safe-browsing lists, extensions).
+BROWSER_FLAGS = (
+    "--headless=new", "--no-sandbox", "--disable-gpu", "--disable-dev-shm-usage",
+    "--disable-background-networking", "--disable-component-update", "--disable-sync",
+    "--no-first-run", "--disable-default-apps", "--disable-extensions",
+)
+
+#: Program names tried, in order, when no Chromium path is given.
+CHROMIUM_NAMES = ("chromium", "chromium-browser", "google-chrome", "google-chrome-stable")
+
+INSTALL_HINT = ("Install Chromium and its driver (Debian/Ubuntu: apt-get install chromium "
+                "chromium-driver) and the Python package selenium (pip install "
+                "'sdofreport[pdf]'), then run the command again.")
+
+#: A4 [in] and margins [in]; the bottom margin holds the three-line caution footer.
+PAPER_IN = (8.27, 11.69)
+MARGINS_IN = {"marginTop": 0.65, "marginBottom": 0.95, "marginLeft": 0.55,
+              "marginRight": 0.55}
+
+_ATTRIBUTE = re.compile(r'(\s)(href|src)="([^"]*)"')
+_LAZY = re.compile(r'\sloading="lazy"')
+_PDF_DATE = re.compile(rb"/(CreationDate|ModDate) \((D:\d{14}[^)]*)\)")
+
+
+def find_browser(chromium: str | os.PathLike | None = None,
+                 chromedriver: str | os.PathLike | None = None) -> tuple[str, str]:
+    """
+    Paths of the Chromium program and of chromedriver.
+
+    Given paths must name executable files; otherwise the first of ``CHROMIUM_NAMES``
+    and ``chromedriver`` found on ``PATH`` are used. Raises ``BuildError`` with the
+    install hint when either is missing.
+    """
+    found = []
+    for given, names, label in ((chromium, CHROMIUM_NAMES, "Chromium"),
+                                (chromedriver, ("chromedriver",), "chromedriver")):
+        if given is not None:
+            path = str(given)
+            if not (os.path.isfile(path) and os.access(path, os.X_OK)):
+                raise BuildError(f"PDF: {label} '{path}' is not an executable file. "
+                                 f"{INSTALL_HINT}")
+        else:
+            path = next((hit for hit in map(shutil.which, names) if hit), None)
+            if path is None:
+                raise BuildError(f"PDF: {label} was not found on PATH (looked for "
+                                 f"{', '.join(names)}); printing the site needs it. "
+                                 f"{INSTALL_HINT}")
+        found.append(path)
+    return found[0], found[1]
+
+
+def _selenium():
+    try:
+        from selenium import webdriver
+        from selenium.common.exceptions import WebDriverException
+        from selenium.webdriver.chrome.service import Service
+    except ImportError:
+        raise BuildError(f"PDF: the Python package selenium is not installed; printing "
+                         f"the site drives Chromium through it. {INSTALL_HINT}") from None
+    return webdriver, Service, WebDriverException
+
+
+@contextmanager
+def headless_chrome(chromium: str | os.PathLike | None = None,
+                    chromedriver: str | os.PathLike | None = None, *,
+                    browser_log: bool = False, window_size: tuple[int, int] = (1280, 1000)):
+    """
+    A selenium Chrome driver on headless Chromium with a fresh, temporary profile.
+
+    ``chromedriver`` is given to selenium explicitly and ``SE_OFFLINE`` is set while the
+    driver starts, so selenium never downloads a driver. ``browser_log`` records the
+    console (``driver.get_log("browser")``). The profile is deleted on exit.
+    """
+    chromium_path, driver_path = find_browser(chromium, chromedriver)
+    webdriver, Service, WebDriverException = _selenium()
+    with tempfile.TemporaryDirectory(prefix="sdofreport-chromium-") as profile:
+        options = webdriver.ChromeOptions()
+        options.binary_location = chromium_path
+        for flag in BROWSER_FLAGS:
+            options.add_argument(flag)
+        options.add_argument(f"--user-data-dir={profile}")
+        options.add_argument(f"--window-size={window_size[0]},{window_size[1]}")
+        if browser_log:
+            options.set_capability("goog:loggingPrefs", {"browser": "ALL"})
+        previous = os.environ.get("SE_OFFLINE")
+        os.environ["SE_OFFLINE"] = "true"
+        try:
+            driver = webdriver.Chrome(service=Service(executable_path=driver_path),
+                                      options=options)
+        except WebDriverException as exc:
+            first = (exc.msg or str(exc)).strip().splitlines()[0] if (exc.msg or str(exc)) \
+                else type(exc).__name__
+            raise BuildError(f"PDF: Chromium ({chromium_path}) could not be started "
+                             f"through {driver_path}: {first}. The two must be the same "
+                             f"version. {INSTALL_HINT}") from None
+        finally:
+            if previous is None:
+                os.environ.pop("SE_OFFLINE", None)
+            else:
+                os.environ["SE_OFFLINE"] = previous
+        try:
+            yield driver
+        finally:
+            driver.quit()
+
+
+def packet_pages(site_dir: Path) -> list[str]:
+    """
+    Site paths of the pages in packet order: summary, suite, records, systems, others.
+
+    Records and systems follow the order in which the summary page links them (the
+    project file's order); pages it does not link come after, sorted.
+    """
+    pages = sorted(p.relative_to(site_dir).as_posix() for p in site_dir.rglob("*.html")
+                   if not p.relative_to(site_dir).as_posix().startswith("inputs/"))
+    if "index.html" not in pages:
+        raise BuildError(f"PDF: {site_dir} has no index.html; build the site first.")
+    linked = [html.unescape(href) for _, name, href in
+              _ATTRIBUTE.findall((site_dir / "index.html").read_text("utf-8"))
+              if name == "href"]
+    order = ["index.html", "suite.html"]
+    for folder in ("records/", "systems/"):
+        order += [h for h in linked if h.startswith(folder) and h in pages]
+        order += [p for p in pages if p.startswith(folder)]
+    order += pages
+    seen: set[str] = set()
+    return [p for p in order if p in pages and not (p in seen or seen.add(p))]
+
+
+def _main_of(page_html: str, page: str) -> str:
+    """The inner HTML of the page's ``<main>`` (the templates write exactly one)."""
+    start, end = page_html.find("<main>"), page_html.rfind("</main>")
+    if start < 0 or end < start:
+        raise BuildError(f"PDF: page {page} has no <main> element; was it built by "
+                         f"sdofreport?")
+    return page_html[start + len("<main>"):end]
+
+
+def _rebase(fragment: str, page: str, anchors: dict[str, str]) -> str:
+    """
+    Rewrite the URLs of one page's HTML for the packet, whose base is the site root.
+
+    Images get site-root paths; links to pages in the packet become links to their
+    section; other links inside the site (data files) lose their target, because a
+    file path means nothing in a PDF; external links are kept. Lazy loading is turned
+    off so every figure is loaded before printing.
+    """
+    folder = posixpath.dirname(page)
+
+    def replace(match: re.Match) -> str:
+        space, name, value = match.groups()
+        url = html.unescape(value)
+        parts = urlsplit(url)
+        if parts.scheme or parts.netloc:
+            return match.group(0)
+        if not parts.path:  # same-page fragment
+            return f'{space}{name}="#{anchors[page]}"' if name == "href" else ""
+        target = posixpath.normpath(posixpath.join(folder, parts.path))
+        if name == "src":
+            return f'{space}src="{html.escape(target)}"'
+        if target in anchors:
+            return f'{space}href="#{anchors[target]}"'
+        return f'{space}data-site-file="{html.escape(target)}"'
+
+    return _LAZY.sub("", _ATTRIBUTE.sub(replace, fragment))
+
+
+def _project(site_dir: Path) -> dict:
+    from sdofreport.site.render import MANIFEST_NAME, is_site
+
+    if not is_site(site_dir):
+        raise BuildError(f"PDF: {site_dir} is not a site built by sdofreport (no "
+                         f"{MANIFEST_NAME} of ours); build it first.")
+    return json.loads((site_dir / MANIFEST_NAME).read_text("utf-8"))
+
+
+def packet_html(site_dir: str | os.PathLike) -> str:
+    """The printable HTML document of the whole site (its ``<base>`` is the site)."""
+    import jinja2
+
+    from sdofreport.site.render import template_dir
+
+    site_dir = Path(site_dir).resolve()
+    manifest = _project(site_dir)
+    pages = packet_pages(site_dir)
+    anchors = {page: f"packet-{index:03d}" for index, page in enumerate(pages, start=1)}
+    sections = []
+    for page in pages:
+        text = (site_dir / page).read_text("utf-8")
+        title = re.search(r"<title>(.*?)</title>", text, re.S)
+        sections.append({
+            "path": page, "anchor": anchors[page],
+            "title": Markup(title.group(1).split(" · ")[0]) if title else page,
+            "main": Markup(_rebase(_main_of(text, page), page, anchors))})
+    info = manifest.get("project", {})
+    env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(template_dir())),
+                             autoescape=True, undefined=jinja2.StrictUndefined)
+    return env.get_template("print.html").render(
+        version=manifest.get("package", {}).get("version", __version__),
+        root="", base_href=site_dir.as_uri() + "/", page_title="Review packet",
+        page_kind="print", current_id="", nav_systems=[],
+        project={"title": info.get("title", ""), "reference": info.get("reference", ""),
+                 "revision": info.get("revision", ""), "date": info.get("date"),
+                 "file": info.get("file", "")},
+        cautions={"short": CAUTION_SHORT, "full": CAUTION_FULL},
+        fingerprint=manifest.get("fingerprint", ""), sections=sections)
+
+
+def _header_footer(manifest: dict) -> tuple[str, str]:
+    """Chromium header and footer templates (inline styles: they are printed apart)."""
+    info = manifest.get("project", {})
+    ident = " · ".join(html.escape(str(part)) for part in (
+        info.get("title", ""), info.get("reference", ""),
+        f"revision {info.get('revision', '')}") if part)
+    style = ("font-family: Arial, sans-serif; font-size: 7.5pt; color: #333; width: 100%; "
+             "margin: 0 0.55in; -webkit-print-color-adjust: exact;")
+    header = (f'<div style="{style} border-bottom: 0.5pt solid #999; padding-bottom: 2pt;">'
+              f"{ident}</div>")
+    footer = (f'<div style="{style} border-top: 0.5pt solid #999; padding-top: 2pt;">'
+              f'<span>{html.escape(CAUTION_SHORT)}</span> <span style="white-space: nowrap;">'
+              f'Page <span class="pageNumber"></span> of <span class="totalPages"></span>'
+              f"</span></div>")
+    return header, footer
+
+
+def _fixed_date(manifest: dict) -> str | None:
+    """The PDF date (``D:YYYYMMDDHHmmSS+00'00'``) to stamp, or None to leave Chromium's."""
+    epoch = os.environ.get("SOURCE_DATE_EPOCH", "").strip()
+    if epoch.isdigit():
+        when = datetime.fromtimestamp(int(epoch), tz=timezone.utc)
+    else:
+        try:
+            when = datetime.strptime(str(manifest.get("project", {}).get("date")),
+                                     "%Y-%m-%d").replace(tzinfo=timezone.utc)
+        except ValueError:
+            return None
+    return when.strftime("D:%Y%m%d%H%M%S+00'00'")
+
+
+def _stamp_dates(pdf: bytes, date: str | None) -> bytes:
+    """Replace the creation and modification dates; only same-length, so offsets hold."""
+    if date is None:
+        return pdf
+
+    def replace(match: re.Match) -> bytes:
+        old = match.group(2)
+        new = date.encode("ascii")
+        return match.group(0) if len(new) != len(old) else match.group(0).replace(old, new)
+
+    return _PDF_DATE.sub(replace, pdf)
+
+
+def pdf_page_count(pdf: bytes) -> int:
+    """Number of page objects (``/Type /Page``) in a PDF written by Chromium's Skia."""
+    return len(re.findall(rb"/Type\s*/Page\b", pdf))
+
+
+def default_pdf_path(site_dir: str | os.PathLike) -> Path:
+    """Where ``--pdf`` without a file writes: ``<site>-review-packet.pdf`` beside the site."""
+    site_dir = Path(site_dir)
+    return site_dir.resolve().parent / f"{site_dir.resolve().name}-review-packet.pdf"
+
+
+def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=None,
+              timeout_s: float = 120.0) -> int:
+    """
+    Print the built site at ``site_dir`` into one review-packet PDF at ``output_pdf``.
+
+    Parameters
+    ----------
+    site_dir : path
+        A site written by ``sdofreport build`` (its manifest.json is checked).
+    output_pdf : path
+        The PDF to write; written whole through a temporary sibling, then swapped in.
+    chromium, chromedriver : path, optional
+        The browser and its driver; found on ``PATH`` when not given.
+    timeout_s : float
+        Longest wait for the figures to load and for printing. [s]
+
+    Returns
+    -------
+    int
+        Number of pages in the PDF.
+    """
+    started = time.perf_counter()
+    site_dir = Path(site_dir).resolve()
+    output_pdf = Path(output_pdf)
+    manifest = _project(site_dir)
+    document = packet_html(site_dir)
+    header, footer = _header_footer(manifest)
+    with tempfile.TemporaryDirectory(prefix="sdofreport-print-") as folder:
+        source = Path(folder) / "packet.html"
+        source.write_text(document, encoding="utf-8")
+        with headless_chrome(chromium, chromedriver) as driver:
+            driver.set_page_load_timeout(timeout_s)
+            driver.set_script_timeout(timeout_s)
+            driver.get(source.as_uri())
+            broken = driver.execute_script(
+                "return Array.from(document.images).filter(i => !(i.complete && "
+                "i.naturalWidth > 0)).map(i => i.getAttribute('src'));")
+            if broken:
+                raise BuildError(f"PDF: {len(broken)} figure(s) of {site_dir} could not "
+                                 f"be loaded for printing, e.g. {broken[0]}; rebuild the "
+                                 f"site.")
+            printed = driver.execute_cdp_cmd("Page.printToPDF", {
+                "landscape": False, "displayHeaderFooter": True, "printBackground": True,
+                "headerTemplate": header, "footerTemplate": footer,
+                "paperWidth": PAPER_IN[0], "paperHeight": PAPER_IN[1], **MARGINS_IN,
+                "preferCSSPageSize": False, "generateDocumentOutline": True})
+    pdf = _stamp_dates(base64.b64decode(printed["data"]), _fixed_date(manifest))
+    output_pdf.resolve().parent.mkdir(parents=True, exist_ok=True)
+    handle, partial = tempfile.mkstemp(prefix=f".{output_pdf.name}.", suffix=".part",
+                                       dir=output_pdf.resolve().parent)
+    try:
+        with os.fdopen(handle, "wb") as stream:
+            stream.write(pdf)
+        os.chmod(partial, 0o644)
+        os.replace(partial, output_pdf)
+    except BaseException:
+        Path(partial).unlink(missing_ok=True)
+        raise
+    pages = pdf_page_count(pdf)
+    log.info("printed %s into %s: %d pages in %.1f s", site_dir, output_pdf, pages,
+             time.perf_counter() - started)
+    return pages
