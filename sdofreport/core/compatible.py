@@ -32,7 +32,7 @@ Choices of ours (no published source): sinusoids at the record's own Fourier fre
 log-spaced over the matched range (about 1.5 % apart for a 0.05–4 s range, well inside a
 5 %-damped oscillator's half-power bandwidth) and the frequency-domain ratios taken on a
 grid 15 % wider at both ends; wavelet window ``exp(-(τ / (1.25 T))²)``, cut at
-``|τ| = 3.5 × 1.25 T``; selection threshold half the tolerance; a Tikhonov term of
+``|τ| = 3 × 1.25 T``; selection threshold half the tolerance; a Tikhonov term of
 ``1e-3`` times the mean diagonal of ``CᵀC``; a quadratic baseline
 (:func:`sdofreport.core.processing.baseline_correction`, order 2). The starting density
 uses the white-noise approximation ``G(ω) = 4 ζ Sa² / (π r² ω)`` with peak factor
@@ -103,7 +103,7 @@ _PEAK_FACTOR = 2.5
 _BASELINE_ORDER = 2
 # Wavelet window width, in natural periods, and cut-off, in window widths.
 _WAVELET_WIDTH = 1.25
-_WAVELET_CUT = 3.5
+_WAVELET_CUT = 3.0
 # Periods are selected for a wavelet when their deviation exceeds this share of tolerance.
 _SELECT_SHARE = 0.5
 # Weight of the equations of periods already within the selection threshold.
@@ -221,23 +221,24 @@ class _Matcher:
         return response_spectrum(acc, self.dt, self.grid, self.zeta).psa_m_s2[0] / G
 
     def _wavelet(self, j, centre):
+        """Window-cut cosine at grid period j centred at ``centre`` [s]: (first, values)."""
         period = self.grid[j]
         width = _WAVELET_WIDTH * period
-        tau = self.time - centre
-        inside = np.abs(tau) <= _WAVELET_CUT * width
-        w = np.zeros(self.n)
-        w[inside] = (np.cos(2.0 * np.pi * tau[inside] / period)
-                     * np.exp(-((tau[inside] / width) ** 2)))
-        return w
+        first = max(0, int(math.ceil((centre - _WAVELET_CUT * width) / self.dt)))
+        stop = min(self.n, int(math.floor((centre + _WAVELET_CUT * width) / self.dt)) + 1)
+        tau = np.arange(first, max(first, stop)) * self.dt - centre
+        return first, np.cos(2.0 * np.pi * tau / period) * np.exp(-((tau / width) ** 2))
 
     def _lag(self, j):
         """Delay [s] from a wavelet's centre to oscillator j's peak response to it."""
         if j not in self._lags:
-            centre = _WAVELET_CUT * _WAVELET_WIDTH * self.grid[j]
-            w = self._wavelet(j, centre)
-            stop = int(np.nonzero(w)[0][-1]) + 1
-            u = np.convolve(w[:stop], self.impulse[j])[: self.n]
-            self._lags[j] = float(np.argmax(np.abs(u)) * self.dt - centre)
+            period = self.grid[j]
+            half = _WAVELET_CUT * _WAVELET_WIDTH * period
+            tau = np.arange(int((2.0 * half + 4.0 * period) / self.dt) + 2) * self.dt - half
+            w = np.where(np.abs(tau) <= half, np.cos(2.0 * np.pi * tau / period)
+                         * np.exp(-((tau / (_WAVELET_WIDTH * period)) ** 2)), 0.0)
+            u = exact_response(w, self.dt, period, self.zeta)[0][0]
+            self._lags[j] = float(tau[np.argmax(np.abs(u))])
         return self._lags[j]
 
     def _select(self, deviation, peak, threshold):
@@ -248,15 +249,17 @@ class _Matcher:
         the same).
         """
         size = np.abs(deviation)
+        order = np.argsort(-size, kind="stable")
+        order = order[size[order] > threshold]
         chosen = []
-        for i in np.argsort(-size, kind="stable"):
-            if size[i] <= threshold:
-                break
-            near = (abs(int(i) - c) <= self.half_width
-                    and abs(int(peak[i]) - int(peak[c])) * self.dt < self.grid[i]
-                    for c in chosen)
-            if not any(near):
-                chosen.append(int(i))
+        for i in order.tolist():
+            if chosen:
+                c = np.asarray(chosen)
+                near = (np.abs(i - c) <= self.half_width) & (
+                    np.abs(peak[i] - peak[c]) * self.dt < self.grid[i])
+                if near.any():
+                    continue
+            chosen.append(i)
         return sorted(chosen)
 
     def adjust(self, acc, psa_g, threshold):
@@ -269,9 +272,11 @@ class _Matcher:
         # target / computed (the sampled peak stands in for the refined one). Periods
         # already on target ask for no change, which keeps the wavelets local.
         wanted = u_peak * (self.target / psa_g - 1.0)
-        waves = np.empty((len(chosen), self.n))
+        waves = np.zeros((len(chosen), self.n))
         for row, j in enumerate(chosen):
-            waves[row] = self._wavelet(j, peak[j] * self.dt - self._lag(j)) * self.shape
+            first, values = self._wavelet(j, peak[j] * self.dt - self._lag(j))
+            stop = first + values.size
+            waves[row, first:stop] = values * self.shape[first:stop]
         reversed_h = np.zeros((self.grid.size, self.n))
         for i, k in enumerate(peak):
             reversed_h[i, : k + 1] = self.impulse[i, k::-1]

@@ -23,7 +23,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.integrate import cumulative_trapezoid, trapezoid
+from sdofreport.core._numeric import cumulative_trapezoid, trapezoid
 
 from sdofreport.core.units import G
 
@@ -97,7 +97,7 @@ def ground_velocity(acceleration_m_s2, time_step_s) -> np.ndarray:
     """
     acc = _as_acceleration(acceleration_m_s2)
     dt = _check_time_step(time_step_s)
-    return cumulative_trapezoid(acc, dx=dt, initial=0.0)
+    return cumulative_trapezoid(acc, dt)
 
 
 def ground_displacement(acceleration_m_s2, time_step_s) -> np.ndarray:
@@ -117,7 +117,7 @@ def ground_displacement(acceleration_m_s2, time_step_s) -> np.ndarray:
         Displacement at the same instants, first value 0. [m]
     """
     velocity = ground_velocity(acceleration_m_s2, time_step_s)
-    return cumulative_trapezoid(velocity, dx=float(time_step_s), initial=0.0)
+    return cumulative_trapezoid(velocity, float(time_step_s))
 
 
 def pgv(acceleration_m_s2, time_step_s) -> float:
@@ -132,7 +132,7 @@ def pgd(acceleration_m_s2, time_step_s) -> float:
 
 def _cumulative_arias(acc: np.ndarray, dt: float) -> np.ndarray:
     # Ia(t) = pi / (2 g) * integral_0^t üg² dt, Arias (1970) [1].
-    return np.pi / (2.0 * G) * cumulative_trapezoid(acc * acc, dx=dt, initial=0.0)
+    return np.pi / (2.0 * G) * cumulative_trapezoid(acc * acc, dt)
 
 
 def arias_intensity(acceleration_m_s2, time_step_s) -> float:
@@ -158,7 +158,7 @@ def arias_intensity(acceleration_m_s2, time_step_s) -> float:
     """
     acc = _as_acceleration(acceleration_m_s2)
     dt = _check_time_step(time_step_s)
-    return float(np.pi / (2.0 * G) * trapezoid(acc * acc, dx=dt))
+    return float(np.pi / (2.0 * G) * trapezoid(acc * acc, dt))
 
 
 def husid(acceleration_m_s2, time_step_s) -> np.ndarray:

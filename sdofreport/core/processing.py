@@ -17,8 +17,7 @@ References
 from __future__ import annotations
 
 import numpy as np
-from scipy.integrate import cumulative_trapezoid
-from scipy.signal import butter, sosfiltfilt
+from sdofreport.core._numeric import cumulative_trapezoid
 
 from sdofreport.core.intensity import _as_acceleration, _check_time_step
 
@@ -74,8 +73,8 @@ def baseline_correction(acceleration_m_s2, time_step_s, order) -> np.ndarray:
     # the fitted polynomial is the same whatever the time scale.
     s = np.arange(n) / (n - 1)
     basis = np.vstack([s**k for k in range(order + 1)])  # q_k(t), shape (order+1, n)
-    basis_velocity = cumulative_trapezoid(basis, dx=dt, axis=1, initial=0.0)
-    velocity = cumulative_trapezoid(acc, dx=dt, initial=0.0)
+    basis_velocity = cumulative_trapezoid(basis, dt, axis=1)
+    velocity = cumulative_trapezoid(acc, dt)
     coefficients, *_ = np.linalg.lstsq(basis_velocity.T, velocity, rcond=None)
     return acc - coefficients @ basis
 
@@ -187,6 +186,8 @@ def bandpass(acceleration_m_s2, time_step_s, low_hz, high_hz, order=4) -> np.nda
         raise ValueError(
             f"low_hz must be below high_hz [Hz]; got low_hz={low:g}, high_hz={high:g}"
         )
+
+    from scipy.signal import butter, sosfiltfilt  # imported here: slow to import
 
     fs = 1.0 / dt
     sections = []
