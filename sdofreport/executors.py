@@ -42,33 +42,55 @@ def run_inline(jobs: list[Job], done: Done) -> None:
         done(index, output)
 
 
+def _run_batch(items: list[tuple[Callable[..., Any], tuple]]) -> list:
+    """Run several small jobs in one worker call; a refused input stops the batch."""
+    outputs = []
+    for position, (function, args) in enumerate(items):
+        try:
+            outputs.append(function(*args))
+        except ValueError as exc:
+            return [("refused", position, str(exc))]
+    return [("ok", outputs)]
+
+
 def run_process_pool(jobs: list[Job], done: Done, workers: int) -> None:
-    """Run jobs in a local process pool; a pool broken by a dying worker is rebuilt."""
+    """
+    Run jobs in a local process pool, several small jobs per task to save round trips; a
+    pool broken by a dying worker is rebuilt and the lost jobs run again one by one.
+    """
     import multiprocessing
 
     context = multiprocessing.get_context("fork" if os.name == "posix" else None)
     pending = list(range(len(jobs)))
     attempts = {index: 0 for index in pending}
+    size = max(1, -(-len(pending) // (workers * 8)))  # about 8 tasks per worker
     while pending:
         retry = []
+        batches = [pending[i:i + size] for i in range(0, len(pending), size)]
         with ProcessPoolExecutor(max_workers=workers, mp_context=context) as pool:
-            futures = {pool.submit(jobs[i][1], *jobs[i][2]): i for i in pending}
+            futures = {pool.submit(_run_batch, [(jobs[i][1], jobs[i][2]) for i in batch]):
+                       batch for batch in batches}
             for future in as_completed(futures):
-                index = futures[future]
+                batch = futures[future]
                 try:
-                    output = future.result()
-                except ValueError as exc:
-                    raise BuildError(f"job '{jobs[index][0]}': computation refused its "
-                                     f"input: {exc}") from None
+                    result = future.result()
                 except (BrokenProcessPool, OSError, MemoryError) as exc:
-                    attempts[index] += 1
-                    if attempts[index] >= ATTEMPTS:
-                        raise _failure(jobs[index][0], exc) from None
-                    log.warning("job %s lost its worker (%s); retrying", jobs[index][0], exc)
-                    retry.append(index)
+                    for index in batch:
+                        attempts[index] += 1
+                        if attempts[index] >= ATTEMPTS and len(batch) == 1:
+                            raise _failure(jobs[index][0], exc) from None
+                    log.warning("%d job(s) lost their worker (%s); retrying", len(batch),
+                                exc)
+                    retry.extend(batch)
                     continue
-                done(index, output)
+                if result[0][0] == "refused":
+                    _, position, message = result[0]
+                    raise BuildError(f"job '{jobs[batch[position]][0]}': computation "
+                                     f"refused its input: {message}")
+                for index, output in zip(batch, result[0][1]):
+                    done(index, output)
         pending = sorted(retry)
+        size = 1  # after a lost worker, run one job per task to find the culprit
 
 
 def run_dask(jobs: list[Job], done: Done, *, scheduler: str | None = None,

@@ -65,6 +65,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.fft
+import scipy.integrate
 
 from sdofreport.core.design_spectra import table_spectrum
 from sdofreport.core.exact import exact_response
@@ -108,6 +109,8 @@ _WAVELET_CUT = 3.0
 _SELECT_SHARE = 0.5
 # Weight of the equations of periods already within the selection threshold.
 _IN_BAND_WEIGHT = 0.3
+# Stop the wavelet passes after this many without a new best record.
+_PATIENCE = 6
 # Tikhonov term relative to the mean diagonal of CᵀC.
 _REGULARISATION = 1e-3
 
@@ -207,14 +210,27 @@ class _Matcher:
         self._fft_size = scipy.fft.next_fast_len(2 * n, real=True)
         self._impulse_fft = scipy.fft.rfft(self.impulse, n=self._fft_size, axis=1)
         self._lags: dict[int, float] = {}
+        # The baseline correction is a linear projection; the same one as
+        # sdofreport.core.processing.baseline_correction, applied to many rows at once.
+        norm_t = np.arange(n) / (n - 1)
+        self._basis = np.vstack([norm_t**p for p in range(_BASELINE_ORDER + 1)])
+        basis_velocity = scipy.integrate.cumulative_trapezoid(
+            self._basis, dx=dt, axis=1, initial=0.0)
+        self._fit = np.linalg.pinv(basis_velocity.T)  # (order + 1, n)
         # Half-power bandwidth (±ζ in ln f) expressed in grid steps.
         step = math.log(grid[1] / grid[0])
         self.half_width = max(1, int(math.ceil(zeta / step)))
 
-    def displacement(self, acc):
-        """Relative displacement of every grid oscillator at the samples [m], (nC, n)."""
+    def baseline(self, rows):
+        """Baseline-corrected copies of the rows of ``rows`` [m/s²] (see __init__)."""
+        velocity = scipy.integrate.cumulative_trapezoid(rows, dx=self.dt, axis=1,
+                                                        initial=0.0)
+        return rows - (velocity @ self._fit.T) @ self._basis
+
+    def displacement(self, acc, rows):
+        """Relative displacement of grid oscillators ``rows`` at the samples [m]."""
         spectrum = scipy.fft.rfft(acc, n=self._fft_size)
-        product = self._impulse_fft * spectrum
+        product = self._impulse_fft[rows] * spectrum
         return scipy.fft.irfft(product, n=self._fft_size, axis=1)[:, : self.n]
 
     def psa(self, acc):
@@ -241,7 +257,7 @@ class _Matcher:
             self._lags[j] = float(tau[np.argmax(np.abs(u))])
         return self._lags[j]
 
-    def _select(self, deviation, peak, threshold):
+    def _select(self, deviation, index, peak, threshold):
         """
         Grid indices that get a wavelet: |deviation| > threshold, taken largest first,
         skipping a period whose peak falls within one period of the peak of a chosen
@@ -255,44 +271,52 @@ class _Matcher:
         for i in order.tolist():
             if chosen:
                 c = np.asarray(chosen)
-                near = (np.abs(i - c) <= self.half_width) & (
-                    np.abs(peak[i] - peak[c]) * self.dt < self.grid[i])
+                near = (np.abs(index[i] - index[c]) <= self.half_width) & (
+                    np.abs(peak[i] - peak[c]) * self.dt < self.grid[index[i]])
                 if near.any():
                     continue
             chosen.append(i)
-        return sorted(chosen)
+        return np.asarray(sorted(chosen), dtype=np.intp)
 
     def adjust(self, acc, psa_g, threshold):
-        """One pass: wavelets at the failing periods, fitted to every period's misfit."""
-        u = self.displacement(acc)
+        """One pass: wavelets at the failing periods, fitted to the nearby misfits."""
+        deviation = psa_g / self.target - 1.0
+        failing = np.abs(deviation) > threshold
+        if not failing.any():
+            return acc
+        # Equations for the failing periods and their neighbours up to two half-power
+        # bandwidths away; farther oscillators hardly feel the wavelets.
+        reach = 2 * self.half_width
+        near = np.convolve(failing, np.ones(2 * reach + 1), mode="same") > 0
+        rows = np.flatnonzero(near)
+        u = self.displacement(acc, rows)
         peak = np.argmax(np.abs(u), axis=1)
-        u_peak = u[np.arange(self.grid.size), peak]
-        chosen = self._select(psa_g / self.target - 1.0, peak, threshold)
+        u_peak = u[np.arange(rows.size), peak]
+        at = np.flatnonzero(failing[rows])  # positions within rows
+        chosen = at[self._select(deviation[rows][at], rows[at], peak[at], threshold)]
         # Wanted change of the signed displacement at each peak time: scale the peak by
         # target / computed (the sampled peak stands in for the refined one). Periods
-        # already on target ask for no change, which keeps the wavelets local.
-        wanted = u_peak * (self.target / psa_g - 1.0)
-        waves = np.zeros((len(chosen), self.n))
-        for row, j in enumerate(chosen):
-            first, values = self._wavelet(j, peak[j] * self.dt - self._lag(j))
+        # within the threshold ask for no change, with a lower weight.
+        wanted = u_peak * (self.target[rows] / psa_g[rows] - 1.0)
+        waves = np.zeros((chosen.size, self.n))
+        for w_row, r in enumerate(chosen):
+            first, values = self._wavelet(rows[r], peak[r] * self.dt - self._lag(rows[r]))
             stop = first + values.size
-            waves[row, first:stop] = values * self.shape[first:stop]
-        reversed_h = np.zeros((self.grid.size, self.n))
-        for i, k in enumerate(peak):
-            reversed_h[i, : k + 1] = self.impulse[i, k::-1]
+            waves[w_row, first:stop] = values * self.shape[first:stop]
+        waves = self.baseline(waves)
+        reversed_h = np.zeros((rows.size, self.n))
+        for r, (i, k) in enumerate(zip(rows, peak)):
+            reversed_h[r, : k + 1] = self.impulse[i, k::-1]
         influence = reversed_h @ waves.T  # C_ij = u_i(t_i) due to wavelet j
         # Scale rows by the peak and columns to a unit diagonal so that every period
         # weighs alike (displacements grow as T², so unscaled the long periods dominate).
-        row = 1.0 / np.abs(u_peak)
-        row[np.abs(psa_g / self.target - 1.0) <= threshold] *= _IN_BAND_WEIGHT
-        col = np.abs(u_peak[chosen]) / influence[chosen, np.arange(len(chosen))]
-        scaled = influence * row[:, None] * col[None, :]
+        weight = np.where(failing[rows], 1.0, _IN_BAND_WEIGHT) / np.abs(u_peak)
+        col = np.abs(u_peak[chosen]) / influence[chosen, np.arange(chosen.size)]
+        scaled = influence * weight[:, None] * col[None, :]
         normal = scaled.T @ scaled
-        normal += _REGULARISATION * np.mean(np.diag(normal)) * np.eye(len(chosen))
-        amplitude = col * np.linalg.solve(normal, scaled.T @ (wanted * row))
-        # The baseline of the sum is removed (a projection, so ``acc`` is unchanged by
-        # it); the influence above ignores this small low-order polynomial.
-        return acc + baseline_correction(amplitude @ waves, self.dt, _BASELINE_ORDER)
+        normal += _REGULARISATION * np.mean(np.diag(normal)) * np.eye(chosen.size)
+        amplitude = col * np.linalg.solve(normal, scaled.T @ (wanted * weight))
+        return acc + amplitude @ waves
 
 
 def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, *, seed,
@@ -437,7 +461,7 @@ def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, 
     # Stage 2: local wavelet adjustments, starting from the best record so far [2], [3].
     worst, used, _, acc, psa_g = best
     for step in range(1, adjustments + 1):
-        if worst <= tol:
+        if best[0] <= tol or step - best[2] > _PATIENCE:
             break
         acc = matcher.adjust(acc, psa_g, _SELECT_SHARE * tol)
         psa_g, worst = measure(acc)

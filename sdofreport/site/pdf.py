@@ -127,6 +127,9 @@ def headless_chrome(chromium: str | os.PathLike | None = None,
             options.add_argument(flag)
         options.add_argument(f"--user-data-dir={profile}")
         options.add_argument(f"--window-size={window_size[0]},{window_size[1]}")
+        # A followed link to a data file downloads into the temporary profile, no further.
+        options.add_experimental_option("prefs", {
+            "download.default_directory": profile, "download.prompt_for_download": False})
         if browser_log:
             options.set_capability("goog:loggingPrefs", {"browser": "ALL"})
         previous = os.environ.get("SE_OFFLINE")
@@ -330,6 +333,8 @@ def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=N
         Number of pages in the PDF.
     """
     started = time.perf_counter()
+    chromium, chromedriver = find_browser(chromium, chromedriver)  # fail early, with
+    _selenium()                                                    # the install hint
     site_dir = Path(site_dir).resolve()
     output_pdf = Path(output_pdf)
     manifest = _project(site_dir)
