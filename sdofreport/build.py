@@ -32,7 +32,7 @@ def _check_inside(project, allow_outside: bool) -> None:
     paths = [("project.notes", project.info.notes_path)] + [
         (f"records id {spec.id!r} file", spec.path) for spec in project.records]
     for label, path in paths:
-        if path is None:
+        if path is None:  # a synthetic record has no file
             continue
         try:
             path.resolve().relative_to(root)

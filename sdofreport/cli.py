@@ -207,8 +207,10 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
 
 
 from sdofreport.archive.commands import register_commands  # noqa: E402
+from sdofreport.synthesize_command import register as _register_synthesize  # noqa: E402
 
 register_commands(cli)
+_register_synthesize(cli)
 
 
 def main(argv: list[str] | None = None) -> None:

@@ -141,11 +141,49 @@ def _with_acceleration(record: Record, acceleration: np.ndarray, note: str) -> R
                                history=record.history + (note,))
 
 
-def load_records(project: Project) -> list[Record]:
+def synthetic_record(project: Project, index: int, cache: ResultCache | None = None) -> Record:
+    """
+    The ``index``-th spectrum-compatible record of ``[synthetic_records]``: random-phase
+    sinusoids with iterated amplitudes matched to the design spectrum (Gasparini &
+    Vanmarcke 1976), seeded, so the same project always gives the same record.
+    """
+    from sdofreport.core.compatible import spectrum_compatible_record
+    from sdofreport.records import record_from_array
+
+    spec = project.synthetic
+    seed = spec.seed + index
+    periods = np.geomspace(0.02, 10.0, 200)
+    target = project.design_spectrum.spectrum().sa_g(periods)
+    key = content_hash({"version": __version__, "job": "synthetic", "seed": seed,
+                        "spec": dataclasses.asdict(spec),
+                        "design": project.design_spectrum.parameters,
+                        "kind": project.design_spectrum.kind})
+    made = cache.get(key) if cache is not None else None
+    if made is None:
+        made = spectrum_compatible_record(periods, target, spec.duration_s, spec.dt_s,
+                                          seed=seed, envelope=spec.envelope,
+                                          period_range_s=spec.period_range_s)
+        if cache is not None:
+            cache.put(key, made)
+    record = record_from_array(made.acceleration_m_s2, made.dt_s, units="m/s2",
+                               record_id=f"syn{index + 1:02d}")
+    low, high = spec.period_range_s
+    note = (f"synthetic spectrum-compatible record (Gasparini & Vanmarcke 1976), seed "
+            f"{seed}, {spec.envelope} envelope; 5 % spectrum within "
+            f"{100 * made.max_deviation:.1f} % of the design spectrum over {low:g} to "
+            f"{high:g} s (mean deviation {100 * made.mean_deviation:+.1f} %)")
+    return dataclasses.replace(record, units="g", file_format="synthetic",
+                               history=(note,))
+
+
+def load_records(project: Project, cache: ResultCache | None = None) -> list[Record]:
     """Read, process and scale every record; every unreadable record is reported at once."""
     records, problems = [], []
-    for spec in project.records:
+    for index, spec in enumerate(project.records):
         try:
+            if spec.path is None:
+                records.append(synthetic_record(project, index, cache))
+                continue
             record = read_record(spec.path, file_format=spec.file_format, units=spec.units,
                                  dt_s=spec.dt_s, record_id=spec.id)
             settings = spec.processing
@@ -329,10 +367,10 @@ def run_project(project: Project, *, jobs: int | None = None,
     Results
     """
     started = time.perf_counter()
-    records = load_records(project)
+    cache = ResultCache((cache_dir or default_cache_dir()) if use_cache else None)
+    records = load_records(project, cache)
     read_time = time.perf_counter() - started
     analysis = project.analysis
-    cache = ResultCache((cache_dir or default_cache_dir()) if use_cache else None)
     base = {"version": __version__, "method": analysis.method}
     pairs = _pairs(project)
     total = len(records) + len(pairs) + len(records) * len(project.systems)

@@ -160,3 +160,19 @@ def test_build_compare_to_adds_a_revision_page(project_factory, valid_project_te
     manifest = json.loads((new / "manifest.json").read_text())
     assert "revision.html" in manifest["files"]
     assert 'href="revision.html"' in (new / "index.html").read_text()
+
+
+def test_display_units_us_on_pages_and_si_in_json(project_factory, valid_project_text,
+                                                  tmp_path):
+    text = valid_project_text.replace('prepared_by = "tester"',
+                                      'prepared_by = "tester"\ndisplay_units = "US"')
+    out = tmp_path / "us"
+    result = run("build", str(project_factory(text)), "-o", str(out), "-q", "--jobs", "1",
+                 "--cache-dir", str(tmp_path / "cache"))
+    assert result.exit_code == 0, result.output
+    page = (out / "systems" / "s1.html").read_text()
+    doc = json.loads((out / "data" / "results.json").read_text())
+    (check,) = doc["systems"][0]["checks"]
+    # Definition: 1 in = 0.0254 m; the 50 mm limit is 1.969 in on a US page.
+    assert "1.969 in" in page and " kip" in page and " mm<" not in page
+    assert check["limit"] == pytest.approx(0.05) and check["unit"] == "m"

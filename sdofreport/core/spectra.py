@@ -4,10 +4,12 @@ Peak responses, response histories and response spectra of linear SDOF oscillato
 Every method (:data:`SPECTRUM_METHODS`) is written as the two-term recurrence of
 :mod:`sdofreport.core.exact` — exact for piecewise-linear excitation [1]_, or Newmark's
 step [2]_ recast in the same form — and run by one compiled kernel. Oscillators are taken
-in blocks of 16 (padded); each block runs over the whole record with time in the outer
-loop and a fixed-length loop over its lanes inside, so its working set stays in L1 and
-the lane loop compiles to FMA vector code (load terms first, so each step adds only two
-dependent FMAs to the state's latency chain).
+in blocks of 16 (a group's last block only its lanes rounded up to 4); each block runs
+over the whole record in chunks of 8 steps, with the lanes as the vectorised loop and,
+inside it, each lane's state, running maxima and coefficients held in local variables, so
+the chunk runs in registers and the compiler turns the lane loop into FMA vector code
+(load terms first, so each step adds only two dependent FMAs to the state's latency
+chain). The sub-step forcing is interpolated once per group.
 
 Between-sample peaks
 --------------------
@@ -22,10 +24,11 @@ Peaks fall between samples. Two measures keep them:
    ``−(2ζω ü + ω² u')``) is refined to its interior extremum. Its size is bounded by
    ``max_k |y_k| + (h/3)|y'_k|`` over its two ends (the Hermite slope weights are at most
    a third of the value weights), so the kernel works in two passes per block: pass 1
-   (vectorised) runs the recurrence and keeps, per segment of 32 steps, the state at the
-   segment start and the largest |u|, |u'|, |ü_t|, |ü| sampled in it; pass 2 re-runs,
-   with refinement, only the segments whose bound exceeds the peak found so far (which
-   starts at the largest sample). On the benchmark record about 1 % of steps are re-run.
+   (vectorised) runs the recurrence and keeps, per segment of 64 steps, the state at the
+   segment start and the largest |u|, |u'|, |ü_t|, |ü| sampled in it; pass 2 screens all
+   lanes of a segment at once and re-runs, scalar and with refinement, only the segments
+   whose bound exceeds the peak found so far (which starts at the largest sample). On the
+   benchmark record about 1.6 % of steps are re-run (3 % without sub-steps).
    The peaks equal those of refining every step, to round-off.
 
 Defaults (:data:`DEFAULT_STEPS_PER_PERIOD`) were chosen by measurement, not from a
@@ -48,12 +51,18 @@ so for ζ below about 2 % use ``"exact"`` or raise ``steps_per_period``. Sub-ste
 are powers of two, so the actual steps per period lie between the setting and twice it.
 
 Speed (``benchmarks/spectrum_kernel.py``: 11,000 steps at 0.005 s, 500 periods, one
-core, a 2-core machine shared with other jobs so figures vary by about ±30 %): exact
-method with defaults about 520-700 M executed oscillator-steps/s (1.41 executed per
-record step; 15-19 ms per spectrum, was 50-60 ms at ~130-170 M/s), about 28-35 × a numpy
-loop over time vectorised across periods; pass 1 alone, no sub-steps, up to ~1,100 M/s.
+core of a 2-core machine that was heavily shared when measured, load average 6-9, so
+wall-clock figures are low and vary by a factor of two): exact method with defaults
+600 M executed oscillator-steps/s wall clock (was 220 M on the same busy machine, and
+about 700 M on a quiet one before this kernel), 1.41 executed per record step; the
+kernels alone run about 880-950 M executed steps per second of CPU time, and the Python
+set-up around them (recurrence coefficients mostly) adds about a quarter to the time of a
+spectrum. About 58 × a numpy loop over time vectorised across periods. Newmark methods
+about 480-500 M/s wall clock (720-750 M per CPU second). The 1,000 M/s goal is not
+demonstrated on this machine.
 
-``benchmarks/spectrum_kernel.py`` and ``tests/core/test_spectra.py`` re-measure this.
+``benchmarks/spectrum_kernel.py`` re-measures the speed, ``tests/core/test_spectra.py``
+the accuracy.
 
 References
 ----------
@@ -241,13 +250,20 @@ def _hermite_abs_max(y0, d0, y1, d1, h):
 _KERNEL_OPTIONS = {**JIT_OPTIONS, "fastmath": {"contract"}, "error_model": "numpy",
                    "boundscheck": False}
 
-# Oscillators per block: a multiple of the SIMD width (4 doubles with AVX2). A block is run
-# over the whole record with time outer and a fixed-length lane loop inner, so its work
-# array stays in L1 and the compiler unrolls and vectorises the lane loop. 16 was fastest
-# measured (8: latency-bound, 32: spills); see benchmarks/spectrum_kernel.py.
+# Oscillators per block: a multiple of the SIMD width (4 doubles with AVX2). Pass 1 takes
+# a block through the record in chunks of _CHUNK steps: for each lane (the loop that is
+# vectorised) it loads the state, running maxima and coefficients into local variables,
+# runs the chunk with everything in registers and stores back once. A step-outer loop over
+# a work array instead stores the state and the four maxima every step, because the
+# compiler cannot rule out that they overlap the ground motion. 16 lanes per block; the
+# last block of a group runs only its lanes rounded up to 4, to limit padding.
 _BLOCK = 16
-# Integration steps per checkpoint segment (measured: 16-64 within a few per cent).
-_SEGMENT = 32
+# Integration steps per checkpoint segment (measured: 64 about 5 % faster than 32, 15 %
+# faster than 16, despite re-running 1.6 % of steps in pass 2 rather than 1.0 %).
+_SEGMENT = 64
+# Steps run with the state in registers (a divisor of _SEGMENT; the compiler unrolls it;
+# 4 and 16 measured slower).
+_CHUNK = 8
 # Rows of a block's work array: recurrence coefficients, 2ζω, ω², state, segment maxima.
 _A11, _A12, _A21, _A22, _B1, _B2, _B3, _B4, _CD, _KK, _U, _V, _MU, _MV, _MA, _MR = range(16)
 _ROWS = 16
@@ -268,39 +284,131 @@ def _forcing(ag, k, shift, mask, inv):
 
 
 @njit(**_KERNEL_OPTIONS)
-def _refine_segment(ag, shift, h, a, cdamp, kstiff, u, v, lo, hi, peak):
-    """
-    Re-run one oscillator over sub-steps ``lo``..``hi`` from state (u, v), raising
-    ``peak`` (3,) to the interior extrema of the cubic Hermite of u, u' and ü_t in each
-    step whose bound could exceed it. Scalar; used only for flagged segments.
-    """
+def _substep_forcing(ag, shift):
+    """Base acceleration at every sub-step of ``h = dt / 2**shift``, shape (nsteps + 1,)."""
     mask = (1 << shift) - 1
     inv = 1.0 / (mask + 1)
+    nsteps = (ag.size - 1) << shift
+    g = np.empty(nsteps + 1)
+    for k in range(nsteps + 1):
+        g[k] = _forcing(ag, k, shift, mask, inv)
+    return g
+
+
+@njit(**_KERNEL_OPTIONS)
+def _refine_segment(g, h, a, cdamp, kstiff, u, v, lo, hi, peak):
+    """
+    Re-run one oscillator over sub-steps ``lo``..``hi`` of the sub-step forcing ``g``
+    from state (u, v), raising ``peak`` (3,) to the interior extrema of the cubic Hermite
+    of u, u' and ü_t in each step whose bound could exceed it. Scalar; used only for
+    flagged segments.
+    """
     h3 = h / 3.0
     c = cdamp
     k = kstiff
-    gb = _forcing(ag, lo, shift, mask, inv)
+    gb = g[lo]
+    at0 = -(c * v + k * u)
+    r0 = at0 - gb  # relative acceleration ü
+    j0 = -(c * r0 + k * v)  # d(ü_t)/dt
     for step in range(lo, hi):
         ga = gb
-        gb = _forcing(ag, step + 1, shift, mask, inv)
+        gb = g[step + 1]
         u1 = (a[4] * ga + a[5] * gb) + a[1] * v + a[0] * u
         v1 = (a[6] * ga + a[7] * gb) + a[2] * u + a[3] * v
-        at0 = -(c * v + k * u)
         at1 = -(c * v1 + k * u1)
-        r0 = at0 - ga  # relative acceleration ü at both ends
         r1 = at1 - gb
+        j1 = -(c * r1 + k * v1)
         # The end samples are already in ``peak``; the cubic can exceed them only if
         # |y0 + (h/3) y0'| or |y1 - (h/3) y1'| does (signed form of the bound above).
         if max(abs(u + h3 * v), abs(u1 - h3 * v1)) > peak[0]:
             peak[0] = max(peak[0], _hermite_abs_max(u, v, u1, v1, h))
         if max(abs(v + h3 * r0), abs(v1 - h3 * r1)) > peak[1]:
             peak[1] = max(peak[1], _hermite_abs_max(v, r0, v1, r1, h))
-        j0 = -(c * r0 + k * v)  # d(ü_t)/dt at both ends
-        j1 = -(c * r1 + k * v1)
         if max(abs(at0 + h3 * j0), abs(at1 - h3 * j1)) > peak[2]:
             peak[2] = max(peak[2], _hermite_abs_max(at0, j0, at1, j1, h))
         u = u1
         v = v1
+        at0 = at1
+        r0 = r1
+        j0 = j1
+
+
+@njit(inline="always", **_KERNEL_OPTIONS)
+def _advance(w, g, step, count, width):
+    """
+    Run lanes ``0..width-1`` of a block over sub-steps ``step..step+count``, updating the
+    state and the running segment maxima in ``w``. Lanes are the outer (vectorised) loop
+    and everything a lane needs is a local variable, so nothing is stored inside the
+    step loop; with ``count = _CHUNK`` (a constant) the step loop is unrolled.
+    """
+    for j in range(width):
+        a11 = w[_A11 * _BLOCK + j]
+        a12 = w[_A12 * _BLOCK + j]
+        a21 = w[_A21 * _BLOCK + j]
+        a22 = w[_A22 * _BLOCK + j]
+        b1 = w[_B1 * _BLOCK + j]
+        b2 = w[_B2 * _BLOCK + j]
+        b3 = w[_B3 * _BLOCK + j]
+        b4 = w[_B4 * _BLOCK + j]
+        c = w[_CD * _BLOCK + j]
+        k = w[_KK * _BLOCK + j]
+        u = w[_U * _BLOCK + j]
+        v = w[_V * _BLOCK + j]
+        mu = w[_MU * _BLOCK + j]
+        mv = w[_MV * _BLOCK + j]
+        ma = w[_MA * _BLOCK + j]
+        mr = w[_MR * _BLOCK + j]
+        for s in range(count):
+            ga = g[step + s]
+            gb = g[step + s + 1]
+            # Load terms first, state last: two dependent FMAs per step.
+            u1 = (b1 * ga + b2 * gb) + a12 * v + a11 * u
+            v1 = (b3 * ga + b4 * gb) + a21 * u + a22 * v
+            a1 = c * v1 + k * u1  # = -ü_t
+            mu = max(mu, abs(u1))
+            mv = max(mv, abs(v1))
+            ma = max(ma, abs(a1))
+            mr = max(mr, abs(a1 + gb))  # = |ü|
+            u = u1
+            v = v1
+        w[_U * _BLOCK + j] = u
+        w[_V * _BLOCK + j] = v
+        w[_MU * _BLOCK + j] = mu
+        w[_MV * _BLOCK + j] = mv
+        w[_MA * _BLOCK + j] = ma
+        w[_MR * _BLOCK + j] = mr
+
+
+@njit(inline="always", **_KERNEL_OPTIONS)
+def _first_pass(w, g, saved, nsteps, width):
+    """
+    Pass 1 for one block of ``width`` lanes: the recurrence over the whole record, keeping
+    per segment the state at its start and the maxima of |u|, |u'|, |ü_t|, |ü| (rows of
+    ``saved``).
+    """
+    for sg in range(saved.shape[0]):
+        lo = sg * _SEGMENT
+        hi = min(lo + _SEGMENT, nsteps)
+        g0 = g[lo]
+        for j in range(_BLOCK):
+            u = w[_U * _BLOCK + j]
+            v = w[_V * _BLOCK + j]
+            a = w[_CD * _BLOCK + j] * v + w[_KK * _BLOCK + j] * u  # = -ü_t
+            saved[sg, j] = u
+            saved[sg, _BLOCK + j] = v
+            w[_MU * _BLOCK + j] = abs(u)
+            w[_MV * _BLOCK + j] = abs(v)
+            w[_MA * _BLOCK + j] = abs(a)
+            w[_MR * _BLOCK + j] = abs(a + g0)  # = |ü|
+        step = lo
+        while step + _CHUNK <= hi:
+            _advance(w, g, step, _CHUNK, width)
+            step += _CHUNK
+        if step < hi:
+            _advance(w, g, step, hi - step, width)
+        for r in range(2, _SAVED):
+            for j in range(_BLOCK):
+                saved[sg, r * _BLOCK + j] = w[(_MU - 2 + r) * _BLOCK + j]
 
 
 @njit(**_KERNEL_OPTIONS)
@@ -322,15 +430,15 @@ def _recurrence_peaks(ag, shift, h, coef, cdamp, kstiff, u_init, v_init, peaks):
     starts at the largest sample): after the strong motion, almost none.
     """
     n = coef.shape[1]
-    n_sub = 1 << shift
-    mask = n_sub - 1
-    inv = 1.0 / n_sub
-    nsteps = (ag.size - 1) * n_sub
+    g = _substep_forcing(ag, shift)
+    nsteps = g.size - 1
     nseg = (nsteps + _SEGMENT - 1) // _SEGMENT
     h3 = h / 3.0
     w = np.zeros(_ROWS * _BLOCK)
+    a = np.empty(8)
     saved = np.empty((nseg, _SAVED * _BLOCK))
     peak = np.empty(3)
+    pk = np.empty((3, _BLOCK))
     rerun = 0
     for b0 in range(0, n, _BLOCK):
         m = min(_BLOCK, n - b0)
@@ -342,65 +450,51 @@ def _recurrence_peaks(ag, shift, h, coef, cdamp, kstiff, u_init, v_init, peaks):
             w[_KK * _BLOCK + j] = kstiff[b0 + j]
             w[_U * _BLOCK + j] = u_init[b0 + j]
             w[_V * _BLOCK + j] = v_init[b0 + j]
-        # ---- pass 1: recurrence and segment maxima, vectorised across the block
+        # ---- pass 1: recurrence and segment maxima, vectorised across the block. A
+        # partial block runs its lanes rounded up to the SIMD width of 4 (a lane count
+        # known only at run time, so the compiler vectorises rather than unrolls it).
+        if m == _BLOCK:
+            _first_pass(w, g, saved, nsteps, _BLOCK)
+        else:
+            _first_pass(w, g, saved, nsteps, (m + 3) & -4)
+        # ---- pass 2: refine only segments whose bound beats the peak so far. The sample
+        # peaks and a first screen of every segment run across lanes; a segment any lane
+        # needs is then checked lane by lane against the peak as it stands.
+        pk[:] = 0.0
         for sg in range(nseg):
-            lo = sg * _SEGMENT
-            hi = min(lo + _SEGMENT, nsteps)
-            gb = _forcing(ag, lo, shift, mask, inv)
             for j in range(_BLOCK):
-                u = w[_U * _BLOCK + j]
-                v = w[_V * _BLOCK + j]
-                a = w[_CD * _BLOCK + j] * v + w[_KK * _BLOCK + j] * u  # = -ü_t
-                saved[sg, j] = u
-                saved[sg, _BLOCK + j] = v
-                w[_MU * _BLOCK + j] = abs(u)
-                w[_MV * _BLOCK + j] = abs(v)
-                w[_MA * _BLOCK + j] = abs(a)
-                w[_MR * _BLOCK + j] = abs(a + gb)  # = |ü|
-            for step in range(lo, hi):
-                ga = gb
-                gb = _forcing(ag, step + 1, shift, mask, inv)
-                for j in range(_BLOCK):
-                    u0 = w[_U * _BLOCK + j]
-                    v0 = w[_V * _BLOCK + j]
-                    # Load terms first, state last: two dependent FMAs per step.
-                    u1 = ((w[_B1 * _BLOCK + j] * ga + w[_B2 * _BLOCK + j] * gb)
-                          + w[_A12 * _BLOCK + j] * v0 + w[_A11 * _BLOCK + j] * u0)
-                    v1 = ((w[_B3 * _BLOCK + j] * ga + w[_B4 * _BLOCK + j] * gb)
-                          + w[_A21 * _BLOCK + j] * u0 + w[_A22 * _BLOCK + j] * v0)
-                    w[_U * _BLOCK + j] = u1
-                    w[_V * _BLOCK + j] = v1
-                    a1 = w[_CD * _BLOCK + j] * v1 + w[_KK * _BLOCK + j] * u1
-                    w[_MU * _BLOCK + j] = max(w[_MU * _BLOCK + j], abs(u1))
-                    w[_MV * _BLOCK + j] = max(w[_MV * _BLOCK + j], abs(v1))
-                    w[_MA * _BLOCK + j] = max(w[_MA * _BLOCK + j], abs(a1))
-                    w[_MR * _BLOCK + j] = max(w[_MR * _BLOCK + j], abs(a1 + gb))
-            for r in range(2, _SAVED):
-                for j in range(_BLOCK):
-                    saved[sg, r * _BLOCK + j] = w[(_MU - 2 + r) * _BLOCK + j]
-        # ---- pass 2: refine only segments whose bound beats the peak so far
-        for j in range(m):
-            c = w[_CD * _BLOCK + j]
-            k = w[_KK * _BLOCK + j]
-            peak[0] = 0.0
-            peak[1] = 0.0
-            peak[2] = 0.0
-            for sg in range(nseg):
-                peak[0] = max(peak[0], saved[sg, 2 * _BLOCK + j])
-                peak[1] = max(peak[1], saved[sg, 3 * _BLOCK + j])
-                peak[2] = max(peak[2], saved[sg, 4 * _BLOCK + j])
-            for sg in range(nseg):
+                pk[0, j] = max(pk[0, j], saved[sg, 2 * _BLOCK + j])
+                pk[1, j] = max(pk[1, j], saved[sg, 3 * _BLOCK + j])
+                pk[2, j] = max(pk[2, j], saved[sg, 4 * _BLOCK + j])
+        for sg in range(nseg):
+            hit = False
+            for j in range(_BLOCK):
                 bu = saved[sg, 2 * _BLOCK + j] + h3 * saved[sg, 3 * _BLOCK + j]
                 bv = saved[sg, 3 * _BLOCK + j] + h3 * saved[sg, 5 * _BLOCK + j]
-                if bu > peak[0] or bv > peak[1] or c * bv + k * bu > peak[2]:
-                    lo = sg * _SEGMENT
-                    hi = min(lo + _SEGMENT, nsteps)
-                    _refine_segment(ag, shift, h, w[j::_BLOCK][:8], c, k,
-                                    saved[sg, j], saved[sg, _BLOCK + j], lo, hi, peak)
+                hit |= ((bu > pk[0, j]) | (bv > pk[1, j])
+                        | (w[_CD * _BLOCK + j] * bv + w[_KK * _BLOCK + j] * bu > pk[2, j]))
+            if not hit:
+                continue
+            lo = sg * _SEGMENT
+            hi = min(lo + _SEGMENT, nsteps)
+            for j in range(m):
+                c = w[_CD * _BLOCK + j]
+                k = w[_KK * _BLOCK + j]
+                bu = saved[sg, 2 * _BLOCK + j] + h3 * saved[sg, 3 * _BLOCK + j]
+                bv = saved[sg, 3 * _BLOCK + j] + h3 * saved[sg, 5 * _BLOCK + j]
+                if bu > pk[0, j] or bv > pk[1, j] or c * bv + k * bu > pk[2, j]:
+                    for r in range(8):
+                        a[r] = w[r * _BLOCK + j]
+                    for r in range(3):
+                        peak[r] = pk[r, j]
+                    _refine_segment(g, h, a, c, k, saved[sg, j], saved[sg, _BLOCK + j],
+                                    lo, hi, peak)
+                    for r in range(3):
+                        pk[r, j] = peak[r]
                     rerun += hi - lo
-            peaks[0, b0 + j] = peak[0]
-            peaks[1, b0 + j] = peak[1]
-            peaks[2, b0 + j] = peak[2]
+        for j in range(m):
+            for r in range(3):
+                peaks[r, b0 + j] = pk[r, j]
     return rerun
 
 

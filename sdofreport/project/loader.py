@@ -26,6 +26,7 @@ from sdofreport.project.model import (
     AnalysisSettings,
     DesignSpectrumSpec,
     InelasticSpectraSpec,
+    SyntheticSpec,
     ScalingSpec,
     Limits,
     ProcessingSettings,
@@ -633,6 +634,42 @@ def _number_list(value, where: str, minimum: float, problems: _Problems,
     return tuple(sorted(set(float(v) for v in value)))
 
 
+def _read_synthetic(table, design, problems: _Problems) -> SyntheticSpec | None:
+    if table is None:
+        return None
+    where = "synthetic_records"
+    if not isinstance(table, dict):
+        problems.add(where, f"expected a table, found {table!r}")
+        return None
+    _check_unknown(table, "synthetic_records", where, problems)
+    spec = SECTIONS["synthetic_records"]
+    values = {name: _read_value(table, key, where, problems) for name, key in spec.items()
+              if name != "period_range"}
+    count, duration, dt = values["count"], values["duration"], values["dt"]
+    if count is not None and not 1 <= count <= 100:
+        problems.add(f"{where}.count", f"expected 1 to 100 records, found {count}")
+    if duration is not None and dt is not None and not 0 < 20 * dt <= duration:
+        problems.add(f"{where}.dt", f"expected 0 < dt and at least 20 steps in the "
+                     f"duration, found dt {dt:g} s for {duration:g} s")
+    period_range = (0.05, 4.0)
+    if "period_range" in table:
+        raw = table["period_range"]
+        if (not isinstance(raw, list) or len(raw) != 2 or not all(
+                isinstance(v, (int, float)) and not isinstance(v, bool) for v in raw)
+                or not 0 < raw[0] < raw[1]):
+            problems.add(f"{where}.period_range", f"expected [low, high] in s with "
+                         f"0 < low < high, found {raw!r}")
+        else:
+            period_range = (float(raw[0]), float(raw[1]))
+    if design is None:
+        problems.add(where, "synthetic records need a [design_spectrum] section (their "
+                     "target)")
+    if None in values.values():
+        return None
+    return SyntheticSpec(count, duration, dt, values["seed"], values["envelope"],
+                         period_range)
+
+
 def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
     if table is None:
         return None
@@ -720,13 +757,28 @@ def load_project(path) -> Project:
     analysis = _read_analysis(document.get("analysis", {}), problems)
     processing = _read_processing(document.get("processing", {}), "processing", problems,
                                   ProcessingSettings())
-    records = _read_records(document.get("records"), path.parent, processing, problems)
+    design_early = document.get("design_spectrum")
+    synthetic_table = document.get("synthetic_records")
+    if synthetic_table is not None and document.get("records"):
+        problems.add("synthetic_records", "give either [[records]] or "
+                     "[synthetic_records], not both")
+    if synthetic_table is None:
+        records = _read_records(document.get("records"), path.parent, processing, problems)
+    else:
+        records = []
     systems = _read_systems(document.get("systems"), problems)
     design = _read_design_spectrum(document.get("design_spectrum"), problems)
     scaling = _read_scaling(document.get("scaling"), design, "design_spectrum" in document,
                             problems)
     inelastic = _read_inelastic(document.get("inelastic_spectra"), problems)
+    synthetic = _read_synthetic(synthetic_table, design if design_early is not None else
+                                None, problems)
+    if synthetic is not None:
+        records = [RecordSpec(f"syn{i + 1:02d}", None,
+                              f"synthetic (seed {synthetic.seed + i})", "synthetic", "g",
+                              synthetic.dt_s, 1.0, processing)
+                   for i in range(synthetic.count)]
     if problems.items:
         raise ProjectError(format_problems(shown, problems.items))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
-                   tuple(records), tuple(systems), design, scaling, inelastic)
+                   tuple(records), tuple(systems), design, scaling, inelastic, synthetic)

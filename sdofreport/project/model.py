@@ -49,9 +49,21 @@ class AnalysisSettings:
 
 
 @dataclass(frozen=True)
+class SyntheticSpec:
+    """Spectrum-compatible records made from the design spectrum (seeded)."""
+
+    count: int = 7
+    duration_s: float = 20.0
+    dt_s: float = 0.01
+    seed: int = 1
+    envelope: str = "saragoni-hart"
+    period_range_s: tuple[float, float] = (0.05, 4.0)
+
+
+@dataclass(frozen=True)
 class RecordSpec:
     id: str
-    path: Path  # absolute
+    path: Path | None  # absolute; None for a synthetic record made at build time
     file: str  # as written in the project file
     file_format: str = "auto"
     units: str = "g"
@@ -156,6 +168,7 @@ class Project:
     design_spectrum: DesignSpectrumSpec | None = None
     scaling: ScalingSpec = field(default_factory=ScalingSpec)
     inelastic: InelasticSpectraSpec | None = None
+    synthetic: SyntheticSpec | None = None
 
     @property
     def root(self) -> Path:

@@ -165,6 +165,21 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
     ),
+    "synthetic_records": _keys(
+        KeySpec("count", "integer", "Number of spectrum-compatible records to make "
+                "(Gasparini & Vanmarcke 1976) when no [[records]] are given.", default=7,
+                example="7"),
+        KeySpec("duration", "quantity", "Duration of each record.", dimension="time",
+                default=20.0, example='"20 s"'),
+        KeySpec("dt", "quantity", "Time step.", dimension="time", default=0.01,
+                example='"0.01 s"'),
+        KeySpec("seed", "integer", "Seed of the first record; record i uses seed + i.",
+                default=1, example="1"),
+        KeySpec("envelope", "choice", "Amplitude envelope.", default="saragoni-hart",
+                choices=("saragoni-hart", "trapezoidal"), example='"saragoni-hart"'),
+        KeySpec("period_range", "list", "[low, high] periods matched, in s (default "
+                "0.05–4 s).", example="[0.05, 4.0]"),
+    ),
     "inelastic_spectra": _keys(
         KeySpec("ductility", "list", "Target ductilities μ of the constant-ductility "
                 "spectra (strength found by bisection).", default=[2.0, 4.0, 6.0],
@@ -276,4 +291,4 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
 
 #: Top-level tables and arrays of tables of the project file.
 TOP_LEVEL = ("project", "analysis", "processing", "design_spectrum", "scaling",
-             "inelastic_spectra", "records", "systems")
+             "synthetic_records", "inelastic_spectra", "records", "systems")

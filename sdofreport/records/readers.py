@@ -23,6 +23,8 @@ In ``values`` and ``headed`` data, numbers that run together in fixed-width colu
 Values are in g unless the caller declares other units; they are converted once to m/s².
 Every problem with the file is a :class:`sdofreport.errors.RecordError` naming the file
 and, where it applies, the line.
+Files larger than :data:`MAX_FILE_BYTES` are refused before they are read; UTF-16/32
+and compressed files are named as such.
 """
 
 from __future__ import annotations
@@ -56,9 +58,10 @@ RECORD_FORMAT_DESCRIPTIONS = {
 
 #: Fewest samples a record may have. [-]
 MIN_POINTS = 16
-#: Largest record file read [bytes]. Reading holds about 30 times the file size in memory
-#: (measured on two-column files of short lines), so 32 MiB keeps a build near 1 GB; no
-#: published source gives this number. That is still about 1.7 million two-column lines.
+#: Largest record file read [bytes]. Reading holds up to about 55 times the file size in
+#: memory (measured on a two-column file of 9-byte lines: 16 MiB took 0.86 GB), so this
+#: keeps a build under 1 GB; our choice, no published source. It is still some 800 000
+#: lines of time and acceleration, far more than a strong-motion record needs.
 MAX_FILE_BYTES = 16 * 1024 * 1024
 #: Largest allowed relative deviation of any time step from the mean step. [-]
 TIME_STEP_TOLERANCE = 1e-3
@@ -103,8 +106,9 @@ def _load_bytes(path: str) -> bytes:
                     "the project folder or the current folder)")
     if file.is_dir():
         raise _fail(path, None, "is a folder, expected a text file of acceleration values")
-    limit = (f"the largest record file read is {MAX_FILE_BYTES // 2 ** 20} MiB (about 1.7 "
-             "million two-column lines): decimate the record or split it into shorter ones")
+    limit = (f"the largest record file read is {MAX_FILE_BYTES // 2 ** 20} MiB (some 800 000 "
+             "lines of time and acceleration): decimate the record or split it into "
+             "shorter ones")
     try:
         size = file.stat().st_size
         if size > MAX_FILE_BYTES:  # refused before reading a byte

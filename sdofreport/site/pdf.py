@@ -96,6 +96,13 @@ def find_browser(chromium: str | os.PathLike | None = None,
     return found[0], found[1]
 
 
+def check_printing(chromium: str | os.PathLike | None = None,
+                   chromedriver: str | os.PathLike | None = None) -> None:
+    """Raise ``BuildError`` (with the install hint) unless :func:`write_pdf` can run."""
+    find_browser(chromium, chromedriver)
+    _selenium()
+
+
 def _selenium():
     try:
         from selenium import webdriver
@@ -138,8 +145,7 @@ def headless_chrome(chromium: str | os.PathLike | None = None,
             driver = webdriver.Chrome(service=Service(executable_path=driver_path),
                                       options=options)
         except WebDriverException as exc:
-            first = (exc.msg or str(exc)).strip().splitlines()[0] if (exc.msg or str(exc)) \
-                else type(exc).__name__
+            first = (exc.msg or str(exc) or type(exc).__name__).strip().splitlines()[0]
             raise BuildError(f"PDF: Chromium ({chromium_path}) could not be started "
                              f"through {driver_path}: {first}. The two must be the same "
                              f"version. {INSTALL_HINT}") from None
@@ -311,6 +317,22 @@ def default_pdf_path(site_dir: str | os.PathLike) -> Path:
     return site_dir.resolve().parent / f"{site_dir.resolve().name}-review-packet.pdf"
 
 
+def pdf_target(option: str, site_dir: str | os.PathLike) -> Path:
+    """
+    The PDF file for ``build --pdf [FILE]``: ``FILE``, or :func:`default_pdf_path`
+    when the option is given without one (click passes ``""``).
+
+    A value that does not end in ``.pdf`` is refused: it is most often the project
+    file, taken as the option's value in ``sdofreport build --pdf PROJECT``.
+    """
+    if not option:
+        return default_pdf_path(site_dir)
+    if not option.lower().endswith(".pdf"):
+        raise BuildError(f"--pdf: expected a file name ending in .pdf, got '{option}'. "
+                         f"Put --pdf after the project file, or write --pdf=FILE.pdf.")
+    return Path(option)
+
+
 def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=None,
               timeout_s: float = 120.0) -> int:
     """
@@ -333,8 +355,7 @@ def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=N
         Number of pages in the PDF.
     """
     started = time.perf_counter()
-    chromium, chromedriver = find_browser(chromium, chromedriver)  # fail early, with
-    _selenium()                                                    # the install hint
+    check_printing(chromium, chromedriver)  # fail early, with the install hint
     site_dir = Path(site_dir).resolve()
     output_pdf = Path(output_pdf)
     manifest = _project(site_dir)

@@ -132,13 +132,32 @@ def _input_files(results: Results) -> dict[str, Path]:
     sources = []
     if project.info.notes_path is not None:
         sources.append(project.info.notes_path)
-    sources += [spec.path for spec in project.records]
+    sources += [spec.path for spec in project.records if spec.path is not None]
     for index, source in enumerate(sources, start=1):
         try:
             relative = source.resolve().relative_to(root).as_posix()
             files[f"inputs/{relative}"] = source
         except ValueError:  # outside the project folder (allowed only on request)
             files[f"inputs/_outside/{index:03d}-{source.name}"] = source
+    return files
+
+
+def _synthetic_files(results: Results) -> dict[str, bytes]:
+    """Synthetic records (made at build time) as two-column files under data/synthetic/."""
+    from sdofreport.core.units import G
+    from sdofreport.records.writers import write_two_column
+
+    files = {}
+    with tempfile.TemporaryDirectory() as tmp:
+        for item in results.records:
+            if item.spec.path is not None:
+                continue
+            target = Path(tmp) / f"{item.record.id}.csv"
+            write_two_column(target, item.record.dt_s,
+                             np.asarray(item.record.acceleration_m_s2) / G, units="g",
+                             header_lines=(f"{item.record.id}: {item.record.history[0]}",
+                                           "as used in this run (after any scaling)"))
+            files[f"data/synthetic/{item.record.id}.csv"] = target.read_bytes()
     return files
 
 
@@ -181,6 +200,7 @@ def gather_site(results: Results, *, jobs: int = 1, figure_cache=None,
         files[path] = svg.encode("utf-8")
     files["static/style.css"] = (template_dir() / "static" / "style.css").read_bytes()
     files.update(extra)
+    files.update(_synthetic_files(results))
     files["data/spectra.csv"] = spectra_csv(results).encode("utf-8")
     files["data/peaks.csv"] = peaks_csv(results).encode("utf-8")
     files[MANIFEST_NAME] = _json_text(manifest_document(results, files)).encode("utf-8")

@@ -9,7 +9,8 @@ import pytest
 
 from sdofreport.errors import BuildError
 from sdofreport.site.context import CAUTION_SHORT
-from sdofreport.site.pdf import packet_html, packet_pages, write_pdf
+from sdofreport.site.pdf import (_fixed_date, _stamp_dates, packet_html, packet_pages,
+                                 pdf_target, write_pdf)
 from tests.browser.conftest import build_project
 
 
@@ -77,13 +78,25 @@ def test_packet_links_stay_inside_the_document(example_site):
 
 
 def test_same_site_prints_the_same_bytes(example_site, packet, tmp_path, monkeypatch):
+    monkeypatch.delenv("SOURCE_DATE_EPOCH", raising=False)
+    again = tmp_path / "again.pdf"
+    write_pdf(example_site, again)
+    assert again.read_bytes() == packet[1].read_bytes()
+
+
+def test_source_date_epoch_wins_over_the_project_date(monkeypatch):
+    # Chromium's Info dictionary, as written by Skia (m156), shortened.
+    chromium = (b"<</Producer (Skia/PDF m156)\n/CreationDate (D:20261201224128+00'00')\n"
+                b"/ModDate (D:20261201224128+00'00')>>")
+    manifest = {"project": {"date": "2026-11-30"}}
     monkeypatch.setenv("SOURCE_DATE_EPOCH", "1700000000")
-    first, second = tmp_path / "a.pdf", tmp_path / "b.pdf"
-    write_pdf(example_site, first)
-    write_pdf(example_site, second)
-    assert first.read_bytes() == second.read_bytes()
     # 1700000000 s after 1970-01-01 UTC is 2023-11-14 22:13:20 UTC.
-    assert b"/CreationDate (D:20231114221320+00'00')" in first.read_bytes()
+    stamped = _stamp_dates(chromium, _fixed_date(manifest))
+    assert stamped.count(b"(D:20231114221320+00'00')") == 2
+    assert len(stamped) == len(chromium)  # the cross-reference offsets still hold
+    monkeypatch.delenv("SOURCE_DATE_EPOCH")
+    assert _stamp_dates(chromium, _fixed_date(manifest)).count(b"D:20261130000000") == 2
+    assert _stamp_dates(chromium, _fixed_date({"project": {"date": None}})) == chromium
 
 
 def test_missing_chromium_is_a_build_error_with_install_hint(tmp_path):
@@ -123,3 +136,13 @@ def test_pdf_of_a_small_project_has_its_system(project_factory, tmp_path, valid_
     assert count == len(reader.pages) >= len(packet_pages(site))
     text = _words(" ".join(page.extract_text() for page in reader.pages))
     assert "s1 — System one" in text and "Test project" in text
+
+
+def test_pdf_option_value(tmp_path):
+    site = tmp_path / "_site"
+    assert pdf_target("", site) == tmp_path.resolve() / "_site-review-packet.pdf"
+    assert pdf_target("out/packet.PDF", site).as_posix() == "out/packet.PDF"
+    with pytest.raises(BuildError, match=r"^--pdf: expected a file name ending in \.pdf, "
+                       r"got 'sdofreport\.toml'\. Put --pdf after the project file, or "
+                       r"write --pdf=FILE\.pdf\.$"):
+        pdf_target("sdofreport.toml", site)

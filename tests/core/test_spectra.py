@@ -255,3 +255,26 @@ def test_late_peak_is_refined_after_a_strong_start():
     np.testing.assert_allclose(got.velocity_m_s, ref.velocity_m_s, rtol=0.005)
     np.testing.assert_allclose(got.total_acceleration_m_s2, ref.total_acceleration_m_s2,
                                rtol=0.005)
+
+
+@pytest.mark.parametrize("count", [1, 3, 5, 16, 21])
+def test_partial_blocks_and_partial_chunks(record_001, count):
+    ag, dt = record_001
+    ag = ag[:1003]  # 1002 steps: the record ends inside a segment and inside a chunk
+    # One sub-step group (steps_per_period=0), so ``count`` oscillators fill whole blocks
+    # of 16 and a last block of the remaining lanes rounded up to 4.
+    periods = np.geomspace(0.05, 3.0, count)
+    together = oscillator_peaks(ag, dt, periods, 0.05, steps_per_period=0)
+    for i in {0, count // 2, count - 1}:
+        alone = oscillator_peaks(ag, dt, periods[i], 0.05, steps_per_period=0)
+        # Regression against the same kernel run one oscillator at a time: the width of
+        # the last block must not change a lane's result (equal to round-off).
+        for got, want in [(together.displacement_m[i], alone.displacement_m[0]),
+                          (together.velocity_m_s[i], alone.velocity_m_s[0]),
+                          (together.total_acceleration_m_s2[i],
+                           alone.total_acceleration_m_s2[0])]:
+            np.testing.assert_allclose(got, want, rtol=1e-12)
+    hist = oscillator_histories(ag, dt, periods, 0.05, steps_per_period=0)
+    # Closed form: refined peaks can only exceed the sampled ones.
+    assert np.all(together.displacement_m >= np.max(np.abs(hist.displacement_m), axis=1))
+    assert np.all(together.velocity_m_s >= np.max(np.abs(hist.velocity_m_s), axis=1))

@@ -35,7 +35,8 @@ def test_starter_builds_strict_and_packs(starter_site, command_group, tmp_path):
     project, site = starter_site
     # The starter's demands are all within their limits, so --strict exits 0 (not 3).
     strict = invoke(command_group, "build", project / "sdofreport.toml", "-o",
-                    tmp_path / "strict", "--strict", "--quiet", "--no-cache")
+                    tmp_path / "strict", "--strict", "--quiet", "--cache-dir",
+                    site.parent / "cache")
     assert strict.exit_code == 0, strict.output
     packed = invoke(command_group, "pack", site, "-o", tmp_path)
     assert packed.exit_code == 0, packed.output
