@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from sdofreport.core.compatible import COMPATIBLE_ENVELOPES
+from sdofreport.core.stochastic import COMPATIBLE_ENVELOPES
 from sdofreport.errors import SdofreportError
 
 __all__ = ["register", "synthesize_command"]

@@ -42,6 +42,10 @@ SECTION_INTRO: dict[str, tuple[str, str]] = {
                         "depend on `kind` (see the table after this one)."),
     "scaling": ("[scaling]", "Amplitude scaling of the suite to the design spectrum. "
                 "Optional; needs `[design_spectrum]` unless `rule = \"none\"`."),
+    "synthetic_records": ("[synthetic_records]", "Spectrum-compatible synthetic records "
+                          "made from the design spectrum when the project lists no "
+                          "`[[records]]`. Optional; for trials and demonstrations, never "
+                          "a substitute for a selected suite."),
     "inelastic_spectra": ("[inelastic_spectra]", "Constant-ductility and "
                           "constant-strength spectra of a bilinear system for every "
                           "record. Optional; omit the section to skip them."),

@@ -72,12 +72,14 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.fft
-import scipy.integrate
+
+from sdofreport.core._numeric import cumulative_trapezoid
 
 from sdofreport.core.design_spectra import table_spectrum
 from sdofreport.core.exact import exact_response
 from sdofreport.core.processing import baseline_correction
 from sdofreport.core.spectra import response_spectrum
+from sdofreport.core.stochastic import COMPATIBLE_ENVELOPES  # envelopes accepted here
 from sdofreport.core.stochastic import (
     TRAPEZOID_FRACTIONS,
     saragoni_hart_envelope,
@@ -91,9 +93,6 @@ __all__ = [
     "CompatibleRecord",
     "spectrum_compatible_record",
 ]
-
-#: Envelope shapes accepted by :func:`spectrum_compatible_record`.
-COMPATIBLE_ENVELOPES = ("saragoni-hart", "trapezoidal")
 
 #: Iterations stop once every grid period is within this relative deviation.
 #: Common practice (no source).
@@ -223,8 +222,7 @@ class _Matcher:
         # sdofreport.core.processing.baseline_correction, applied to many rows at once.
         norm_t = np.arange(n) / (n - 1)
         self._basis = np.vstack([norm_t**p for p in range(_BASELINE_ORDER + 1)])
-        basis_velocity = scipy.integrate.cumulative_trapezoid(
-            self._basis, dx=dt, axis=1, initial=0.0)
+        basis_velocity = cumulative_trapezoid(self._basis, dt, axis=1)
         self._fit = np.linalg.pinv(basis_velocity.T)  # (order + 1, n)
         # Half-power bandwidth (±ζ in ln f) expressed in grid steps.
         step = math.log(grid[1] / grid[0])
@@ -232,8 +230,7 @@ class _Matcher:
 
     def baseline(self, rows):
         """Baseline-corrected copies of the rows of ``rows`` [m/s²] (see __init__)."""
-        velocity = scipy.integrate.cumulative_trapezoid(rows, dx=self.dt, axis=1,
-                                                        initial=0.0)
+        velocity = cumulative_trapezoid(rows, self.dt, axis=1)
         return rows - (velocity @ self._fit.T) @ self._basis
 
     def displacement(self, acc, rows):

@@ -15,6 +15,9 @@ import numpy as np
 #: stationary: no envelope).
 ENVELOPES: tuple[str, ...] = ("saragoni-hart", "trapezoidal", "none")
 
+#: Envelopes a spectrum-compatible record may use (a record needs a start and an end).
+COMPATIBLE_ENVELOPES: tuple[str, ...] = ("saragoni-hart", "trapezoidal")
+
 #: Fractions of the duration used for the trapezoidal envelope in
 #: :func:`kanai_tajimi_accelerogram`: rise, strong phase, decay.
 #: Common practice (no source): a short build-up and a long decay.

@@ -104,6 +104,10 @@ PROJECT_CASES = [
         "for a pair member without a component")]),
     ("pair_two_h1.toml", ["records pair 'p1'", "r1 (H1), r2 (H1)"], []),
     ("mass_furlongs.toml", ["systems[1].mass", "'5 furlongs'", "[length]"], []),
+    ("mass_percent.toml", ["systems[1].mass", "'5 %'"], [pytest.mark.xfail(
+        strict=True, reason="sdofreport/project/quantities.py parse_quantity: a text whose "
+        "unit pint finds dimensionless ('5 %', 'mass' = milliarcsecond-seconds) is taken as "
+        "an SI number, so mass = \"5 %\" loads as 0.05 kg")]),
     ("stiffness_kg.toml", ["systems[1].stiffness", "'3000 kg'", "[mass]"], []),
     ("zero_mass.toml", ["systems[1].mass", "must be greater than 0", "'0 t'"], []),
     ("negative_damping.toml", ["systems[1].damping", "expected a ratio", "-0.02"], []),

@@ -192,6 +192,8 @@ PROJECT_FILES: dict[str, bytes | str] = {
     ).replace('file = "records/r2.txt"', 'file = "records/r2.txt"\npair = "p1"\n'
               'component = "H1"')),
     "mass_furlongs.toml": project(system=sys_with('mass = "100 t"', 'mass = "5 furlongs"')),
+    # pint reads '%' as a dimensionless 0.01: a mass must not come out as 0.05 kg
+    "mass_percent.toml": project(system=sys_with('mass = "100 t"', 'mass = "5 %"')),
     "stiffness_kg.toml": project(system=sys_with('period = "0.5 s"',
                                                  'stiffness = "3000 kg"')),
     "zero_mass.toml": project(system=sys_with('mass = "100 t"', 'mass = "0 t"')),
