@@ -154,8 +154,13 @@ def spectrum_command(file, file_format, units, dt_s, damping, periods_text, meth
               type=click.Path(exists=True, path_type=str),
               help="An earlier run (site folder, packed zip or results.json): add a "
                    "revision page listing what changed.")
+@click.option("--pdf", "pdf_file", is_flag=False, flag_value="", default=None,
+              metavar="[FILE]", type=click.Path(dir_okay=False, path_type=str),
+              help="Also print the whole site into one review-packet PDF via headless "
+                   "Chromium (needs sdofreport[pdf], chromium, chromium-driver); "
+                   "default FILE: <site>-review-packet.pdf beside the site.")
 def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache,
-                  allow_outside, scheduler, dask_local, compare_to):
+                  allow_outside, scheduler, dask_local, compare_to, pdf_file):
     """Build the review site of a project.
 
     \b
@@ -170,6 +175,12 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
         project_path = Path(project_file)
         folder = project_path if project_path.is_dir() else project_path.parent
         output = str(folder / "_site")
+    pdf_target_path = None
+    if pdf_file is not None:  # fail fast, before a long build
+        from sdofreport.site.pdf import check_printing, pdf_target
+
+        pdf_target_path = pdf_target(pdf_file, output)
+        check_printing()
     show_bar = not quiet and sys.stderr.isatty()
     bar = None
 
@@ -190,6 +201,12 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
                          progress=progress, scheduler=scheduler, dask_local=dask_local,
                          compare_to=compare_to)
     results = outcome.results
+    if pdf_target_path is not None:
+        from sdofreport.site.pdf import write_pdf
+
+        pages = write_pdf(outcome.output, pdf_target_path)
+        if not quiet:
+            click.echo(f"Printed {pdf_target_path} ({pages} pages).", err=True)
     exceeding = sum(c.verdict == "exceeds limit" for c in results.checks)
     if not quiet:
         click.echo(f"Built {outcome.output} ({outcome.file_count} files) in "
