@@ -224,9 +224,11 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
 
 
 from sdofreport.archive.commands import register_commands  # noqa: E402
+from sdofreport.docs_commands import register as register_docs_commands  # noqa: E402
 from sdofreport.synthesize_command import register as _register_synthesize  # noqa: E402
 
 register_commands(cli)
+register_docs_commands(cli)
 _register_synthesize(cli)
 
 
