@@ -5,7 +5,6 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from sdofreport.core.units import G
 from sdofreport.errors import ProjectError
 from sdofreport.engine import run_project
 from sdofreport.project import load_project

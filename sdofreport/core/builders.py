@@ -29,6 +29,7 @@ import difflib
 import math
 from dataclasses import dataclass
 
+from sdofreport.core._checks import positive as _positive
 from sdofreport.core.units import G
 
 __all__ = [
@@ -79,18 +80,6 @@ def _r(x: float) -> str:
 
 
 # --------------------------------------------------------------------------- checks
-def _positive(value, name: str, unit: str) -> float:
-    if isinstance(value, bool):
-        raise ValueError(f"{name} must be a number > 0 [{unit}]; got {value!r}")
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number > 0 [{unit}]; got {value!r}") from None
-    if not math.isfinite(x) or x <= 0.0:
-        raise ValueError(f"{name} must be a finite number > 0 [{unit}]; got {value!r}")
-    return x
-
-
 def _period_line(m: float, k: float) -> str:
     t = _TWO_PI * math.sqrt(m / k)
     return f"T = 2π √(m/k) = 2π × √({_r(m)} kg / {_r(k)} N/m) = {_r(t)} s"

@@ -71,6 +71,8 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+
+from sdofreport.core._checks import positive as _positive
 import scipy.fft
 
 from sdofreport.core._numeric import cumulative_trapezoid
@@ -151,16 +153,6 @@ class CompatibleRecord:
     envelope: str
     #: time-domain wavelet passes applied to reach the returned record [-]
     adjustments_used: int = 0
-
-
-def _positive(value, name: str, unit: str) -> float:
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number > 0 [{unit}]; got {value!r}") from None
-    if not (math.isfinite(x) and x > 0.0):
-        raise ValueError(f"{name} must be a finite number > 0 [{unit}]; got {value!r}")
-    return x
 
 
 def _count(value, name: str) -> int:

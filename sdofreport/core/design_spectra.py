@@ -25,6 +25,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from sdofreport.core._checks import positive as _positive
+
 __all__ = [
     "DESIGN_SPECTRUM_KINDS",
     "DESIGN_SPECTRUM_PARAMETERS",
@@ -86,16 +88,6 @@ def _as_periods(periods_s, name: str = "periods_s") -> np.ndarray:
         bad = float(t[~(np.isfinite(t) & (t >= 0.0))].flat[0])
         raise ValueError(f"{name} must be finite and >= 0 [s]; got {bad!r}")
     return t
-
-
-def _positive(value, name: str, unit: str) -> float:
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number > 0 [{unit}]; got {value!r}") from None
-    if not (math.isfinite(x) and x > 0.0):
-        raise ValueError(f"{name} must be a finite number > 0 [{unit}]; got {value!r}")
-    return x
 
 
 # ------------------------------------------------------------------------ ASCE 7-16

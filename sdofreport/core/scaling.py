@@ -32,6 +32,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from sdofreport.core._checks import positive as _positive
+
 from sdofreport.core.design_spectra import _as_periods
 
 __all__ = [
@@ -121,16 +123,6 @@ class ScalingResult:
 
 
 # ---------------------------------------------------------------------- period ranges
-def _positive(value, name: str, unit: str) -> float:
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number > 0 [{unit}]; got {value!r}") from None
-    if not (math.isfinite(x) and x > 0.0):
-        raise ValueError(f"{name} must be a finite number > 0 [{unit}]; got {value!r}")
-    return x
-
-
 def period_range_asce7_16(period_s) -> tuple[float, float]:
     """
     Period range of ASCE/SEI 7-16 §16.2.1 for a first-mode period T: (0.2 T, 2 T).

@@ -90,7 +90,6 @@ from sdofreport.core.exact import (
     exact_coefficients,
 )
 from sdofreport.core.newmark import (
-    METHODS as NEWMARK_METHODS,
     check_newmark_step,
     newmark_coefficients,
     newmark_parameters,

@@ -11,6 +11,9 @@ from __future__ import annotations
 
 import numpy as np
 
+from sdofreport.core._checks import nonnegative as _check_nonnegative
+from sdofreport.core._checks import positive as _check_positive
+
 #: Envelope shapes accepted by :func:`kanai_tajimi_accelerogram` (``None`` also means
 #: stationary: no envelope).
 ENVELOPES: tuple[str, ...] = ("saragoni-hart", "trapezoidal", "none")
@@ -29,26 +32,6 @@ def _as_time_array(time_s, name: str = "time_s") -> np.ndarray:
     if t.size and not np.all(np.isfinite(t)):
         raise ValueError(f"{name} must hold finite times [s]; got a non-finite value")
     return t
-
-
-def _check_positive(value, name: str, unit: str) -> float:
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number > 0 [{unit}]; got {value!r}") from None
-    if not np.isfinite(x) or x <= 0.0:
-        raise ValueError(f"{name} must be a finite number > 0 [{unit}]; got {value!r}")
-    return x
-
-
-def _check_nonnegative(value, name: str, unit: str) -> float:
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number >= 0 [{unit}]; got {value!r}") from None
-    if not np.isfinite(x) or x < 0.0:
-        raise ValueError(f"{name} must be a finite number >= 0 [{unit}]; got {value!r}")
-    return x
 
 
 def saragoni_hart_envelope(time_s, duration_s, *, eps=0.2, eta=0.05) -> np.ndarray:
