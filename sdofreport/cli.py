@@ -102,7 +102,8 @@ def _record_options(func):
               help="Damping ratio (repeatable), e.g. 0.05. Default 0.05.")
 @click.option("--periods", "periods_text", default=None,
               help="Comma-separated periods [s]. Default 200 log-spaced, 0.01-10 s.")
-@click.option("--method", type=click.Choice(SPECTRUM_METHODS), default="exact", show_default=True, help="Integration method.")
+@click.option("--method", type=click.Choice(SPECTRUM_METHODS), default="exact",
+              show_default=True, help="Integration method.")
 @click.option("--output", type=click.Choice(["json", "csv"]), default="json",
               show_default=True, help="Format written to standard output.")
 def spectrum_command(file, file_format, units, dt_s, damping, periods_text, method, output):

@@ -183,7 +183,8 @@ def _phi_functions(theta: np.ndarray, zeta: np.ndarray):
         s_over = np.sin(thd) / thd
         xl = x[large]
         shifted = xl + (z * th)[:, None, None] * eye[large]
-        p0 = decay[:, None, None] * (c[:, None, None] * eye[large] + s_over[:, None, None] * shifted)
+        p0 = decay[:, None, None] * (c[:, None, None] * eye[large]
+                                     + s_over[:, None, None] * shifted)
         # X⁻¹ = (1/θ) [[−2ζ, −1], [1, 0]]
         inv = _mat2(-2.0 * z / th, -1.0 / th, 1.0 / th, np.zeros_like(th))
         p1 = inv @ (p0 - eye[large])
