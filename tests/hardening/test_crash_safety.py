@@ -183,14 +183,16 @@ def test_killed_builds_without_atomic_exchange(zygote, setup):
     """The same with the two-rename fallback that write_site uses without renameat2."""
     absent = _random_kills(zygote, setup, runs=6, seed=20261201, mode="no-exchange")
     if absent:
-        pytest.xfail(f"site absent after kills {absent}, between the two renames of "
-                     "write_site (see test_kill_between_the_two_renames)")
+        pytest.xfail(f"site absent after kills {absent}: {WINDOW}")
 
 
-@pytest.mark.xfail(strict=False, reason=(
-    "sdofreport/site/render.py write_site, fallback without renameat2: the old site is "
-    "renamed to .<name>.previous-*/site before the new one is renamed in; a build killed "
-    "between the two leaves no site until the next build reaches write_site (_recover)"))
+#: Known window of the fallback (reported to the lead); xfail only when it shows.
+WINDOW = ("sdofreport/site/render.py write_site, fallback without renameat2: the old site "
+          "is renamed to .<name>.previous-*/site before the new one is renamed in; a build "
+          "killed between the two leaves no site until the next build reaches write_site "
+          "(_recover)")
+
+
 def test_kill_between_the_two_renames(zygote, setup):
     site = setup["site"]
     zygote.start(_argv(setup), "kill-between-renames")
@@ -198,8 +200,11 @@ def test_kill_between_the_two_renames(zygote, setup):
     assert os.WIFSIGNALED(status) and os.WTERMSIG(status) == signal.SIGKILL
     aside = sorted(site.parent.glob(f".{site.name}.previous-*/site"))
     assert aside and snapshot(aside[0]) == setup["before"]  # safe, but moved aside
-    # What a reader of the site folder sees after the crash, before any new build:
-    assert site.is_dir(), "site absent between the two renames"
+    # What a reader of the site folder sees after the crash, before any new build; an
+    # imperative xfail (like xfail(strict=False)) for this window only.
+    if not site.is_dir():
+        pytest.xfail(WINDOW)
+    assert snapshot(site) == setup["before"]
 
 
 def test_next_build_recovers_a_site_left_aside(zygote, setup):
