@@ -11,7 +11,7 @@ from pathlib import Path
 from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir, run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
-from sdofreport.site.render import gather_site, write_site
+from sdofreport.site.render import gather_site, recover_site, write_site
 
 log = logging.getLogger("sdofreport.build")
 
@@ -58,6 +58,7 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     case nothing is written and any previous site at ``output`` is left intact.
     """
     started = time.perf_counter()
+    recover_site(output)  # a previous build killed mid-swap: put its site back first
     old = None
     if compare_to is not None:  # read it first: a bad OLD fails before any work
         from sdofreport.archive.compare import load_run

@@ -179,7 +179,9 @@ def synthetic_record(project: Project, index: int, cache: ResultCache | None = N
 def load_records(project: Project, cache: ResultCache | None = None) -> list[Record]:
     """Read, process and scale every record; every unreadable record is reported at once."""
     records, problems = [], []
+    longest = max(project.systems, key=lambda system: system.period_s, default=None)
     for index, spec in enumerate(project.records):
+        where = f"records[{index + 1}] (id '{spec.id}')"
         try:
             if spec.path is None:
                 records.append(synthetic_record(project, index, cache))
@@ -196,14 +198,22 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
             if spec.scale != 1.0:
                 record = _with_acceleration(record, record.acceleration_m_s2 * spec.scale,
                                             f"scaled by {spec.scale:g} (as given)")
-            records.append(record)
         except RecordError as exc:
-            problems.append(f"records id {spec.id!r}: {exc.message}")
+            problems.append(f"{where}: {exc.message}")
+            continue
+        if longest is not None and record.duration_s < longest.period_s:
+            # A record shorter than the system's period cannot bring out its response:
+            # the peak would depend on where the record stops (common practice, no source).
+            problems.append(f"{where}: record '{spec.file}' lasts {record.duration_s:.3g} s, "
+                            f"shorter than the longest system period {longest.period_s:.3g}"
+                            f" s (system '{longest.id}'); use a longer record or pad it "
+                            f"with zeros")
+        records.append(record)
     _check_pair_steps(project, records, problems)
     if problems:
         count = len(problems)
-        raise RecordError(f"{count} record problem{'s' if count > 1 else ''}:\n  "
-                          + "\n  ".join(problems))
+        raise RecordError(f"{project.path.name} has {count} record problem"
+                          f"{'s' if count > 1 else ''}:\n  " + "\n  ".join(problems))
     return records
 
 

@@ -125,9 +125,26 @@ def _read_value(table: dict, spec: KeySpec, location: str, problems: _Problems):
 
 def _positive(value, where: str, what: str, problems: _Problems, unit: str) -> bool:
     if value is not None and not value > 0:
-        problems.add(where, f"{what} must be greater than 0, found {value:g} {unit}")
+        shown = f"{value:g} {unit}".strip()
+        problems.add(where, f"{what} must be greater than 0, found {shown}")
         return False
     return True
+
+
+def _input_file(base: Path, name: str, where: str, problems: _Problems) -> Path | None:
+    """An input file named in the project, resolved; a problem when it is not a file."""
+    try:
+        path = (base / name).resolve()
+    except (OSError, RuntimeError) as exc:  # e.g. a symbolic-link loop
+        problems.add(where, f"file '{name}' cannot be opened ({exc})")
+        return None
+    if path.is_dir():
+        problems.add(where, f"'{name}' is a folder, not a file (looked at {path})")
+        return None
+    if not path.is_file():
+        problems.add(where, f"file '{name}' not found (looked for {path})")
+        return None
+    return path
 
 
 def _read_processing(table, location: str, problems: _Problems,
@@ -249,11 +266,8 @@ def _read_info(table, project_path: Path, problems: _Problems) -> ProjectInfo:
               spec.items()}
     notes_path = None
     if values["notes"]:
-        notes_path = (project_path.parent / values["notes"]).resolve()
-        if not notes_path.is_file():
-            problems.add("project.notes", f"file '{values['notes']}' not found (looked "
-                         f"for {notes_path})")
-            notes_path = None
+        notes_path = _input_file(project_path.parent, values["notes"], "project.notes",
+                                 problems)
     date = values["date"]
     if date is None and os.environ.get("SOURCE_DATE_EPOCH", "").strip():
         try:
@@ -313,12 +327,7 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         if ("pair" in table) != ("component" in table):
             problems.add(where, "a paired record needs both pair and component "
                          "(H1 or H2)")
-        path = None
-        if file:
-            path = (root / file).resolve()
-            if not path.is_file():
-                problems.add(f"{where}.file", f"file '{file}' not found (looked for "
-                             f"{path})")
+        path = _input_file(root, file, f"{where}.file", problems) if file else None
         if record_id and file and path is not None:
             records.append(RecordSpec(record_id, path, file, fmt, units, dt_s,
                                       scale if scale else 1.0, own, pair, component))
@@ -335,7 +344,7 @@ def _check_pairs(records: list[RecordSpec], problems: _Problems) -> None:
     for pair, items in members.items():
         components = sorted(r.component or "" for r in items)
         if components != ["H1", "H2"]:
-            found = ", ".join(f"{r.id} ({r.component})" for r in items)
+            found = ", ".join(f"{r.id} ({r.component or 'no component'})" for r in items)
             problems.add(f"records pair {pair!r}", f"expected one H1 and one H2 record, "
                          f"found {found}")
 
@@ -693,11 +702,15 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
     return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha)
 
 
-def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError) -> str:
+def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError, text_in: str) -> str:
     text = str(exc)
     match = re.search(r"\(at line (\d+), column (\d+)\)", text)
-    reason = re.sub(r"\s*\(at line \d+, column \d+\)", "", text)
-    where = f" line {match.group(1)}, column {match.group(2)}" if match else ""
+    reason = re.sub(r"\s*\(at (line \d+, column \d+|end of document)\)", "", text)
+    if match:
+        where = f" line {match.group(1)}, column {match.group(2)}"
+    else:  # "at end of document": name the last line that has text
+        lines = text_in.rstrip().splitlines()
+        where = f" line {len(lines)} (end of file)" if lines else ""
     return (f"{path}{where}: not valid TOML: {reason}. Check quotes around text, '=' "
             f"between key and value, and [section] headers.")
 
@@ -743,7 +756,7 @@ def load_project(path) -> Project:
     try:
         document = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise ProjectError(_syntax_error_message(path, exc)) from None
+        raise ProjectError(_syntax_error_message(path, exc, text)) from None
     shown = path
     path = path.resolve()
     problems = _Problems()

@@ -80,6 +80,14 @@ def parse_quantity(value: object, dimension: str) -> float:
                             f"units such as '{_EXAMPLES[dimension]}'), found "
                             f"{type(value).__name__} {value!r}")
     text = value.strip()
+    try:  # a bare number written as text ("120") is an SI value
+        number = float(text)
+    except ValueError:
+        pass
+    else:
+        if not math.isfinite(number):
+            raise QuantityError(f"expected a finite {dimension}, found {value!r}")
+        return number
     if dimension == "acceleration":
         text = _BARE_G.sub("g_0", text)
     ureg = _registry()
@@ -98,7 +106,9 @@ def parse_quantity(value: object, dimension: str) -> float:
             number = None
         if number is None:
             if quantity.dimensionless:
-                number = float(quantity.to_base_units().magnitude)
+                raise QuantityError(
+                    f"expected a {dimension} (for example '{_EXAMPLES[dimension]}'), found "
+                    f"{value!r}, which is dimensionless, not a {dimension}")
             else:
                 raise QuantityError(
                     f"expected a {dimension} (for example '{_EXAMPLES[dimension]}'), found "

@@ -270,8 +270,9 @@ def _exchange(a: Path, b: Path) -> bool:
     return result == 0
 
 
-def _recover(output: Path) -> None:
+def recover_site(output: str | os.PathLike) -> None:
     """Put back a previous site left aside by a build killed between two renames."""
+    output = Path(output)
     if output.exists():
         return
     parent = output.resolve().parent
@@ -301,7 +302,7 @@ def write_site(files: dict[str, bytes], output: str | os.PathLike) -> Path:
     elsewhere a previous site left aside is restored by the next build.
     """
     output = Path(output)
-    _recover(output)
+    recover_site(output)
     if output.exists() and not output.is_dir():
         raise BuildError(f"{output}: exists and is not a folder; choose another -o.")
     if output.is_dir() and any(output.iterdir()) and not is_site(output):
