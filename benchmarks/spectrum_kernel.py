@@ -34,7 +34,7 @@ from sdofreport.core.spectra import _recurrence_peaks, substep_counts
 
 GOAL_EXACT = 1000e6  # executed oscillator-steps/s, exact kernel (issue)
 GOAL_RATIO_NUMPY = 25.0  # × the numpy loop (issue)
-REPEAT = 15  # best of, against other load on the machine
+REPEAT = 15  # best of 15: this shared machine's speed varies from run to run
 
 
 def make_record(npts=11_000, dt=0.005, seed=20240601):

@@ -143,6 +143,51 @@ def _mat2(a11, a12, a21, a22):
     return np.stack([np.stack([a11, a12], -1), np.stack([a21, a22], -1)], -2)
 
 
+@njit(**JIT_OPTIONS)
+def _phi_series(theta, zeta, terms):
+    """
+    φ0 = Σ X^k/k!, φ1 = Σ X^k/(k+1)!, φ2 = Σ X^k/(k+2)! for X = θ [[0, 1], [−1, −2ζ]],
+    summed term by term with explicit 2×2 products (one oscillator at a time).
+    """
+    n = theta.size
+    s0 = np.empty((n, 2, 2))
+    s1 = np.empty((n, 2, 2))
+    s2 = np.empty((n, 2, 2))
+    for i in range(n):
+        x01 = theta[i]
+        x10 = -theta[i]
+        x11 = -2.0 * zeta[i] * theta[i]
+        t00, t01, t10, t11 = 1.0, 0.0, 0.0, 1.0  # X^k / k!
+        a00, a01, a10, a11 = 1.0, 0.0, 0.0, 1.0
+        b00, b01, b10, b11 = 1.0, 0.0, 0.0, 1.0
+        c00, c01, c10, c11 = 0.5, 0.0, 0.0, 0.5
+        for k in range(1, terms):
+            # term @ X with X = [[0, x01], [x10, x11]], then / k
+            n00 = (t01 * x10) / k
+            n01 = (t00 * x01 + t01 * x11) / k
+            n10 = (t11 * x10) / k
+            n11 = (t10 * x01 + t11 * x11) / k
+            t00, t01, t10, t11 = n00, n01, n10, n11
+            a00 += t00
+            a01 += t01
+            a10 += t10
+            a11 += t11
+            f1 = 1.0 / (k + 1)
+            b00 += t00 * f1
+            b01 += t01 * f1
+            b10 += t10 * f1
+            b11 += t11 * f1
+            f2 = 1.0 / ((k + 1) * (k + 2))
+            c00 += t00 * f2
+            c01 += t01 * f2
+            c10 += t10 * f2
+            c11 += t11 * f2
+        s0[i, 0, 0], s0[i, 0, 1], s0[i, 1, 0], s0[i, 1, 1] = a00, a01, a10, a11
+        s1[i, 0, 0], s1[i, 0, 1], s1[i, 1, 0], s1[i, 1, 1] = b00, b01, b10, b11
+        s2[i, 0, 0], s2[i, 0, 1], s2[i, 1, 0], s2[i, 1, 1] = c00, c01, c10, c11
+    return s0, s1, s2
+
+
 def _phi_functions(theta: np.ndarray, zeta: np.ndarray):
     """
     φ0 = e^X, φ1, φ2 of ``X = θ A'`` with ``A' = [[0, 1], [−1, −2ζ]]`` (scaled state).
@@ -158,16 +203,8 @@ def _phi_functions(theta: np.ndarray, zeta: np.ndarray):
 
     small = theta <= _SERIES_LIMIT
     if np.any(small):
-        xs = x[small]
-        term = np.broadcast_to(np.eye(2), xs.shape).copy()  # X^k / k!
-        s0 = term.copy()
-        s1 = term.copy()  # Σ X^k/(k+1)!
-        s2 = term / 2.0  # Σ X^k/(k+2)!
-        for k in range(1, _SERIES_TERMS):
-            term = term @ xs / k  # X^k / k!
-            s0 += term
-            s1 += term / (k + 1)
-            s2 += term / ((k + 1) * (k + 2))
+        s0, s1, s2 = _phi_series(np.ascontiguousarray(theta[small]),
+                                 np.ascontiguousarray(zeta[small]), _SERIES_TERMS)
         phi0[small] = s0
         phi1[small] = s1
         phi2[small] = s2

@@ -246,7 +246,7 @@ def _hermite_abs_max(y0, d0, y1, d1, h):
 
 # Kernel options: ``contract`` lets LLVM fuse a*b + c into one FMA (changes results only
 # at round-off), ``error_model="numpy"`` drops the division-by-zero checks.
-_KERNEL_OPTIONS = {**JIT_OPTIONS, "fastmath": {"contract"}, "error_model": "numpy",
+_KERNEL_OPTIONS = {**JIT_OPTIONS, "fastmath": {"contract", "nnan", "ninf", "nsz"}, "error_model": "numpy",
                    "boundscheck": False}
 
 # Oscillators per block: a multiple of the SIMD width (4 doubles with AVX2). Pass 1 takes
