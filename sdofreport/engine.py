@@ -383,7 +383,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     analysis = project.analysis
     base = {"version": __version__, "method": analysis.method}
     pairs = _pairs(project)
-    total = len(records) + len(pairs) + len(records) * len(project.systems)
+    total = len(records) + len(pairs) + len(records)
     if project.inelastic is not None:
         total += len(records)
     phase = _Phase(cache, progress, total, {"workers": jobs or os.cpu_count() or 1,
@@ -429,15 +429,16 @@ def run_project(project: Project, *, jobs: int | None = None,
                                                           scaling.factors.get(h1, 1.0)))
                     for name, (h1, h2) in pairs.items()]
 
-    # Phase 3: every system's response to every (scaled) record.
+    # Phase 3: every system's response to every (scaled) record, one job per record.
     plan = []
-    for system in project.systems:
-        model = system_model(system)
-        for record in (scaled[r.id] for r in project.records):
-            args = (record.acceleration_m_s2, record.dt_s, model, analysis.method)
-            key = content_hash({**base, "job": "response", "sha": _array_hash(args[0]),
-                                "dt": record.dt_s, "model": model})
-            plan.append((f"system {system.id} × record {record.id}", "response", args, key))
+    models = [{**system_model(system), "system_id": system.id}
+              for system in project.systems]
+    for record in (scaled[r.id] for r in project.records):
+        args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
+        key = content_hash({**base, "job": "responses", "sha": _array_hash(args[0]),
+                            "dt": record.dt_s, "models": models})
+        plan.append((f"record {record.id} (responses of {len(models)} systems)",
+                     "responses", args, key))
     inelastic_spec = project.inelastic
     if inelastic_spec is not None:
         for record in (scaled[r.id] for r in project.records):
@@ -452,14 +453,16 @@ def run_project(project: Project, *, jobs: int | None = None,
     outputs = phase.run(plan)
     inelastic = {}
     if inelastic_spec is not None:
-        tail = outputs[len(project.systems) * len(project.records):]
+        tail = outputs[len(project.records):]
         inelastic = {spec.id: out for spec, out in zip(project.records, tail)}
-    responses, index = {}, 0
-    for system in project.systems:
-        for spec in project.records:
-            responses[(system.id, spec.id)] = _response_result(system, spec.id,
-                                                               outputs[index])
-            index += 1
+    responses = {}
+    for spec, group in zip(project.records, outputs[:len(project.records)]):
+        record = scaled[spec.id]
+        time_s = np.arange(record.npts) * record.dt_s
+        for system, raw in zip(project.systems, group):
+            raw = raw if "time_s" in raw or raw["model"] != "linear" else \
+                {**raw, "time_s": time_s}
+            responses[(system.id, spec.id)] = _response_result(system, spec.id, raw)
     statistic = project.statistic_used
     checks = _checks(project, responses, statistic)
     return Results(project, record_results, responses, checks, statistic, scaling,
