@@ -14,8 +14,6 @@ import hashlib
 import json
 import os
 import re
-import shutil
-import tempfile
 from dataclasses import asdict, dataclass
 from pathlib import Path
 
@@ -31,7 +29,7 @@ from sdofreport.archive._sitefiles import (
     safe_name,
 )
 from sdofreport.archive.verify import verify_files
-from sdofreport.site.render import MANIFEST_NAME
+from sdofreport.site.render import MANIFEST_NAME, write_tree
 
 REGISTER_SCHEMA = "sdofreport/register@1"
 #: Marker (and machine-readable table) of a register folder we built.
@@ -188,27 +186,7 @@ def gather_register(folder: str | os.PathLike,
 
 def _write_tree(files: dict[str, bytes], output: Path) -> None:
     """Write ``files`` into a temporary sibling of ``output``, then swap it in."""
-    parent = output.resolve().parent
-    parent.mkdir(parents=True, exist_ok=True)
-    staging = Path(tempfile.mkdtemp(prefix=f".{output.name}.building-", dir=parent))
-    try:
-        for path, data in files.items():
-            target = staging / path
-            target.parent.mkdir(parents=True, exist_ok=True)
-            target.write_bytes(data)
-            target.chmod(0o644)
-        for item in [staging, *(p for p in staging.rglob("*") if p.is_dir())]:
-            item.chmod(0o755)
-        if output.exists():
-            retired = Path(tempfile.mkdtemp(prefix=f".{output.name}.previous-", dir=parent))
-            os.replace(output, retired / "register")
-            os.replace(staging, output)
-            shutil.rmtree(retired, ignore_errors=True)
-        else:
-            os.replace(staging, output)
-    except BaseException:
-        shutil.rmtree(staging, ignore_errors=True)
-        raise
+    write_tree(files, output)
 
 
 def build_register(folder: str | os.PathLike, output: str | os.PathLike) -> RegisterOutcome:

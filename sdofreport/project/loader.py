@@ -544,14 +544,22 @@ def _read_systems(items, problems: _Problems) -> list[SystemSpec]:
     return systems
 
 
-def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | None:
+def _section(table, name: str, problems: _Problems) -> dict | None:
+    """An optional top-level table, checked for unknown keys; None when absent or bad."""
     if table is None:
         return None
-    where = "design_spectrum"
     if not isinstance(table, dict):
-        problems.add(where, f"expected a table, found {table!r}")
+        problems.add(name, f"expected a table, found {table!r}")
         return None
-    _check_unknown(table, "design_spectrum", where, problems)
+    _check_unknown(table, name, name, problems)
+    return table
+
+
+def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | None:
+    where = "design_spectrum"
+    table = _section(table, where, problems)
+    if table is None:
+        return None
     spec = SECTIONS["design_spectrum"]
     kind = _read_value(table, spec["kind"], where, problems)
     if kind is None:
@@ -598,13 +606,10 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
 
 def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
                   problems: _Problems) -> ScalingSpec:
+    where = "scaling"
+    table = _section(table, where, problems)
     if table is None:
         return ScalingSpec()
-    where = "scaling"
-    if not isinstance(table, dict):
-        problems.add(where, f"expected a table, found {table!r}")
-        return ScalingSpec()
-    _check_unknown(table, "scaling", where, problems)
     spec = SECTIONS["scaling"]
     rule = _read_value(table, spec["rule"], where, problems) or "none"
     period = _read_value(table, spec["period"], where, problems)
@@ -644,13 +649,10 @@ def _number_list(value, where: str, minimum: float, problems: _Problems,
 
 
 def _read_synthetic(table, design, problems: _Problems) -> SyntheticSpec | None:
+    where = "synthetic_records"
+    table = _section(table, where, problems)
     if table is None:
         return None
-    where = "synthetic_records"
-    if not isinstance(table, dict):
-        problems.add(where, f"expected a table, found {table!r}")
-        return None
-    _check_unknown(table, "synthetic_records", where, problems)
     spec = SECTIONS["synthetic_records"]
     values = {name: _read_value(table, key, where, problems) for name, key in spec.items()
               if name != "period_range"}
@@ -680,13 +682,10 @@ def _read_synthetic(table, design, problems: _Problems) -> SyntheticSpec | None:
 
 
 def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
+    where = "inelastic_spectra"
+    table = _section(table, where, problems)
     if table is None:
         return None
-    where = "inelastic_spectra"
-    if not isinstance(table, dict):
-        problems.add(where, f"expected a table, found {table!r}")
-        return None
-    _check_unknown(table, "inelastic_spectra", where, problems)
     spec = SECTIONS["inelastic_spectra"]
     ductility = _number_list(table.get("ductility", spec["ductility"].default),
                              f"{where}.ductility", 1.0, problems)

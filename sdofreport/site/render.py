@@ -309,9 +309,19 @@ def write_site(files: dict[str, bytes], output: str | os.PathLike) -> Path:
         raise BuildError(f"{output}: the folder is not empty and is not a site built by "
                          f"sdofreport (no {MANIFEST_NAME} of ours); refusing to replace "
                          f"it. Choose an empty or new folder with -o.")
+    _tidy(output)
+    return write_tree(files, output)
+
+
+def write_tree(files: dict[str, bytes], output: str | os.PathLike) -> Path:
+    """
+    Write ``files`` (relative path → bytes) into a temporary sibling of ``output`` and
+    swap it in: atomically where the system allows (Linux ``renameat2`` exchange), else
+    by two renames with the previous tree kept aside until the new one is in place.
+    """
+    output = Path(output)
     parent = output.resolve().parent
     parent.mkdir(parents=True, exist_ok=True)
-    _tidy(output)
     staging = Path(tempfile.mkdtemp(prefix=f".{output.name}.building-", dir=parent))
     try:
         for path, data in sorted(files.items()):
