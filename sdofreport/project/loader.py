@@ -544,6 +544,20 @@ def _read_systems(items, problems: _Problems) -> list[SystemSpec]:
     return systems
 
 
+def _period_range(table: dict, where: str, default, problems: _Problems):
+    """``period_range = [low, high]`` in s with 0 < low < high, or ``default``."""
+    if "period_range" not in table:
+        return default
+    raw = table["period_range"]
+    if (not isinstance(raw, list) or len(raw) != 2 or not all(
+            isinstance(v, (int, float)) and not isinstance(v, bool) for v in raw)
+            or not 0 < raw[0] < raw[1]):
+        problems.add(f"{where}.period_range", f"expected [low, high] in s with "
+                     f"0 < low < high, found {raw!r}")
+        return default
+    return (float(raw[0]), float(raw[1]))
+
+
 def _section(table, name: str, problems: _Problems) -> dict | None:
     """An optional top-level table, checked for unknown keys; None when absent or bad."""
     if table is None:
@@ -616,16 +630,7 @@ def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
     _positive(period, f"{where}.period", "the period", problems, "s")
     suite = _read_value(table, spec["suite_factor"], where, problems)
     _positive(suite, f"{where}.suite_factor", "the suite factor", problems, "")
-    period_range = None
-    if "period_range" in table:
-        raw = table["period_range"]
-        if (not isinstance(raw, list) or len(raw) != 2 or not all(
-                isinstance(v, (int, float)) and not isinstance(v, bool) for v in raw)
-                or not 0 < raw[0] < raw[1]):
-            problems.add(f"{where}.period_range", f"expected [low, high] in s with "
-                         f"0 < low < high, found {raw!r}")
-        else:
-            period_range = (float(raw[0]), float(raw[1]))
+    period_range = _period_range(table, where, None, problems)
     if rule != "none" and not had_design:
         problems.add(f"{where}.rule", f"rule {rule!r} needs a [design_spectrum] section "
                      f"(the target)")
@@ -662,16 +667,7 @@ def _read_synthetic(table, design, problems: _Problems) -> SyntheticSpec | None:
     if duration is not None and dt is not None and not 0 < 20 * dt <= duration:
         problems.add(f"{where}.dt", f"expected 0 < dt and at least 20 steps in the "
                      f"duration, found dt {dt:g} s for {duration:g} s")
-    period_range = (0.05, 4.0)
-    if "period_range" in table:
-        raw = table["period_range"]
-        if (not isinstance(raw, list) or len(raw) != 2 or not all(
-                isinstance(v, (int, float)) and not isinstance(v, bool) for v in raw)
-                or not 0 < raw[0] < raw[1]):
-            problems.add(f"{where}.period_range", f"expected [low, high] in s with "
-                         f"0 < low < high, found {raw!r}")
-        else:
-            period_range = (float(raw[0]), float(raw[1]))
+    period_range = _period_range(table, where, (0.05, 4.0), problems)
     if design is None:
         problems.add(where, "synthetic records need a [design_spectrum] section (their "
                      "target)")
