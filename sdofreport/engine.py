@@ -176,9 +176,32 @@ def synthetic_record(project: Project, index: int, cache: ResultCache | None = N
                                history=(note,))
 
 
+def _read_cached(spec: RecordSpec, cache: ResultCache | None, pending: list) -> Record:
+    """Read a record file, or take the parsed record from the cache when its bytes and
+    the reading settings are unchanged (parsing text is the slow part of a warm build)."""
+    if cache is None or cache.folder is None:
+        return read_record(spec.path, file_format=spec.file_format, units=spec.units,
+                           dt_s=spec.dt_s, record_id=spec.id)
+    try:
+        digest = hashlib.sha256(spec.path.read_bytes()).hexdigest()
+    except OSError:  # let the reader report it with its own message
+        digest = None
+    key = content_hash({"version": __version__, "job": "read", "sha": digest,
+                        "name": spec.path.name, "format": spec.file_format,
+                        "units": spec.units, "dt": spec.dt_s, "id": spec.id})
+    cached = cache.get(key) if digest else None
+    if isinstance(cached, Record) and cached.sha256 == digest:
+        return dataclasses.replace(cached, source_path=str(spec.path))
+    record = read_record(spec.path, file_format=spec.file_format, units=spec.units,
+                         dt_s=spec.dt_s, record_id=spec.id)
+    if digest == record.sha256:
+        pending.append((key, record))  # stored only once every record has been read
+    return record
+
+
 def load_records(project: Project, cache: ResultCache | None = None) -> list[Record]:
     """Read, process and scale every record; every unreadable record is reported at once."""
-    records, problems = [], []
+    records, problems, pending = [], [], []
     longest = max(project.systems, key=lambda system: system.period_s, default=None)
     for index, spec in enumerate(project.records):
         where = f"records[{index + 1}] (id '{spec.id}')"
@@ -186,8 +209,7 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
             if spec.path is None:
                 records.append(synthetic_record(project, index, cache))
                 continue
-            record = read_record(spec.path, file_format=spec.file_format, units=spec.units,
-                                 dt_s=spec.dt_s, record_id=spec.id)
+            record = _read_cached(spec, cache, pending)
             settings = spec.processing
             if settings.baseline_order is not None or settings.bandpass_hz or \
                     settings.taper_s:
@@ -214,6 +236,8 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
         count = len(problems)
         raise RecordError(f"{project.path.name} has {count} record problem"
                           f"{'s' if count > 1 else ''}:\n  " + "\n  ".join(problems))
+    for key, record in pending:
+        cache.put(key, record)
     return records
 
 
