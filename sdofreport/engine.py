@@ -42,6 +42,11 @@ log = logging.getLogger("sdofreport.engine")
 
 Progress = Callable[[int, int, str], None]
 
+#: A phase whose jobs would take less than this in one process runs in it: starting
+#: workers and moving histories between processes would cost more (measured on the
+#: reference machine, where a 100-record study integrates in about a second).
+MIN_POOL_SECONDS = 1.0
+
 VERDICT_WITHIN = "within limit"
 VERDICT_EXCEEDS = "exceeds limit"
 
@@ -412,7 +417,8 @@ def run_project(project: Project, *, jobs: int | None = None,
         total += len(records)
     phase = _Phase(cache, progress, total, {"workers": jobs or os.cpu_count() or 1,
                                             "scheduler": scheduler,
-                                            "dask_local": dask_local})
+                                            "dask_local": dask_local,
+                                            "min_pool_seconds": MIN_POOL_SECONDS})
     by_id = {r.id: r for r in records}
 
     # Phase 1: spectra of every record (as given) and RotD spectra of every pair.

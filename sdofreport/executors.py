@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import logging
 import os
+import time
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from concurrent.futures.process import BrokenProcessPool
 from typing import Any, Callable
@@ -144,13 +145,34 @@ def run_dask(jobs: list[Job], done: Done, *, scheduler: str | None = None,
 
 
 def execute(jobs: list[Job], done: Done, *, workers: int = 1, scheduler: str | None = None,
-            dask_local: int | None = None) -> None:
-    """Run ``jobs`` on the chosen executor, calling ``done(index, output)`` for each."""
+            dask_local: int | None = None, min_pool_seconds: float = 0.0) -> None:
+    """
+    Run ``jobs`` on the chosen executor, calling ``done(index, output)`` for each.
+
+    With ``min_pool_seconds`` > 0 the first job runs here and is timed; when the rest
+    would take less than that in this process, they run here too, since starting worker
+    processes and moving results between them would cost more than it saves.
+    """
     if not jobs:
         return
     if scheduler or dask_local:
         run_dask(jobs, done, scheduler=scheduler, local_workers=dask_local)
-    elif workers <= 1 or len(jobs) <= 1:
+        return
+    if workers <= 1 or len(jobs) <= 1:
         run_inline(jobs, done)
-    else:
-        run_process_pool(jobs, done, min(workers, len(jobs)))
+        return
+    if min_pool_seconds > 0:
+        started = time.perf_counter()
+        run_inline(jobs[:1], done)
+        estimate = (time.perf_counter() - started) * (len(jobs) - 1)
+        rest = jobs[1:]
+
+        def shifted(index: int, output) -> None:
+            done(index + 1, output)
+
+        if estimate < min_pool_seconds:
+            run_inline(rest, shifted)
+        else:
+            run_process_pool(rest, shifted, min(workers, len(rest)))
+        return
+    run_process_pool(jobs, done, min(workers, len(jobs)))

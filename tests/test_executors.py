@@ -48,6 +48,19 @@ def test_process_pool_keeps_plan_order():
     assert _collect(jobs, workers=2) == [i * i for i in range(20)]
 
 
+def _pid(_):
+    return os.getpid()
+
+
+def test_short_work_stays_in_this_process_long_work_goes_to_the_pool():
+    jobs = [(f"job {i}", _pid, (i,)) for i in range(8)]
+    # The first job takes microseconds: eight of them are far below 60 s, so no pool.
+    assert set(_collect(jobs, workers=2, min_pool_seconds=60.0)) == {os.getpid()}
+    # With a threshold of 1e-12 s the estimate always exceeds it: the rest go to workers.
+    pids = _collect(jobs, workers=2, min_pool_seconds=1e-12)
+    assert pids[0] == os.getpid() and os.getpid() not in pids[1:]
+
+
 def test_dying_worker_is_retried(tmp_path):
     marker = str(tmp_path / "marker")
     jobs = [("a", _square, (3,)), ("record r × system s", _die_once, (marker, 1))]
