@@ -271,9 +271,8 @@ def _array_hash(acceleration: np.ndarray) -> str:
 
 def system_model(system: SystemSpec) -> dict:
     """The response job's description of a system (plain data, part of the cache key)."""
-    model = {"model": "linear", "period_s": system.period_s, "damping": system.damping}
-    model.update(getattr(system, "model", None) or {})
-    return model
+    return {"model": "linear", "period_s": system.period_s, "damping": system.damping,
+            **(system.model or {})}
 
 
 def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseResult:
@@ -490,8 +489,8 @@ def run_project(project: Project, *, jobs: int | None = None,
         record = scaled[spec.id]
         time_s = np.arange(record.npts) * record.dt_s
         for system, raw in zip(project.systems, group):
-            raw = raw if "time_s" in raw or raw["model"] != "linear" else \
-                {**raw, "time_s": time_s}
+            if raw["model"] == "linear":  # linear jobs send no time axis: it is n · dt
+                raw = {**raw, "time_s": time_s}
             responses[(system.id, spec.id)] = _response_result(system, spec.id, raw)
     statistic = project.statistic_used
     checks = _checks(project, responses, statistic)

@@ -4,7 +4,7 @@
   amplitude and response spectra of one record;
 * :func:`pair_job` — RotD50/RotD100, geometric-mean and SRSS spectra of a horizontal pair
   (Boore 2010);
-* :func:`response_job` — the response history of one system to one record.
+* :func:`responses_job` — the response histories of every system to one record.
 
 They are top-level functions so a process pool or a Dask cluster can pickle them.
 """
@@ -67,7 +67,6 @@ def _linear_response(acceleration, dt_s, model: dict, method: str) -> dict:
         peak_total = float(np.max(np.abs(total)))
     return {
         "model": "linear",
-        "time_s": hist.time_s,
         "displacement_m": hist.displacement_m[0],
         "total_accel_m_s2": total,
         "peak_displacement_m": float(hist.peaks.displacement_m[0]),
@@ -149,12 +148,11 @@ def responses_job(acceleration, dt_s, models: list, method: str) -> list:
                 outputs[i] = response_job(acceleration, dt_s, model, method)
             except ValueError as exc:
                 raise ValueError(f"system {model.get('system_id', i)}: {exc}") from None
-            outputs[i].pop("time_s", None)  # rebuilt by the engine: np.arange(n) · dt
     return outputs
 
 
-JOBS = {"record": record_job, "pair": pair_job, "response": response_job,
-        "responses": responses_job, "inelastic": inelastic_job}
+JOBS = {"record": record_job, "pair": pair_job, "responses": responses_job,
+        "inelastic": inelastic_job}
 
 
 def run_job(kind: str, args: tuple) -> dict:

@@ -29,3 +29,15 @@ def nonnegative(value, name: str, unit: str) -> float:
     if not math.isfinite(x) or x < 0.0:
         raise ValueError(f"{name} must be a finite number >= 0 [{unit}]; got {value!r}")
     return x
+
+
+def period_pair(value, name: str) -> tuple[float, float]:
+    """``(lower, upper)`` periods as floats, or ValueError unless 0 < lower < upper [s]."""
+    try:
+        lo, hi = (float(x) for x in value)
+    except (TypeError, ValueError):
+        raise ValueError(f"{name} must be a pair (lower, upper) [s]; got {value!r}") \
+            from None
+    if not (math.isfinite(lo) and math.isfinite(hi) and 0.0 < lo < hi):
+        raise ValueError(f"{name} must satisfy 0 < lower < upper [s]; got {value!r}")
+    return lo, hi

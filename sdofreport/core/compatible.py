@@ -72,6 +72,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core._checks import period_pair
 from sdofreport.core._checks import positive as _positive
 import scipy.fft
 
@@ -173,16 +174,7 @@ def _period_range(period_range_s, t_pos, f_max, duration):
                 f"{0.25 * duration!r} s leave nothing; give period_range_s"
             )
         return lo, hi
-    try:
-        lo, hi = (float(x) for x in period_range_s)
-    except (TypeError, ValueError):
-        raise ValueError(
-            f"period_range_s must be a pair (lower, upper) [s]; got {period_range_s!r}"
-        ) from None
-    if not (math.isfinite(lo) and math.isfinite(hi) and 0.0 < lo < hi):
-        raise ValueError(
-            f"period_range_s must satisfy 0 < lower < upper [s]; got {period_range_s!r}"
-        )
+    lo, hi = period_pair(period_range_s, "period_range_s")
     if lo < t_pos[0] or hi > t_pos[-1] or lo < 1.0 / f_max:
         raise ValueError(
             f"period_range_s {period_range_s!r} [s] must lie within the target periods "

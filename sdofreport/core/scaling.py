@@ -27,11 +27,11 @@ References
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
 import numpy as np
 
+from sdofreport.core._checks import period_pair
 from sdofreport.core._checks import positive as _positive
 
 from sdofreport.core.design_spectra import _as_periods
@@ -226,16 +226,7 @@ def _check_suite(periods, spectra_g, target_sa_g, period_range_s, spectra_name):
         raise ValueError(f"target_sa_g must have shape ({t.size},) [g]; got {target.shape}")
     if not (np.all(np.isfinite(sa)) and np.all(np.isfinite(target))):
         raise ValueError(f"{spectra_name} [g] and target_sa_g [g] must be finite")
-    try:
-        lo, hi = (float(x) for x in period_range_s)
-    except (TypeError, ValueError):
-        raise ValueError(
-            f"period_range_s must be a pair (lower, upper) [s]; got {period_range_s!r}"
-        ) from None
-    if not (math.isfinite(lo) and math.isfinite(hi) and 0.0 < lo < hi):
-        raise ValueError(
-            f"period_range_s must satisfy 0 < lower < upper [s]; got {period_range_s!r}"
-        )
+    lo, hi = period_pair(period_range_s, "period_range_s")
     if lo < t[0] or hi > t[-1]:
         raise ValueError(
             f"period_range_s {period_range_s!r} [s] must lie within the spectrum periods "
