@@ -2,6 +2,10 @@
 
 Also the Dask path (optional extra): a local cluster on 127.0.0.1 and a scheduler and a
 worker started as separate processes give results identical to the local process pool.
+
+Sources of expected values: closed form for the toy jobs (x·x, x + 1) and the process
+ids reported by the operating system (os.getpid); results of the Dask path are
+compared with the local process pool.
 """
 
 from __future__ import annotations

@@ -1,4 +1,9 @@
-"""The wheel carries the templates and schemas, so an installed package builds sites."""
+"""The wheel carries the templates and schemas, so an installed package builds sites.
+
+Sources of expected values: the files under templates/ and the package list of
+pyproject.toml, read back from the wheel with an independent reference library
+(zipfile).
+"""
 
 from __future__ import annotations
 

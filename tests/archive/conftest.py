@@ -2,6 +2,8 @@
 
 The records are the synthetic ones of tests/conftest.py (inputs only). Tests that alter
 a site copy it first (``copy_site``), so the built sites stay pristine.
+
+Sources of expected values: none here (fixtures only); the tests name theirs.
 """
 
 from __future__ import annotations

@@ -1,4 +1,9 @@
-"""The archive commands as a click group sees them."""
+"""The archive commands as a click group sees them.
+
+Sources of expected values: exit statuses and option names are our own interface
+(README.md); file contents are checked against independent readers (reference library:
+hashlib, zipfile, json).
+"""
 
 from __future__ import annotations
 

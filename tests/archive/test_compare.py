@@ -4,6 +4,9 @@ Revision 1 of the test project changes three things on purpose (see conftest.py)
 displacement limit of s1 from 50 mm to 40 mm, the scale of record r2 from 1 to 1.5, and
 adds system s2. Expected values follow from those edits: 50 mm = 0.05 m, 40 mm = 0.04 m,
 relative change (new - old) / |old|.
+
+Sources of expected values: the edits themselves (closed form: relative change
+(new - old) / |old|); no published values.
 """
 
 from __future__ import annotations

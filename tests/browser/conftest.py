@@ -4,6 +4,8 @@ Everything stays on this machine: sites are served by ``http.server`` on 127.0.0
 free port, and Chromium runs with background networking, updates and sync turned off
 (``sdofreport.site.pdf.BROWSER_FLAGS``). Tests skip, with the reason, when Chromium,
 chromedriver or selenium is missing.
+
+Sources of expected values: none here (fixtures only).
 """
 
 from __future__ import annotations

@@ -1,4 +1,8 @@
-"""``sdofreport build --pdf [FILE]``: the site, then its review packet, from the CLI."""
+"""``sdofreport build --pdf [FILE]``: the site, then its review packet, from the CLI.
+
+Sources of expected values: page counts and text read back with an independent reference
+library (pypdf); option behaviour is our own interface.
+"""
 
 from __future__ import annotations
 

@@ -4,6 +4,8 @@
 group (build, pack, verify, ...) plus ``new`` and ``schema`` registered through
 :func:`sdofreport.docs_commands.register`, so these tests do not depend on whether
 cli.py has registered them yet.
+
+Sources of expected values: none here (fixtures only).
 """
 
 from __future__ import annotations

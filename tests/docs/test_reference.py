@@ -1,4 +1,8 @@
-"""docs/project-file.md is generated from the key registry and must not drift from it."""
+"""docs/project-file.md is generated from the key registry and must not drift from it.
+
+Sources of expected values: the key registry itself (sdofreport/project/schema.py);
+no published values.
+"""
 
 from __future__ import annotations
 

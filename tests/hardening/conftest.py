@@ -2,6 +2,8 @@
 
 The bad-input corpus lives in ``tests/data/bad`` (hand-made, see its README.md); the good
 records are the small seeded synthetic ones of ``tests/conftest.py``.
+
+Sources of expected values: none here (helpers only).
 """
 
 from __future__ import annotations

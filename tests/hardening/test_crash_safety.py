@@ -7,6 +7,9 @@ keeps the twenty imports (5-10 s each on a loaded 2-core machine) out of the run
 the build itself runs exactly as from the console, in its own process. The zygote does
 not reap a build until the test has sent its signal, so the signalled pid can never
 belong to another process.
+
+Sources of expected values: byte snapshots of the previous site and SHA-256 digests
+recomputed with an independent reference library (hashlib).
 """
 
 from __future__ import annotations
