@@ -16,7 +16,9 @@ background networking, component updates, sync and extensions turned off.
 Determinism: Chromium writes the print time into the PDF's ``/CreationDate`` and
 ``/ModDate``; they are replaced by ``SOURCE_DATE_EPOCH`` when set, else by the
 project's ``[project] date``. With neither, the two dates (and so the bytes) vary from
-print to print. Everything else depends only on the site and the Chromium version.
+print to print. The structure-element IDs of the tagged PDF carry the browser's DOM
+node numbers, which shift between prints; they are replaced by their ranks. Everything
+else depends only on the site and the Chromium version.
 """
 
 from __future__ import annotations
@@ -67,6 +69,7 @@ MARGINS_IN = {"marginTop": 0.65, "marginBottom": 0.95, "marginLeft": 0.55,
 _ATTRIBUTE = re.compile(r'(\s)(href|src)="([^"]*)"')
 _LAZY = re.compile(r'\sloading="lazy"')
 _PDF_DATE = re.compile(rb"/(CreationDate|ModDate) \((D:\d{14}[^)]*)\)")
+_NODE_ID = re.compile(rb"\(node(\d{8})\)")
 
 
 def find_browser(chromium: str | os.PathLike | None = None,
@@ -306,6 +309,23 @@ def _stamp_dates(pdf: bytes, date: str | None) -> bytes:
     return _PDF_DATE.sub(replace, pdf)
 
 
+def _renumber_node_ids(pdf: bytes) -> bytes:
+    """
+    Replace the DOM node numbers in the tagged-PDF structure IDs by their ranks.
+
+    Chromium names each structure element ``(nodeNNNNNNNN)`` after the browser's DOM
+    node number, which shifts from print to print with nodes the browser made before
+    (seen: every number shifted by 4 between two prints of the same site). The rank of
+    a number among all of them does not shift, so writing the rank, zero-padded to the
+    same eight digits, makes the bytes reproducible while every offset in the
+    cross-reference table holds and the ``/IDTree`` keys stay sorted (ISO 32000-1
+    §14.7.2 and §7.9.6: structure element IDs live in a name tree with sorted keys).
+    """
+    numbers = sorted(set(_NODE_ID.findall(pdf)))
+    ranks = {number: b"%08d" % rank for rank, number in enumerate(numbers)}
+    return _NODE_ID.sub(lambda match: b"(node" + ranks[match.group(1)] + b")", pdf)
+
+
 def pdf_page_count(pdf: bytes) -> int:
     """Number of page objects (``/Type /Page``) in a PDF written by Chromium's Skia."""
     return len(re.findall(rb"/Type\s*/Page\b", pdf))
@@ -380,7 +400,8 @@ def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=N
                 "headerTemplate": header, "footerTemplate": footer,
                 "paperWidth": PAPER_IN[0], "paperHeight": PAPER_IN[1], **MARGINS_IN,
                 "preferCSSPageSize": False, "generateDocumentOutline": True})
-    pdf = _stamp_dates(base64.b64decode(printed["data"]), _fixed_date(manifest))
+    pdf = _renumber_node_ids(_stamp_dates(base64.b64decode(printed["data"]),
+                                          _fixed_date(manifest)))
     output_pdf.resolve().parent.mkdir(parents=True, exist_ok=True)
     handle, partial = tempfile.mkstemp(prefix=f".{output_pdf.name}.", suffix=".part",
                                        dir=output_pdf.resolve().parent)
