@@ -139,28 +139,27 @@ def _check_oscillators(natural_periods, damping_ratios, *, allow_zero_period=Tru
 
 
 # --------------------------------------------------------------- coefficient algebra
-def _mat2(a11, a12, a21, a22):
-    return np.stack([np.stack([a11, a12], -1), np.stack([a21, a22], -1)], -2)
-
-
-@njit(**JIT_OPTIONS)
-def _phi_series(theta, zeta, terms):
+@njit(inline="always", **JIT_OPTIONS)
+def _phi_one(theta, zeta, terms, series_limit):
     """
-    φ0 = Σ X^k/k!, φ1 = Σ X^k/(k+1)!, φ2 = Σ X^k/(k+2)! for X = θ [[0, 1], [−1, −2ζ]],
-    summed term by term with explicit 2×2 products (one oscillator at a time).
+    φ0 = e^X (all four entries) and the second columns of φ1 and φ2, for one oscillator,
+    with ``X = θ [[0, 1], [−1, −2ζ]]`` (scaled state). Returns the tuple
+    ``(φ0_00, φ0_01, φ0_10, φ0_11, φ1_01, φ1_11, φ2_01, φ2_11)``.
+
+    For θ <= ``series_limit``: φ0 = Σ X^k/k!, φ1 = Σ X^k/(k+1)!, φ2 = Σ X^k/(k+2)!
+    summed term by term. Otherwise the closed form e^X = e^{−ζθ}[cos θd I +
+    sin θd/θd (X + ζθ I)] (since (X + ζθI)² = −θd² I, θd = θ√(1−ζ²)) and
+    φ_{j+1} = X⁻¹(φ_j − I/j!) with X⁻¹ = (1/θ)[[−2ζ, −1], [1, 0]]; only the second
+    columns of φ1 and φ2 enter the recurrence.
     """
-    n = theta.size
-    s0 = np.empty((n, 2, 2))
-    s1 = np.empty((n, 2, 2))
-    s2 = np.empty((n, 2, 2))
-    for i in range(n):
-        x01 = theta[i]
-        x10 = -theta[i]
-        x11 = -2.0 * zeta[i] * theta[i]
+    if theta <= series_limit:
+        x01 = theta
+        x10 = -theta
+        x11 = -2.0 * zeta * theta
         t00, t01, t10, t11 = 1.0, 0.0, 0.0, 1.0  # X^k / k!
         a00, a01, a10, a11 = 1.0, 0.0, 0.0, 1.0
-        b00, b01, b10, b11 = 1.0, 0.0, 0.0, 1.0
-        c00, c01, c10, c11 = 0.5, 0.0, 0.0, 0.5
+        b01, b11 = 0.0, 1.0
+        c01, c11 = 0.0, 0.5
         for k in range(1, terms):
             # term @ X with X = [[0, x01], [x10, x11]], then / k
             n00 = (t01 * x10) / k
@@ -173,63 +172,52 @@ def _phi_series(theta, zeta, terms):
             a10 += t10
             a11 += t11
             f1 = 1.0 / (k + 1)
-            b00 += t00 * f1
             b01 += t01 * f1
-            b10 += t10 * f1
             b11 += t11 * f1
             f2 = 1.0 / ((k + 1) * (k + 2))
-            c00 += t00 * f2
             c01 += t01 * f2
-            c10 += t10 * f2
             c11 += t11 * f2
-        s0[i, 0, 0], s0[i, 0, 1], s0[i, 1, 0], s0[i, 1, 1] = a00, a01, a10, a11
-        s1[i, 0, 0], s1[i, 0, 1], s1[i, 1, 0], s1[i, 1, 1] = b00, b01, b10, b11
-        s2[i, 0, 0], s2[i, 0, 1], s2[i, 1, 0], s2[i, 1, 1] = c00, c01, c10, c11
-    return s0, s1, s2
+        return a00, a01, a10, a11, b01, b11, c01, c11
+    thd = theta * math.sqrt(1.0 - zeta * zeta)
+    decay = math.exp(-zeta * theta)
+    c = math.cos(thd)
+    s_over = math.sin(thd) / thd
+    zt = zeta * theta
+    p00 = decay * (c + s_over * zt)
+    p01 = decay * s_over * theta
+    p10 = -decay * s_over * theta
+    p11 = decay * (c - s_over * zt)
+    # second column of φ1 = X⁻¹ (φ0 − I), then of φ2 = X⁻¹ (φ1 − I)
+    q0 = p01
+    q1 = p11 - 1.0
+    b01 = (-2.0 * zeta * q0 - q1) / theta
+    b11 = q0 / theta
+    r0 = b01
+    r1 = b11 - 1.0
+    c01 = (-2.0 * zeta * r0 - r1) / theta
+    c11 = r0 / theta
+    return p00, p01, p10, p11, b01, b11, c01, c11
 
 
-def _phi_functions(theta: np.ndarray, zeta: np.ndarray):
-    """
-    φ0 = e^X, φ1, φ2 of ``X = θ A'`` with ``A' = [[0, 1], [−1, −2ζ]]`` (scaled state).
-
-    Returns three arrays of shape (n, 2, 2).
-    """
-    n = theta.size
-    eye = np.broadcast_to(np.eye(2), (n, 2, 2))
-    x = _mat2(np.zeros(n), theta, -theta, -2.0 * zeta * theta)
-    phi0 = np.empty((n, 2, 2))
-    phi1 = np.empty((n, 2, 2))
-    phi2 = np.empty((n, 2, 2))
-
-    small = theta <= _SERIES_LIMIT
-    if np.any(small):
-        s0, s1, s2 = _phi_series(np.ascontiguousarray(theta[small]),
-                                 np.ascontiguousarray(zeta[small]), _SERIES_TERMS)
-        phi0[small] = s0
-        phi1[small] = s1
-        phi2[small] = s2
-
-    large = ~small
-    if np.any(large):
-        th = theta[large]
-        z = zeta[large]
-        thd = th * np.sqrt(1.0 - z * z)
-        # e^X = e^{−ζθ}[cos θd I + sin θd/θd (X + ζθ I)], since (X + ζθI)² = −θd² I.
-        decay = np.exp(-z * th)
-        c = np.cos(thd)
-        s_over = np.sin(thd) / thd
-        xl = x[large]
-        shifted = xl + (z * th)[:, None, None] * eye[large]
-        p0 = decay[:, None, None] * (c[:, None, None] * eye[large]
-                                     + s_over[:, None, None] * shifted)
-        # X⁻¹ = (1/θ) [[−2ζ, −1], [1, 0]]
-        inv = _mat2(-2.0 * z / th, -1.0 / th, 1.0 / th, np.zeros_like(th))
-        p1 = inv @ (p0 - eye[large])
-        p2 = inv @ (p1 - eye[large])
-        phi0[large] = p0
-        phi1[large] = p1
-        phi2[large] = p2
-    return phi0, phi1, phi2
+@njit(**JIT_OPTIONS)
+def _exact_coefficients_into(wn, zeta, h, coef, terms, series_limit):
+    """Fill ``coef`` (8, n) for circular frequencies ``wn`` [rad/s] and step ``h`` [s]."""
+    for i in range(wn.size):
+        w = wn[i]
+        theta = w * h
+        p00, p01, p10, p11, b01, b11, c01, c11 = _phi_one(theta, zeta[i], terms,
+                                                          series_limit)
+        # Scaled state y = [u, u'/ω], scaled time τ = ωt, scaled load g = f/ω² with
+        # f = −üg: y[i+1] = φ0 y[i] + θ(φ1 − φ2) e2 g[i] + θ φ2 e2 g[i+1]   ([2])
+        w2 = w * w
+        coef[0, i] = p00
+        coef[1, i] = p01 / w
+        coef[2, i] = p10 * w
+        coef[3, i] = p11
+        coef[4, i] = -(theta * (b01 - c01)) / w2
+        coef[5, i] = -(theta * c01) / w2
+        coef[6, i] = -(theta * (b11 - c11)) / w
+        coef[7, i] = -(theta * c11) / w
 
 
 def exact_coefficients(natural_periods, damping_ratios, time_step) -> np.ndarray:
@@ -264,23 +252,9 @@ def exact_coefficients(natural_periods, damping_ratios, time_step) -> np.ndarray
     """
     h = _check_time_step(time_step)
     periods, zeta = _check_oscillators(natural_periods, damping_ratios, allow_zero_period=False)
-    wn = 2.0 * np.pi / periods
-    theta = wn * h
-    phi0, phi1, phi2 = _phi_functions(theta, zeta)
-    # Scaled state y = [u, u'/ω], scaled time τ = ωt, scaled load g = f/ω² with f = −üg.
-    # y[i+1] = φ0 y[i] + θ(φ1 − φ2) e2 g[i] + θ φ2 e2 g[i+1]   (first-order hold, [2])
-    p = theta[:, None] * (phi1[:, :, 1] - phi2[:, :, 1])
-    q = theta[:, None] * phi2[:, :, 1]
-    w2 = wn * wn
     coef = np.empty((8, periods.size))
-    coef[0] = phi0[:, 0, 0]
-    coef[1] = phi0[:, 0, 1] / wn
-    coef[2] = phi0[:, 1, 0] * wn
-    coef[3] = phi0[:, 1, 1]
-    coef[4] = -p[:, 0] / w2
-    coef[5] = -q[:, 0] / w2
-    coef[6] = -p[:, 1] / wn
-    coef[7] = -q[:, 1] / wn
+    _exact_coefficients_into(2.0 * np.pi / periods, zeta, h, coef, _SERIES_TERMS,
+                             _SERIES_LIMIT)
     return coef
 
 

@@ -4,7 +4,7 @@ Peak responses, response histories and response spectra of linear SDOF oscillato
 Every method (:data:`SPECTRUM_METHODS`) is written as the two-term recurrence of
 :mod:`sdofreport.core.exact` — exact for piecewise-linear excitation [1]_, or Newmark's
 step [2]_ recast in the same form — and run by one compiled kernel. Oscillators are taken
-in blocks of 16 (a group's last block only its lanes rounded up to 4); each block runs
+in blocks of 16 (a group's last block only its lanes rounded up to 8); each block runs
 over the whole record in chunks of 8 steps, with the lanes as the vectorised loop and,
 inside it, each lane's state, running maxima and coefficients held in local variables, so
 the chunk runs in registers and the compiler turns the lane loop into FMA vector code
@@ -22,13 +22,16 @@ Peaks fall between samples. Two measures keep them:
 2. *Cubic Hermite refinement.* In each step the cubic through the end values and end
    slopes of ``u`` (slopes ``u'``), of ``u'`` (slopes ``ü``) and of ``ü_t`` (slopes
    ``−(2ζω ü + ω² u')``) is refined to its interior extremum. Its size is bounded by
-   ``max_k |y_k| + (h/3)|y'_k|`` over its two ends (the Hermite slope weights are at most
-   a third of the value weights), so the kernel works in two passes per block: pass 1
-   (vectorised) runs the recurrence and keeps, per segment of 64 steps, the state at the
-   segment start and the largest |u|, |u'|, |ü_t|, |ü| sampled in it; pass 2 screens all
-   lanes of a segment at once and re-runs, scalar and with refinement, only the segments
-   whose bound exceeds the peak found so far (which starts at the largest sample). On the
-   benchmark record about 1.6 % of steps are re-run (3 % without sub-steps).
+   ``max_k |y_k| + (h/4) max_k |y'_k|`` over its two ends (the Hermite value weights sum
+   to one and the slope weights to at most 1/4 in size), so the kernel works in two
+   passes per block: pass 1 (vectorised) runs the recurrence and keeps, per segment of
+   64 steps, the state at the segment start and the largest |u|, |u'| and |ü| sampled in
+   it (|ü_t| is not tracked: its cubic is bounded through those of u and u'); pass 2
+   screens all lanes of a segment at once and re-runs, scalar and with refinement, only
+   the segments whose bound exceeds the peak found so far (which starts at the largest
+   sample of |u| and |u'|, and for |ü_t| at the largest checkpoint value; each lane's
+   segment with the largest |u| is refined first). On the benchmark record about 1.5 %
+   of steps are re-run (2-2.5 % without sub-steps).
    The peaks equal those of refining every step, to round-off.
 
 Defaults (:data:`DEFAULT_STEPS_PER_PERIOD`) were chosen by measurement, not from a
@@ -51,15 +54,12 @@ so for ζ below about 2 % use ``"exact"`` or raise ``steps_per_period``. Sub-ste
 are powers of two, so the actual steps per period lie between the setting and twice it.
 
 Speed (``benchmarks/spectrum_kernel.py``: 11,000 steps at 0.005 s, 500 periods, one
-core of a 2-core machine that was heavily shared when measured, load average 6-9, so
-wall-clock figures are low and vary by a factor of two): exact method with defaults
-600 M executed oscillator-steps/s wall clock (was 220 M on the same busy machine, and
-about 700 M on a quiet one before this kernel), 1.41 executed per record step; the
-kernels alone run about 880-950 M executed steps per second of CPU time, and the Python
-set-up around them (recurrence coefficients mostly) adds about a quarter to the time of a
-spectrum. About 58 × a numpy loop over time vectorised across periods. Newmark methods
-about 480-500 M/s wall clock (720-750 M per CPU second). The 1,000 M/s goal is not
-demonstrated on this machine.
+core of a shared 2-core machine whose speed varies by up to ±40 % between runs): exact
+method with defaults 1,000-1,250 M executed oscillator-steps/s wall clock (best of 15),
+1.41 executed per record step; pass 1 alone runs about 2,000 M steps/s and pass 2 (the
+re-run segments, scalar) takes about a quarter of a kernel's time. Newmark methods about
+750-950 M/s. Per step pass 1 does the two recurrence rows (8 FMA-class operations) and
+three running maxima.
 
 ``benchmarks/spectrum_kernel.py`` re-measures the speed, ``tests/core/test_spectra.py``
 the accuracy.
@@ -253,22 +253,23 @@ _KERNEL_OPTIONS = {**JIT_OPTIONS, "fastmath": {"contract", "nnan", "ninf", "nsz"
 # a block through the record in chunks of _CHUNK steps: for each lane (the loop that is
 # vectorised) it loads the state, running maxima and coefficients into local variables,
 # runs the chunk with everything in registers and stores back once. A step-outer loop over
-# a work array instead stores the state and the four maxima every step, because the
-# compiler cannot rule out that they overlap the ground motion. 16 lanes per block; the
-# last block of a group runs only its lanes rounded up to 4, to limit padding.
+# a work array instead stores the state and the maxima every step, because the compiler
+# cannot rule out that they overlap the ground motion. 16 lanes per block; the last block
+# of a group runs only its lanes rounded up to 8 (one AVX-512 vector,
+# two AVX2 vectors), to limit padding.
 _BLOCK = 16
 # Integration steps per checkpoint segment (measured: 64 about 5 % faster than 32, 15 %
-# faster than 16, despite re-running 1.6 % of steps in pass 2 rather than 1.0 %).
+# faster than 16, despite re-running more steps in pass 2).
 _SEGMENT = 64
 # Steps run with the state in registers (a divisor of _SEGMENT; the compiler unrolls it;
 # 4 and 16 measured slower).
 _CHUNK = 8
 # Rows of a block's work array: recurrence coefficients, 2ζω, ω², state, segment maxima.
-_A11, _A12, _A21, _A22, _B1, _B2, _B3, _B4, _CD, _KK, _U, _V, _MU, _MV, _MA, _MR = range(16)
-_ROWS = 16
-# Per segment a block records the state at its start and the maxima of |u|, |u'|,
-# |ü_t| and |ü| over its samples: _SAVED rows of _BLOCK values.
-_SAVED = 6
+_A11, _A12, _A21, _A22, _B1, _B2, _B3, _B4, _CD, _KK, _U, _V, _MU, _MV, _MR = range(15)
+_ROWS = 15
+# Per segment a block records the state at its start and the maxima of |u| and |u'| over
+# its samples: _SAVED rows of _BLOCK values.
+_SAVED = 5
 
 
 @njit(inline="always", **_KERNEL_OPTIONS)
@@ -295,50 +296,57 @@ def _substep_forcing(ag, shift):
 
 
 @njit(**_KERNEL_OPTIONS)
-def _refine_segment(g, h, a, cdamp, kstiff, u, v, lo, hi, peak):
+def _refine_segment(g, h, a, cdamp, kstiff, u, v, lo, hi, pu, pv, pa):
     """
     Re-run one oscillator over sub-steps ``lo``..``hi`` of the sub-step forcing ``g``
-    from state (u, v), raising ``peak`` (3,) to the interior extrema of the cubic Hermite
-    of u, u' and ü_t in each step whose bound could exceed it. Scalar; used only for
-    flagged segments.
+    from state (u, v); returns the peaks ``(pu, pv, pa)`` of |u|, |u'|, |ü_t| raised to
+    the sampled |ü_t| and to the interior extrema of the cubic Hermite of u, u' and ü_t
+    in each step whose bound could exceed them. Scalar; used only for flagged segments.
     """
     h3 = h / 3.0
     c = cdamp
     k = kstiff
+    a11, a12, a21, a22, b1, b2, b3, b4 = a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7]
     gb = g[lo]
     at0 = -(c * v + k * u)
     r0 = at0 - gb  # relative acceleration ü
     j0 = -(c * r0 + k * v)  # d(ü_t)/dt
+    pa = max(pa, abs(at0))
     for step in range(lo, hi):
         ga = gb
         gb = g[step + 1]
-        u1 = (a[4] * ga + a[5] * gb) + a[1] * v + a[0] * u
-        v1 = (a[6] * ga + a[7] * gb) + a[2] * u + a[3] * v
+        u1 = (b1 * ga + b2 * gb) + a12 * v + a11 * u
+        v1 = (b3 * ga + b4 * gb) + a21 * u + a22 * v
         at1 = -(c * v1 + k * u1)
         r1 = at1 - gb
         j1 = -(c * r1 + k * v1)
-        # The end samples are already in ``peak``; the cubic can exceed them only if
-        # |y0 + (h/3) y0'| or |y1 - (h/3) y1'| does (signed form of the bound above).
-        if max(abs(u + h3 * v), abs(u1 - h3 * v1)) > peak[0]:
-            peak[0] = max(peak[0], _hermite_abs_max(u, v, u1, v1, h))
-        if max(abs(v + h3 * r0), abs(v1 - h3 * r1)) > peak[1]:
-            peak[1] = max(peak[1], _hermite_abs_max(v, r0, v1, r1, h))
-        if max(abs(at0 + h3 * j0), abs(at1 - h3 * j1)) > peak[2]:
-            peak[2] = max(peak[2], _hermite_abs_max(at0, j0, at1, j1, h))
+        # Pass 1 keeps no |ü_t| maxima: the samples enter here.
+        pa = max(pa, abs(at1))
+        # The end samples of u and u' are already in the peaks; the cubic can exceed
+        # them only if |y0 + (h/3) y0'| or |y1 - (h/3) y1'| does (H00 >= 3 H10 and
+        # H01 >= 3 |H11| on [0, 1]).
+        if max(abs(u + h3 * v), abs(u1 - h3 * v1)) > pu:
+            pu = max(pu, _hermite_abs_max(u, v, u1, v1, h))
+        if max(abs(v + h3 * r0), abs(v1 - h3 * r1)) > pv:
+            pv = max(pv, _hermite_abs_max(v, r0, v1, r1, h))
+        if max(abs(at0 + h3 * j0), abs(at1 - h3 * j1)) > pa:
+            pa = max(pa, _hermite_abs_max(at0, j0, at1, j1, h))
         u = u1
         v = v1
         at0 = at1
         r0 = r1
         j0 = j1
+    return pu, pv, pa
 
 
 @njit(inline="always", **_KERNEL_OPTIONS)
 def _advance(w, g, step, count, width):
     """
     Run lanes ``0..width-1`` of a block over sub-steps ``step..step+count``, updating the
-    state and the running segment maxima in ``w``. Lanes are the outer (vectorised) loop
-    and everything a lane needs is a local variable, so nothing is stored inside the
-    step loop; with ``count = _CHUNK`` (a constant) the step loop is unrolled.
+    state and the running segment maxima of |u| and |u'| in ``w``. Lanes are the outer
+    (vectorised) loop and everything a lane needs is a local variable, so nothing is
+    stored inside the step loop; with ``count = _CHUNK`` (a constant) the step loop is
+    unrolled.
     """
     for j in range(width):
         a11 = w[_A11 * _BLOCK + j]
@@ -355,7 +363,6 @@ def _advance(w, g, step, count, width):
         v = w[_V * _BLOCK + j]
         mu = w[_MU * _BLOCK + j]
         mv = w[_MV * _BLOCK + j]
-        ma = w[_MA * _BLOCK + j]
         mr = w[_MR * _BLOCK + j]
         for s in range(count):
             ga = g[step + s]
@@ -363,18 +370,15 @@ def _advance(w, g, step, count, width):
             # Load terms first, state last: two dependent FMAs per step.
             u1 = (b1 * ga + b2 * gb) + a12 * v + a11 * u
             v1 = (b3 * ga + b4 * gb) + a21 * u + a22 * v
-            a1 = c * v1 + k * u1  # = -ü_t
             mu = max(mu, abs(u1))
             mv = max(mv, abs(v1))
-            ma = max(ma, abs(a1))
-            mr = max(mr, abs(a1 + gb))  # = |ü|
+            mr = max(mr, abs(c * v1 + (k * u1 + gb)))  # = |ü|
             u = u1
             v = v1
         w[_U * _BLOCK + j] = u
         w[_V * _BLOCK + j] = v
         w[_MU * _BLOCK + j] = mu
         w[_MV * _BLOCK + j] = mv
-        w[_MA * _BLOCK + j] = ma
         w[_MR * _BLOCK + j] = mr
 
 
@@ -382,32 +386,46 @@ def _advance(w, g, step, count, width):
 def _first_pass(w, g, saved, nsteps, width):
     """
     Pass 1 for one block of ``width`` lanes: the recurrence over the whole record, keeping
-    per segment the state at its start and the maxima of |u|, |u'|, |ü_t|, |ü| (rows of
-    ``saved``).
+    per segment the state at its start and the maxima of |u| and |u'| (rows of ``saved``).
     """
     for sg in range(saved.shape[0]):
         lo = sg * _SEGMENT
         hi = min(lo + _SEGMENT, nsteps)
-        g0 = g[lo]
         for j in range(_BLOCK):
             u = w[_U * _BLOCK + j]
             v = w[_V * _BLOCK + j]
-            a = w[_CD * _BLOCK + j] * v + w[_KK * _BLOCK + j] * u  # = -ü_t
             saved[sg, j] = u
             saved[sg, _BLOCK + j] = v
             w[_MU * _BLOCK + j] = abs(u)
             w[_MV * _BLOCK + j] = abs(v)
-            w[_MA * _BLOCK + j] = abs(a)
-            w[_MR * _BLOCK + j] = abs(a + g0)  # = |ü|
+            w[_MR * _BLOCK + j] = abs(w[_CD * _BLOCK + j] * v + (w[_KK * _BLOCK + j] * u + g[lo]))
         step = lo
         while step + _CHUNK <= hi:
             _advance(w, g, step, _CHUNK, width)
             step += _CHUNK
         if step < hi:
             _advance(w, g, step, hi - step, width)
-        for r in range(2, _SAVED):
-            for j in range(_BLOCK):
-                saved[sg, r * _BLOCK + j] = w[(_MU - 2 + r) * _BLOCK + j]
+        for j in range(_BLOCK):
+            saved[sg, 2 * _BLOCK + j] = w[_MU * _BLOCK + j]
+            saved[sg, 3 * _BLOCK + j] = w[_MV * _BLOCK + j]
+            saved[sg, 4 * _BLOCK + j] = w[_MR * _BLOCK + j]
+
+
+@njit(inline="always", **_KERNEL_OPTIONS)
+def _segment_bounds(saved, sg, j, c, k, h4):
+    """
+    Bounds over segment ``sg`` of lane ``j`` on the Hermite cubics of u, u' and ü_t.
+
+    A cubic Hermite on one step is p(s) = H00 y0 + H01 y1 + h (H10 y0' + H11 y1') with
+    H00 + H01 = 1 (both >= 0 on [0, 1]) and |H10| + |H11| = s(1 − s) <= 1/4, so
+    |p| <= max|y_k| + (h/4) max|y'_k|. Over a segment, with the sampled maxima M_u, M_v,
+    M_ü: u is bounded by M_u + (h/4) M_v, u' by M_v + (h/4) M_ü, and ü_t = −(2ζω u' + ω² u)
+    (whose cubic is the same combination of those two) by 2ζω·(bound of u') +
+    ω²·(bound of u). ``h4`` is h/4 [s].
+    """
+    bu = saved[sg, 2 * _BLOCK + j] + h4 * saved[sg, 3 * _BLOCK + j]
+    bv = saved[sg, 3 * _BLOCK + j] + h4 * saved[sg, 4 * _BLOCK + j]
+    return bu, bv, c * bv + k * bu
 
 
 @njit(**_KERNEL_OPTIONS)
@@ -420,24 +438,26 @@ def _recurrence_peaks(ag, shift, h, coef, cdamp, kstiff, u_init, v_init, peaks):
 
     Per block of ``_BLOCK`` oscillators, pass 1 runs the recurrence over the record
     (vectorised) and keeps, for every segment of ``_SEGMENT`` steps, the state at its start
-    and the maxima M of |u|, |u'|, |ü_t|, |ü| over its samples. In each step the cubic of
-    y (slopes y') is bounded by max |y_k| + (h/3)|y'_k| over its two ends (the Hermite
-    weights satisfy s(1-s)² <= (1+2s)(1-s)²/3 and s²(1-s) <= s²(3-2s)/3), hence over a
-    segment by M_u + (h/3) M_v for u, M_v + (h/3) M_ü for u', and 2ζω·(bound of u') +
-    ω²·(bound of u) for ü_t = -(2ζω u' + ω² u). Pass 2 re-runs, from its checkpoint and
-    with refinement, only a segment whose bound exceeds the peak found so far (which
-    starts at the largest sample): after the strong motion, almost none.
+    and the maxima M of |u| and |u'| over its samples — the whole work of a step is the
+    two recurrence rows and two running maxima. In each step the cubic of y (slopes y')
+    is bounded by max |y_k| + (h/3)|y'_k| over its two ends (the Hermite weights satisfy
+    s(1-s)² <= (1+2s)(1-s)²/3 and s²(1-s) <= s²(3-2s)/3); :func:`_segment_bounds` turns
+    that into bounds per segment. Pass 2 re-runs, from its checkpoint and with
+    refinement, only a segment whose bound exceeds the peak found so far. The peaks so
+    far start at the largest sampled |u| and |u'| and, for |ü_t|, at the largest value
+    at the checkpoints; each lane's segment with the largest |u| is refined first, which
+    lifts the |ü_t| peak near its final value before the other segments are screened.
     """
     n = coef.shape[1]
     g = _substep_forcing(ag, shift)
     nsteps = g.size - 1
     nseg = (nsteps + _SEGMENT - 1) // _SEGMENT
-    h3 = h / 3.0
+    h4 = h / 4.0
     w = np.zeros(_ROWS * _BLOCK)
     a = np.empty(8)
     saved = np.empty((nseg, _SAVED * _BLOCK))
-    peak = np.empty(3)
     pk = np.empty((3, _BLOCK))
+    first = np.zeros(_BLOCK, dtype=np.int64)
     rerun = 0
     for b0 in range(0, n, _BLOCK):
         m = min(_BLOCK, n - b0)
@@ -450,46 +470,60 @@ def _recurrence_peaks(ag, shift, h, coef, cdamp, kstiff, u_init, v_init, peaks):
             w[_U * _BLOCK + j] = u_init[b0 + j]
             w[_V * _BLOCK + j] = v_init[b0 + j]
         # ---- pass 1: recurrence and segment maxima, vectorised across the block. A
-        # partial block runs its lanes rounded up to the SIMD width of 4 (a lane count
+        # partial block runs its lanes rounded up to 8, one 512-bit vector (a lane count
         # known only at run time, so the compiler vectorises rather than unrolls it).
         if m == _BLOCK:
             _first_pass(w, g, saved, nsteps, _BLOCK)
         else:
-            _first_pass(w, g, saved, nsteps, (m + 3) & -4)
-        # ---- pass 2: refine only segments whose bound beats the peak so far. The sample
-        # peaks and a first screen of every segment run across lanes; a segment any lane
-        # needs is then checked lane by lane against the peak as it stands.
+            _first_pass(w, g, saved, nsteps, (m + 7) & -8)
+        # ---- pass 2: the peaks so far, then refinement of the segments whose bound
+        # beats them. Screening runs across lanes; a segment any lane needs is then
+        # checked lane by lane against the peak as it stands.
         pk[:] = 0.0
+        first[:] = 0
         for sg in range(nseg):
             for j in range(_BLOCK):
-                pk[0, j] = max(pk[0, j], saved[sg, 2 * _BLOCK + j])
+                mu = saved[sg, 2 * _BLOCK + j]
+                if mu > pk[0, j]:
+                    pk[0, j] = mu
+                    first[j] = sg
                 pk[1, j] = max(pk[1, j], saved[sg, 3 * _BLOCK + j])
-                pk[2, j] = max(pk[2, j], saved[sg, 4 * _BLOCK + j])
+                pk[2, j] = max(pk[2, j], abs(w[_CD * _BLOCK + j] * saved[sg, _BLOCK + j]
+                                             + w[_KK * _BLOCK + j] * saved[sg, j]))
+        for j in range(m, _BLOCK):
+            pk[:, j] = np.inf  # padded lanes (|ü| = |üg| there) never ask for refinement
+        for j in range(m):
+            for r in range(8):
+                a[r] = w[r * _BLOCK + j]
+            sg = first[j]
+            lo = sg * _SEGMENT
+            hi = min(lo + _SEGMENT, nsteps)
+            pk[0, j], pk[1, j], pk[2, j] = _refine_segment(
+                g, h, a, w[_CD * _BLOCK + j], w[_KK * _BLOCK + j], saved[sg, j],
+                saved[sg, _BLOCK + j], lo, hi, pk[0, j], pk[1, j], pk[2, j])
+            rerun += hi - lo
         for sg in range(nseg):
             hit = False
             for j in range(_BLOCK):
-                bu = saved[sg, 2 * _BLOCK + j] + h3 * saved[sg, 3 * _BLOCK + j]
-                bv = saved[sg, 3 * _BLOCK + j] + h3 * saved[sg, 5 * _BLOCK + j]
-                hit |= ((bu > pk[0, j]) | (bv > pk[1, j])
-                        | (w[_CD * _BLOCK + j] * bv + w[_KK * _BLOCK + j] * bu > pk[2, j]))
+                bu, bv, ba = _segment_bounds(saved, sg, j, w[_CD * _BLOCK + j],
+                                             w[_KK * _BLOCK + j], h4)
+                hit |= (bu > pk[0, j]) | (bv > pk[1, j]) | (ba > pk[2, j])
             if not hit:
                 continue
             lo = sg * _SEGMENT
             hi = min(lo + _SEGMENT, nsteps)
             for j in range(m):
+                if sg == first[j]:
+                    continue
                 c = w[_CD * _BLOCK + j]
                 k = w[_KK * _BLOCK + j]
-                bu = saved[sg, 2 * _BLOCK + j] + h3 * saved[sg, 3 * _BLOCK + j]
-                bv = saved[sg, 3 * _BLOCK + j] + h3 * saved[sg, 5 * _BLOCK + j]
-                if bu > pk[0, j] or bv > pk[1, j] or c * bv + k * bu > pk[2, j]:
+                bu, bv, ba = _segment_bounds(saved, sg, j, c, k, h4)
+                if bu > pk[0, j] or bv > pk[1, j] or ba > pk[2, j]:
                     for r in range(8):
                         a[r] = w[r * _BLOCK + j]
-                    for r in range(3):
-                        peak[r] = pk[r, j]
-                    _refine_segment(g, h, a, c, k, saved[sg, j], saved[sg, _BLOCK + j],
-                                    lo, hi, peak)
-                    for r in range(3):
-                        pk[r, j] = peak[r]
+                    pk[0, j], pk[1, j], pk[2, j] = _refine_segment(
+                        g, h, a, c, k, saved[sg, j], saved[sg, _BLOCK + j], lo, hi,
+                        pk[0, j], pk[1, j], pk[2, j])
                     rerun += hi - lo
         for j in range(m):
             for r in range(3):

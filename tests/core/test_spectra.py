@@ -262,7 +262,7 @@ def test_partial_blocks_and_partial_chunks(record_001, count):
     ag, dt = record_001
     ag = ag[:1003]  # 1002 steps: the record ends inside a segment and inside a chunk
     # One sub-step group (steps_per_period=0), so ``count`` oscillators fill whole blocks
-    # of 16 and a last block of the remaining lanes rounded up to 4.
+    # of 16 and a last block of the remaining lanes rounded up to 8.
     periods = np.geomspace(0.05, 3.0, count)
     together = oscillator_peaks(ag, dt, periods, 0.05, steps_per_period=0)
     for i in {0, count // 2, count - 1}:
@@ -278,3 +278,36 @@ def test_partial_blocks_and_partial_chunks(record_001, count):
     # Closed form: refined peaks can only exceed the sampled ones.
     assert np.all(together.displacement_m >= np.max(np.abs(hist.displacement_m), axis=1))
     assert np.all(together.velocity_m_s >= np.max(np.abs(hist.velocity_m_s), axis=1))
+
+
+def _hermite_spline_peak(t, y, slope):
+    """Largest |y| of the cubic Hermite spline through (t, y, slope), from its roots."""
+    from scipy.interpolate import CubicHermiteSpline
+
+    spline = CubicHermiteSpline(t, y, slope)
+    roots = spline.derivative().roots(extrapolate=False)
+    return max(np.max(np.abs(y)), np.max(np.abs(spline(roots)), initial=0.0))
+
+
+@pytest.mark.parametrize("zeta", [0.0, 0.05, 0.2])
+def test_screened_peaks_equal_every_step_refinement(record_001, zeta):
+    # The kernel re-runs only the segments whose bound could beat the peak so far. The
+    # reference refines every step: scipy.interpolate.CubicHermiteSpline through the
+    # sampled u (slopes u'), u' (slopes ü = ü_t − üg) and ü_t (slopes −(2ζω ü + ω² u')),
+    # with its extrema at the roots of its derivative. Equal to round-off.
+    ag, dt = record_001
+    periods = np.array([0.021, 0.04, 0.09, 0.3, 1.0, 4.0])  # 0.5 to 400 steps per period
+    got = oscillator_peaks(ag, dt, periods, zeta, steps_per_period=0)
+    hist = oscillator_histories(ag, dt, periods, zeta, steps_per_period=0)
+    t = np.arange(ag.size) * dt
+    for i, period in enumerate(periods):
+        wn = 2.0 * np.pi / period
+        u, v, at = (hist.displacement_m[i], hist.velocity_m_s[i],
+                    hist.total_acceleration_m_s2[i])
+        rel = at - ag
+        jerk = -(2.0 * zeta * wn * rel + wn * wn * v)
+        for name, value, want in [
+                ("SD", got.displacement_m[i], _hermite_spline_peak(t, u, v)),
+                ("SV", got.velocity_m_s[i], _hermite_spline_peak(t, v, rel)),
+                ("SA", got.total_acceleration_m_s2[i], _hermite_spline_peak(t, at, jerk))]:
+            assert value == pytest.approx(want, rel=1e-9), (name, period)
