@@ -49,6 +49,13 @@ def _environment() -> jinja2.Environment:
         trim_blocks=False, lstrip_blocks=False, keep_trailing_newline=True)
 
 
+#: Figure functions that write SVG directly (milliseconds each, not tenths of a second).
+CHEAP_FIGURES = frozenset({"histories_figure"})
+#: Figures per task sent to a worker: small enough to balance the load, large enough
+#: that sending tasks costs little beside drawing them (about 0.1-0.2 s each).
+FIGURE_CHUNK = 2
+
+
 def draw_figure(spec: FigureSpec) -> str:
     """SVG text of one figure (a top-level function so it can run in a worker)."""
     from sdofreport.site import figures
@@ -103,16 +110,24 @@ def draw_figures(specs: list[FigureSpec], jobs: int = 1, cache=None) -> dict[str
             texts[spec.path] = cached
         else:
             todo.append(spec)
-    if jobs <= 1 or len(todo) < 4:
+    costly = [spec for spec in todo if spec.function not in CHEAP_FIGURES]
+    if jobs <= 1 or len(costly) < 2:
         drawn = [draw_figure(spec) for spec in todo]
     else:
         import multiprocessing
         from concurrent.futures import ProcessPoolExecutor
 
+        # The workers take the matplotlib figures, in small chunks so that they finish
+        # together; this process meanwhile writes the direct-SVG figures itself (a few
+        # milliseconds each), which also spares sending their full histories to a worker.
+        cheap = [spec for spec in todo if spec.function in CHEAP_FIGURES]
         context = multiprocessing.get_context("fork" if os.name == "posix" else None)
         with ProcessPoolExecutor(max_workers=jobs, mp_context=context) as pool:
-            drawn = list(pool.map(draw_figure, todo,
-                                  chunksize=max(1, len(todo) // (4 * jobs))))
+            pending = pool.map(draw_figure, costly, chunksize=FIGURE_CHUNK)
+            drawn_cheap = [draw_figure(spec) for spec in cheap]
+            drawn_costly = list(pending)
+        todo = costly + cheap
+        drawn = drawn_costly + drawn_cheap
     for spec, text in zip(todo, drawn):
         texts[spec.path] = text
         if cache is not None:

@@ -364,3 +364,67 @@ def test_hysteresis_long_loop_is_decimated():
                             ylabel="Force [kN]")
     assert _max_path_vertices(svg) <= 4000
     assert len(svg.encode()) < 200_000
+
+
+# ---------------------------------------------------------------------------------------------
+# Direct-SVG history panels
+# ---------------------------------------------------------------------------------------------
+def _history_paths(svg):
+    """Vertices [pt] of each panel's history path (drawn inside scale(0.01))."""
+    root = ET.fromstring(svg)
+    paths = []
+    for el in root.iter(f"{SVG_NS}path"):
+        if el.get("class") == "history":
+            assert el.get("transform") == "scale(0.01)"
+            runs = [np.array(run.replace("L", " ").split(), dtype=float).reshape(-1, 2) / 100.0
+                    for run in el.get("d").split("M")[1:]]
+            paths.append(runs)
+    return paths
+
+
+def test_history_peak_dot_sits_on_the_drawn_extreme_and_gaps_stay_gaps():
+    # Constructed: a sine with a spike of -0.9 we placed and a run of NaN samples.
+    t = np.arange(3000) * 0.01
+    a = 0.2 * np.sin(2 * np.pi * 0.5 * t)
+    a[1700] = -0.9
+    a[400:420] = np.nan
+    svg = histories_figure(t, [("ground", a, "Acceleration [g]")])
+    (runs,) = _history_paths(svg)
+    # The NaN run splits the line into two pieces (nothing drawn across the gap).
+    assert len(runs) == 2
+    points = np.vstack(runs)
+    root = ET.fromstring(svg)
+    (dot,) = list(root.iter(f"{SVG_NS}circle"))
+    cx, cy = float(dot.get("cx")), float(dot.get("cy"))
+    # The dot is the lowest drawn vertex (largest y on screen), i.e. the spike we placed.
+    lowest = points[np.argmax(points[:, 1])]
+    assert (cx, cy) == pytest.approx(tuple(lowest), abs=0.011)
+    assert "peak \u22120.900 g" in _texts(svg)
+    # The line spans the whole time axis: first and last samples at the axes' edges.
+    frame = [el for el in root.iter(f"{SVG_NS}rect") if el.get("fill") == "none"][0]
+    left = float(frame.get("x"))
+    right = left + float(frame.get("width"))
+    assert points[0, 0] == pytest.approx(left, abs=0.011)
+    assert points[-1, 0] == pytest.approx(right, abs=0.011)
+
+
+def test_history_labels_are_escaped_and_ticks_are_round_numbers():
+    t = np.arange(500) * 0.02
+    v = 37.0 * np.sin(t)
+    svg = histories_figure(t, [("<b>roof</b> & \"deck\"", v, "Displacement [mm]")],
+                           title="rec <script>alert(1)</script>")
+    ET.fromstring(svg)  # well-formed XML
+    assert "<script>" not in svg and "<b>" not in svg
+    texts = _texts(svg)
+    assert "<b>roof</b> & \"deck\"" in texts  # shown as text, not markup
+    # The y tick labels (right-aligned against the axis) are evenly spaced by a step of
+    # 1, 2, 2.5 or 5 times a power of ten (the step set of matplotlib's MaxNLocator,
+    # which places the ticks) and cover zero and most of the ±37 mm swing.
+    root = ET.fromstring(svg)
+    numbers = sorted(float("".join(el.itertext()).replace("\u2212", "-"))
+                     for el in root.iter(f"{SVG_NS}text") if el.get("text-anchor") == "end")
+    steps = np.diff(numbers)
+    assert len(numbers) >= 4 and np.allclose(steps, steps[0])
+    mantissa = steps[0] / 10.0 ** np.floor(np.log10(steps[0]))
+    assert min(abs(mantissa - m) for m in (1.0, 2.0, 2.5, 5.0)) < 1e-9
+    assert 0.0 in numbers and max(numbers) >= 0.5 * 37.0 and min(numbers) <= -0.5 * 37.0

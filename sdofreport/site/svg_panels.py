@@ -1,0 +1,250 @@
+"""
+Stacked time-history panels written directly as SVG text, without matplotlib.
+
+A parametric study draws one history figure per record and system — thousands of them —
+and matplotlib spends about 0.1-0.3 s on each (mostly creating and drawing tick
+artists). These panels need only a frame, a grid, ticks, a polyline, a zero line and a
+marked peak, so this module writes those elements itself: about a hundred times faster,
+a quarter of the size, and byte-identical for identical inputs by construction (plain
+string formatting with fixed precision, no ids drawn from counters or random numbers).
+The look follows :data:`sdofreport.site.figures.FIGURE_RC` (fonts, sizes, colours, line
+widths); tick positions come from matplotlib's :class:`~matplotlib.ticker.MaxNLocator`,
+which is plain arithmetic and draws nothing.
+
+Lengths are in points (72 per inch), the unit of the SVG ``viewBox``; y grows downwards.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from xml.sax.saxutils import escape
+
+import numpy as np
+from matplotlib.ticker import MaxNLocator
+
+__all__ = ["PanelLayout", "PanelStyle", "history_panels_svg"]
+
+_FONT = "DejaVu Sans, Arial, Helvetica, Liberation Sans, sans-serif"
+_TICK_PT = 3.5  # tick length (matplotlib's default major tick size) [pt]
+_TICK_PAD_PT = 3.5  # gap between a tick and its label [pt]
+_MINUS = "\u2212"
+
+
+@dataclass(frozen=True)
+class PanelLayout:
+    """Figure size and margins [in], the same quantities the matplotlib figures use."""
+
+    width_in: float
+    height_in: float
+    left_in: float
+    right_in: float
+    bottom_in: float
+    top_in: float
+    hspace_in: float
+
+
+@dataclass(frozen=True)
+class PanelStyle:
+    """Colours [#rrggbb], line widths [pt] and font sizes [pt] taken from the rc settings."""
+
+    line: str
+    peak: str
+    frame: str
+    frame_width: float
+    grid: str
+    grid_width: float
+    tick_width: float
+    title_size: float
+    label_size: float
+    tick_size: float
+    peak_size: float
+    figure_title_size: float
+
+
+def _num(value: float) -> str:
+    """A coordinate with two decimals [pt]; '-0.00' is written '0.00'."""
+    text = f"{value:.2f}"
+    return "0.00" if text == "-0.00" else text
+
+
+def _tick_text(value: float, step: float) -> str:
+    """Tick label: as many decimals as the tick step needs, typographic minus."""
+    if value == 0.0:
+        return "0"
+    if step < 1e-4 or abs(value) >= 1e6:
+        text = f"{value:.3g}"
+    else:
+        decimals = 0
+        while decimals < 8 and abs(round(step, decimals) - step) > 1e-9 * step:
+            decimals += 1
+        text = f"{value:.{decimals}f}"
+    return text.replace("-", _MINUS)
+
+
+def _limits(values: np.ndarray, margin: float) -> tuple[float, float]:
+    """Data range including zero, widened by ``margin`` of its span on each side."""
+    finite = values[np.isfinite(values)]
+    lo = min(0.0, float(finite.min())) if finite.size else -1.0
+    hi = max(0.0, float(finite.max())) if finite.size else 1.0
+    if hi - lo <= 1e-300:
+        return lo - 1.0, hi + 1.0
+    span = hi - lo
+    return lo - margin * span, hi + margin * span
+
+
+def _ticks(lo: float, hi: float, nbins: int) -> tuple[np.ndarray, float]:
+    ticks = MaxNLocator(nbins=nbins, steps=[1, 2, 2.5, 5, 10]).tick_values(lo, hi)
+    step = float(ticks[1] - ticks[0]) if ticks.size > 1 else 1.0
+    inside = ticks[(ticks >= lo - 1e-9 * step) & (ticks <= hi + 1e-9 * step)]
+    return inside, step
+
+
+def _text(x, y, text, size, *, anchor="start", baseline="auto", rotate=None,
+          colour="#000000") -> str:
+    transform = f' transform="rotate({rotate} {_num(x)} {_num(y)})"' if rotate else ""
+    base = "" if baseline == "auto" else f' dominant-baseline="{baseline}"'
+    return (f'<text x="{_num(x)}" y="{_num(y)}" font-size="{size:g}" '
+            f'text-anchor="{anchor}"{base} fill="{colour}"{transform}>'
+            f"{escape(text)}</text>")
+
+
+def _polyline(xs: np.ndarray, ys: np.ndarray) -> str:
+    """
+    Path data through the finite points in hundredths of a point (the path is drawn
+    inside ``scale(0.01)``, so integers keep the text short and fast to write); a gap at
+    every non-finite value.
+    """
+    finite = np.isfinite(xs) & np.isfinite(ys)
+    xi = np.rint(np.where(finite, xs, 0.0) * 100.0).astype(np.int64)
+    yi = np.rint(np.where(finite, ys, 0.0) * 100.0).astype(np.int64)
+    edges = np.flatnonzero(np.diff(np.concatenate(([0], finite.astype(np.int8), [0]))))
+    parts = []
+    for a, b in zip(edges[0::2].tolist(), edges[1::2].tolist()):
+        pts = np.column_stack((xi[a:b], yi[a:b])).ravel().tolist()
+        parts.append(f"M{pts[0]} {pts[1]}")
+        if len(pts) > 2:
+            parts.append("L" + " ".join(map(str, pts[2:])))
+    return "".join(parts)
+
+
+def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=None,
+                       xlabel="Time [s]", peak_label=None, text_width=None) -> str:
+    """
+    SVG text of vertically stacked panels sharing the time axis.
+
+    Parameters
+    ----------
+    panels : sequence of (label, t, v, td, vd, ylabel)
+        Per panel: its label, the full samples ``t`` [s] and ``v`` (for the peak and the
+        axis range), the decimated samples ``td``, ``vd`` that are drawn, and the y-axis
+        label.
+    layout : PanelLayout
+        Size and margins. [in]
+    style : PanelStyle
+        Colours, widths and font sizes.
+    title : str, optional
+        Figure title, centred on top.
+    xlabel : str
+        Label of the shared time axis.
+    peak_label : callable
+        ``peak_label(value, ylabel) -> str``, the text beside each panel's peak.
+    text_width : callable
+        ``text_width(text, size_pt) -> float``, the width of a text line [pt], used to
+        size the white box behind each peak label.
+    """
+    w = layout.width_in * 72.0
+    h = layout.height_in * 72.0
+    n = len(panels)
+    x0 = layout.left_in * 72.0
+    x1 = w - layout.right_in * 72.0
+    gap = layout.hspace_in * 72.0
+    axes_h = (h - (layout.top_in + layout.bottom_in) * 72.0 - gap * (n - 1)) / n
+    t_all = np.concatenate([p[1] for p in panels])
+    t_fin = t_all[np.isfinite(t_all)]
+    t_lo, t_hi = (float(t_fin.min()), float(t_fin.max())) if t_fin.size else (0.0, 1.0)
+    if t_hi <= t_lo:
+        t_lo, t_hi = t_lo - 0.5, t_hi + 0.5
+    x_ticks, x_step = _ticks(t_lo, t_hi, 9)
+
+    def sx(t):
+        return x0 + (np.asarray(t, dtype=float) - t_lo) * ((x1 - x0) / (t_hi - t_lo))
+
+    out = [
+        '<?xml version="1.0" encoding="utf-8" standalone="no"?>\n',
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{_num(w)}pt" height="{_num(h)}pt" '
+        f'viewBox="0 0 {_num(w)} {_num(h)}" version="1.1" font-family="{_FONT}">\n',
+        f'<rect x="0" y="0" width="{_num(w)}" height="{_num(h)}" fill="#ffffff"/>\n',
+    ]
+    if title:
+        out.append(_text(w / 2.0, 0.08 * 72.0, title, style.figure_title_size,
+                         anchor="middle", baseline="hanging") + "\n")
+    for i, (label, t, v, td, vd, ylabel) in enumerate(panels):
+        top = layout.top_in * 72.0 + i * (axes_h + gap)
+        bottom = top + axes_h
+        v_lo, v_hi = _limits(v, 0.25)
+        y_ticks, y_step = _ticks(v_lo, v_hi, 5)
+
+        def sy(value, top=top, v_lo=v_lo, v_hi=v_hi):
+            return top + (v_hi - np.asarray(value, dtype=float)) * (axes_h / (v_hi - v_lo))
+
+        out.append(f'<g class="panel" id="panel_{i + 1}">\n')
+        # Grid, below everything else.
+        grid = "".join(f"M{_num(sx(t_))} {_num(top)}V{_num(bottom)}" for t_ in x_ticks)
+        grid += "".join(f"M{_num(x0)} {_num(sy(y_))}H{_num(x1)}" for y_ in y_ticks)
+        out.append(f'<path d="{grid}" stroke="{style.grid}" stroke-width='
+                   f'"{style.grid_width:g}" fill="none"/>\n')
+        # Zero line, the history, the frame.
+        out.append(f'<path d="M{_num(x0)} {_num(sy(0.0))}H{_num(x1)}" stroke="#999999" '
+                   f'stroke-width="0.5" fill="none"/>\n')
+        out.append(f'<path class="history" transform="scale(0.01)" d='
+                   f'"{_polyline(sx(td), sy(vd))}" stroke="{style.line}" stroke-width="70" '
+                   f'stroke-linejoin="round" fill="none"/>\n')
+        out.append(f'<rect x="{_num(x0)}" y="{_num(top)}" width="{_num(x1 - x0)}" '
+                   f'height="{_num(axes_h)}" stroke="{style.frame}" stroke-width='
+                   f'"{style.frame_width:g}" fill="none"/>\n')
+        # Ticks and their labels: y on every panel, x on the last one only.
+        marks = "".join(f"M{_num(x0)} {_num(sy(y_))}h{_num(-_TICK_PT)}" for y_ in y_ticks)
+        if i == n - 1:
+            marks += "".join(f"M{_num(sx(t_))} {_num(bottom)}v{_num(_TICK_PT)}"
+                             for t_ in x_ticks)
+        out.append(f'<path d="{marks}" stroke="{style.frame}" stroke-width='
+                   f'"{style.tick_width:g}" fill="none"/>\n')
+        for y_ in y_ticks:
+            out.append(_text(x0 - _TICK_PT - _TICK_PAD_PT, float(sy(y_)),
+                             _tick_text(float(y_), y_step), style.tick_size, anchor="end",
+                             baseline="central") + "\n")
+        if i == n - 1:
+            for t_ in x_ticks:
+                out.append(_text(float(sx(t_)), bottom + _TICK_PT + _TICK_PAD_PT,
+                                 _tick_text(float(t_), x_step), style.tick_size,
+                                 anchor="middle", baseline="hanging") + "\n")
+        # Panel label above its top-left corner; y label at a fixed distance from the edge.
+        out.append(_text(x0, top - 0.02 * axes_h, label, style.title_size) + "\n")
+        # Rotated a quarter turn counter-clockwise, the glyphs' tops face the edge; the
+        # descenders end 0.3 in from it, as in the matplotlib figures.
+        ylabel_x = 0.3 * 72.0 - 0.22 * style.label_size
+        out.append(_text(ylabel_x, top + axes_h / 2.0, ylabel, style.label_size,
+                         anchor="middle", rotate=-90) + "\n")
+        # The peak of |v|: a dot and its value in a white box.
+        finite = np.isfinite(v) & np.isfinite(t)
+        if finite.any():
+            k = int(np.argmax(np.where(finite, np.abs(v), -np.inf)))
+            px, py = float(sx(t[k])), float(sy(v[k]))
+            out.append(f'<circle cx="{_num(px)}" cy="{_num(py)}" r="2.25" '
+                       f'fill="{style.peak}"/>\n')
+            text = peak_label(float(v[k]), ylabel)
+            right_half = t.size > 1 and t[k] > 0.5 * (t_lo + t_hi)
+            width = text_width(text, style.peak_size) + 2.4
+            height = style.peak_size * 1.25
+            bx = px - 6.0 - width if right_half else px + 6.0
+            by = py - 5.0 - height if v[k] >= 0 else py + 5.0
+            out.append(f'<rect x="{_num(bx)}" y="{_num(by)}" width="{_num(width)}" '
+                       f'height="{_num(height)}" fill="#ffffff" fill-opacity="0.8"/>\n')
+            out.append(_text(bx + 1.2, by + height / 2.0, text, style.peak_size,
+                             baseline="central") + "\n")
+        out.append("</g>\n")
+    out.append(_text((x0 + x1) / 2.0, h - 0.1 * 72.0, xlabel, style.label_size,
+                     anchor="middle") + "\n")
+    out.append("</svg>\n")
+    return "".join(out)
