@@ -30,8 +30,10 @@ and compressed files are named as such.
 from __future__ import annotations
 
 import hashlib
+import io
 import math
 import re
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -179,6 +181,17 @@ def _numeric_like(token: str) -> bool:
 
 
 def _to_float(token: str, path: str, line: int) -> float:
+    # Fast path: for ASCII text without underscores Python's float() accepts exactly the
+    # decimal numbers of _NUMBER (less the Fortran 'd' exponent) plus nan/inf, which are
+    # not finite; anything else takes the checked path below, which names the problem.
+    if token.isascii() and "_" not in token:
+        try:
+            value = float(token)
+        except ValueError:
+            pass
+        else:
+            if math.isfinite(value):
+                return value
     if _NUMBER.match(token):
         value = float(token.replace("d", "e").replace("D", "e"))
         if math.isfinite(value):
@@ -248,6 +261,30 @@ def _check_agreement(path: str, given: float | None, found: float, source: str) 
 # --------------------------------------------------------------------- the formats
 
 
+_TO_SPACE = str.maketrans(",;\t", "   ")
+
+
+def _two_columns_fast(rows) -> np.ndarray | None:
+    """
+    (n, 2) array of ``rows`` parsed by numpy's compiled text reader, or None whenever
+    anything is unusual (then the line-by-line parser runs and names the problem).
+    numpy accepts the same decimal numbers as ``float`` for ASCII text without
+    underscores; non-finite values send the rows to the checked path.
+    """
+    text = "\n".join(line for _, line in rows).translate(_TO_SPACE)
+    if not text.isascii() or "_" in text:
+        return None
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            table = np.loadtxt(io.StringIO(text), dtype=np.float64, ndmin=2, comments=None)
+    except (ValueError, UserWarning):
+        return None
+    if table.shape != (len(rows), 2) or not np.all(np.isfinite(table)):
+        return None
+    return table
+
+
 def _parse_two_column(lines, path, dt_given):
     rows = _data_lines(lines)
     history = []
@@ -256,7 +293,13 @@ def _parse_two_column(lines, path, dt_given):
         rows = rows[1:]
     if not rows:
         raise _fail(path, None, "has no data lines; expected lines of time and acceleration")
-    times, values, numbers = [], [], []
+    fast = _two_columns_fast(rows)
+    if fast is not None:
+        times, values = fast[:, 0].tolist(), fast[:, 1]
+        numbers = [number for number, _ in rows]
+        rows = ()
+    else:
+        times, values, numbers = [], [], []
     for number, text in rows:
         tokens = _tokens(text)
         if len(tokens) != 2:

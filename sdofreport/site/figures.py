@@ -37,11 +37,21 @@ from cycler import cycler  # noqa: E402  (a matplotlib dependency)
 from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
 from matplotlib.figure import Figure  # noqa: E402
 from matplotlib.font_manager import FontProperties  # noqa: E402
-from matplotlib.lines import Line2D  # noqa: E402
 from matplotlib.textpath import text_to_path  # noqa: E402
 from matplotlib.ticker import FuncFormatter, LogLocator, NullLocator  # noqa: E402
 
-from sdofreport.site.svg_panels import PanelLayout, PanelStyle, history_panels_svg  # noqa: E402
+from sdofreport.site.svg_panels import (  # noqa: E402
+    AxesSpec,
+    Band,
+    Curve,
+    LegendEntry,
+    PanelLayout,
+    PanelStyle,
+    Span,
+    axes_svg,
+    data_limits,
+    history_panels_svg,
+)
 
 __all__ = [
     "FIGURE_RC",
@@ -299,18 +309,35 @@ def _text_width_pt(text, size):
         text, FontProperties(size=size), ismath=False)[0]
 
 
+_ADVANCE: dict[str, float] = {}
+
+
+def _figure_text_width_pt(text, size):
+    """
+    Width of ``text`` at ``size`` in the figure font (FIGURE_RC), from cached per-character
+    advances: no kerning, so within a few per cent of the typeset width, which is all the
+    white boxes and the legend behind the direct-SVG figures need. [pt]
+    """
+    missing = [ch for ch in set(text) if ch not in _ADVANCE]
+    if missing:
+        with matplotlib.rc_context(FIGURE_RC):
+            for ch in missing:
+                _ADVANCE[ch] = _text_width_pt(ch, 100.0) / 100.0
+    return size * sum(_ADVANCE[ch] for ch in text)
+
+
 def _shorten(text, limit=_MAX_LABEL_CHARS):
     """Cut labels that would not fit a fixed margin; the full text belongs in the page."""
     text = str(text)
     return text if len(text) <= limit else text[: limit - 1].rstrip() + "\u2026"
 
 
-def _legend_width_in(labels):
+def _legend_width_in(labels, width=_text_width_pt):
     """Space a right-hand legend of ``labels`` needs, including handle and frame. [in]"""
     if not labels:
         return 0.0
     size = FIGURE_RC["legend.fontsize"]
-    widest = max(_text_width_pt(label, size) for label in labels)
+    widest = max(width(label, size) for label in labels)
     # handle 2.0 em + handle pad 0.8 em + border pads 2 × 0.4 em + anchor gap, per the
     # matplotlib legend defaults; plus 16 pt for the frame and slack so nothing is cut.
     return (widest + size * (2.0 + 0.8 + 0.8) + 16.0) / 72.0
@@ -440,11 +467,10 @@ def histories_figure(time_s, panels, *, title=None):
                          hspace_in=0.32)
     drawn = [(_shorten(label, 90), t, v, *decimate_minmax(t, v, _MAX_POINTS), ylabel)
              for label, t, v, ylabel in prepared]
-    with matplotlib.rc_context(FIGURE_RC):  # the font that sizes the peak-label boxes
-        return history_panels_svg(
-            drawn, layout, _PANEL_STYLE, title=_shorten(title, 90) if title else None,
-            peak_label=lambda value, ylabel: f"peak {_with_unit(value, _unit_of(ylabel))}",
-            text_width=_text_width_pt)
+    return history_panels_svg(
+        drawn, layout, _PANEL_STYLE, title=_shorten(title, 90) if title else None,
+        peak_label=lambda value, ylabel: f"peak {_with_unit(value, _unit_of(ylabel))}",
+        text_width=_figure_text_width_pt)
 
 
 #: Look of the direct-SVG history panels, from FIGURE_RC and the palette.
@@ -537,67 +563,65 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
     records = [c for c in prepared if c["style"] == "record"]
     records_in_legend = 0 < len(records) <= _MAX_RECORD_LEGEND and all(c["label"] for c in records)
 
-    def draw(fig):
-        ax = fig.subplots()
-        if logx:
-            _log_axis(ax, "x")
-        if logy:
-            _log_axis(ax, "y")
-        handles = []
-        if shaded_range is not None:
-            low, high = float(shaded_range[0]), float(shaded_range[1])
-            label = (shaded_range[2] if len(shaded_range) > 2 else
-                     f"range {_with_unit(low, x_unit)} – {_with_unit(high, x_unit)}")
-            handles.append(ax.axvspan(low, high, color=_SHADE_GREY, zorder=0, linewidth=0,
-                                      label=label))
-        for c in (c for c in prepared if c["style"] == "band"):
-            handles.append(ax.fill_between(x, c["lower"], c["upper"], color=_BAND_GREY,
-                                           linewidth=0, zorder=1,
-                                           label=c["label"] or "mean ± 1σ"))
-        for k, c in enumerate(records):
-            if records_in_legend:
-                colour = _RECORD_COLOURS[k % len(_RECORD_COLOURS)]
-                (line,) = ax.plot(x, c["values"], color=colour, linewidth=0.8, alpha=0.75,
-                                  zorder=2, label=c["label"])
-                handles.append(line)
-            else:
-                ax.plot(x, c["values"], color=_GREY_RECORD, linewidth=0.6, alpha=0.55,
-                        zorder=2)
-        if records and not records_in_legend:
-            handles.append(Line2D([], [], color=_GREY_RECORD, linewidth=0.6, alpha=0.55,
-                                  label=f"records (n = {len(records)})"))
-        for c in (c for c in prepared if c["style"] == "mean"):
-            (line,) = ax.plot(x, c["values"], color="black", linewidth=2.0, zorder=4,
-                              label=c["label"] or "mean")
-            handles.append(line)
-        emphasis = [c for c in prepared if c["style"] == "emphasis"]
-        for k, c in enumerate(emphasis):
-            (line,) = ax.plot(x, c["values"], color=_EMPHASIS_COLOURS[k % 4], linewidth=1.8,
-                              zorder=5, label=c["label"] or None)
-            if c["label"]:
-                handles.append(line)
-        if design_xy is not None:
-            (line,) = ax.plot(design_xy[0], design_xy[1], color=_DESIGN_COLOUR, linewidth=1.6,
-                              linestyle=(0, (6, 3)), zorder=6, label=design_xy[2])
-            handles.append(line)
-        for p in highlights:
-            ax.axvline(p, color="#333333", linewidth=0.8, linestyle=":", zorder=7)
-            ax.text(p, 0.98, f" T = {_with_unit(p, x_unit or 's')}", rotation=90,
-                    transform=ax.get_xaxis_transform(), ha="right", va="top", fontsize=7.5,
-                    color="#333333", zorder=8,
-                    bbox={"boxstyle": "square,pad=0.1", "facecolor": "white",
-                          "edgecolor": "none", "alpha": 0.7})
-        if x.size:
-            ax.set_xlim(np.nanmin(x), np.nanmax(x))
-        if not logy:
-            ax.set_ylim(bottom=0.0 if _all_non_negative(prepared, design_xy) else None)
-        ax.set_xlabel(xlabel)
-        ax.set_ylabel(ylabel)
-        if title:
-            ax.set_title(_shorten(title, 90), loc="left")
-        _legend_outside(fig, ax, handles)
-
-    return _render(draw, height_in=4.2, **_single_axes_margins(title))
+    handles, spans, bands, lines = [], [], [], []
+    if shaded_range is not None:
+        low, high = float(shaded_range[0]), float(shaded_range[1])
+        label = (shaded_range[2] if len(shaded_range) > 2 else
+                 f"range {_with_unit(low, x_unit)} – {_with_unit(high, x_unit)}")
+        spans.append(Span(low, high, _SHADE_GREY))
+        handles.append(LegendEntry(label, _SHADE_GREY, patch=True))
+    for c in (c for c in prepared if c["style"] == "band"):
+        bands.append(Band(x, c["lower"], c["upper"], _BAND_GREY))
+        handles.append(LegendEntry(c["label"] or "mean ± 1σ", _BAND_GREY, patch=True))
+    for k, c in enumerate(records):
+        if records_in_legend:
+            colour = _RECORD_COLOURS[k % len(_RECORD_COLOURS)]
+            lines.append(Curve(x, c["values"], colour, 0.8, 0.75))
+            handles.append(LegendEntry(c["label"], colour, 0.8, 0.75))
+        else:
+            lines.append(Curve(x, c["values"], _GREY_RECORD, 0.6, 0.55))
+    if records and not records_in_legend:
+        handles.append(LegendEntry(f"records (n = {len(records)})", _GREY_RECORD, 0.6, 0.55))
+    for c in (c for c in prepared if c["style"] == "mean"):
+        lines.append(Curve(x, c["values"], "#000000", 2.0))
+        handles.append(LegendEntry(c["label"] or "mean", "#000000", 2.0))
+    emphasis = [c for c in prepared if c["style"] == "emphasis"]
+    for k, c in enumerate(emphasis):
+        lines.append(Curve(x, c["values"], _EMPHASIS_COLOURS[k % 4], 1.8))
+        if c["label"]:
+            handles.append(LegendEntry(c["label"], _EMPHASIS_COLOURS[k % 4], 1.8))
+    if design_xy is not None:
+        lines.append(Curve(design_xy[0], design_xy[1], _DESIGN_COLOUR, 1.6, dash="9.6,4.8"))
+        handles.append(LegendEntry(design_xy[2], _DESIGN_COLOUR, 1.6, dash="9.6,4.8"))
+    handles = [LegendEntry(**{**entry.__dict__, "label": _shorten(entry.label)})
+               for entry in handles]
+    xlim = (float(np.nanmin(x)), float(np.nanmax(x))) if x.size else (
+        (0.1, 10.0) if logx else (0.0, 1.0))
+    if xlim[1] <= xlim[0]:
+        xlim = (xlim[0] / 2.0, xlim[0] * 2.0) if logx else (xlim[0] - 0.5, xlim[0] + 0.5)
+    in_view = (x >= xlim[0]) & (x <= xlim[1])
+    arrays = [c[key][in_view] for c in prepared for key in ("values", "lower", "upper")
+              if key in c]
+    if design_xy is not None:
+        inside = (design_xy[0] >= xlim[0]) & (design_xy[0] <= xlim[1])
+        arrays.append(design_xy[1][inside])
+    ylim = data_limits(arrays, log=logy,
+                       bottom_zero=not logy and _all_non_negative(prepared, design_xy))
+    markers = tuple((p, f" T = {_with_unit(p, x_unit or 's')}") for p in highlights)
+    margins = _single_axes_margins(title)
+    legend_in = (max(0.2, _legend_width_in([e.label for e in handles],
+                                           width=_figure_text_width_pt))
+                 if handles else 0.0)
+    layout = PanelLayout(width_in=FIGURE_WIDTH_IN, height_in=4.2, hspace_in=0.0,
+                         left_in=margins["left_in"],
+                         right_in=margins["right_in"] if not handles else 0.0,
+                         bottom_in=margins["bottom_in"], top_in=margins["top_in"])
+    spec = AxesSpec(xlim=xlim, ylim=ylim, xlog=logx, ylog=logy, spans=tuple(spans),
+                    bands=tuple(bands), curves=tuple(lines), markers=markers,
+                    legend=tuple(handles), xlabel=xlabel, ylabel=ylabel,
+                    title=_shorten(title, 90) if title else None)
+    return axes_svg(spec, layout, _PANEL_STYLE, text_width=_figure_text_width_pt,
+                    legend_width_in=legend_in)
 
 
 def _single_axes_margins(title):
@@ -639,19 +663,16 @@ def fourier_figure(frequency_hz, amplitude, *, ylabel, title=None):
     order = np.argsort(f, kind="stable")
     f, a = _decimate_log_minmax(f[order], a[order], _FOURIER_MAX_POINTS)
 
-    def draw(fig):
-        ax = fig.subplots()
-        _log_axis(ax, "x")
-        _log_axis(ax, "y", subs=(1.0,))
-        ax.plot(f, a, color=_LINE_COLOURS[0], linewidth=0.7)
-        if f.size:
-            ax.set_xlim(f[0], f[-1])
-        ax.set_xlabel("Frequency [Hz]")
-        ax.set_ylabel(ylabel)
-        if title:
-            ax.set_title(_shorten(title, 90), loc="left")
-
-    return _render(draw, height_in=3.6, **_single_axes_margins(title))
+    xlim = (float(f[0]), float(f[-1])) if f.size else (0.1, 10.0)
+    if xlim[1] <= xlim[0]:
+        xlim = (xlim[0] / 2.0, xlim[0] * 2.0)
+    margins = _single_axes_margins(title)
+    layout = PanelLayout(width_in=FIGURE_WIDTH_IN, height_in=3.6, hspace_in=0.0, **margins)
+    spec = AxesSpec(xlim=xlim, ylim=data_limits([a], log=True), xlog=True, ylog=True,
+                    curves=(Curve(f, a, _LINE_COLOURS[0], 0.7),), xlabel="Frequency [Hz]",
+                    ylabel=ylabel, title=_shorten(title, 90) if title else None,
+                    log_subs_y=(1.0,))
+    return axes_svg(spec, layout, _PANEL_STYLE, text_width=_figure_text_width_pt)
 
 
 def checks_bar_figure(labels, ratios, *, title=None):

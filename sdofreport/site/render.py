@@ -6,6 +6,7 @@ written to a temporary sibling folder; a failure leaves any previous site untouc
 
 from __future__ import annotations
 
+import functools
 import hashlib
 import json
 import logging
@@ -50,10 +51,10 @@ def _environment() -> jinja2.Environment:
 
 
 #: Figure functions that write SVG directly (milliseconds each, not tenths of a second).
-CHEAP_FIGURES = frozenset({"histories_figure"})
+DIRECT_SVG_FIGURES = frozenset({"histories_figure", "spectra_figure", "fourier_figure"})
 #: Figures per task sent to a worker: small enough to balance the load, large enough
-#: that sending tasks costs little beside drawing them (about 0.1-0.2 s each).
-FIGURE_CHUNK = 2
+#: that sending tasks costs little beside drawing them.
+FIGURE_CHUNK = 8
 
 
 def draw_figure(spec: FigureSpec) -> str:
@@ -61,6 +62,60 @@ def draw_figure(spec: FigureSpec) -> str:
     from sdofreport.site import figures
 
     return getattr(figures, spec.function)(**spec.kwargs)
+
+
+def _draw_chunk(specs: list[FigureSpec]) -> list[str]:
+    """SVG texts of a few figures, in order (one task for a worker)."""
+    return [draw_figure(spec) for spec in specs]
+
+
+# The figure list a forked worker inherits from the build process, so that only index
+# ranges travel to it, not the histories behind each figure. Set only while drawing.
+_INHERITED: list[FigureSpec] = []
+
+
+def _draw_inherited(bounds: tuple[int, int]) -> list[str]:
+    """SVG texts of figures ``bounds[0]:bounds[1]`` of the inherited list."""
+    return [draw_figure(spec) for spec in _INHERITED[bounds[0]:bounds[1]]]
+
+
+def _draw_in_workers(todo: list[FigureSpec], jobs: int) -> list[str]:
+    """
+    SVG texts of ``todo`` (in its order), drawn by ``jobs`` worker processes.
+
+    Matplotlib figures (tenths of a second each) go first, then the direct-SVG ones
+    (milliseconds), in chunks small enough that the workers finish together. Where
+    processes are forked, workers read the figures from the memory they inherit and only
+    index ranges are sent; elsewhere the figures themselves are sent. This process only
+    feeds the workers: drawing here too would hold the interpreter lock the executor's
+    feeder thread needs, and starve them (measured). Who draws a figure does not change
+    its bytes.
+    """
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    order = sorted(range(len(todo)), key=lambda i: todo[i].function in DIRECT_SVG_FIGURES)
+    ordered = [todo[i] for i in order]
+    bounds = [(i, min(i + FIGURE_CHUNK, len(ordered)))
+              for i in range(0, len(ordered), FIGURE_CHUNK)]
+    fork = os.name == "posix" and "fork" in multiprocessing.get_all_start_methods()
+    context = multiprocessing.get_context("fork" if fork else None)
+    global _INHERITED
+    try:
+        if fork:
+            _INHERITED = ordered
+        with ProcessPoolExecutor(max_workers=jobs, mp_context=context) as pool:
+            if fork:
+                parts = pool.map(_draw_inherited, bounds)
+            else:
+                parts = pool.map(_draw_chunk, [ordered[a:b] for a, b in bounds])
+            texts = [text for part in parts for text in part]
+    finally:
+        _INHERITED = []
+    drawn = [""] * len(todo)
+    for position, index in enumerate(order):
+        drawn[index] = texts[position]
+    return drawn
 
 
 def _feed(digest, value) -> None:
@@ -84,11 +139,18 @@ def _feed(digest, value) -> None:
         digest.update(repr(value).encode())
 
 
+@functools.lru_cache(maxsize=1)
+def _matplotlib_version() -> str:
+    """Installed matplotlib version, read from its metadata (importing it costs ~0.4 s,
+    which a build whose figures all come from the cache need not pay)."""
+    from importlib.metadata import version
+
+    return version("matplotlib")
+
+
 def figure_key(spec: FigureSpec) -> str:
     """Content hash of a figure: function, arguments and the versions that draw it."""
-    import matplotlib
-
-    digest = hashlib.sha256(f"figure|{__version__}|{matplotlib.__version__}|"
+    digest = hashlib.sha256(f"figure|{__version__}|{_matplotlib_version()}|"
                             f"{spec.function}".encode())
     _feed(digest, spec.kwargs)
     return digest.hexdigest()
@@ -110,24 +172,10 @@ def draw_figures(specs: list[FigureSpec], jobs: int = 1, cache=None) -> dict[str
             texts[spec.path] = cached
         else:
             todo.append(spec)
-    costly = [spec for spec in todo if spec.function not in CHEAP_FIGURES]
-    if jobs <= 1 or len(costly) < 2:
+    if jobs <= 1 or len(todo) < 2 * FIGURE_CHUNK:
         drawn = [draw_figure(spec) for spec in todo]
     else:
-        import multiprocessing
-        from concurrent.futures import ProcessPoolExecutor
-
-        # The workers take the matplotlib figures, in small chunks so that they finish
-        # together; this process meanwhile writes the direct-SVG figures itself (a few
-        # milliseconds each), which also spares sending their full histories to a worker.
-        cheap = [spec for spec in todo if spec.function in CHEAP_FIGURES]
-        context = multiprocessing.get_context("fork" if os.name == "posix" else None)
-        with ProcessPoolExecutor(max_workers=jobs, mp_context=context) as pool:
-            pending = pool.map(draw_figure, costly, chunksize=FIGURE_CHUNK)
-            drawn_cheap = [draw_figure(spec) for spec in cheap]
-            drawn_costly = list(pending)
-        todo = costly + cheap
-        drawn = drawn_costly + drawn_cheap
+        drawn = _draw_in_workers(todo, jobs)
     for spec, text in zip(todo, drawn):
         texts[spec.path] = text
         if cache is not None:

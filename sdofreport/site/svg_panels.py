@@ -23,7 +23,8 @@ from xml.sax.saxutils import escape
 import numpy as np
 from matplotlib.ticker import MaxNLocator
 
-__all__ = ["PanelLayout", "PanelStyle", "history_panels_svg"]
+__all__ = ["AxesSpec", "Band", "Curve", "LegendEntry", "PanelLayout", "PanelStyle", "Span",
+           "axes_svg", "data_limits", "history_panels_svg"]
 
 _FONT = "DejaVu Sans, Arial, Helvetica, Liberation Sans, sans-serif"
 _TICK_PT = 3.5  # tick length (matplotlib's default major tick size) [pt]
@@ -112,8 +113,9 @@ def _text(x, y, text, size, *, anchor="start", baseline="auto", rotate=None,
 def _polyline(xs: np.ndarray, ys: np.ndarray) -> str:
     """
     Path data through the finite points in hundredths of a point (the path is drawn
-    inside ``scale(0.01)``, so integers keep the text short and fast to write); a gap at
-    every non-finite value.
+    inside ``scale(0.01)``, so integers keep the text short and fast to write): each run
+    of points is an absolute move then relative line steps; a gap at every non-finite
+    value.
     """
     finite = np.isfinite(xs) & np.isfinite(ys)
     xi = np.rint(np.where(finite, xs, 0.0) * 100.0).astype(np.int64)
@@ -121,10 +123,11 @@ def _polyline(xs: np.ndarray, ys: np.ndarray) -> str:
     edges = np.flatnonzero(np.diff(np.concatenate(([0], finite.astype(np.int8), [0]))))
     parts = []
     for a, b in zip(edges[0::2].tolist(), edges[1::2].tolist()):
-        pts = np.column_stack((xi[a:b], yi[a:b])).ravel().tolist()
-        parts.append(f"M{pts[0]} {pts[1]}")
-        if len(pts) > 2:
-            parts.append("L" + " ".join(map(str, pts[2:])))
+        parts.append(f"M{xi[a]} {yi[a]}")
+        if b - a > 1:
+            # Relative steps: integers add up exactly, and are about half as long.
+            steps = np.column_stack((np.diff(xi[a:b]), np.diff(yi[a:b]))).ravel().tolist()
+            parts.append("l" + " ".join(map(str, steps)))
     return "".join(parts)
 
 
@@ -247,4 +250,268 @@ def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=
     out.append(_text((x0 + x1) / 2.0, h - 0.1 * 72.0, xlabel, style.label_size,
                      anchor="middle") + "\n")
     out.append("</svg>\n")
+    return "".join(out)
+
+
+# ------------------------------------------------------------------ one axes, many curves
+@dataclass(frozen=True)
+class Curve:
+    """A polyline in data units; ``dash`` is an SVG dash array [pt] or None."""
+
+    x: np.ndarray
+    y: np.ndarray
+    colour: str
+    width: float
+    opacity: float = 1.0
+    dash: str | None = None
+
+
+@dataclass(frozen=True)
+class Band:
+    """The area between ``lower`` and ``upper`` over ``x``, filled."""
+
+    x: np.ndarray
+    lower: np.ndarray
+    upper: np.ndarray
+    colour: str
+
+
+@dataclass(frozen=True)
+class Span:
+    """A shaded range of x over the whole height of the axes."""
+
+    low: float
+    high: float
+    colour: str
+
+
+@dataclass(frozen=True)
+class LegendEntry:
+    """One legend row: a line sample (``patch=False``) or a filled square."""
+
+    label: str
+    colour: str
+    width: float = 1.0
+    opacity: float = 1.0
+    dash: str | None = None
+    patch: bool = False
+
+
+@dataclass(frozen=True)
+class AxesSpec:
+    """
+    Everything one figure with a single axes shows. Limits are in data units; a log
+    axis takes positive limits. ``markers`` are x positions drawn as dotted vertical
+    lines with a rotated label each, ``(x, text)``.
+    """
+
+    xlim: tuple[float, float]
+    ylim: tuple[float, float]
+    xlog: bool = False
+    ylog: bool = False
+    spans: tuple = ()
+    bands: tuple = ()
+    curves: tuple = ()
+    markers: tuple = ()
+    legend: tuple = ()
+    xlabel: str = ""
+    ylabel: str = ""
+    title: str | None = None
+    log_subs_x: tuple = (1.0, 2.0, 5.0)
+    log_subs_y: tuple = (1.0, 2.0, 5.0)
+
+
+def _log_ticks(lo: float, hi: float, subs) -> np.ndarray:
+    """Ticks ``s × 10^k`` for s in ``subs`` that lie in [lo, hi] (lo, hi > 0)."""
+    first, last = math.floor(math.log10(lo)), math.ceil(math.log10(hi))
+    values = [s * 10.0 ** k for k in range(first, last + 1) for s in subs]
+    # Round away binary noise so that labels read 0.02, not 0.020000000000000004.
+    values = [float(f"{v:.12g}") for v in values]
+    return np.array([v for v in values if lo * (1 - 1e-9) <= v <= hi * (1 + 1e-9)])
+
+
+def _log_tick_text(value: float) -> str:
+    return f"{value:g}".replace("-", _MINUS)
+
+
+def data_limits(arrays, *, log: bool, margin: float = 0.05,
+                bottom_zero: bool = False) -> tuple[float, float]:
+    """
+    Autoscaled limits over the finite values of ``arrays`` (positive ones on a log
+    axis), widened by ``margin`` of the span on each side (of the log span on a log
+    axis); ``bottom_zero`` puts the lower limit at 0 (linear axes).
+    """
+    values = np.concatenate([np.asarray(a, dtype=float).ravel() for a in arrays]
+                            or [np.zeros(0)])
+    values = values[np.isfinite(values)]
+    if log:
+        values = values[values > 0]
+        if not values.size:
+            return 0.1, 10.0
+        lo, hi = math.log10(values.min()), math.log10(values.max())
+        if hi - lo < 1e-12:
+            lo, hi = lo - 1.0, hi + 1.0
+        span = hi - lo
+        return 10.0 ** (lo - margin * span), 10.0 ** (hi + margin * span)
+    if not values.size:
+        return (0.0 if bottom_zero else -1.0), 1.0
+    lo, hi = float(values.min()), float(values.max())
+    if hi - lo <= 1e-300:
+        lo, hi = lo - max(1.0, abs(lo)) * 0.5, hi + max(1.0, abs(hi)) * 0.5
+    span = hi - lo
+    lo, hi = lo - margin * span, hi + margin * span
+    return (0.0 if bottom_zero else lo), hi
+
+
+def axes_svg(spec: AxesSpec, layout: PanelLayout, style: PanelStyle, *, text_width,
+             legend_width_in: float = 0.0) -> str:
+    """
+    SVG text of a figure with one axes: shaded spans, filled bands, curves, dotted
+    markers, a legend to the right of the axes (``legend_width_in`` wide) and labels.
+    Curves are clipped to the axes.
+    """
+    w = layout.width_in * 72.0
+    h = layout.height_in * 72.0
+    x0 = layout.left_in * 72.0
+    x1 = w - (layout.right_in + legend_width_in) * 72.0
+    top = layout.top_in * 72.0
+    bottom = h - layout.bottom_in * 72.0
+    (xa, xb), (ya, yb) = spec.xlim, spec.ylim
+    fx = (lambda v: np.log10(v)) if spec.xlog else (lambda v: v)
+    fy = (lambda v: np.log10(v)) if spec.ylog else (lambda v: v)
+    xa_, xb_ = float(fx(xa)), float(fx(xb))
+    ya_, yb_ = float(fy(ya)), float(fy(yb))
+
+    def sx(v):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return x0 + (fx(np.asarray(v, dtype=float)) - xa_) * ((x1 - x0) / (xb_ - xa_))
+
+    def sy(v):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return bottom - (fy(np.asarray(v, dtype=float)) - ya_) * ((bottom - top)
+                                                                       / (yb_ - ya_))
+
+    if spec.xlog:
+        x_ticks = _log_ticks(xa, xb, spec.log_subs_x)
+        x_labels = [_log_tick_text(v) for v in x_ticks]
+    else:
+        x_ticks, step = _ticks(xa, xb, 9)
+        x_labels = [_tick_text(float(v), step) for v in x_ticks]
+    if spec.ylog:
+        y_ticks = _log_ticks(ya, yb, spec.log_subs_y)
+        y_labels = [_log_tick_text(v) for v in y_ticks]
+    else:
+        y_ticks, step = _ticks(ya, yb, 6)
+        y_labels = [_tick_text(float(v), step) for v in y_ticks]
+
+    out = [
+        '<?xml version="1.0" encoding="utf-8" standalone="no"?>\n',
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{_num(w)}pt" height="{_num(h)}pt" '
+        f'viewBox="0 0 {_num(w)} {_num(h)}" version="1.1" font-family="{_FONT}">\n',
+        f'<defs><clipPath id="axes-area"><rect x="{_num(x0)}" y="{_num(top)}" '
+        f'width="{_num(x1 - x0)}" height="{_num(bottom - top)}"/></clipPath></defs>\n',
+        f'<rect x="0" y="0" width="{_num(w)}" height="{_num(h)}" fill="#ffffff"/>\n',
+        '<g clip-path="url(#axes-area)">\n',
+    ]
+    for span in spec.spans:
+        a, b = float(sx(span.low)), float(sx(span.high))
+        out.append(f'<rect x="{_num(a)}" y="{_num(top)}" width="{_num(b - a)}" '
+                   f'height="{_num(bottom - top)}" fill="{span.colour}"/>\n')
+    grid = "".join(f"M{_num(sx(v))} {_num(top)}V{_num(bottom)}" for v in x_ticks)
+    grid += "".join(f"M{_num(x0)} {_num(sy(v))}H{_num(x1)}" for v in y_ticks)
+    out.append(f'<path d="{grid}" stroke="{style.grid}" stroke-width="{style.grid_width:g}" '
+               f'fill="none"/>\n')
+    for band in spec.bands:
+        xs, lo_, hi_ = sx(band.x), sy(band.lower), sy(band.upper)
+        ok = np.isfinite(xs) & np.isfinite(lo_) & np.isfinite(hi_)
+        edges = np.flatnonzero(np.diff(np.concatenate(([0], ok.astype(np.int8), [0]))))
+        for a, b in zip(edges[0::2].tolist(), edges[1::2].tolist()):
+            ring_x = np.concatenate((xs[a:b], xs[a:b][::-1]))
+            ring_y = np.concatenate((hi_[a:b], lo_[a:b][::-1]))
+            out.append(f'<path transform="scale(0.01)" d="{_polyline(ring_x, ring_y)}Z" '
+                       f'fill="{band.colour}" stroke="none"/>\n')
+    for curve in spec.curves:
+        opacity = (f' stroke-opacity="{curve.opacity:g}"' if curve.opacity < 1.0 else "")
+        # The path is drawn in hundredths of a point, and so is its dash pattern.
+        dash = "" if not curve.dash else (
+            ' stroke-dasharray="'
+            + ",".join(f"{100 * float(d):g}" for d in curve.dash.split(",")) + '"')
+        out.append(f'<path class="curve" transform="scale(0.01)" d='
+                   f'"{_polyline(sx(curve.x), sy(curve.y))}" stroke="{curve.colour}" '
+                   f'stroke-width="{100 * curve.width:g}"{opacity}{dash} '
+                   f'stroke-linejoin="round" fill="none"/>\n')
+    out.append("</g>\n")
+    # Frame, ticks and tick labels (x tick labels grouped as xtick_1, xtick_2, ...).
+    out.append(f'<rect x="{_num(x0)}" y="{_num(top)}" width="{_num(x1 - x0)}" '
+               f'height="{_num(bottom - top)}" stroke="{style.frame}" stroke-width='
+               f'"{style.frame_width:g}" fill="none"/>\n')
+    marks = "".join(f"M{_num(x0)} {_num(sy(v))}h{_num(-_TICK_PT)}" for v in y_ticks)
+    marks += "".join(f"M{_num(sx(v))} {_num(bottom)}v{_num(_TICK_PT)}" for v in x_ticks)
+    out.append(f'<path d="{marks}" stroke="{style.frame}" stroke-width='
+               f'"{style.tick_width:g}" fill="none"/>\n')
+    for k, (v, text) in enumerate(zip(x_ticks, x_labels), start=1):
+        out.append(f'<g id="xtick_{k}">' + _text(float(sx(v)), bottom + _TICK_PT
+                                                  + _TICK_PAD_PT, text, style.tick_size,
+                                                  anchor="middle", baseline="hanging")
+                   + "</g>\n")
+    for v, text in zip(y_ticks, y_labels):
+        out.append(_text(x0 - _TICK_PT - _TICK_PAD_PT, float(sy(v)), text, style.tick_size,
+                         anchor="end", baseline="central") + "\n")
+    # Dotted markers with their labels, inside the axes near the top.
+    for x, text in spec.markers:
+        px = float(sx(x))
+        if not (x0 - 0.01 <= px <= x1 + 0.01):
+            continue
+        out.append(f'<path d="M{_num(px)} {_num(top)}V{_num(bottom)}" stroke="#333333" '
+                   f'stroke-width="0.8" stroke-dasharray="0.8,1.32" fill="none"/>\n')
+        size = 7.5
+        length = text_width(text, size) + 2.0
+        ty = top + 0.02 * (bottom - top)
+        out.append(f'<rect x="{_num(px - size * 1.15)}" y="{_num(ty)}" '
+                   f'width="{_num(size * 1.1)}" height="{_num(length)}" fill="#ffffff" '
+                   f'fill-opacity="0.7"/>\n')
+        out.append(_text(px - 0.22 * size - 1.0, ty + 1.0, text, size, anchor="end",
+                         rotate=-90, colour="#333333") + "\n")
+    # Labels and title.
+    out.append(_text((x0 + x1) / 2.0, h - 0.1 * 72.0, spec.xlabel, style.label_size,
+                     anchor="middle") + "\n")
+    ylabel_x = 0.3 * 72.0 - 0.22 * style.label_size
+    out.append(_text(ylabel_x, (top + bottom) / 2.0, spec.ylabel, style.label_size,
+                     anchor="middle", rotate=-90) + "\n")
+    if spec.title:
+        out.append(_text(x0, top - 5.0, spec.title, style.title_size) + "\n")
+    if spec.legend:
+        out.append(_legend(spec.legend, x1, top, legend_width_in * 72.0, style))
+    out.append("</svg>\n")
+    return "".join(out)
+
+
+def _legend(entries, left: float, top: float, width: float, style: PanelStyle) -> str:
+    """A framed legend whose top-left corner is at (left, top). [pt]"""
+    size = style.tick_size  # legend.fontsize = tick label size in FIGURE_RC
+    pad = 0.4 * size
+    row = 1.5 * size
+    handle = 2.0 * size
+    height = 2 * pad + row * len(entries) - 0.5 * size
+    box_w = width - 0.2 * 72.0
+    out = [f'<g class="legend"><rect x="{_num(left + 0.1 * 72.0)}" y="{_num(top)}" '
+           f'width="{_num(box_w)}" height="{_num(height)}" fill="#ffffff" '
+           f'fill-opacity="0.85" stroke="#bbbbbb" stroke-width="0.8"/>\n']
+    x = left + 0.1 * 72.0 + pad
+    for i, entry in enumerate(entries):
+        cy = top + pad + i * row + 0.5 * size
+        if entry.patch:
+            out.append(f'<rect x="{_num(x)}" y="{_num(cy - 0.35 * size)}" '
+                       f'width="{_num(handle)}" height="{_num(0.7 * size)}" '
+                       f'fill="{entry.colour}"/>\n')
+        else:
+            dash = f' stroke-dasharray="{entry.dash}"' if entry.dash else ""
+            opacity = (f' stroke-opacity="{entry.opacity:g}"' if entry.opacity < 1.0
+                       else "")
+            out.append(f'<path d="M{_num(x)} {_num(cy)}h{_num(handle)}" stroke='
+                       f'"{entry.colour}" stroke-width="{entry.width:g}"{opacity}{dash} '
+                       f'fill="none"/>\n')
+        out.append(_text(x + handle + 0.8 * size, cy, entry.label, size,
+                         baseline="central") + "\n")
+    out.append("</g>\n")
     return "".join(out)

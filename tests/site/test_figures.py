@@ -376,7 +376,9 @@ def _history_paths(svg):
     for el in root.iter(f"{SVG_NS}path"):
         if el.get("class") == "history":
             assert el.get("transform") == "scale(0.01)"
-            runs = [np.array(run.replace("L", " ").split(), dtype=float).reshape(-1, 2) / 100.0
+            # Each run: "M x y" then relative steps "l dx dy dx dy ..." (SVG path syntax).
+            runs = [np.cumsum(np.array(run.replace("l", " ").split(), dtype=float)
+                              .reshape(-1, 2), axis=0) / 100.0
                     for run in el.get("d").split("M")[1:]]
             paths.append(runs)
     return paths
