@@ -55,7 +55,8 @@ are powers of two, so the actual steps per period lie between the setting and tw
 
 Speed (``benchmarks/spectrum_kernel.py``: 11,000 steps at 0.005 s, 500 periods, one
 core of a shared 2-core machine whose speed varies by up to ±40 % between runs): exact
-method with defaults 1,000-1,250 M executed oscillator-steps/s wall clock (best of 15),
+method with defaults 940-1,250 M executed oscillator-steps/s wall clock (best of 15;
+4 of 5 runs above 1,000 M on 2026-12-02),
 1.41 executed per record step; pass 1 alone runs about 2,000 M steps/s and pass 2 (the
 re-run segments, scalar) takes about a quarter of a kernel's time. Newmark methods about
 750-950 M/s. Per step pass 1 does the two recurrence rows (8 FMA-class operations) and
