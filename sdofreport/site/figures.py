@@ -41,7 +41,6 @@ from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
 from matplotlib.figure import Figure  # noqa: E402
 from matplotlib.font_manager import FontProperties  # noqa: E402
 from matplotlib.textpath import text_to_path  # noqa: E402
-from matplotlib.ticker import FuncFormatter, LogLocator, NullLocator  # noqa: E402
 
 from sdofreport.site.svg_panels import (  # noqa: E402
     AxesSpec,
@@ -381,33 +380,6 @@ def _render(draw, **layout):
         fig = _new_figure(**layout)
         draw(fig)
         return _to_svg(fig)
-
-
-def _align_ylabel(ax, left_in):
-    """Put the y label at a fixed distance from the figure edge, aligned across panels."""
-    axes_width_in = ax.get_position().width * FIGURE_WIDTH_IN
-    ax.yaxis.set_label_coords(-(left_in - 0.3) / axes_width_in, 0.5)
-
-
-def _plain_tick(value, _position=None):
-    """Tick text such as ``0.02``, ``1``, ``50`` (no mathtext powers; searchable)."""
-    return f"{value:g}".replace("-", "\u2212")
-
-
-def _log_axis(ax, which, subs=(1.0, 2.0, 5.0)):
-    """
-    Logarithmic x or y axis with labelled 1-2-5 ticks and no minor ticks: readable values for
-    engineers, and far fewer tick artists to draw than a minor grid.
-    """
-    if which == "x":
-        ax.set_xscale("log")
-        axis = ax.xaxis
-    else:
-        ax.set_yscale("log")
-        axis = ax.yaxis
-    axis.set_major_locator(LogLocator(base=10.0, subs=subs))
-    axis.set_major_formatter(FuncFormatter(_plain_tick))
-    axis.set_minor_locator(NullLocator())
 
 
 def _legend_outside(fig, ax, handles):
