@@ -110,6 +110,56 @@ def _text(x, y, text, size, *, anchor="start", baseline="auto", rotate=None,
             f"{escape(text)}</text>")
 
 
+def _svg_open(w: float, h: float, defs: str = "") -> list[str]:
+    """XML declaration, <svg> element of ``w`` × ``h`` pt, optional defs, white page."""
+    return [
+        '<?xml version="1.0" encoding="utf-8" standalone="no"?>\n',
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{_num(w)}pt" height="{_num(h)}pt" '
+        f'viewBox="0 0 {_num(w)} {_num(h)}" version="1.1" font-family="{_FONT}">\n',
+        defs,
+        f'<rect x="0" y="0" width="{_num(w)}" height="{_num(h)}" fill="#ffffff"/>\n',
+    ]
+
+
+def _grid(x_positions, y_positions, x0, x1, top, bottom, style) -> str:
+    """Light grid lines at the given screen positions. [pt]"""
+    grid = "".join(f"M{_num(x)} {_num(top)}V{_num(bottom)}" for x in x_positions)
+    grid += "".join(f"M{_num(x0)} {_num(y)}H{_num(x1)}" for y in y_positions)
+    return (f'<path d="{grid}" stroke="{style.grid}" stroke-width="{style.grid_width:g}" '
+            f'fill="none"/>\n')
+
+
+def _frame(x0, top, width, height, style) -> str:
+    """The axes' frame. [pt]"""
+    return (f'<rect x="{_num(x0)}" y="{_num(top)}" width="{_num(width)}" '
+            f'height="{_num(height)}" stroke="{style.frame}" stroke-width='
+            f'"{style.frame_width:g}" fill="none"/>\n')
+
+
+def _tick_marks(marks: str, style) -> str:
+    return (f'<path d="{marks}" stroke="{style.frame}" stroke-width='
+            f'"{style.tick_width:g}" fill="none"/>\n')
+
+
+def _ytick_label(x0, y, text, style) -> str:
+    return _text(x0 - _TICK_PT - _TICK_PAD_PT, y, text, style.tick_size, anchor="end",
+                 baseline="central") + "\n"
+
+
+def _ylabel(centre_y, text, style) -> str:
+    """
+    Y label rotated a quarter turn counter-clockwise: the glyphs' tops face the edge and
+    the descenders end 0.3 in from it, as in the matplotlib figures.
+    """
+    return _text(0.3 * 72.0 - 0.22 * style.label_size, centre_y, text, style.label_size,
+                 anchor="middle", rotate=-90) + "\n"
+
+
+def _xlabel(x0, x1, h, text, style) -> str:
+    return _text((x0 + x1) / 2.0, h - 0.1 * 72.0, text, style.label_size,
+                 anchor="middle") + "\n"
+
+
 def _polyline(xs: np.ndarray, ys: np.ndarray) -> str:
     """
     Path data through the finite points in hundredths of a point (the path is drawn
@@ -173,12 +223,7 @@ def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=
     def sx(t):
         return x0 + (np.asarray(t, dtype=float) - t_lo) * ((x1 - x0) / (t_hi - t_lo))
 
-    out = [
-        '<?xml version="1.0" encoding="utf-8" standalone="no"?>\n',
-        f'<svg xmlns="http://www.w3.org/2000/svg" width="{_num(w)}pt" height="{_num(h)}pt" '
-        f'viewBox="0 0 {_num(w)} {_num(h)}" version="1.1" font-family="{_FONT}">\n',
-        f'<rect x="0" y="0" width="{_num(w)}" height="{_num(h)}" fill="#ffffff"/>\n',
-    ]
+    out = _svg_open(w, h)
     if title:
         out.append(_text(w / 2.0, 0.08 * 72.0, title, style.figure_title_size,
                          anchor="middle", baseline="hanging") + "\n")
@@ -193,30 +238,22 @@ def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=
 
         out.append(f'<g class="panel" id="panel_{i + 1}">\n')
         # Grid, below everything else.
-        grid = "".join(f"M{_num(sx(t_))} {_num(top)}V{_num(bottom)}" for t_ in x_ticks)
-        grid += "".join(f"M{_num(x0)} {_num(sy(y_))}H{_num(x1)}" for y_ in y_ticks)
-        out.append(f'<path d="{grid}" stroke="{style.grid}" stroke-width='
-                   f'"{style.grid_width:g}" fill="none"/>\n')
+        out.append(_grid(sx(x_ticks), sy(y_ticks), x0, x1, top, bottom, style))
         # Zero line, the history, the frame.
         out.append(f'<path d="M{_num(x0)} {_num(sy(0.0))}H{_num(x1)}" stroke="#999999" '
                    f'stroke-width="0.5" fill="none"/>\n')
         out.append(f'<path class="history" transform="scale(0.01)" d='
                    f'"{_polyline(sx(td), sy(vd))}" stroke="{style.line}" stroke-width="70" '
                    f'stroke-linejoin="round" fill="none"/>\n')
-        out.append(f'<rect x="{_num(x0)}" y="{_num(top)}" width="{_num(x1 - x0)}" '
-                   f'height="{_num(axes_h)}" stroke="{style.frame}" stroke-width='
-                   f'"{style.frame_width:g}" fill="none"/>\n')
+        out.append(_frame(x0, top, x1 - x0, axes_h, style))
         # Ticks and their labels: y on every panel, x on the last one only.
         marks = "".join(f"M{_num(x0)} {_num(sy(y_))}h{_num(-_TICK_PT)}" for y_ in y_ticks)
         if i == n - 1:
             marks += "".join(f"M{_num(sx(t_))} {_num(bottom)}v{_num(_TICK_PT)}"
                              for t_ in x_ticks)
-        out.append(f'<path d="{marks}" stroke="{style.frame}" stroke-width='
-                   f'"{style.tick_width:g}" fill="none"/>\n')
+        out.append(_tick_marks(marks, style))
         for y_ in y_ticks:
-            out.append(_text(x0 - _TICK_PT - _TICK_PAD_PT, float(sy(y_)),
-                             _tick_text(float(y_), y_step), style.tick_size, anchor="end",
-                             baseline="central") + "\n")
+            out.append(_ytick_label(x0, float(sy(y_)), _tick_text(float(y_), y_step), style))
         if i == n - 1:
             for t_ in x_ticks:
                 out.append(_text(float(sx(t_)), bottom + _TICK_PT + _TICK_PAD_PT,
@@ -224,11 +261,7 @@ def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=
                                  anchor="middle", baseline="hanging") + "\n")
         # Panel label above its top-left corner; y label at a fixed distance from the edge.
         out.append(_text(x0, top - 0.02 * axes_h, label, style.title_size) + "\n")
-        # Rotated a quarter turn counter-clockwise, the glyphs' tops face the edge; the
-        # descenders end 0.3 in from it, as in the matplotlib figures.
-        ylabel_x = 0.3 * 72.0 - 0.22 * style.label_size
-        out.append(_text(ylabel_x, top + axes_h / 2.0, ylabel, style.label_size,
-                         anchor="middle", rotate=-90) + "\n")
+        out.append(_ylabel(top + axes_h / 2.0, ylabel, style))
         # The peak of |v|: a dot and its value in a white box.
         finite = np.isfinite(v) & np.isfinite(t)
         if finite.any():
@@ -247,8 +280,7 @@ def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=
             out.append(_text(bx + 1.2, by + height / 2.0, text, style.peak_size,
                              baseline="central") + "\n")
         out.append("</g>\n")
-    out.append(_text((x0 + x1) / 2.0, h - 0.1 * 72.0, xlabel, style.label_size,
-                     anchor="middle") + "\n")
+    out.append(_xlabel(x0, x1, h, xlabel, style))
     out.append("</svg>\n")
     return "".join(out)
 
@@ -404,23 +436,15 @@ def axes_svg(spec: AxesSpec, layout: PanelLayout, style: PanelStyle, *, text_wid
         y_ticks, step = _ticks(ya, yb, 6)
         y_labels = [_tick_text(float(v), step) for v in y_ticks]
 
-    out = [
-        '<?xml version="1.0" encoding="utf-8" standalone="no"?>\n',
-        f'<svg xmlns="http://www.w3.org/2000/svg" width="{_num(w)}pt" height="{_num(h)}pt" '
-        f'viewBox="0 0 {_num(w)} {_num(h)}" version="1.1" font-family="{_FONT}">\n',
-        f'<defs><clipPath id="axes-area"><rect x="{_num(x0)}" y="{_num(top)}" '
-        f'width="{_num(x1 - x0)}" height="{_num(bottom - top)}"/></clipPath></defs>\n',
-        f'<rect x="0" y="0" width="{_num(w)}" height="{_num(h)}" fill="#ffffff"/>\n',
-        '<g clip-path="url(#axes-area)">\n',
-    ]
+    out = _svg_open(w, h, f'<defs><clipPath id="axes-area"><rect x="{_num(x0)}" '
+                          f'y="{_num(top)}" width="{_num(x1 - x0)}" '
+                          f'height="{_num(bottom - top)}"/></clipPath></defs>\n')
+    out.append('<g clip-path="url(#axes-area)">\n')
     for span in spec.spans:
         a, b = float(sx(span.low)), float(sx(span.high))
         out.append(f'<rect x="{_num(a)}" y="{_num(top)}" width="{_num(b - a)}" '
                    f'height="{_num(bottom - top)}" fill="{span.colour}"/>\n')
-    grid = "".join(f"M{_num(sx(v))} {_num(top)}V{_num(bottom)}" for v in x_ticks)
-    grid += "".join(f"M{_num(x0)} {_num(sy(v))}H{_num(x1)}" for v in y_ticks)
-    out.append(f'<path d="{grid}" stroke="{style.grid}" stroke-width="{style.grid_width:g}" '
-               f'fill="none"/>\n')
+    out.append(_grid(sx(x_ticks), sy(y_ticks), x0, x1, top, bottom, style))
     for band in spec.bands:
         xs, lo_, hi_ = sx(band.x), sy(band.lower), sy(band.upper)
         ok = np.isfinite(xs) & np.isfinite(lo_) & np.isfinite(hi_)
@@ -442,21 +466,17 @@ def axes_svg(spec: AxesSpec, layout: PanelLayout, style: PanelStyle, *, text_wid
                    f'stroke-linejoin="round" fill="none"/>\n')
     out.append("</g>\n")
     # Frame, ticks and tick labels (x tick labels grouped as xtick_1, xtick_2, ...).
-    out.append(f'<rect x="{_num(x0)}" y="{_num(top)}" width="{_num(x1 - x0)}" '
-               f'height="{_num(bottom - top)}" stroke="{style.frame}" stroke-width='
-               f'"{style.frame_width:g}" fill="none"/>\n')
+    out.append(_frame(x0, top, x1 - x0, bottom - top, style))
     marks = "".join(f"M{_num(x0)} {_num(sy(v))}h{_num(-_TICK_PT)}" for v in y_ticks)
     marks += "".join(f"M{_num(sx(v))} {_num(bottom)}v{_num(_TICK_PT)}" for v in x_ticks)
-    out.append(f'<path d="{marks}" stroke="{style.frame}" stroke-width='
-               f'"{style.tick_width:g}" fill="none"/>\n')
+    out.append(_tick_marks(marks, style))
     for k, (v, text) in enumerate(zip(x_ticks, x_labels), start=1):
         out.append(f'<g id="xtick_{k}">' + _text(float(sx(v)), bottom + _TICK_PT
                                                   + _TICK_PAD_PT, text, style.tick_size,
                                                   anchor="middle", baseline="hanging")
                    + "</g>\n")
     for v, text in zip(y_ticks, y_labels):
-        out.append(_text(x0 - _TICK_PT - _TICK_PAD_PT, float(sy(v)), text, style.tick_size,
-                         anchor="end", baseline="central") + "\n")
+        out.append(_ytick_label(x0, float(sy(v)), text, style))
     # Dotted markers with their labels, inside the axes near the top.
     for x, text in spec.markers:
         px = float(sx(x))
@@ -473,11 +493,8 @@ def axes_svg(spec: AxesSpec, layout: PanelLayout, style: PanelStyle, *, text_wid
         out.append(_text(px - 0.22 * size - 1.0, ty + 1.0, text, size, anchor="end",
                          rotate=-90, colour="#333333") + "\n")
     # Labels and title.
-    out.append(_text((x0 + x1) / 2.0, h - 0.1 * 72.0, spec.xlabel, style.label_size,
-                     anchor="middle") + "\n")
-    ylabel_x = 0.3 * 72.0 - 0.22 * style.label_size
-    out.append(_text(ylabel_x, (top + bottom) / 2.0, spec.ylabel, style.label_size,
-                     anchor="middle", rotate=-90) + "\n")
+    out.append(_xlabel(x0, x1, h, spec.xlabel, style))
+    out.append(_ylabel((top + bottom) / 2.0, spec.ylabel, style))
     if spec.title:
         out.append(_text(x0, top - 5.0, spec.title, style.title_size) + "\n")
     if spec.legend:
