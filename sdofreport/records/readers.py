@@ -285,6 +285,23 @@ def _two_columns_fast(rows) -> np.ndarray | None:
     return table
 
 
+def _two_columns_checked(rows, path) -> tuple[list[float], list[float]]:
+    """Times and values of ``rows`` read line by line; the first problem is an error
+    naming its line."""
+    times, values = [], []
+    for number, text in rows:
+        tokens = _tokens(text)
+        if len(tokens) != 2:
+            hint = ""
+            if len(tokens) == 4 and ";" in text:
+                hint = " (decimal commas are not supported; use points)"
+            raise _fail(path, number, f"expected two numbers (time and acceleration), found "
+                        f"{len(tokens)} item{'s' if len(tokens) != 1 else ''} in {text!r}{hint}")
+        times.append(_to_float(tokens[0], path, number))
+        values.append(_to_float(tokens[1], path, number))
+    return times, values
+
+
 def _parse_two_column(lines, path, dt_given):
     rows = _data_lines(lines)
     history = []
@@ -296,21 +313,9 @@ def _parse_two_column(lines, path, dt_given):
     fast = _two_columns_fast(rows)
     if fast is not None:
         times, values = fast[:, 0].tolist(), fast[:, 1]
-        numbers = [number for number, _ in rows]
-        rows = ()
     else:
-        times, values, numbers = [], [], []
-    for number, text in rows:
-        tokens = _tokens(text)
-        if len(tokens) != 2:
-            hint = ""
-            if len(tokens) == 4 and ";" in text:
-                hint = " (decimal commas are not supported; use points)"
-            raise _fail(path, number, f"expected two numbers (time and acceleration), found "
-                        f"{len(tokens)} item{'s' if len(tokens) != 1 else ''} in {text!r}{hint}")
-        times.append(_to_float(tokens[0], path, number))
-        values.append(_to_float(tokens[1], path, number))
-        numbers.append(number)
+        times, values = _two_columns_checked(rows, path)
+    numbers = [number for number, _ in rows]
     _check_count(path, len(values))
     time = np.array(times)
     with np.errstate(all="ignore"):
