@@ -2,7 +2,8 @@
 
 The records here are synthetic (Kanai-Tajimi filtered noise with a Saragoni-Hart
 envelope, fixed seeds): inputs for the tests, never expected values. Expected values
-come from independent references named in each test.
+come from independent references named in each test (published standard, closed form,
+reference library, common practice or memory).
 """
 
 from __future__ import annotations
