@@ -76,7 +76,7 @@ _INHERITED: list[FigureSpec] = []
 
 def _draw_inherited(bounds: tuple[int, int]) -> list[str]:
     """SVG texts of figures ``bounds[0]:bounds[1]`` of the inherited list."""
-    return [draw_figure(spec) for spec in _INHERITED[bounds[0]:bounds[1]]]
+    return _draw_chunk(_INHERITED[bounds[0]:bounds[1]])
 
 
 def _draw_in_workers(todo: list[FigureSpec], jobs: int) -> list[str]:
