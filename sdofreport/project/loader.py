@@ -35,7 +35,7 @@ from sdofreport.project.model import (
     RecordSpec,
     SystemSpec,
 )
-from sdofreport.project.quantities import QuantityError, parse_quantity
+from sdofreport.project.quantities import QuantityError, parse_quantity, save_memo
 from sdofreport.core.units import G
 from sdofreport.project.schema import (
     DESIGN_SPECTRUM_KEYS,
@@ -786,6 +786,7 @@ def load_project(path) -> Project:
                               f"synthetic (seed {synthetic.seed + i})", "synthetic", "g",
                               synthetic.dt_s, 1.0, processing)
                    for i in range(synthetic.count)]
+    save_memo()  # unit strings pint converted, so the next read need not import it
     if problems.items:
         raise ProjectError(format_problems(shown, problems.items))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,

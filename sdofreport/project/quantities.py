@@ -3,13 +3,22 @@
 Strings are parsed by pint, a maintained units library. pint reads a bare ``g`` as the
 gram, so where an acceleration is expected a standalone ``g`` is read as standard gravity
 (``g_0`` = 9.80665 m/s², ISO 80000-3).
+
+Importing pint and building its registry costs about half a second, more than the rest
+of reading a project; so every string pint has converted is remembered in a small
+per-user file (:func:`save_memo`), keyed by the versions of pint and of this package, and
+a project whose strings were all seen before is read without importing pint. Values in
+the memo are pint's own results, so they are the same either way.
 """
 
 from __future__ import annotations
 
 import functools
+import json
 import math
+import os
 import re
+import tempfile
 
 #: Dimensions a project value may have: name -> (pint dimensionality text, SI unit).
 DIMENSIONS: dict[str, tuple[str, str]] = {
@@ -40,6 +49,52 @@ def _registry():
         return pint.UnitRegistry()
 
 
+#: Memo of converted strings, "dimension|text" -> SI value (see the module docstring).
+_MEMO: dict[str, float] | None = None
+_MEMO_NEW = False
+
+
+@functools.lru_cache(maxsize=1)
+def _memo_path() -> str:
+    from importlib.metadata import version
+
+    from sdofreport import __version__
+    from sdofreport._cachedir import user_cache_dir
+
+    return os.path.join(user_cache_dir("pint"),
+                        f"quantities-{version('pint')}-{__version__}.json")
+
+
+def _memo() -> dict[str, float]:
+    global _MEMO
+    if _MEMO is None:
+        try:
+            with open(_memo_path(), encoding="utf-8") as handle:
+                loaded = json.load(handle)
+            _MEMO = {key: float(value) for key, value in loaded.items()
+                     if isinstance(key, str) and isinstance(value, float)
+                     and math.isfinite(value)}
+        except (OSError, ValueError, AttributeError):  # absent or damaged: start afresh
+            _MEMO = {}
+    return _MEMO
+
+
+def save_memo() -> None:
+    """Store the strings converted since the memo was read (atomic; failures ignored)."""
+    global _MEMO_NEW
+    if not _MEMO_NEW or _MEMO is None:
+        return
+    _MEMO_NEW = False
+    try:
+        folder = os.path.dirname(_memo_path())
+        fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
+        with os.fdopen(fd, "w", encoding="utf-8") as handle:
+            json.dump(_MEMO, handle, sort_keys=True)
+        os.replace(tmp, _memo_path())
+    except OSError:  # a read-only cache must never stop a build
+        pass
+
+
 class QuantityError(ValueError):
     """A value that is not a number or a quantity of the expected dimension."""
 
@@ -66,7 +121,7 @@ def parse_quantity(value: object, dimension: str) -> float:
     QuantityError
         With a message saying what was expected and what was found.
     """
-    pint_dim, si_unit = DIMENSIONS[dimension]
+    si_unit = DIMENSIONS[dimension][1]
     if isinstance(value, bool):
         raise QuantityError(f"expected a {dimension} (number in {si_unit} or text with "
                             f"units), found {value!r}")
@@ -90,6 +145,20 @@ def parse_quantity(value: object, dimension: str) -> float:
         return number
     if dimension == "acceleration":
         text = _BARE_G.sub("g_0", text)
+    key = f"{dimension}|{text}"
+    remembered = _memo().get(key)
+    if remembered is not None:
+        return remembered
+    number = _convert(text, value, dimension)
+    global _MEMO_NEW
+    _memo()[key], _MEMO_NEW = number, True
+    return number
+
+
+def _convert(text: str, value: str, dimension: str) -> float:
+    """pint's conversion of ``text`` (``value`` as written) to the SI unit of
+    ``dimension``."""
+    pint_dim = DIMENSIONS[dimension][0]
     ureg = _registry()
     try:
         quantity = ureg.Quantity(text)
