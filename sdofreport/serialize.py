@@ -21,11 +21,24 @@ def finite_or_none(value: float) -> float | None:
 
 
 def array_to_list(values: np.ndarray, scale: float = 1.0) -> list:
-    """Nested lists of floats from an array, each value multiplied by ``scale``."""
+    """Nested lists of floats from an array, each value multiplied by ``scale``.
+
+    NaN and infinities become ``None`` (see :func:`finite_or_none`).
+    """
     arr = np.asarray(values, dtype=float) * scale
-    return [finite_or_none(v) for v in arr] if arr.ndim == 1 else [
-        array_to_list(row) for row in arr
-    ]
+    if arr.ndim == 0 or arr.dtype != np.float64:  # element by element, as it always was
+        return [finite_or_none(v) for v in arr] if arr.ndim == 1 else [
+            array_to_list(row) for row in arr
+        ]
+    nested = arr.tolist()
+    return nested if np.isfinite(arr).all() else _finite_or_none_nested(nested)
+
+
+def _finite_or_none_nested(nested: list) -> list:
+    """``nested`` (lists of floats from ``ndarray.tolist``) with non-finite floats ``None``."""
+    if nested and isinstance(nested[0], list):
+        return [_finite_or_none_nested(row) for row in nested]
+    return [v if math.isfinite(v) else None for v in nested]
 
 
 def record_summary(record: Any) -> dict:
@@ -78,7 +91,41 @@ SPECTRUM_CSV_COLUMNS = (
 
 
 def spectrum_csv_rows(spectrum: Any, prefix: tuple = ()) -> list[list]:
-    """Rows ``[*prefix, damping, period_s, sd_m, sv_m_s, psv_m_s, psa_g, sa_g]``."""
+    """Rows ``[*prefix, damping, period_s, sd_m, sv_m_s, psv_m_s, psa_g, sa_g]``.
+
+    One row per (damping, period), damping outer; every number a Python float. Spectra
+    of float64 arrays with the documented shapes are done as whole arrays (the values
+    are the same: ``array * scale`` rounds each product as ``array[i, j] * scale``
+    does); anything else goes value by value.
+    """
+    block = spectrum_csv_block(spectrum)
+    if block is None:
+        return _spectrum_csv_rows_by_value(spectrum, prefix)
+    rows = block.tolist()
+    return [[*prefix, *row] for row in rows] if prefix else rows
+
+
+def spectrum_csv_block(spectrum: Any) -> np.ndarray | None:
+    """The CSV numbers as one float64 array ``(n_damping * n_periods, 7)``, or ``None``."""
+    damping, periods = spectrum.damping, spectrum.periods_s
+    columns = [getattr(spectrum, attr) for _, attr, _ in SPECTRUM_CSV_COLUMNS]
+    arrays = [damping, periods, *columns]
+    if not all(type(a) is np.ndarray and a.dtype == np.float64 for a in arrays):
+        return None
+    if damping.ndim != 1 or periods.ndim != 1:
+        return None
+    shape = (damping.size, periods.size)
+    if any(c.shape != shape for c in columns):
+        return None
+    block = np.empty((damping.size * periods.size, 2 + len(columns)), dtype=np.float64)
+    block[:, 0] = np.repeat(damping, periods.size)
+    block[:, 1] = np.tile(periods, damping.size)
+    for k, (column, (_, _, scale)) in enumerate(zip(columns, SPECTRUM_CSV_COLUMNS)):
+        block[:, 2 + k] = (column * scale).reshape(-1)
+    return block
+
+
+def _spectrum_csv_rows_by_value(spectrum: Any, prefix: tuple) -> list[list]:
     rows = []
     for i, zeta in enumerate(spectrum.damping):
         for j, period in enumerate(spectrum.periods_s):
