@@ -8,15 +8,23 @@ reference library, common practice or memory).
 
 from __future__ import annotations
 
+import os
 import textwrap
 from pathlib import Path
 
 import numpy as np
 import pytest
+from hypothesis import settings
 
 from sdofreport.core.stochastic import kanai_tajimi_accelerogram
 from sdofreport.core.units import G
 from sdofreport.records.writers import write_headed, write_two_column
+
+# Property tests draw the same examples on every run, so a CI run is reproducible; set
+# HYPOTHESIS_PROFILE=explore to draw fresh ones locally.
+settings.register_profile("repeatable", derandomize=True)
+settings.register_profile("explore", derandomize=False)
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "repeatable"))
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "site_examples" / "harbourview_cold_store"
 

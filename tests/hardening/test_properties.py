@@ -261,8 +261,15 @@ def mutated_documents(draw):
         value = draw(st.one_of(_PLAUSIBLE, _values))
         node = document
         for part in place.split("."):
-            node = node[int(part)] if part.isdigit() else node.setdefault(part, {})
-        node[key] = value
+            if isinstance(node, list) and part.isdigit() and int(part) < len(node):
+                node = node[int(part)]
+            elif isinstance(node, dict):
+                node = node.setdefault(part, {})
+            else:  # an earlier mutation replaced this table by a value: nothing to set
+                node = None
+                break
+        if isinstance(node, dict):
+            node[key] = value
     return document
 
 
