@@ -42,10 +42,10 @@ log = logging.getLogger("sdofreport.engine")
 
 Progress = Callable[[int, int, str], None]
 
-#: A phase whose jobs would take less than this in one process runs in it: starting
-#: workers and moving histories between processes would cost more (measured on the
-#: reference machine, where a 100-record study integrates in about a second).
-MIN_POOL_SECONDS = 1.0
+#: Seconds it costs to start a local pool (fork two workers and stop them; measured on
+#: the 2-core reference machine): a phase goes to workers only when they would save more
+#: than this plus the time to move the outputs back (see sdofreport.executors.execute).
+MIN_POOL_SECONDS = 0.1
 
 VERDICT_WITHIN = "within limit"
 VERDICT_EXCEEDS = "exceeds limit"

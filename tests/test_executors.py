@@ -17,6 +17,7 @@ import subprocess
 import time
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 from sdofreport.engine import run_project
@@ -58,11 +59,27 @@ def _pid(_):
 
 def test_short_work_stays_in_this_process_long_work_goes_to_the_pool():
     jobs = [(f"job {i}", _pid, (i,)) for i in range(8)]
-    # The first job takes microseconds: eight of them are far below 60 s, so no pool.
+    # A job takes microseconds: the workers would save far less than 60 s, so no pool.
     assert set(_collect(jobs, workers=2, min_pool_seconds=60.0)) == {os.getpid()}
-    # With a threshold of 1e-12 s the estimate always exceeds it: the rest go to workers.
-    pids = _collect(jobs, workers=2, min_pool_seconds=1e-12)
-    assert pids[0] == os.getpid() and os.getpid() not in pids[1:]
+    # With a threshold of 1e-12 s and free transfers any saving exceeds the cost: the
+    # first two jobs (warm-up, then timed) run here, the rest go to workers.
+    pids = _collect(jobs, workers=2, min_pool_seconds=1e-12, transfer_seconds_per_byte=0.0)
+    assert pids[:2] == [os.getpid()] * 2 and os.getpid() not in pids[2:]
+
+
+def _history(n):
+    return os.getpid(), np.zeros(n)
+
+
+def test_long_outputs_of_short_jobs_stay_in_this_process():
+    jobs = [(f"job {i}", _history, (200_000,)) for i in range(8)]
+    # 1.6 MB per output at the reference transfer cost outweighs what two workers save
+    # on a job of microseconds.
+    outputs = _collect(jobs, workers=2, min_pool_seconds=1e-12)
+    assert {pid for pid, _ in outputs} == {os.getpid()}
+    # Free transfers: the same jobs go to workers.
+    outputs = _collect(jobs, workers=2, min_pool_seconds=1e-12, transfer_seconds_per_byte=0)
+    assert os.getpid() not in {pid for pid, _ in outputs[2:]}
 
 
 def test_dying_worker_is_retried(tmp_path):
