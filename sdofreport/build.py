@@ -1,4 +1,4 @@
-"""``sdofreport build``: project file → results → site, in that order (gather, then write)."""
+"""``sdofreport build``: project file → results → site (staged beside the output, swapped in)."""
 
 from __future__ import annotations
 
@@ -11,7 +11,8 @@ from pathlib import Path
 from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir, run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
-from sdofreport.site.render import gather_site, recover_site, write_site
+from sdofreport.site.render import gather_site, prepare_output, recover_site
+from sdofreport.site.tree import StagedTree
 
 log = logging.getLogger("sdofreport.build")
 
@@ -52,7 +53,8 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
                dask_local: int | None = None,
                compare_to: str | os.PathLike | None = None) -> BuildOutcome:
     """
-    Validate the project, compute every result, render every page, then write the site.
+    Validate the project, compute every result, render every page into a staged tree,
+    then swap it in for ``output``.
 
     Raises :class:`~sdofreport.errors.SdofreportError` subclasses for bad input; in that
     case nothing is written and any previous site at ``output`` is left intact.
@@ -66,6 +68,7 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
         old = load_run(compare_to).results
     project = load_project(project_file)
     _check_inside(project, allow_outside)
+    prepare_output(output)  # a folder that cannot take the site fails before any work
     results = run_project(project, jobs=jobs, cache_dir=cache_dir, use_cache=use_cache,
                           progress=progress, scheduler=scheduler, dask_local=dask_local)
     render_started = time.perf_counter()
@@ -78,13 +81,15 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
 
         def extra(document, fingerprint):
             return revision_page(old, document, fingerprint=fingerprint)
-    files = gather_site(results, jobs=jobs or os.cpu_count() or 1, figure_cache=figure_cache,
-                        extra_pages=extra)
-    write_started = time.perf_counter()
-    path = write_site(files, output)
+    with StagedTree(output) as tree:
+        count = gather_site(results, tree, jobs=jobs or os.cpu_count() or 1,
+                            figure_cache=figure_cache, extra_pages=extra)
+        write_started = time.perf_counter()
+        path = tree.commit()
     finished = time.perf_counter()
+    # Pages, tables and figures are written as they are rendered; "write" is the swap.
     results.timings_s.update({"render_s": write_started - render_started,
                               "write_s": finished - write_started,
                               "total_s": finished - started})
-    log.info("built %d files in %.2f s", len(files), finished - started)
-    return BuildOutcome(path, results, len(files), finished - started)
+    log.info("built %d files in %.2f s", count, finished - started)
+    return BuildOutcome(path, results, count, finished - started)

@@ -29,7 +29,8 @@ from sdofreport.archive._sitefiles import (
     safe_name,
 )
 from sdofreport.archive.verify import verify_files
-from sdofreport.site.render import MANIFEST_NAME, write_tree
+from sdofreport.site.render import MANIFEST_NAME
+from sdofreport.site.tree import write_tree
 
 REGISTER_SCHEMA = "sdofreport/register@1"
 #: Marker (and machine-readable table) of a register folder we built.

@@ -97,11 +97,8 @@ def _log_stats(stack: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
 class SiteContext:
     """Builds every page's context and figure list for one :class:`Results`."""
 
-    def __init__(self, results: Results, fingerprint: str = "",
-                 revision: bool = False) -> None:
+    def __init__(self, results: Results) -> None:
         self.results = results
-        self.fingerprint = fingerprint
-        self.revision = revision
         self.project = results.project
         self.display = Display(self.project.info.display_units)
         self.figures: list[FigureSpec] = []
@@ -123,8 +120,6 @@ class SiteContext:
             "nav_systems": [{"id": s.id, "file": page_name(s.id)}
                             for s in self.project.systems],
             "cautions": {"short": CAUTION_SHORT, "full": CAUTION_FULL},
-            "fingerprint": self.fingerprint,
-            "has_revision": self.revision,
         }
 
     def _design(self, periods) -> tuple | None:

@@ -1,12 +1,12 @@
-"""Gather every page and figure, then write the site into a fresh folder and swap it in.
+"""Render every page, table and figure of the site into a staged tree, manifest last.
 
-Nothing is written to the output until everything has been rendered in memory and
-written to a temporary sibling folder; a failure leaves any previous site untouched.
+The tree is a temporary sibling of the output folder (:mod:`sdofreport.site.tree`),
+swapped in only once complete; nothing is written into the output itself, so a failure
+leaves any previous site untouched.
 """
 
 from __future__ import annotations
 
-import functools
 import hashlib
 import json
 import logging
@@ -22,8 +22,11 @@ import numpy as np
 from sdofreport import __version__
 from sdofreport.engine import Results
 from sdofreport.errors import BuildError
+from sdofreport.jsontext import json_text as _json_text
 from sdofreport.results_json import peaks_csv, results_document, spectra_csv
-from sdofreport.site.context import FigureSpec, SiteContext, dependency_versions
+from sdofreport.site.context import SiteContext, dependency_versions
+from sdofreport.site.drawing import FigureWriter
+from sdofreport.site.tree import RETIRED_PREFIX, STAGING_PREFIX, StagedTree
 
 log = logging.getLogger("sdofreport.site")
 
@@ -48,143 +51,6 @@ def _environment() -> jinja2.Environment:
         loader=jinja2.FileSystemLoader(str(template_dir())),
         autoescape=True, undefined=jinja2.StrictUndefined,
         trim_blocks=False, lstrip_blocks=False, keep_trailing_newline=True)
-
-
-#: Figure functions that write SVG directly (milliseconds each, not tenths of a second).
-DIRECT_SVG_FIGURES = frozenset({"histories_figure", "spectra_figure", "fourier_figure"})
-#: Figures per task sent to a worker: small enough to balance the load, large enough
-#: that sending tasks costs little beside drawing them.
-FIGURE_CHUNK = 8
-
-
-def draw_figure(spec: FigureSpec) -> str:
-    """SVG text of one figure (a top-level function so it can run in a worker)."""
-    from sdofreport.site import figures
-
-    return getattr(figures, spec.function)(**spec.kwargs)
-
-
-def _draw_chunk(specs: list[FigureSpec]) -> list[str]:
-    """SVG texts of a few figures, in order (one task for a worker)."""
-    return [draw_figure(spec) for spec in specs]
-
-
-# The figure list a forked worker inherits from the build process, so that only index
-# ranges travel to it, not the histories behind each figure. Set only while drawing.
-_INHERITED: list[FigureSpec] = []
-
-
-def _draw_inherited(bounds: tuple[int, int]) -> list[str]:
-    """SVG texts of figures ``bounds[0]:bounds[1]`` of the inherited list."""
-    return _draw_chunk(_INHERITED[bounds[0]:bounds[1]])
-
-
-def _draw_in_workers(todo: list[FigureSpec], jobs: int) -> list[str]:
-    """
-    SVG texts of ``todo`` (in its order), drawn by ``jobs`` worker processes.
-
-    Matplotlib figures (tenths of a second each) go first, then the direct-SVG ones
-    (milliseconds), in chunks small enough that the workers finish together. Where
-    processes are forked, workers read the figures from the memory they inherit and only
-    index ranges are sent; elsewhere the figures themselves are sent. This process only
-    feeds the workers: drawing here too would hold the interpreter lock the executor's
-    feeder thread needs, and starve them (measured). Who draws a figure does not change
-    its bytes.
-    """
-    import multiprocessing
-    from concurrent.futures import ProcessPoolExecutor
-
-    order = sorted(range(len(todo)), key=lambda i: todo[i].function in DIRECT_SVG_FIGURES)
-    ordered = [todo[i] for i in order]
-    bounds = [(i, min(i + FIGURE_CHUNK, len(ordered)))
-              for i in range(0, len(ordered), FIGURE_CHUNK)]
-    fork = os.name == "posix" and "fork" in multiprocessing.get_all_start_methods()
-    context = multiprocessing.get_context("fork" if fork else None)
-    global _INHERITED
-    try:
-        if fork:
-            _INHERITED = ordered
-        with ProcessPoolExecutor(max_workers=jobs, mp_context=context) as pool:
-            if fork:
-                parts = pool.map(_draw_inherited, bounds)
-            else:
-                parts = pool.map(_draw_chunk, [ordered[a:b] for a, b in bounds])
-            texts = [text for part in parts for text in part]
-    finally:
-        _INHERITED = []
-    drawn = [""] * len(todo)
-    for position, index in enumerate(order):
-        drawn[index] = texts[position]
-    return drawn
-
-
-def _feed(digest, value) -> None:
-    """Feed a figure argument into a hash: arrays by dtype, shape and bytes."""
-    if isinstance(value, np.ndarray):
-        array = np.ascontiguousarray(value)
-        digest.update(f"a{array.dtype.str}{array.shape}".encode())
-        digest.update(array.tobytes())
-    elif isinstance(value, dict):
-        digest.update(b"{")
-        for key in sorted(value):
-            digest.update(repr(key).encode())
-            _feed(digest, value[key])
-        digest.update(b"}")
-    elif isinstance(value, (list, tuple)):
-        digest.update(b"[")
-        for item in value:
-            _feed(digest, item)
-        digest.update(b"]")
-    else:
-        digest.update(repr(value).encode())
-
-
-@functools.lru_cache(maxsize=1)
-def _matplotlib_version() -> str:
-    """Installed matplotlib version, read from its metadata (importing it costs ~0.4 s,
-    which a build whose figures all come from the cache need not pay)."""
-    from importlib.metadata import version
-
-    return version("matplotlib")
-
-
-def figure_key(spec: FigureSpec) -> str:
-    """Content hash of a figure: function, arguments and the versions that draw it."""
-    digest = hashlib.sha256(f"figure|{__version__}|{_matplotlib_version()}|"
-                            f"{spec.function}".encode())
-    _feed(digest, spec.kwargs)
-    return digest.hexdigest()
-
-
-def draw_figures(specs: list[FigureSpec], jobs: int = 1, cache=None) -> dict[str, str]:
-    """
-    Every figure's SVG text by site path, drawn in ``jobs`` processes.
-
-    With a ``cache`` (:class:`sdofreport.engine.ResultCache`), figures whose inputs did
-    not change are taken from it instead of being drawn again.
-    """
-    texts: dict[str, str] = {}
-    keys = {spec.path: figure_key(spec) for spec in specs} if cache is not None else {}
-    todo = []
-    for spec in specs:
-        cached = cache.get(keys[spec.path]) if cache is not None else None
-        if isinstance(cached, str):
-            texts[spec.path] = cached
-        else:
-            todo.append(spec)
-    if jobs <= 1 or len(todo) < 2 * FIGURE_CHUNK:
-        drawn = [draw_figure(spec) for spec in todo]
-    else:
-        drawn = _draw_in_workers(todo, jobs)
-    for spec, text in zip(todo, drawn):
-        texts[spec.path] = text
-        if cache is not None:
-            cache.put(keys[spec.path], text)
-    return {spec.path: texts[spec.path] for spec in specs}
-
-
-def _json_text(document: dict) -> str:
-    return json.dumps(document, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
 
 
 def _input_files(results: Results) -> dict[str, Path]:
@@ -233,41 +99,49 @@ def is_site(folder: Path) -> bool:
     return isinstance(manifest, dict) and manifest.get("schema") == MANIFEST_SCHEMA
 
 
-def gather_site(results: Results, *, jobs: int = 1, figure_cache=None,
-                extra_pages=None) -> dict[str, bytes]:
+def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cache=None,
+                extra_pages=None) -> int:
     """
-    Every file of the site (path → bytes), manifest included, computed in memory.
+    Write every file of the site into ``tree``, the manifest last; the number of files.
 
-    ``extra_pages(results_document, fingerprint) -> dict[path, bytes]`` may add pages
-    (the revision page of ``--compare-to``); they are linked from the summary page's
-    navigation when one of them is ``revision.html``.
+    Figures are drawn (by ``jobs`` worker processes when worth it) while this process
+    renders the pages and tables, and each goes straight into the tree. With a
+    ``figure_cache`` (:class:`sdofreport.engine.ResultCache`), figures whose inputs did not
+    change are taken from it. ``extra_pages(results_document, fingerprint) -> dict[path,
+    bytes]`` may add pages (the revision page of ``--compare-to``); they are linked from
+    the summary page's navigation when one of them is ``revision.html``.
     """
-    files: dict[str, bytes] = {}
-    document = results_document(results)
-    files["data/results.json"] = _json_text(document).encode("utf-8")
-    for site_path, source in _input_files(results).items():
-        files[site_path] = source.read_bytes()
-    run_fingerprint = manifest_document(results, files)["fingerprint"]
-    extra = extra_pages(document, run_fingerprint) if extra_pages else {}
-    context = SiteContext(results, fingerprint=run_fingerprint,
-                          revision="revision.html" in extra)
+    hashes: dict[str, str] = {}
+
+    def put(path: str, data: bytes) -> None:
+        hashes[path] = tree.write(path, data)
+
+    context = SiteContext(results)
     pages = context.pages()
-    env = _environment()
-    for page in pages:
-        try:
-            html = env.get_template(page.template).render(**page.context)
-        except jinja2.TemplateError as exc:
-            raise BuildError(f"page {page.path} could not be rendered: {exc}") from None
-        files[page.path] = html.encode("utf-8")
-    for path, svg in draw_figures(context.figures, jobs, figure_cache).items():
-        files[path] = svg.encode("utf-8")
-    files["static/style.css"] = (template_dir() / "static" / "style.css").read_bytes()
-    files.update(extra)
-    files.update(_synthetic_files(results))
-    files["data/spectra.csv"] = spectra_csv(results).encode("utf-8")
-    files["data/peaks.csv"] = peaks_csv(results).encode("utf-8")
-    files[MANIFEST_NAME] = _json_text(manifest_document(results, files)).encode("utf-8")
-    return files
+    with FigureWriter(context.figures, tree.folder, jobs=jobs, cache=figure_cache) as figures:
+        document = results_document(results)
+        put("data/results.json", _json_text(document).encode("utf-8"))
+        for site_path, source in _input_files(results).items():
+            put(site_path, source.read_bytes())
+        # The fingerprint covers the inputs and results.json; every page shows it.
+        run_fingerprint = manifest_document(results, hashes)["fingerprint"]
+        extra = extra_pages(document, run_fingerprint) if extra_pages else {}
+        stamp = {"fingerprint": run_fingerprint, "has_revision": "revision.html" in extra}
+        env = _environment()
+        for page in pages:
+            try:
+                html = env.get_template(page.template).render(**page.context, **stamp)
+            except jinja2.TemplateError as exc:
+                raise BuildError(f"page {page.path} could not be rendered: {exc}") from None
+            put(page.path, html.encode("utf-8"))
+        put("static/style.css", (template_dir() / "static" / "style.css").read_bytes())
+        for path, data in {**extra, **_synthetic_files(results)}.items():
+            put(path, data)
+        put("data/spectra.csv", spectra_csv(results).encode("utf-8"))
+        put("data/peaks.csv", peaks_csv(results).encode("utf-8"))
+        hashes.update(figures.result())
+    tree.write(MANIFEST_NAME, _json_text(manifest_document(results, hashes)).encode("utf-8"))
+    return len(hashes) + 1
 
 
 #: Manifest fields the fingerprint covers (besides the hashes of inputs and results).
@@ -289,11 +163,12 @@ def fingerprint(manifest: dict) -> str:
     return hashlib.sha256(text.encode("ascii")).hexdigest()[:16]
 
 
-def manifest_document(results: Results, files: dict[str, bytes]) -> dict:
-    """The manifest: versions, platform, settings and the SHA-256 of every site file."""
-    hashes = {path: hashlib.sha256(data).hexdigest() for path, data in sorted(files.items())
+def manifest_document(results: Results, hashes: dict[str, str]) -> dict:
+    """The manifest: versions, platform, settings and the SHA-256 of every site file
+    (``hashes``: site path → hex digest)."""
+    hashes = {path: digest for path, digest in sorted(hashes.items())
               if path != MANIFEST_NAME}
-    inputs = sorted(path for path in files if path.startswith("inputs/"))
+    inputs = sorted(path for path in hashes if path.startswith("inputs/"))
     document = {
         "schema": MANIFEST_SCHEMA,
         "package": {"name": "sdofreport", "version": __version__},
@@ -315,31 +190,13 @@ def manifest_document(results: Results, files: dict[str, bytes]) -> dict:
     return document
 
 
-def _exchange(a: Path, b: Path) -> bool:
-    """Atomically swap two paths (Linux renameat2 RENAME_EXCHANGE); False if unsupported."""
-    if os.name != "posix":
-        return False
-    try:
-        import ctypes
-        import ctypes.util
-
-        libc = ctypes.CDLL(ctypes.util.find_library("c") or None, use_errno=True)
-        renameat2 = libc.renameat2
-    except (OSError, AttributeError):
-        return False
-    at_fdcwd, rename_exchange = -100, 2
-    result = renameat2(at_fdcwd, os.fsencode(str(a)), at_fdcwd, os.fsencode(str(b)),
-                       rename_exchange)
-    return result == 0
-
-
 def recover_site(output: str | os.PathLike) -> None:
     """Put back a previous site left aside by a build killed between two renames."""
     output = Path(output)
     if output.exists():
         return
     parent = output.resolve().parent
-    for candidate in sorted(parent.glob(f".{output.name}.previous-*/site")):
+    for candidate in sorted(parent.glob(f".{output.name}{RETIRED_PREFIX}*/site")):
         if is_site(candidate):
             os.replace(candidate, output)
             log.warning("restored the previous site from %s (an earlier build was "
@@ -350,19 +207,16 @@ def recover_site(output: str | os.PathLike) -> None:
 def _tidy(output: Path) -> None:
     """Remove staging and retired folders that interrupted builds left beside the site."""
     parent = output.resolve().parent
-    for pattern in (f".{output.name}.building-*", f".{output.name}.previous-*"):
+    for pattern in (f".{output.name}{STAGING_PREFIX}*", f".{output.name}{RETIRED_PREFIX}*"):
         for folder in parent.glob(pattern):
             shutil.rmtree(folder, ignore_errors=True)
 
 
-def write_site(files: dict[str, bytes], output: str | os.PathLike) -> Path:
+def prepare_output(output: str | os.PathLike) -> Path:
     """
-    Write ``files`` into ``output`` through a temporary sibling folder and a swap.
-
-    Refuses to replace an existing non-empty folder that is not a site built by this
-    tool. The swap is atomic where the system allows (Linux ``renameat2`` exchange), so a
-    build killed at any moment leaves either the previous site or the new one in place;
-    elsewhere a previous site left aside is restored by the next build.
+    Check that ``output`` may receive a site, before any work is done: put back a
+    previous site an interrupted build left aside, refuse an existing non-empty folder
+    that is not a site built by this tool, and remove leftover staging folders.
     """
     output = Path(output)
     recover_site(output)
@@ -373,41 +227,4 @@ def write_site(files: dict[str, bytes], output: str | os.PathLike) -> Path:
                          f"sdofreport (no {MANIFEST_NAME} of ours); refusing to replace "
                          f"it. Choose an empty or new folder with -o.")
     _tidy(output)
-    return write_tree(files, output)
-
-
-def write_tree(files: dict[str, bytes], output: str | os.PathLike) -> Path:
-    """
-    Write ``files`` (relative path → bytes) into a temporary sibling of ``output`` and
-    swap it in: atomically where the system allows (Linux ``renameat2`` exchange), else
-    by two renames with the previous tree kept aside until the new one is in place.
-    """
-    output = Path(output)
-    parent = output.resolve().parent
-    parent.mkdir(parents=True, exist_ok=True)
-    staging = Path(tempfile.mkdtemp(prefix=f".{output.name}.building-", dir=parent))
-    try:
-        for path, data in sorted(files.items()):
-            target = staging / path
-            target.parent.mkdir(parents=True, exist_ok=True)
-            target.write_bytes(data)
-        for folder in [staging, *(p for p in staging.rglob("*") if p.is_dir())]:
-            folder.chmod(0o755)
-        for file in staging.rglob("*"):
-            if file.is_file():
-                file.chmod(0o644)
-        if output.exists():
-            if _exchange(staging, output):
-                shutil.rmtree(staging, ignore_errors=True)  # now holds the old site
-            else:
-                retired = Path(tempfile.mkdtemp(prefix=f".{output.name}.previous-",
-                                                dir=parent))
-                os.replace(output, retired / "site")
-                os.replace(staging, output)
-                shutil.rmtree(retired, ignore_errors=True)
-        else:
-            os.replace(staging, output)
-    except BaseException:
-        shutil.rmtree(staging, ignore_errors=True)
-        raise
     return output

@@ -22,7 +22,7 @@ CORPUS = Path(__file__).resolve().parents[1] / "data" / "bad"
 GOOD_PROJECT = (PROJECT_HEAD + "\n[analysis]\nperiods = { min = 0.05, max = 4.0, count = 24 }\n\n"
                 + TWO_RECORDS + "\n" + ONE_SYSTEM)
 
-#: Prefixes of the folders write_site stages beside the site (sdofreport/site/render.py).
+#: Prefixes of the folders a build stages beside the site (sdofreport/site/tree.py).
 STAGING_MARKERS = (".building-", ".previous-")
 
 
@@ -56,7 +56,7 @@ def listing(folder: Path) -> dict[str, tuple[int, int]]:
 
 
 def staging_leftovers(output: Path) -> list[str]:
-    """Names of staging or retired folders write_site left beside ``output``."""
+    """Names of staging or retired folders a build left beside ``output``."""
     return sorted(p.name for p in output.parent.iterdir()
                   if p.name.startswith(f".{output.name}.") and
                   any(marker in p.name for marker in STAGING_MARKERS))

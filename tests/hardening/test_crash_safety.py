@@ -32,7 +32,7 @@ from tests.hardening.conftest import snapshot, staging_leftovers
 ZYGOTE = r"""
 import json, os, sys, time
 from sdofreport.cli import main
-import sdofreport.build, sdofreport.site.render as render, sdofreport.site.context
+import sdofreport.build, sdofreport.site.tree as tree, sdofreport.site.context
 import matplotlib
 from sdofreport.project.quantities import parse_quantity
 parse_quantity("1 m", "length")          # load pint's registry once, before forking
@@ -46,7 +46,7 @@ for line in sys.stdin:
         os.dup2(null, 1); os.dup2(null, 2)
         mode = message["mode"]
         if mode in ("no-exchange", "kill-between-renames"):
-            render._exchange = lambda a, b: False  # the fallback used without renameat2
+            tree._exchange = lambda a, b: False    # the fallback used without renameat2
         if mode == "kill-between-renames":
             real_replace = os.replace
             def replace(src, dst):
@@ -177,23 +177,23 @@ def _random_kills(zygote, setup, runs: int, seed: int, mode: str) -> list[int]:
 
 
 def test_killed_builds_leave_the_previous_site(zygote, setup):
-    # Linux: write_site swaps the folders with renameat2(RENAME_EXCHANGE), so no window.
+    # Linux: StagedTree.commit swaps the folders with renameat2(RENAME_EXCHANGE), so no window.
     absent = _random_kills(zygote, setup, runs=20, seed=20261130, mode="normal")
     assert absent == [], f"site absent after kills {absent}"
 
 
 def test_killed_builds_without_atomic_exchange(zygote, setup):
-    """The same with the two-rename fallback that write_site uses without renameat2."""
+    """The same with the two-rename fallback that StagedTree.commit uses without renameat2."""
     absent = _random_kills(zygote, setup, runs=6, seed=20261201, mode="no-exchange")
     if absent:
         pytest.xfail(f"site absent after kills {absent}: {WINDOW}")
 
 
 #: Known window of the fallback (reported to the lead); xfail only when it shows.
-WINDOW = ("sdofreport/site/render.py write_site, fallback without renameat2: the old site "
-          "is renamed to .<name>.previous-*/site before the new one is renamed in; a build "
-          "killed between the two leaves no site until the next build reaches write_site "
-          "(_recover)")
+WINDOW = ("sdofreport/site/tree.py StagedTree.commit, fallback without renameat2: the old "
+          "site is renamed to .<name>.previous-*/site before the new one is renamed in; a "
+          "build killed between the two leaves no site until the next build reaches "
+          "prepare_output (recover_site)")
 
 
 def test_kill_between_the_two_renames(zygote, setup):

@@ -1,0 +1,179 @@
+"""Draw the site's figures into a staged tree: in this process or in worker processes.
+
+Each figure is looked up in the figure cache by a content hash of its function, its
+arguments and the versions that draw it; a miss is drawn and stored. Whoever handles a
+figure writes its SVG file straight into the staging folder and sends back only the
+file's SHA-256, so the build process neither draws nor moves figure text. Who draws a
+figure does not change its bytes.
+"""
+
+from __future__ import annotations
+
+import functools
+import hashlib
+import os
+from pathlib import Path
+
+import numpy as np
+
+from sdofreport import __version__
+from sdofreport.site.context import FigureSpec
+from sdofreport.site.tree import write_file
+
+#: Figure functions that write SVG directly (milliseconds each, not tenths of a second).
+DIRECT_SVG_FIGURES = frozenset({"histories_figure", "spectra_figure", "fourier_figure"})
+#: Figures per task sent to a worker: small enough to balance the load, large enough
+#: that sending tasks costs little beside drawing them.
+FIGURE_CHUNK = 8
+
+
+def draw_figure(spec: FigureSpec) -> str:
+    """SVG text of one figure (a top-level function so it can run in a worker)."""
+    from sdofreport.site import figures
+
+    return getattr(figures, spec.function)(**spec.kwargs)
+
+
+def _feed(digest, value) -> None:
+    """Feed a figure argument into a hash: arrays by dtype, shape and bytes."""
+    if isinstance(value, np.ndarray):
+        array = np.ascontiguousarray(value)
+        digest.update(f"a{array.dtype.str}{array.shape}".encode())
+        digest.update(array.tobytes())
+    elif isinstance(value, dict):
+        digest.update(b"{")
+        for key in sorted(value):
+            digest.update(repr(key).encode())
+            _feed(digest, value[key])
+        digest.update(b"}")
+    elif isinstance(value, (list, tuple)):
+        digest.update(b"[")
+        for item in value:
+            _feed(digest, item)
+        digest.update(b"]")
+    else:
+        digest.update(repr(value).encode())
+
+
+@functools.lru_cache(maxsize=1)
+def _matplotlib_version() -> str:
+    """Installed matplotlib version, read from its metadata (importing it costs ~0.4 s,
+    which a build whose figures all come from the cache need not pay)."""
+    from importlib.metadata import version
+
+    return version("matplotlib")
+
+
+def figure_key(spec: FigureSpec) -> str:
+    """Content hash of a figure: function, arguments and the versions that draw it."""
+    digest = hashlib.sha256(f"figure|{__version__}|{_matplotlib_version()}|"
+                            f"{spec.function}".encode())
+    _feed(digest, spec.kwargs)
+    return digest.hexdigest()
+
+
+def _figure_svg(spec: FigureSpec, cache) -> str:
+    """A figure's SVG text from the cache, else drawn (and then stored in the cache)."""
+    if cache is None:
+        return draw_figure(spec)
+    key = figure_key(spec)
+    text = cache.get(key)
+    if not isinstance(text, str):
+        text = draw_figure(spec)
+        cache.put(key, text)
+    return text
+
+
+# Folders this process created in the tree (see sdofreport.site.tree.write_file).
+_MADE: dict[str, set[str]] = {}
+
+
+def _write_figures(specs: list[FigureSpec], folder: str, cache) -> list[str]:
+    """Draw (or take from the cache) and write ``specs`` into ``folder``; their SHA-256."""
+    made = _MADE.setdefault(folder, set())
+    return [write_file(Path(folder), spec.path, _figure_svg(spec, cache).encode("utf-8"),
+                       made) for spec in specs]
+
+
+# What forked workers inherit from the build process, so that only index ranges travel
+# to them, not the histories behind each figure: (figures, folder, cache).
+_INHERITED: tuple = ((), "", None)
+
+
+def _write_inherited(bounds: tuple[int, int]) -> list[str]:
+    """:func:`_write_figures` for figures ``bounds[0]:bounds[1]`` of the inherited list."""
+    specs, folder, cache = _INHERITED
+    return _write_figures(list(specs[bounds[0]:bounds[1]]), folder, cache)
+
+
+class FigureWriter:
+    """
+    Writes every figure of a site into a staged tree, started before and collected
+    after the build process's own work, so that the two overlap.
+
+    With ``jobs`` > 1 and enough figures, ``jobs`` worker processes draw them:
+    matplotlib figures (tenths of a second each) first, then the direct-SVG ones
+    (milliseconds), in chunks small enough that the workers finish together. Where
+    processes are forked, workers read the figures from the memory they inherit and only
+    index ranges are sent; elsewhere the figures themselves are sent. Otherwise
+    :meth:`result` draws them here. Use as a context manager: leaving it stops the
+    workers.
+    """
+
+    def __init__(self, specs: list[FigureSpec], folder: Path, *, jobs: int = 1,
+                 cache=None) -> None:
+        self.specs, self.folder, self.cache = list(specs), str(folder), cache
+        self._pool = None
+        self._parts = None
+        self._order: list[int] = []
+        if jobs > 1 and len(self.specs) >= 2 * FIGURE_CHUNK:
+            self._start(jobs)
+
+    def _start(self, jobs: int) -> None:
+        import multiprocessing
+        from concurrent.futures import ProcessPoolExecutor
+
+        global _INHERITED
+        specs = self.specs
+        self._order = sorted(range(len(specs)),
+                             key=lambda i: specs[i].function in DIRECT_SVG_FIGURES)
+        ordered = [specs[i] for i in self._order]
+        bounds = [(i, min(i + FIGURE_CHUNK, len(ordered)))
+                  for i in range(0, len(ordered), FIGURE_CHUNK)]
+        fork = os.name == "posix" and "fork" in multiprocessing.get_all_start_methods()
+        context = multiprocessing.get_context("fork" if fork else None)
+        if fork:
+            _INHERITED = (ordered, self.folder, self.cache)  # read by the forked workers
+        self._pool = ProcessPoolExecutor(max_workers=jobs, mp_context=context)
+        if fork:
+            self._parts = self._pool.map(_write_inherited, bounds)
+        else:
+            self._parts = self._pool.map(
+                _write_figures, [ordered[a:b] for a, b in bounds],
+                [self.folder] * len(bounds), [self.cache] * len(bounds))
+
+    def result(self) -> dict[str, str]:
+        """Site path → SHA-256 of every figure file, once all are written."""
+        if self._pool is None:
+            digests = _write_figures(self.specs, self.folder, self.cache)
+        else:
+            drawn = [digest for part in self._parts for digest in part]
+            digests = [""] * len(self.specs)
+            for position, index in enumerate(self._order):
+                digests[index] = drawn[position]
+            self.close()
+        return {spec.path: digest for spec, digest in zip(self.specs, digests)}
+
+    def close(self) -> None:
+        """Stop the workers (cancelling figures not yet started)."""
+        global _INHERITED
+        if self._pool is not None:
+            self._pool.shutdown(wait=True, cancel_futures=True)
+            self._pool = None
+        _INHERITED = ((), "", None)
+
+    def __enter__(self) -> FigureWriter:
+        return self
+
+    def __exit__(self, kind, value, traceback) -> None:
+        self.close()
