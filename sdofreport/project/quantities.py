@@ -49,9 +49,10 @@ def _registry():
         return pint.UnitRegistry()
 
 
-#: Memo of converted strings, "dimension|text" -> SI value (see the module docstring).
+#: Memo of converted strings, "dimension|text" -> SI value (see the module docstring),
+#: and the entries this process added since it last saved.
 _MEMO: dict[str, float] | None = None
-_MEMO_NEW = False
+_MEMO_NEW: dict[str, float] = {}
 
 
 @functools.lru_cache(maxsize=1)
@@ -65,31 +66,37 @@ def _memo_path() -> str:
                         f"quantities-{version('pint')}-{__version__}.json")
 
 
+def _read_memo() -> dict[str, float]:
+    """The memo file's entries; an absent or damaged file reads as empty."""
+    try:
+        with open(_memo_path(), encoding="utf-8") as handle:
+            loaded = json.load(handle)
+        return {key: float(value) for key, value in loaded.items()
+                if isinstance(key, str) and isinstance(value, float)
+                and math.isfinite(value)}
+    except (OSError, ValueError, AttributeError):
+        return {}
+
+
 def _memo() -> dict[str, float]:
     global _MEMO
     if _MEMO is None:
-        try:
-            with open(_memo_path(), encoding="utf-8") as handle:
-                loaded = json.load(handle)
-            _MEMO = {key: float(value) for key, value in loaded.items()
-                     if isinstance(key, str) and isinstance(value, float)
-                     and math.isfinite(value)}
-        except (OSError, ValueError, AttributeError):  # absent or damaged: start afresh
-            _MEMO = {}
+        _MEMO = _read_memo()
     return _MEMO
 
 
 def save_memo() -> None:
-    """Store the strings converted since the memo was read (atomic; failures ignored)."""
-    global _MEMO_NEW
-    if not _MEMO_NEW or _MEMO is None:
+    """Add the strings converted since the last save to the memo file, merged with what
+    other processes stored meanwhile (atomic replace; failures ignored)."""
+    if not _MEMO_NEW:
         return
-    _MEMO_NEW = False
+    merged = {**_read_memo(), **_MEMO_NEW}
+    _MEMO_NEW.clear()
     try:
         folder = os.path.dirname(_memo_path())
         fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
         with os.fdopen(fd, "w", encoding="utf-8") as handle:
-            json.dump(_MEMO, handle, sort_keys=True)
+            json.dump(merged, handle, sort_keys=True)
         os.replace(tmp, _memo_path())
     except OSError:  # a read-only cache must never stop a build
         pass
@@ -150,8 +157,7 @@ def parse_quantity(value: object, dimension: str) -> float:
     if remembered is not None:
         return remembered
     number = _convert(text, value, dimension)
-    global _MEMO_NEW
-    _memo()[key], _MEMO_NEW = number, True
+    _memo()[key] = _MEMO_NEW[key] = number
     return number
 
 

@@ -28,7 +28,7 @@ def fresh_memo(tmp_path, monkeypatch):
     path = tmp_path / "memo.json"
     monkeypatch.setattr(quantities, "_memo_path", lambda: str(path))
     monkeypatch.setattr(quantities, "_MEMO", None)
-    monkeypatch.setattr(quantities, "_MEMO_NEW", False)
+    monkeypatch.setattr(quantities, "_MEMO_NEW", {})
     return path
 
 
@@ -55,6 +55,14 @@ def test_a_damaged_memo_is_ignored(fresh_memo):
     fresh_memo.write_text('{"mass|120 t": "not a number"}', "utf-8")
     quantities._MEMO = None
     assert quantities.parse_quantity("120 t", "mass") == pytest.approx(120_000.0)
+
+
+def test_saving_keeps_what_another_process_stored(fresh_memo):
+    assert quantities.parse_quantity("18 ft", "length") == pytest.approx(18 * 0.3048)
+    # Another process stored an entry after this one read the (empty) memo.
+    fresh_memo.write_text(json.dumps({"mass|120 t": 120000.0}), "utf-8")
+    quantities.save_memo()
+    assert set(json.loads(fresh_memo.read_text("utf-8"))) == {"mass|120 t", "length|18 ft"}
 
 
 def test_bad_strings_are_not_remembered(fresh_memo):
