@@ -8,8 +8,9 @@ marked peak, so this module writes those elements itself: about a hundred times 
 a quarter of the size, and byte-identical for identical inputs by construction (plain
 string formatting with fixed precision, no ids drawn from counters or random numbers).
 The look follows :data:`sdofreport.site.figures.FIGURE_RC` (fonts, sizes, colours, line
-widths); tick positions come from matplotlib's :class:`~matplotlib.ticker.MaxNLocator`,
-which is plain arithmetic and draws nothing.
+widths); tick positions are those of matplotlib's ``MaxNLocator``, restated in
+:mod:`sdofreport.site.ticks` so that a worker drawing these figures never imports
+matplotlib.
 
 Lengths are in points (72 per inch), the unit of the SVG ``viewBox``; y grows downwards.
 """
@@ -21,7 +22,8 @@ from dataclasses import dataclass
 from xml.sax.saxutils import escape
 
 import numpy as np
-from matplotlib.ticker import MaxNLocator
+
+from sdofreport.site.ticks import nice_ticks
 
 __all__ = ["AxesSpec", "Band", "Curve", "LegendEntry", "PanelLayout", "PanelStyle", "Span",
            "axes_svg", "data_limits", "history_panels_svg"]
@@ -95,7 +97,7 @@ def _limits(values: np.ndarray, margin: float) -> tuple[float, float]:
 
 
 def _ticks(lo: float, hi: float, nbins: int) -> tuple[np.ndarray, float]:
-    ticks = MaxNLocator(nbins=nbins, steps=[1, 2, 2.5, 5, 10]).tick_values(lo, hi)
+    ticks = nice_ticks(lo, hi, nbins, steps=(1, 2, 2.5, 5, 10))
     step = float(ticks[1] - ticks[0]) if ticks.size > 1 else 1.0
     inside = ticks[(ticks >= lo - 1e-9 * step) & (ticks <= hi + 1e-9 * step)]
     return inside, step
