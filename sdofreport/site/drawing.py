@@ -9,7 +9,6 @@ figure does not change its bytes.
 
 from __future__ import annotations
 
-import functools
 import hashlib
 import os
 from pathlib import Path
@@ -55,18 +54,11 @@ def _feed(digest, value) -> None:
         digest.update(repr(value).encode())
 
 
-@functools.lru_cache(maxsize=1)
-def _matplotlib_version() -> str:
-    """Installed matplotlib version, read from its metadata (importing it costs ~0.4 s,
-    which a build whose figures all come from the cache need not pay)."""
-    from importlib.metadata import version
-
-    return version("matplotlib")
-
-
 def figure_key(spec: FigureSpec) -> str:
     """Content hash of a figure: function, arguments and the versions that draw it."""
-    digest = hashlib.sha256(f"figure|{__version__}|{_matplotlib_version()}|"
+    from sdofreport.site.figures import matplotlib_version
+
+    digest = hashlib.sha256(f"figure|{__version__}|{matplotlib_version()}|"
                             f"{spec.function}".encode())
     _feed(digest, spec.kwargs)
     return digest.hexdigest()
@@ -132,6 +124,8 @@ class FigureWriter:
     def _start(self, jobs: int) -> None:
         import multiprocessing
         from concurrent.futures import ProcessPoolExecutor
+
+        from sdofreport.site import figures  # noqa: F401  (imported once, inherited)
 
         global _INHERITED
         specs = self.specs

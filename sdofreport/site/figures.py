@@ -19,7 +19,9 @@ The exceptions are :func:`histories_figure`, :func:`spectra_figure` and
 and spectra for every record, so these are written directly as SVG by
 :mod:`sdofreport.site.svg_panels` in the same style (about 5-10 ms instead of 0.1-0.3 s
 each); :func:`checks_bar_figure` and :func:`hysteresis_figure` still go through
-matplotlib as described above.
+matplotlib as described above. matplotlib is imported only when one of those two is
+drawn (the import costs a process about a second); the direct figures measure label
+widths from the committed table :mod:`sdofreport.site.font_metrics`.
 
 Long histories are thinned by :func:`decimate_minmax`, which keeps every bucket's first, last,
 minimum and maximum sample, so peaks survive exactly.
@@ -27,22 +29,15 @@ minimum and maximum sample, so peaks survive exactly.
 
 from __future__ import annotations
 
+import functools
 import io
 import math
 import re
 
-import matplotlib
+import numpy as np
+from cycler import cycler  # a matplotlib dependency, light to import
 
-matplotlib.use("Agg")  # explicit, although no pyplot is imported below
-
-import numpy as np  # noqa: E402
-from cycler import cycler  # noqa: E402  (a matplotlib dependency)
-from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
-from matplotlib.figure import Figure  # noqa: E402
-from matplotlib.font_manager import FontProperties  # noqa: E402
-from matplotlib.textpath import text_to_path  # noqa: E402
-
-from sdofreport.site.svg_panels import (  # noqa: E402
+from sdofreport.site.svg_panels import (
     AxesSpec,
     Band,
     Curve,
@@ -305,8 +300,28 @@ def _with_unit(value, unit):
     return f"{text} {unit}" if unit else text
 
 
+def _matplotlib():
+    """matplotlib with its non-interactive back-end, imported on first use."""
+    import matplotlib
+
+    matplotlib.use("Agg")  # explicit, although no pyplot is imported
+    return matplotlib
+
+
+@functools.lru_cache(maxsize=1)
+def matplotlib_version() -> str:
+    """Installed matplotlib version, from its package metadata (without importing it)."""
+    from importlib.metadata import version
+
+    return version("matplotlib")
+
+
 def _text_width_pt(text, size):
     """Width of one line of ``text`` at font ``size`` in the current rc font. [pt]"""
+    _matplotlib()
+    from matplotlib.font_manager import FontProperties
+    from matplotlib.textpath import text_to_path
+
     return text_to_path.get_text_width_height_descent(
         text, FontProperties(size=size), ismath=False)[0]
 
@@ -316,14 +331,21 @@ _ADVANCE: dict[str, float] = {}
 
 def _figure_text_width_pt(text, size):
     """
-    Width of ``text`` at ``size`` in the figure font (FIGURE_RC), from cached per-character
+    Width of ``text`` at ``size`` in the figure font (FIGURE_RC), from per-character
     advances: no kerning, so within a few per cent of the typeset width, which is all the
-    white boxes and the legend behind the direct-SVG figures need. [pt]
+    white boxes and the legend behind the direct-SVG figures need. The advances come
+    from :mod:`sdofreport.site.font_metrics` when it was made with the installed
+    matplotlib, else (and for characters it lacks) are measured and cached. [pt]
     """
+    if not _ADVANCE:
+        from sdofreport.site import font_metrics
+
+        if font_metrics.MATPLOTLIB_VERSION == matplotlib_version():
+            _ADVANCE.update(font_metrics.ADVANCES)
     missing = [ch for ch in set(text) if ch not in _ADVANCE]
     if missing:
-        with matplotlib.rc_context(FIGURE_RC):
-            for ch in missing:
+        with _matplotlib().rc_context(FIGURE_RC):
+            for ch in sorted(missing):
                 _ADVANCE[ch] = _text_width_pt(ch, 100.0) / 100.0
     return size * sum(_ADVANCE[ch] for ch in text)
 
@@ -350,6 +372,10 @@ def _new_figure(height_in, *, left_in, right_in, bottom_in, top_in, hspace_in=0.
     Figure with fixed margins (no layout engine: a layout engine redraws the figure several
     times and costs more than the drawing itself).
     """
+    _matplotlib()
+    from matplotlib.backends.backend_svg import FigureCanvasSVG
+    from matplotlib.figure import Figure
+
     fig = Figure(figsize=(FIGURE_WIDTH_IN, height_in))
     FigureCanvasSVG(fig)
     axes_height = (height_in - bottom_in - top_in - hspace_in * (n_rows - 1)) / n_rows
@@ -376,7 +402,7 @@ def _render(draw, **layout):
     ``layout`` holds the keyword arguments of :func:`_new_figure` (size and margins);
     ``draw(fig)`` fills the figure and may widen margins for legends or long tick labels.
     """
-    with matplotlib.rc_context(FIGURE_RC):
+    with _matplotlib().rc_context(FIGURE_RC):
         fig = _new_figure(**layout)
         draw(fig)
         return _to_svg(fig)
