@@ -87,15 +87,28 @@ def _write_figures(specs: list[FigureSpec], folder: str, cache) -> list[str]:
                        made) for spec in specs]
 
 
-# What forked workers inherit from the build process, so that only index ranges travel
-# to them, not the histories behind each figure: (figures, folder, cache).
-_INHERITED: tuple = ((), "", None)
+# What forked workers inherit from the build process, so that nothing but the digests
+# travels between them: (figures, folder, cache, shared counter of the next figure).
+_INHERITED: tuple = ((), "", None, None)
 
 
-def _write_inherited(bounds: tuple[int, int]) -> list[str]:
-    """:func:`_write_figures` for figures ``bounds[0]:bounds[1]`` of the inherited list."""
-    specs, folder, cache = _INHERITED
-    return _write_figures(list(specs[bounds[0]:bounds[1]]), folder, cache)
+def _write_claimed(_worker: int) -> list[tuple[int, str]]:
+    """
+    Claim chunks of the inherited figure list from the shared counter and write them,
+    until none is left: (position, SHA-256) of each figure this worker wrote. Workers
+    that serve themselves never wait for the build process to hand out work.
+    """
+    specs, folder, cache, counter = _INHERITED
+    written: list[tuple[int, str]] = []
+    while True:
+        with counter.get_lock():
+            start = counter.value
+            counter.value = start + FIGURE_CHUNK
+        if start >= len(specs):
+            return written
+        stop = min(start + FIGURE_CHUNK, len(specs))
+        written.extend(zip(range(start, stop),
+                           _write_figures(list(specs[start:stop]), folder, cache)))
 
 
 class FigureWriter:
@@ -106,10 +119,11 @@ class FigureWriter:
     With ``jobs`` > 1 and enough figures, ``jobs`` worker processes draw them:
     matplotlib figures (tenths of a second each) first, then the direct-SVG ones
     (milliseconds), in chunks small enough that the workers finish together. Where
-    processes are forked, workers read the figures from the memory they inherit and only
-    index ranges are sent; elsewhere the figures themselves are sent. Otherwise
-    :meth:`result` draws them here. Use as a context manager: leaving it stops the
-    workers.
+    processes are forked, workers read the figures from the memory they inherit and
+    claim chunks from a shared counter, so they keep drawing however busy this process
+    is; elsewhere the chunks themselves are sent. Otherwise :meth:`result` draws them
+    here. Use as a context manager: leaving it stops the workers after their current
+    chunk.
     """
 
     def __init__(self, specs: list[FigureSpec], folder: Path, *, jobs: int = 1,
@@ -117,6 +131,7 @@ class FigureWriter:
         self.specs, self.folder, self.cache = list(specs), str(folder), cache
         self._pool = None
         self._parts = None
+        self._counter = None
         self._order: list[int] = []
         if jobs > 1 and len(self.specs) >= 2 * FIGURE_CHUNK:
             self._start(jobs)
@@ -136,11 +151,11 @@ class FigureWriter:
                   for i in range(0, len(ordered), FIGURE_CHUNK)]
         fork = os.name == "posix" and "fork" in multiprocessing.get_all_start_methods()
         context = multiprocessing.get_context("fork" if fork else None)
-        if fork:
-            _INHERITED = (ordered, self.folder, self.cache)  # read by the forked workers
         self._pool = ProcessPoolExecutor(max_workers=jobs, mp_context=context)
         if fork:
-            self._parts = self._pool.map(_write_inherited, bounds)
+            self._counter = context.Value("q", 0)
+            _INHERITED = (ordered, self.folder, self.cache, self._counter)
+            self._parts = self._pool.map(_write_claimed, range(jobs))
         else:
             self._parts = self._pool.map(
                 _write_figures, [ordered[a:b] for a, b in bounds],
@@ -151,7 +166,10 @@ class FigureWriter:
         if self._pool is None:
             digests = _write_figures(self.specs, self.folder, self.cache)
         else:
-            drawn = [digest for part in self._parts for digest in part]
+            if self._counter is not None:
+                drawn = dict(pair for part in self._parts for pair in part)
+            else:
+                drawn = dict(enumerate(digest for part in self._parts for digest in part))
             digests = [""] * len(self.specs)
             for position, index in enumerate(self._order):
                 digests[index] = drawn[position]
@@ -161,10 +179,13 @@ class FigureWriter:
     def close(self) -> None:
         """Stop the workers (cancelling figures not yet started)."""
         global _INHERITED
+        if self._counter is not None:  # workers stop after the chunk they are drawing
+            with self._counter.get_lock():
+                self._counter.value = len(self.specs)
         if self._pool is not None:
             self._pool.shutdown(wait=True, cancel_futures=True)
             self._pool = None
-        _INHERITED = ((), "", None)
+        _INHERITED = ((), "", None, None)
 
     def __enter__(self) -> FigureWriter:
         return self

@@ -107,3 +107,17 @@ def test_cached_figures_are_not_drawn_again(tmp_path, monkeypatch):
         tree.commit()
     assert first == second
     assert _tree(tmp_path / "a") == _tree(tmp_path / "b")
+
+
+def test_a_failing_figure_stops_the_workers_and_is_reported(tmp_path):
+    specs = _specs(6 * drawing.FIGURE_CHUNK)
+    # histories_figure refuses an empty panel list (its documented ValueError).
+    specs[3] = FigureSpec("figures/bad.svg", "histories_figure",
+                          {"time_s": np.arange(10) * 0.01, "panels": []})
+    with pytest.raises(ValueError, match="panels"):
+        with StagedTree(tmp_path / "site") as tree:
+            with drawing.FigureWriter(specs, tree.folder, jobs=2) as writer:
+                writer.result()
+    assert not (tmp_path / "site").exists()
+    assert list(tmp_path.iterdir()) == []  # the staging folder is gone too
+    assert drawing._INHERITED[0] == ()  # nothing left for a later fork to inherit
