@@ -23,6 +23,7 @@ from sdofreport.archive._sitefiles import (
     parse_results,
     read_zip,
 )
+from sdofreport.jsontext import json_text
 from sdofreport.site.render import MANIFEST_NAME
 
 COMPARISON_SCHEMA = "sdofreport/comparison@1"
@@ -277,7 +278,7 @@ def comparison_text(document: dict) -> str:
 
 
 def comparison_json(document: dict) -> str:
-    return json.dumps(document, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+    return json_text(document)
 
 
 # -- pages ---------------------------------------------------------------------------------

@@ -29,6 +29,7 @@ from sdofreport.archive._sitefiles import (
     safe_name,
 )
 from sdofreport.archive.verify import verify_files
+from sdofreport.jsontext import json_text
 from sdofreport.site.render import MANIFEST_NAME
 from sdofreport.site.tree import write_tree
 
@@ -175,8 +176,7 @@ def gather_register(folder: str | os.PathLike,
         row.link = f"runs/{row.name}/{start}"
     document = {"schema": REGISTER_SCHEMA, "generator": f"sdofreport {__version__}",
                 "runs": [asdict(row) for row in rows]}
-    files[REGISTER_MARKER] = (json.dumps(document, indent=1, ensure_ascii=False,
-                                         allow_nan=False) + "\n").encode("utf-8")
+    files[REGISTER_MARKER] = json_text(document).encode("utf-8")
     files["static/style.css"] = str(stylesheet()).encode("utf-8")
     context = {**common_context(root="", page_title="Register", page_kind="register",
                                 project={"title": "Register of archived runs"}),
