@@ -33,7 +33,7 @@ from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
 from sdofreport.errors import RecordError
 from sdofreport.executors import execute
-from sdofreport.jobs import load_kernels, record_products, run_job
+from sdofreport.jobs import record_products, run_job
 from sdofreport.project.model import Project, RecordSpec, SystemSpec
 from sdofreport.records import Record, process_record, read_record
 from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling
@@ -406,11 +406,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     """
     started = time.perf_counter()
     cache = ResultCache((cache_dir or default_cache_dir()) if use_cache else None)
-    workers = jobs or os.cpu_count() or 1
-    if workers > 1 and not (scheduler or dask_local) and len(project.records) > 1:
-        records = _read_while_loading_kernels(project, cache)
-    else:
-        records = load_records(project, cache)
+    records = load_records(project, cache)
     read_time = time.perf_counter() - started
     analysis = project.analysis
     base = {"version": __version__, "method": analysis.method}
@@ -418,7 +414,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     total = len(records) + len(pairs) + len(records)
     if project.inelastic is not None:
         total += len(records)
-    phase = _Phase(cache, progress, total, {"workers": workers,
+    phase = _Phase(cache, progress, total, {"workers": jobs or os.cpu_count() or 1,
                                             "scheduler": scheduler,
                                             "dask_local": dask_local,
                                             "min_pool_seconds": MIN_POOL_SECONDS})
@@ -502,24 +498,6 @@ def run_project(project: Project, *, jobs: int | None = None,
                    pair_results, inelastic,
                    {"read_s": read_time, "compute_s": phase.seconds,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses)
-
-
-def _read_while_loading_kernels(project: Project, cache: ResultCache) -> list[Record]:
-    """
-    :func:`load_records` in a forked helper process while this one loads the compiled
-    spectrum kernels, which the first spectra job would load anyway and the workers then
-    inherit: with two cores the two take the time of the longer. Where processes cannot
-    be forked, the records are read here.
-    """
-    import multiprocessing
-    from concurrent.futures import ProcessPoolExecutor
-
-    if os.name != "posix" or "fork" not in multiprocessing.get_all_start_methods():
-        return load_records(project, cache)
-    with ProcessPoolExecutor(1, mp_context=multiprocessing.get_context("fork")) as reader:
-        future = reader.submit(load_records, project, cache)
-        load_kernels(project.analysis.method)
-        return future.result()
 
 
 def _pairs(project: Project) -> dict[str, tuple[str, str]]:

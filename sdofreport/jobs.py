@@ -35,15 +35,6 @@ def record_products(acceleration, dt_s) -> dict:
     }
 
 
-def load_kernels(method: str) -> None:
-    """
-    Load the compiled spectrum kernels of ``method`` (numba loads them, with its own
-    registries, on first use: a few tenths of a second) by computing one tiny spectrum;
-    worker processes forked afterwards inherit them.
-    """
-    response_spectrum(np.zeros(32), 0.01, np.array([0.5]), np.array([0.05]), method=method)
-
-
 def record_job(acceleration, dt_s, periods_s, damping, method) -> dict:
     """Record products plus response spectra at every (damping, period)."""
     spectrum = response_spectrum(acceleration, dt_s, np.asarray(periods_s),
