@@ -197,9 +197,8 @@ def main() -> None:
                                                phases.items()))
         serial = {jobs: best[jobs]["wall_s"] - best[jobs]["timings"]["render_s"]
                   - best[jobs]["timings"]["compute_s"] for jobs in (1, 2)}
-        print(f"outside those phases (start-up, imports, reading records - with 2 workers "
-              f"while the compiled kernels load, which 1 worker does in its integration - "
-              f"and swapping the site in): {serial[1]:.1f} s with 1 worker, {serial[2]:.1f} s with 2; "
+        print(f"outside those phases (start-up, imports, reading records, swapping the "
+              f"site in): {serial[1]:.1f} s with 1 worker, {serial[2]:.1f} s with 2; "
               f"CPU {best[1]['cpu_s']:.1f} s and {best[2]['cpu_s']:.1f} s (information)")
 
 
