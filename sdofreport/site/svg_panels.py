@@ -103,6 +103,17 @@ def _ticks(lo: float, hi: float, nbins: int) -> tuple[np.ndarray, float]:
     return inside, step
 
 
+def _axis_ticks(lo: float, hi: float, nbins: int, *, log: bool = False,
+                subs=()) -> tuple[np.ndarray, list[str]]:
+    """Tick positions on one axis and their labels: ``s × 10^k`` for s in ``subs`` on a
+    log axis, else round steps (at most ``nbins`` intervals)."""
+    if log:
+        ticks = _log_ticks(lo, hi, subs)
+        return ticks, [_log_tick_text(v) for v in ticks]
+    ticks, step = _ticks(lo, hi, nbins)
+    return ticks, [_tick_text(float(v), step) for v in ticks]
+
+
 def _text(x, y, text, size, *, anchor="start", baseline="auto", rotate=None,
           colour="#000000") -> str:
     transform = f' transform="rotate({rotate} {_num(x)} {_num(y)})"' if rotate else ""
@@ -220,7 +231,7 @@ def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=
     t_lo, t_hi = (float(t_fin.min()), float(t_fin.max())) if t_fin.size else (0.0, 1.0)
     if t_hi <= t_lo:
         t_lo, t_hi = t_lo - 0.5, t_hi + 0.5
-    x_ticks, x_step = _ticks(t_lo, t_hi, 9)
+    x_ticks, x_labels = _axis_ticks(t_lo, t_hi, 9)
 
     def sx(t):
         return x0 + (np.asarray(t, dtype=float) - t_lo) * ((x1 - x0) / (t_hi - t_lo))
@@ -233,7 +244,7 @@ def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=
         top = layout.top_in * 72.0 + i * (axes_h + gap)
         bottom = top + axes_h
         v_lo, v_hi = _limits(v, 0.25)
-        y_ticks, y_step = _ticks(v_lo, v_hi, 5)
+        y_ticks, y_labels = _axis_ticks(v_lo, v_hi, 5)
 
         def sy(value, top=top, v_lo=v_lo, v_hi=v_hi):
             return top + (v_hi - np.asarray(value, dtype=float)) * (axes_h / (v_hi - v_lo))
@@ -254,12 +265,12 @@ def history_panels_svg(panels, layout: PanelLayout, style: PanelStyle, *, title=
             marks += "".join(f"M{_num(sx(t_))} {_num(bottom)}v{_num(_TICK_PT)}"
                              for t_ in x_ticks)
         out.append(_tick_marks(marks, style))
-        for y_ in y_ticks:
-            out.append(_ytick_label(x0, float(sy(y_)), _tick_text(float(y_), y_step), style))
+        for y_, text in zip(y_ticks, y_labels):
+            out.append(_ytick_label(x0, float(sy(y_)), text, style))
         if i == n - 1:
-            for t_ in x_ticks:
+            for t_, text in zip(x_ticks, x_labels):
                 out.append(_text(float(sx(t_)), bottom + _TICK_PT + _TICK_PAD_PT,
-                                 _tick_text(float(t_), x_step), style.tick_size,
+                                 text, style.tick_size,
                                  anchor="middle", baseline="hanging") + "\n")
         # Panel label above its top-left corner; y label at a fixed distance from the edge.
         out.append(_text(x0, top - 0.02 * axes_h, label, style.title_size) + "\n")
@@ -425,18 +436,8 @@ def axes_svg(spec: AxesSpec, layout: PanelLayout, style: PanelStyle, *, text_wid
             return bottom - (fy(np.asarray(v, dtype=float)) - ya_) * ((bottom - top)
                                                                        / (yb_ - ya_))
 
-    if spec.xlog:
-        x_ticks = _log_ticks(xa, xb, spec.log_subs_x)
-        x_labels = [_log_tick_text(v) for v in x_ticks]
-    else:
-        x_ticks, step = _ticks(xa, xb, 9)
-        x_labels = [_tick_text(float(v), step) for v in x_ticks]
-    if spec.ylog:
-        y_ticks = _log_ticks(ya, yb, spec.log_subs_y)
-        y_labels = [_log_tick_text(v) for v in y_ticks]
-    else:
-        y_ticks, step = _ticks(ya, yb, 6)
-        y_labels = [_tick_text(float(v), step) for v in y_ticks]
+    x_ticks, x_labels = _axis_ticks(xa, xb, 9, log=spec.xlog, subs=spec.log_subs_x)
+    y_ticks, y_labels = _axis_ticks(ya, yb, 6, log=spec.ylog, subs=spec.log_subs_y)
 
     out = _svg_open(w, h, f'<defs><clipPath id="axes-area"><rect x="{_num(x0)}" '
                           f'y="{_num(top)}" width="{_num(x1 - x0)}" '
