@@ -147,8 +147,6 @@ class FigureWriter:
         self._order = sorted(range(len(specs)),
                              key=lambda i: specs[i].function in DIRECT_SVG_FIGURES)
         ordered = [specs[i] for i in self._order]
-        bounds = [(i, min(i + FIGURE_CHUNK, len(ordered)))
-                  for i in range(0, len(ordered), FIGURE_CHUNK)]
         fork = os.name == "posix" and "fork" in multiprocessing.get_all_start_methods()
         context = multiprocessing.get_context("fork" if fork else None)
         self._pool = ProcessPoolExecutor(max_workers=jobs, mp_context=context)
@@ -156,10 +154,10 @@ class FigureWriter:
             self._counter = context.Value("q", 0)
             _INHERITED = (ordered, self.folder, self.cache, self._counter)
             self._parts = self._pool.map(_write_claimed, range(jobs))
-        else:
-            self._parts = self._pool.map(
-                _write_figures, [ordered[a:b] for a, b in bounds],
-                [self.folder] * len(bounds), [self.cache] * len(bounds))
+        else:  # no shared memory to inherit: send the chunks themselves
+            chunks = [ordered[i:i + FIGURE_CHUNK] for i in range(0, len(ordered), FIGURE_CHUNK)]
+            self._parts = self._pool.map(_write_figures, chunks, [self.folder] * len(chunks),
+                                         [self.cache] * len(chunks))
 
     def result(self) -> dict[str, str]:
         """Site path → SHA-256 of every figure file, once all are written."""
