@@ -125,11 +125,14 @@ def test_separate_scheduler_and_worker_processes(project_factory, valid_project_
         stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=env)
     worker = None
     try:
-        deadline = time.time() + 60
-        while not scheduler_file.exists() and time.time() < deadline:
-            time.sleep(0.2)
-        assert scheduler_file.exists(), "scheduler did not start"
-        address = json.loads(scheduler_file.read_text())["address"]
+        # The scheduler writes its file in place, so it may exist before it is complete.
+        deadline, address = time.time() + 60, None
+        while address is None and time.time() < deadline:
+            try:
+                address = json.loads(scheduler_file.read_text())["address"]
+            except (OSError, ValueError, KeyError):
+                time.sleep(0.2)
+        assert address is not None, "scheduler did not start"
         assert address.startswith("tcp://127.0.0.1:")
         worker = subprocess.Popen(
             ["dask", "worker", address, "--nthreads", "1", "--nworkers", "1",
