@@ -41,6 +41,10 @@ class ResultCache:
     def _path(self, key: str) -> Path:
         return self.folder / key[:2] / f"{key}.pickle"
 
+    def has(self, key: str) -> bool:
+        """True when an entry is stored under ``key`` (without reading it)."""
+        return self.folder is not None and self._path(key).is_file()
+
     def get(self, key: str):
         if self.folder is None:
             return None

@@ -181,19 +181,30 @@ def synthetic_record(project: Project, index: int, cache: ResultCache | None = N
                                history=(note,))
 
 
+def _file_digest(spec: RecordSpec) -> str | None:
+    """SHA-256 of a record file's bytes; None when it cannot be read (the reader then
+    reports it with its own message)."""
+    try:
+        return hashlib.sha256(spec.path.read_bytes()).hexdigest()
+    except OSError:
+        return None
+
+
+def _read_key(spec: RecordSpec, digest: str | None) -> str:
+    """Cache key of a record file as parsed with its reading settings."""
+    return content_hash({"version": __version__, "job": "read", "sha": digest,
+                         "name": spec.path.name, "format": spec.file_format,
+                         "units": spec.units, "dt": spec.dt_s, "id": spec.id})
+
+
 def _read_cached(spec: RecordSpec, cache: ResultCache | None, pending: list) -> Record:
     """Read a record file, or take the parsed record from the cache when its bytes and
     the reading settings are unchanged (parsing text is the slow part of a warm build)."""
     if cache is None or cache.folder is None:
         return read_record(spec.path, file_format=spec.file_format, units=spec.units,
                            dt_s=spec.dt_s, record_id=spec.id)
-    try:
-        digest = hashlib.sha256(spec.path.read_bytes()).hexdigest()
-    except OSError:  # let the reader report it with its own message
-        digest = None
-    key = content_hash({"version": __version__, "job": "read", "sha": digest,
-                        "name": spec.path.name, "format": spec.file_format,
-                        "units": spec.units, "dt": spec.dt_s, "id": spec.id})
+    digest = _file_digest(spec)
+    key = _read_key(spec, digest)
     cached = cache.get(key) if digest else None
     if isinstance(cached, Record) and cached.sha256 == digest:
         return dataclasses.replace(cached, source_path=str(spec.path))
@@ -406,7 +417,12 @@ def run_project(project: Project, *, jobs: int | None = None,
     """
     started = time.perf_counter()
     cache = ResultCache((cache_dir or default_cache_dir()) if use_cache else None)
-    records = load_records(project, cache)
+    workers = jobs or os.cpu_count() or 1
+    if workers > 1 and not (scheduler or dask_local) and _can_fork() and \
+            _probably_cold(project, cache):
+        records = _records_while_warming(project, cache)
+    else:
+        records = load_records(project, cache)
     read_time = time.perf_counter() - started
     analysis = project.analysis
     base = {"version": __version__, "method": analysis.method}
@@ -414,7 +430,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     total = len(records) + len(pairs) + len(records)
     if project.inelastic is not None:
         total += len(records)
-    phase = _Phase(cache, progress, total, {"workers": jobs or os.cpu_count() or 1,
+    phase = _Phase(cache, progress, total, {"workers": workers,
                                             "scheduler": scheduler,
                                             "dask_local": dask_local,
                                             "min_pool_seconds": MIN_POOL_SECONDS})
@@ -423,15 +439,14 @@ def run_project(project: Project, *, jobs: int | None = None,
     # Phase 1: spectra of every record (as given) and RotD spectra of every pair.
     plan = []
     for record in records:
-        args = (record.acceleration_m_s2, record.dt_s, analysis.periods_s, analysis.damping,
-                analysis.method)
+        args = _record_args(record, analysis)
         key = content_hash({**base, "job": "record", "sha": _array_hash(args[0]),
                             "dt": record.dt_s, "periods": list(analysis.periods_s),
                             "damping": list(analysis.damping)})
         plan.append((f"record {record.id} (spectra)", "record", args, key))
     for name, (h1, h2) in pairs.items():
-        a1, a2 = by_id[h1].acceleration_m_s2, by_id[h2].acceleration_m_s2
-        args = (a1, a2, by_id[h1].dt_s, analysis.periods_s, SCALING_DAMPING, analysis.method)
+        args = _pair_args(by_id[h1], by_id[h2], analysis)
+        a1, a2 = args[0], args[1]
         key = content_hash({**base, "job": "pair", "sha1": _array_hash(a1),
                             "sha2": _array_hash(a2), "dt": by_id[h1].dt_s,
                             "periods": list(analysis.periods_s), "damping": SCALING_DAMPING})
@@ -460,10 +475,9 @@ def run_project(project: Project, *, jobs: int | None = None,
 
     # Phase 3: every system's response to every (scaled) record, one job per record.
     plan = []
-    models = [{**system_model(system), "system_id": system.id}
-              for system in project.systems]
+    models = _response_models(project)
     for record in (scaled[r.id] for r in project.records):
-        args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
+        args = _responses_args(record, models, analysis)
         key = content_hash({**base, "job": "responses", "sha": _array_hash(args[0]),
                             "dt": record.dt_s, "models": models})
         plan.append((f"record {record.id} (responses of {len(models)} systems)",
@@ -471,9 +485,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     inelastic_spec = project.inelastic
     if inelastic_spec is not None:
         for record in (scaled[r.id] for r in project.records):
-            args = (record.acceleration_m_s2, record.dt_s, inelastic_spec.periods_s,
-                    inelastic_spec.damping, inelastic_spec.ductility,
-                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio)
+            args = _inelastic_args(record, inelastic_spec)
             key = content_hash({**base, "job": "inelastic", "sha": _array_hash(args[0]),
                                 "dt": record.dt_s, "spec": dataclasses.asdict(
                                     inelastic_spec)})
@@ -498,6 +510,124 @@ def run_project(project: Project, *, jobs: int | None = None,
                    pair_results, inelastic,
                    {"read_s": read_time, "compute_s": phase.seconds,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses)
+
+
+# Arguments of each job kind (see sdofreport.jobs), shared by the plan and the warm-up.
+
+
+def _record_args(record: Record, analysis) -> tuple:
+    return (record.acceleration_m_s2, record.dt_s, analysis.periods_s, analysis.damping,
+            analysis.method)
+
+
+def _pair_args(h1: Record, h2: Record, analysis) -> tuple:
+    return (h1.acceleration_m_s2, h2.acceleration_m_s2, h1.dt_s, analysis.periods_s,
+            SCALING_DAMPING, analysis.method)
+
+
+def _response_models(project: Project) -> list[dict]:
+    return [{**system_model(system), "system_id": system.id} for system in project.systems]
+
+
+def _responses_args(record: Record, models: list[dict], analysis) -> tuple:
+    return (record.acceleration_m_s2, record.dt_s, models, analysis.method)
+
+
+def _inelastic_args(record: Record, spec) -> tuple:
+    return (record.acceleration_m_s2, record.dt_s, spec.periods_s, spec.damping,
+            spec.ductility, spec.strength_reduction, spec.post_yield_ratio)
+
+
+# ---------------------------------------------------------------------------------------
+# Loading the compiled kernels while the records are read
+
+
+def warm_kernels(project: Project) -> None:
+    """
+    Load the compiled kernels the jobs of ``project`` use, by running each job kind it
+    needs once on a short made-up record (4 s of a decaying 2 Hz sine) and discarding
+    the outputs. The first call of a kernel loads its machine code from numba's cache,
+    a few tenths of a second in all; afterwards the kernels run at full speed here and
+    in workers forked from here.
+    """
+    from sdofreport.records import record_from_array
+
+    time_s = np.arange(400) * 0.01
+    made_up = record_from_array(0.5 * np.sin(4.0 * np.pi * time_s) * np.exp(-time_s), 0.01,
+                                record_id="warm-up")
+    analysis = project.analysis
+    plan = [("record", _record_args(made_up, analysis)),
+            ("responses", _responses_args(made_up, _response_models(project), analysis))]
+    if _pairs(project):
+        plan.append(("pair", _pair_args(made_up, made_up, analysis)))
+    if project.inelastic is not None:
+        plan.append(("inelastic", _inelastic_args(made_up, project.inelastic)))
+    for kind, args in plan:
+        try:
+            run_job(kind, args)
+        except Exception as exc:  # only a warm-up: the real jobs report any problem
+            log.debug("warm-up of %s jobs stopped: %s", kind, exc)
+
+
+def _can_fork() -> bool:
+    import multiprocessing
+
+    return os.name == "posix" and "fork" in multiprocessing.get_all_start_methods()
+
+
+def _probably_cold(project: Project, cache: ResultCache) -> bool:
+    """
+    True when the build will compute: there is no cache, or the first record file has
+    not been read into it before (a build with nothing changed finds it there and then
+    needs no kernel at all).
+    """
+    if cache.folder is None:
+        return True
+    spec = next((spec for spec in project.records if spec.path is not None), None)
+    if spec is None:
+        return True
+    digest = _file_digest(spec)
+    return digest is not None and not cache.has(_read_key(spec, digest))
+
+
+# What the forked reader inherits: (project, cache).
+_TO_READ: tuple = (None, None)
+
+
+def _read_inherited() -> list[Record]:
+    project, cache = _TO_READ
+    return load_records(project, cache)
+
+
+def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]:
+    """
+    :func:`load_records` in a forked process while this one runs :func:`warm_kernels`:
+    the two one-off costs of a build that computes overlap. The records (and any error
+    about them) are the same as read here; if the reader dies, they are read here.
+    """
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+    from concurrent.futures.process import BrokenProcessPool
+
+    global _TO_READ
+    _TO_READ = (project, cache)
+    try:
+        with ProcessPoolExecutor(max_workers=1,
+                                 mp_context=multiprocessing.get_context("fork")) as pool:
+            future = pool.submit(_read_inherited)
+            warm_kernels(project)
+            try:
+                records = future.result()
+            except (BrokenProcessPool, OSError) as exc:
+                log.debug("record reader lost (%s); reading here", exc)
+                records = None
+    finally:
+        _TO_READ = (None, None)
+    if records is None:
+        return load_records(project, cache)
+    for record in records:  # as Record makes them: read-only (unpickling does not)
+        record.acceleration_m_s2.flags.writeable = False
+    return records
 
 
 def _pairs(project: Project) -> dict[str, tuple[str, str]]:

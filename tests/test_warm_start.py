@@ -1,0 +1,111 @@
+"""Cold builds with local workers read the records in a forked process while the build
+process loads the compiled kernels (sdofreport.engine._records_while_warming).
+
+Sources of expected values: the records, errors and results of the same project read and
+computed in one process (sdofreport.engine.load_records, run_project with jobs=1, the
+path every other test checks against closed forms and scipy); numba's own record of the
+machine-code specializations each kernel has loaded (``Dispatcher.signatures``).
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+import numpy as np
+import pytest
+
+from sdofreport import engine
+from sdofreport.cache import ResultCache
+from sdofreport.errors import RecordError
+from sdofreport.project import load_project
+
+pytestmark = pytest.mark.skipif(not engine._can_fork(), reason="needs fork")
+
+
+def test_records_read_while_warming_equal_records_read_here(project_factory,
+                                                            valid_project_text, tmp_path):
+    project = load_project(project_factory(valid_project_text))
+    here = engine.load_records(project, ResultCache(None))
+    forked = engine._records_while_warming(project, ResultCache(tmp_path / "cache"))
+    assert [r.id for r in forked] == [r.id for r in here]
+    for a, b in zip(forked, here):
+        np.testing.assert_array_equal(a.acceleration_m_s2, b.acceleration_m_s2)
+        assert (a.dt_s, a.sha256, a.units, a.history, a.warnings) == \
+            (b.dt_s, b.sha256, b.units, b.history, b.warnings)
+        assert not a.acceleration_m_s2.flags.writeable  # as Record makes them
+
+
+def test_record_error_in_the_reader_is_reported_as_here(project_factory,
+                                                        valid_project_text, tmp_path):
+    path = project_factory(valid_project_text)
+    (path.parent / "records" / "r1.csv").write_text("0.0, 0.1\n0.01, not-a-number\n")
+    project = load_project(path)
+    with pytest.raises(RecordError) as here:
+        engine.load_records(project, ResultCache(None))
+    with pytest.raises(RecordError) as forked:
+        engine._records_while_warming(project, ResultCache(tmp_path / "cache"))
+    assert forked.value.message == here.value.message
+
+
+def test_only_a_build_that_computes_counts_as_cold(project_factory, valid_project_text,
+                                                   tmp_path):
+    project = load_project(project_factory(valid_project_text))
+    cache = ResultCache(tmp_path / "cache")
+    assert engine._probably_cold(project, cache)
+    assert engine._probably_cold(project, ResultCache(None))
+    engine.run_project(project, jobs=1, cache_dir=tmp_path / "cache")
+    assert not engine._probably_cold(project, cache)
+
+
+def test_cold_two_worker_build_matches_one_process(project_factory, valid_project_text,
+                                                   tmp_path):
+    project = load_project(project_factory(valid_project_text))
+    two = engine.run_project(project, jobs=2, cache_dir=tmp_path / "cache")
+    one = engine.run_project(project, jobs=1, use_cache=False)
+    assert two.cache_misses == one.cache_misses
+    for key, response in one.responses.items():
+        np.testing.assert_array_equal(two.responses[key].displacement_m,
+                                      response.displacement_m)
+    for a, b in zip(two.records, one.records):
+        np.testing.assert_array_equal(a.spectrum.psa_m_s2, b.spectrum.psa_m_s2)
+
+
+_PROBE = """
+import json, sys
+import numba
+from sdofreport import engine
+from sdofreport.cache import ResultCache
+from sdofreport.jobs import run_job
+from sdofreport.project import load_project
+import sdofreport.core.spectra, sdofreport.core.exact, sdofreport.core.rotd
+
+def loaded():
+    found = {}
+    for module in (sdofreport.core.spectra, sdofreport.core.exact):
+        for name, value in vars(module).items():
+            if isinstance(value, numba.core.registry.CPUDispatcher):
+                found[f"{module.__name__}.{name}"] = sorted(map(str, value.signatures))
+    return found
+
+project = load_project(sys.argv[1])
+engine.warm_kernels(project)
+after_warm_up = loaded()
+record = engine.load_records(project, ResultCache(None))[0]
+run_job("record", engine._record_args(record, project.analysis))
+run_job("responses", engine._responses_args(record, engine._response_models(project),
+                                            project.analysis))
+print(json.dumps({"warm": after_warm_up, "real": loaded()}))
+"""
+
+
+def test_warm_up_loads_the_kernels_the_real_jobs_use(project_factory, valid_project_text):
+    path = project_factory(valid_project_text)
+    result = subprocess.run([sys.executable, "-c", _PROBE, str(path)], capture_output=True,
+                            text=True, check=True)
+    seen = json.loads(result.stdout.strip().splitlines()[-1])
+    assert any(seen["warm"].values()), "the warm-up loaded no kernel"
+    # The real jobs on a real (read-only) record need no specialization the warm-up
+    # did not already load.
+    assert seen["real"] == seen["warm"]
