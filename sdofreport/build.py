@@ -5,13 +5,15 @@ from __future__ import annotations
 import logging
 import os
 import time
+from contextlib import ExitStack
 from dataclasses import dataclass
 from pathlib import Path
 
 from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir, run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
-from sdofreport.site.render import gather_site, prepare_output, recover_site
+from sdofreport.site.render import (gather_site, prepare_output, recover_site,
+                                    start_record_figures)
 from sdofreport.site.tree import StagedTree
 
 log = logging.getLogger("sdofreport.build")
@@ -69,9 +71,6 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     project = load_project(project_file)
     _check_inside(project, allow_outside)
     prepare_output(output)  # a folder that cannot take the site fails before any work
-    results = run_project(project, jobs=jobs, cache_dir=cache_dir, use_cache=use_cache,
-                          progress=progress, scheduler=scheduler, dask_local=dask_local)
-    render_started = time.perf_counter()
     figure_cache = None
     if use_cache:
         figure_cache = ResultCache(Path(cache_dir or default_cache_dir()) / "figures")
@@ -81,11 +80,29 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
 
         def extra(document, fingerprint):
             return revision_page(old, document, fingerprint=fingerprint)
-    with StagedTree(output) as tree:
-        count = gather_site(results, tree, jobs=jobs or os.cpu_count() or 1,
-                            figure_cache=figure_cache, extra_pages=extra)
+    workers = jobs or os.cpu_count() or 1
+    with ExitStack() as stack:  # on leaving: stop any figure workers, then the tree
+        staged: list[StagedTree] = []
+        early: list = []
+
+        def tree() -> StagedTree:
+            if not staged:
+                staged.append(stack.enter_context(StagedTree(output)))
+            return staged[0]
+
+        def records_ready(records) -> None:
+            # Record figures need no response: workers draw them meanwhile.
+            early.append(stack.enter_context(start_record_figures(
+                project, records, tree(), jobs=workers, figure_cache=figure_cache)))
+
+        results = run_project(project, jobs=jobs, cache_dir=cache_dir, use_cache=use_cache,
+                              progress=progress, scheduler=scheduler, dask_local=dask_local,
+                              records_ready=records_ready if workers > 1 else None)
+        render_started = time.perf_counter()
+        count = gather_site(results, tree(), jobs=workers, figure_cache=figure_cache,
+                            extra_pages=extra, early=early[0] if early else None)
         write_started = time.perf_counter()
-        path = tree.commit()
+        path = tree().commit()
     finished = time.perf_counter()
     # Pages, tables and figures are written as they are rendered; "write" is the swap.
     results.timings_s.update({"render_s": write_started - render_started,

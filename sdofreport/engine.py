@@ -390,7 +390,9 @@ class _Phase:
 def run_project(project: Project, *, jobs: int | None = None,
                 cache_dir: str | os.PathLike | None = None, use_cache: bool = True,
                 progress: Progress | None = None, scheduler: str | None = None,
-                dask_local: int | None = None) -> Results:
+                dask_local: int | None = None,
+                records_ready: Callable[[list[RecordResult]], None] | None = None) \
+        -> Results:
     """
     Compute every result of a project.
 
@@ -410,6 +412,9 @@ def run_project(project: Project, *, jobs: int | None = None,
         Address of a running Dask scheduler (``tcp://host:port``) to send the jobs to.
     dask_local : int, optional
         Start a local Dask cluster of this many worker processes instead.
+    records_ready : callable(list of RecordResult), optional
+        Called with the records' results (scaled) as soon as they exist, before the
+        responses are computed (the site starts drawing the record figures then).
 
     Returns
     -------
@@ -472,6 +477,8 @@ def run_project(project: Project, *, jobs: int | None = None,
     pair_results = [PairResult(name, h1, h2, _scaled_rotd(pair_outputs[name]["rotd"],
                                                           scaling.factors.get(h1, 1.0)))
                     for name, (h1, h2) in pairs.items()]
+    if records_ready is not None:
+        records_ready(record_results)
 
     # Phase 3: every system's response to every (scaled) record, one job per record.
     plan = []

@@ -600,6 +600,18 @@ class SiteContext:
         return pages
 
 
+def record_figures(project, records) -> list[FigureSpec]:
+    """
+    The figures of the record pages (:meth:`SiteContext.record_page`), which need only
+    the records' results (``RecordResult`` list, scaled): they can be drawn while the
+    engine still computes the systems' responses.
+    """
+    context = SiteContext(Results(project, list(records), {}, [], ""))
+    for item in records:
+        context.record_page(item)
+    return context.figures
+
+
 #: Energy-balance imbalance above which a response is flagged (issue requirement; a few
 #: percent at most is expected for a fine step, Uang & Bertero 1990).
 ENERGY_IMBALANCE_FLAG = 0.02

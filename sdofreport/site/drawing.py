@@ -10,6 +10,7 @@ figure does not change its bytes.
 from __future__ import annotations
 
 import hashlib
+import itertools
 import os
 from pathlib import Path
 
@@ -88,17 +89,20 @@ def _write_figures(specs: list[FigureSpec], folder: str, cache) -> list[str]:
 
 
 # What forked workers inherit from the build process, so that nothing but the digests
-# travels between them: (figures, folder, cache, shared counter of the next figure).
-_INHERITED: tuple = ((), "", None, None)
+# travels between them, per writer (two may be drawing at once): writer number ->
+# (figures, folder, cache, shared counter of the next figure).
+_INHERITED: dict[int, tuple] = {}
+_WRITERS = itertools.count()
 
 
-def _write_claimed(_worker: int) -> list[tuple[int, str]]:
+def _write_claimed(_worker: int, writer: int) -> list[tuple[int, str]]:
     """
-    Claim chunks of the inherited figure list from the shared counter and write them,
-    until none is left: (position, SHA-256) of each figure this worker wrote. Workers
-    that serve themselves never wait for the build process to hand out work.
+    Claim chunks of the inherited figure list of ``writer`` from its shared counter and
+    write them, until none is left: (position, SHA-256) of each figure this worker
+    wrote. Workers that serve themselves never wait for the build process to hand out
+    work.
     """
-    specs, folder, cache, counter = _INHERITED
+    specs, folder, cache, counter = _INHERITED[writer]
     written: list[tuple[int, str]] = []
     while True:
         with counter.get_lock():
@@ -129,6 +133,7 @@ class FigureWriter:
     def __init__(self, specs: list[FigureSpec], folder: Path, *, jobs: int = 1,
                  cache=None) -> None:
         self.specs, self.folder, self.cache = list(specs), str(folder), cache
+        self._number = next(_WRITERS)
         self._pool = None
         self._parts = None
         self._counter = None
@@ -142,7 +147,6 @@ class FigureWriter:
 
         from sdofreport.site import figures  # noqa: F401  (imported once, inherited)
 
-        global _INHERITED
         specs = self.specs
         self._order = sorted(range(len(specs)),
                              key=lambda i: specs[i].function in DIRECT_SVG_FIGURES)
@@ -152,12 +156,18 @@ class FigureWriter:
         self._pool = ProcessPoolExecutor(max_workers=jobs, mp_context=context)
         if fork:
             self._counter = context.Value("q", 0)
-            _INHERITED = (ordered, self.folder, self.cache, self._counter)
-            self._parts = self._pool.map(_write_claimed, range(jobs))
+            _INHERITED[self._number] = (ordered, self.folder, self.cache, self._counter)
+            self._parts = self._pool.map(_write_claimed, range(jobs),
+                                         [self._number] * jobs)
         else:  # no shared memory to inherit: send the chunks themselves
             chunks = [ordered[i:i + FIGURE_CHUNK] for i in range(0, len(ordered), FIGURE_CHUNK)]
             self._parts = self._pool.map(_write_figures, chunks, [self.folder] * len(chunks),
                                          [self.cache] * len(chunks))
+
+    @property
+    def paths(self) -> set[str]:
+        """Site paths of the figures this writer writes."""
+        return {spec.path for spec in self.specs}
 
     def result(self) -> dict[str, str]:
         """Site path → SHA-256 of every figure file, once all are written."""
@@ -176,14 +186,13 @@ class FigureWriter:
 
     def close(self) -> None:
         """Stop the workers (cancelling figures not yet started)."""
-        global _INHERITED
         if self._counter is not None:  # workers stop after the chunk they are drawing
             with self._counter.get_lock():
                 self._counter.value = len(self.specs)
         if self._pool is not None:
             self._pool.shutdown(wait=True, cancel_futures=True)
             self._pool = None
-        _INHERITED = ((), "", None, None)
+        _INHERITED.pop(self._number, None)
 
     def __enter__(self) -> FigureWriter:
         return self

@@ -24,7 +24,7 @@ from sdofreport.engine import Results
 from sdofreport.errors import BuildError
 from sdofreport.jsontext import json_text as _json_text
 from sdofreport.results_json import peaks_csv, results_document, spectra_csv
-from sdofreport.site.context import SiteContext, dependency_versions
+from sdofreport.site.context import SiteContext, dependency_versions, record_figures
 from sdofreport.site.drawing import FigureWriter
 from sdofreport.site.tree import RETIRED_PREFIX, STAGING_PREFIX, StagedTree
 
@@ -99,8 +99,19 @@ def is_site(folder: Path) -> bool:
     return isinstance(manifest, dict) and manifest.get("schema") == MANIFEST_SCHEMA
 
 
+def start_record_figures(project, records, tree: StagedTree, *, jobs: int = 1,
+                         figure_cache=None) -> FigureWriter:
+    """
+    Start drawing the record pages' figures into ``tree`` (by ``jobs`` workers when
+    worth it) as soon as the records' results exist, while the engine computes the
+    responses; hand the writer to :func:`gather_site` as ``early``.
+    """
+    return FigureWriter(record_figures(project, records), tree.folder, jobs=jobs,
+                        cache=figure_cache)
+
+
 def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cache=None,
-                extra_pages=None) -> int:
+                extra_pages=None, early: FigureWriter | None = None) -> int:
     """
     Write every file of the site into ``tree``, the manifest last; the number of files.
 
@@ -109,7 +120,8 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
     ``figure_cache`` (:class:`sdofreport.engine.ResultCache`), figures whose inputs did not
     change are taken from it. ``extra_pages(results_document, fingerprint) -> dict[path,
     bytes]`` may add pages (the revision page of ``--compare-to``); they are linked from
-    the summary page's navigation when one of them is ``revision.html``.
+    the summary page's navigation when one of them is ``revision.html``. Figures an
+    ``early`` writer (:func:`start_record_figures`) already handles are not drawn again.
     """
     hashes: dict[str, str] = {}
 
@@ -118,7 +130,9 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
 
     context = SiteContext(results)
     pages = context.pages()
-    with FigureWriter(context.figures, tree.folder, jobs=jobs, cache=figure_cache) as figures:
+    handled = early.paths if early is not None else set()
+    rest = [spec for spec in context.figures if spec.path not in handled]
+    with FigureWriter(rest, tree.folder, jobs=jobs, cache=figure_cache) as figures:
         document = results_document(results)
         put("data/results.json", _json_text(document).encode("utf-8"))
         for site_path, source in _input_files(results).items():
@@ -139,6 +153,8 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
             put(path, data)
         put("data/spectra.csv", spectra_csv(results).encode("utf-8"))
         put("data/peaks.csv", peaks_csv(results).encode("utf-8"))
+        if early is not None:
+            hashes.update(early.result())
         hashes.update(figures.result())
     tree.write(MANIFEST_NAME, _json_text(manifest_document(results, hashes)).encode("utf-8"))
     return len(hashes) + 1
