@@ -20,6 +20,7 @@ from sdofreport import engine
 from sdofreport.cache import ResultCache
 from sdofreport.errors import RecordError
 from sdofreport.project import load_project
+from tests.conftest import EXAMPLE
 
 pytestmark = pytest.mark.skipif(not engine._can_fork(), reason="needs fork")
 
@@ -76,36 +77,35 @@ _PROBE = """
 import json, sys
 import numba
 from sdofreport import engine
-from sdofreport.cache import ResultCache
-from sdofreport.jobs import run_job
 from sdofreport.project import load_project
-import sdofreport.core.spectra, sdofreport.core.exact, sdofreport.core.rotd
+import sdofreport.core.exact, sdofreport.core.inelastic_spectra, sdofreport.core.newmark
+import sdofreport.core.nonlinear, sdofreport.core.rotd, sdofreport.core.spectra
+
+MODULES = (sdofreport.core.exact, sdofreport.core.inelastic_spectra,
+           sdofreport.core.newmark, sdofreport.core.nonlinear, sdofreport.core.rotd,
+           sdofreport.core.spectra)
 
 def loaded():
-    found = {}
-    for module in (sdofreport.core.spectra, sdofreport.core.exact):
-        for name, value in vars(module).items():
-            if isinstance(value, numba.core.registry.CPUDispatcher):
-                found[f"{module.__name__}.{name}"] = sorted(map(str, value.signatures))
-    return found
+    return {f"{module.__name__}.{name}": sorted(map(str, value.signatures))
+            for module in MODULES for name, value in vars(module).items()
+            if isinstance(value, numba.core.registry.CPUDispatcher)}
 
 project = load_project(sys.argv[1])
 engine.warm_kernels(project)
 after_warm_up = loaded()
-record = engine.load_records(project, ResultCache(None))[0]
-run_job("record", engine._record_args(record, project.analysis))
-run_job("responses", engine._responses_args(record, engine._response_models(project),
-                                            project.analysis))
+engine.run_project(project, jobs=1, use_cache=False)
 print(json.dumps({"warm": after_warm_up, "real": loaded()}))
 """
 
 
-def test_warm_up_loads_the_kernels_the_real_jobs_use(project_factory, valid_project_text):
-    path = project_factory(valid_project_text)
-    result = subprocess.run([sys.executable, "-c", _PROBE, str(path)], capture_output=True,
-                            text=True, check=True)
+def test_warm_up_loads_the_kernels_the_real_jobs_use():
+    # The bundled example has linear, bilinear and sliding-pendulum systems, horizontal
+    # pairs (RotD) and inelastic spectra: every job kind.
+    result = subprocess.run([sys.executable, "-c", _PROBE,
+                             str(EXAMPLE / "sdofreport.toml")],
+                            capture_output=True, text=True, check=True)
     seen = json.loads(result.stdout.strip().splitlines()[-1])
     assert any(seen["warm"].values()), "the warm-up loaded no kernel"
-    # The real jobs on a real (read-only) record need no specialization the warm-up
-    # did not already load.
+    # The whole computation on real (read-only) records then needs no specialization
+    # the warm-up did not already load.
     assert seen["real"] == seen["warm"]
