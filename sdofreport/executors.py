@@ -157,7 +157,7 @@ def execute(jobs: list[Job], done: Done, *, workers: int = 1, scheduler: str | N
 
     With ``min_pool_seconds`` > 0 the first job runs here (it also pays one-off costs
     such as loading compiled kernels, which forked workers then inherit) and the second
-    runs here too, timed, with its output's pickled size measured. The rest go to worker
+    runs here too, timed (CPU time), with its output's pickled size measured. The rest go to worker
     processes only when the time the workers would save, ``rest × t × (1 − 1/workers)``,
     exceeds ``min_pool_seconds`` (starting them) plus the time to move their outputs
     back, ``rest × size × transfer_seconds_per_byte``: short jobs with long histories
@@ -176,9 +176,11 @@ def execute(jobs: list[Job], done: Done, *, workers: int = 1, scheduler: str | N
 
         run_inline(jobs[:1], done)
         timed: list = []
-        started = time.perf_counter()
+        # CPU time, not wall time: other processes busy meanwhile (figure workers drawing
+        # while responses are computed) must not make the job look longer than it is.
+        started = time.process_time()
         run_inline(jobs[1:2], lambda index, output: timed.append(output))
-        seconds = time.perf_counter() - started
+        seconds = time.process_time() - started
         size = len(pickle.dumps(timed[0], protocol=pickle.HIGHEST_PROTOCOL))
         done(1, timed[0])
         rest = jobs[2:]
