@@ -237,7 +237,9 @@ def main() -> None:
                   for name, keys in (("rendering and writing", ("render_s",)),
                                      ("reading and integration", ("read_s", "compute_s")))}
         print("phase speed-ups: " + ", ".join(f"{name} {value:.2f}x" for name, value in
-                                               phases.items()))
+                                               phases.items())
+              + " (with workers the phases overlap: kernels load while records are read, "
+                "record figures are drawn while responses are computed; information)")
         serial = {jobs: best[jobs]["wall_s"] - sum(best[jobs]["timings"][key] for key in
                                                    ("render_s", "compute_s", "read_s"))
                   for jobs in (1, 2)}
