@@ -27,7 +27,7 @@ import time
 import numpy as np
 from scipy import signal
 
-from sdofreport.core._jit import numba
+from sdofreport.core._jit import load_numba
 from sdofreport.core import spectra
 from sdofreport.core.exact import exact_coefficients
 from sdofreport.core.spectra import _recurrence_peaks, substep_counts
@@ -98,6 +98,7 @@ def mark(ok):
 
 
 def main():
+    numba = load_numba()
     numba.set_num_threads(1)
     print(f"CPU cores visible: {os.cpu_count()}; numba threads: {numba.get_num_threads()}")
     ag, dt = make_record()

@@ -1,15 +1,24 @@
-"""Numba set-up shared by the compiled kernels.
+"""Numba set-up shared by the compiled kernels, and numba loaded only when a kernel runs.
 
 Numba caches compiled machine code next to the source file by default. An installed
 package folder is often read-only (and in CI so is HOME), and then cached functions fail
 at import. Unless the user has chosen ``NUMBA_CACHE_DIR``, we point it at a writable
-per-user cache folder, falling back to the system temporary folder. This must run before
-numba is imported, which is why every kernel module imports numba through here.
+per-user cache folder, falling back to the system temporary folder. This must happen
+before numba is imported, which is why every kernel module gets numba through here.
+
+Importing numba costs about 0.3 s, and a build whose results all come from the cache
+runs no kernel. So :func:`njit` returns a stand-in that records the function and its
+options; the first call of any kernel (or :func:`load_numba`) imports numba, compiles or
+loads every recorded kernel exactly as the decorator would have, and puts the numba
+dispatchers in place of the stand-ins in our modules, so kernels that call one another
+are compiled against dispatchers. Kernels defined after that are compiled at once.
 """
 
 from __future__ import annotations
 
 import os
+import sys
+from typing import Any, Callable
 
 from sdofreport._cachedir import user_cache_dir
 
@@ -41,13 +50,70 @@ def _wide_vectors() -> None:
         return
 
 
-_wide_vectors()
-
-import numba  # noqa: E402  (must follow the cache-folder choice above)
-
 #: Decorator options shared by every kernel: compiled once, cached on disk.
 JIT_OPTIONS = {"cache": True, "fastmath": False, "nogil": True}
 
-njit = numba.njit
+_NUMBA: Any = None  # the numba module, once loaded
+_PENDING: list[_Kernel] = []  # stand-ins made before numba was loaded
 
-__all__ = ["JIT_OPTIONS", "njit", "numba"]
+
+class _Kernel:
+    """Stands for a compiled kernel until numba is loaded; then forwards to it."""
+
+    __slots__ = ("py_func", "options", "dispatcher")
+
+    def __init__(self, py_func: Callable, options: dict) -> None:
+        self.py_func, self.options, self.dispatcher = py_func, options, None
+
+    def __call__(self, *args, **kwargs):
+        if self.dispatcher is None:
+            load_numba()
+        return self.dispatcher(*args, **kwargs)
+
+    def __getattr__(self, name: str):  # signatures, inspect_types, ... of the dispatcher
+        if self.dispatcher is None:
+            load_numba()
+        return getattr(self.dispatcher, name)
+
+    def __repr__(self) -> str:
+        return f"<compiled kernel {self.py_func.__module__}.{self.py_func.__qualname__}>"
+
+
+def njit(function: Callable | None = None, **options):
+    """``numba.njit`` with the same arguments, compiled when a kernel first runs."""
+
+    def decorate(py_func: Callable):
+        if _NUMBA is not None:
+            return _NUMBA.njit(**options)(py_func)
+        kernel = _Kernel(py_func, options)
+        _PENDING.append(kernel)
+        return kernel
+
+    return decorate(function) if function is not None else decorate
+
+
+def load_numba():
+    """
+    Import numba (after choosing its cache folder and vector width) and turn every
+    kernel stand-in into a numba dispatcher, also where our modules imported one by
+    name; the numba module. Called by the first kernel call; cheap afterwards.
+    """
+    global _NUMBA
+    if _NUMBA is not None:
+        return _NUMBA
+    _wide_vectors()
+    import numba
+
+    for kernel in _PENDING:
+        kernel.dispatcher = numba.njit(**kernel.options)(kernel.py_func)
+    for name, module in list(sys.modules.items()):
+        if name == "sdofreport" or name.startswith("sdofreport."):
+            for attribute, value in list(vars(module).items()):
+                if isinstance(value, _Kernel):
+                    setattr(module, attribute, value.dispatcher)
+    _PENDING.clear()
+    _NUMBA = numba
+    return numba
+
+
+__all__ = ["JIT_OPTIONS", "load_numba", "njit"]
