@@ -77,6 +77,8 @@ _PROBE = """
 import json, sys
 import numba
 from sdofreport import engine
+from sdofreport.cache import ResultCache
+from sdofreport.jobs import run_job
 from sdofreport.project import load_project
 import sdofreport.core.exact, sdofreport.core.inelastic_spectra, sdofreport.core.newmark
 import sdofreport.core.nonlinear, sdofreport.core.rotd, sdofreport.core.spectra
@@ -93,19 +95,18 @@ def loaded():
 project = load_project(sys.argv[1])
 engine.warm_kernels(project)
 after_warm_up = loaded()
-engine.run_project(project, jobs=1, use_cache=False)
+for record in engine.load_records(project, ResultCache(None)):
+    run_job("record", engine._record_args(record, project.analysis))
 print(json.dumps({"warm": after_warm_up, "real": loaded()}))
 """
 
 
-def test_warm_up_loads_the_kernels_the_real_jobs_use():
-    # The bundled example has linear, bilinear and sliding-pendulum systems, horizontal
-    # pairs (RotD) and inelastic spectra: every job kind.
+def test_warm_up_loads_the_kernels_the_record_jobs_use():
     result = subprocess.run([sys.executable, "-c", _PROBE,
                              str(EXAMPLE / "sdofreport.toml")],
                             capture_output=True, text=True, check=True)
     seen = json.loads(result.stdout.strip().splitlines()[-1])
     assert any(seen["warm"].values()), "the warm-up loaded no kernel"
-    # The whole computation on real (read-only) records then needs no specialization
-    # the warm-up did not already load.
+    # The record jobs on real (read-only) records then need no specialization the
+    # warm-up did not already load: the forked workers inherit them all.
     assert seen["real"] == seen["warm"]
