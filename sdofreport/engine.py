@@ -32,7 +32,7 @@ from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
 from sdofreport.errors import RecordError
-from sdofreport.executors import execute
+from sdofreport.executors import execute, fork_context
 from sdofreport.jobs import record_products, run_job
 from sdofreport.project.model import Project, RecordSpec, SystemSpec
 from sdofreport.records import Record, process_record, read_record
@@ -423,7 +423,8 @@ def run_project(project: Project, *, jobs: int | None = None,
     started = time.perf_counter()
     cache = ResultCache((cache_dir or default_cache_dir()) if use_cache else None)
     workers = jobs or os.cpu_count() or 1
-    if workers > 1 and not (scheduler or dask_local) and _can_fork() and \
+    local = not (scheduler or dask_local)
+    if workers > 1 and local and fork_context() is not None and \
             _probably_cold(project, cache):
         records = _records_while_warming(project, cache)
     else:
@@ -450,8 +451,8 @@ def run_project(project: Project, *, jobs: int | None = None,
                             "damping": list(analysis.damping)})
         plan.append((f"record {record.id} (spectra)", "record", args, key))
     for name, (h1, h2) in pairs.items():
-        args = _pair_args(by_id[h1], by_id[h2], analysis)
-        a1, a2 = args[0], args[1]
+        a1, a2 = by_id[h1].acceleration_m_s2, by_id[h2].acceleration_m_s2
+        args = (a1, a2, by_id[h1].dt_s, analysis.periods_s, SCALING_DAMPING, analysis.method)
         key = content_hash({**base, "job": "pair", "sha1": _array_hash(a1),
                             "sha2": _array_hash(a2), "dt": by_id[h1].dt_s,
                             "periods": list(analysis.periods_s), "damping": SCALING_DAMPING})
@@ -482,9 +483,10 @@ def run_project(project: Project, *, jobs: int | None = None,
 
     # Phase 3: every system's response to every (scaled) record, one job per record.
     plan = []
-    models = _response_models(project)
+    models = [{**system_model(system), "system_id": system.id}
+              for system in project.systems]
     for record in (scaled[r.id] for r in project.records):
-        args = _responses_args(record, models, analysis)
+        args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
         key = content_hash({**base, "job": "responses", "sha": _array_hash(args[0]),
                             "dt": record.dt_s, "models": models})
         plan.append((f"record {record.id} (responses of {len(models)} systems)",
@@ -492,7 +494,9 @@ def run_project(project: Project, *, jobs: int | None = None,
     inelastic_spec = project.inelastic
     if inelastic_spec is not None:
         for record in (scaled[r.id] for r in project.records):
-            args = _inelastic_args(record, inelastic_spec)
+            args = (record.acceleration_m_s2, record.dt_s, inelastic_spec.periods_s,
+                    inelastic_spec.damping, inelastic_spec.ductility,
+                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio)
             key = content_hash({**base, "job": "inelastic", "sha": _array_hash(args[0]),
                                 "dt": record.dt_s, "spec": dataclasses.asdict(
                                     inelastic_spec)})
@@ -519,30 +523,10 @@ def run_project(project: Project, *, jobs: int | None = None,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses)
 
 
-# Arguments of each job kind (see sdofreport.jobs), for the plan and the warm-up.
-
-
 def _record_args(record: Record, analysis) -> tuple:
+    """Arguments of a record job (see sdofreport.jobs), for the plan and the warm-up."""
     return (record.acceleration_m_s2, record.dt_s, analysis.periods_s, analysis.damping,
             analysis.method)
-
-
-def _pair_args(h1: Record, h2: Record, analysis) -> tuple:
-    return (h1.acceleration_m_s2, h2.acceleration_m_s2, h1.dt_s, analysis.periods_s,
-            SCALING_DAMPING, analysis.method)
-
-
-def _response_models(project: Project) -> list[dict]:
-    return [{**system_model(system), "system_id": system.id} for system in project.systems]
-
-
-def _responses_args(record: Record, models: list[dict], analysis) -> tuple:
-    return (record.acceleration_m_s2, record.dt_s, models, analysis.method)
-
-
-def _inelastic_args(record: Record, spec) -> tuple:
-    return (record.acceleration_m_s2, record.dt_s, spec.periods_s, spec.damping,
-            spec.ductility, spec.strength_reduction, spec.post_yield_ratio)
 
 
 # ---------------------------------------------------------------------------------------
@@ -568,12 +552,6 @@ def warm_kernels(project: Project) -> None:
         run_job("record", _record_args(made_up, project.analysis))
     except Exception as exc:  # only a warm-up: the real jobs report any problem
         log.debug("warm-up stopped: %s", exc)
-
-
-def _can_fork() -> bool:
-    import multiprocessing
-
-    return os.name == "posix" and "fork" in multiprocessing.get_all_start_methods()
 
 
 def _probably_cold(project: Project, cache: ResultCache) -> bool:
@@ -606,15 +584,13 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
     the two one-off costs of a build that computes overlap. The records (and any error
     about them) are the same as read here; if the reader dies, they are read here.
     """
-    import multiprocessing
     from concurrent.futures import ProcessPoolExecutor
     from concurrent.futures.process import BrokenProcessPool
 
     global _TO_READ
     _TO_READ = (project, cache)
     try:
-        with ProcessPoolExecutor(max_workers=1,
-                                 mp_context=multiprocessing.get_context("fork")) as pool:
+        with ProcessPoolExecutor(max_workers=1, mp_context=fork_context()) as pool:
             future = pool.submit(_read_inherited)
             warm_kernels(project)
             try:

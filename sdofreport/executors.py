@@ -33,6 +33,16 @@ def _failure(label: str, exc: BaseException) -> BuildError:
                       f"{type(exc).__name__}: {exc}")
 
 
+def fork_context():
+    """The multiprocessing context that forks (workers inherit this process's memory),
+    where the platform has one; else None."""
+    import multiprocessing
+
+    if os.name == "posix" and "fork" in multiprocessing.get_all_start_methods():
+        return multiprocessing.get_context("fork")
+    return None
+
+
 def run_inline(jobs: list[Job], done: Done) -> None:
     """Run every job in this process, in order."""
     for index, (label, function, args) in enumerate(jobs):
@@ -61,7 +71,7 @@ def run_process_pool(jobs: list[Job], done: Done, workers: int) -> None:
     """
     import multiprocessing
 
-    context = multiprocessing.get_context("fork" if os.name == "posix" else None)
+    context = fork_context() or multiprocessing.get_context()
     pending = list(range(len(jobs)))
     attempts = {index: 0 for index in pending}
     size = max(1, -(-len(pending) // (workers * 8)))  # about 8 tasks per worker
@@ -157,8 +167,9 @@ def execute(jobs: list[Job], done: Done, *, workers: int = 1, scheduler: str | N
 
     With ``min_pool_seconds`` > 0 the first job runs here (it also pays one-off costs
     such as loading compiled kernels, which forked workers then inherit) and the second
-    runs here too, timed (CPU time), with its output's pickled size measured. The rest go to worker
-    processes only when the time the workers would save, ``rest × t × (1 − 1/workers)``,
+    runs here too, timed (CPU time), with its output's pickled size measured. The rest go
+    to worker processes only when the time the workers would save,
+    ``rest × t × (1 − 1/workers)``,
     exceeds ``min_pool_seconds`` (starting them) plus the time to move their outputs
     back, ``rest × size × transfer_seconds_per_byte``: short jobs with long histories
     run faster here.

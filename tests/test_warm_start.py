@@ -19,10 +19,11 @@ import pytest
 from sdofreport import engine
 from sdofreport.cache import ResultCache
 from sdofreport.errors import RecordError
+from sdofreport.executors import fork_context
 from sdofreport.project import load_project
 from tests.conftest import EXAMPLE
 
-pytestmark = pytest.mark.skipif(not engine._can_fork(), reason="needs fork")
+pytestmark = pytest.mark.skipif(fork_context() is None, reason="needs fork")
 
 
 def test_records_read_while_warming_equal_records_read_here(project_factory,

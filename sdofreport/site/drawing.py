@@ -11,12 +11,12 @@ from __future__ import annotations
 
 import hashlib
 import itertools
-import os
 from pathlib import Path
 
 import numpy as np
 
 from sdofreport import __version__
+from sdofreport.executors import fork_context
 from sdofreport.site.context import FigureSpec
 from sdofreport.site.tree import write_file
 
@@ -151,10 +151,10 @@ class FigureWriter:
         self._order = sorted(range(len(specs)),
                              key=lambda i: specs[i].function in DIRECT_SVG_FIGURES)
         ordered = [specs[i] for i in self._order]
-        fork = os.name == "posix" and "fork" in multiprocessing.get_all_start_methods()
-        context = multiprocessing.get_context("fork" if fork else None)
+        fork = fork_context()
+        context = fork or multiprocessing.get_context()
         self._pool = ProcessPoolExecutor(max_workers=jobs, mp_context=context)
-        if fork:
+        if fork is not None:
             self._counter = context.Value("q", 0)
             _INHERITED[self._number] = (ordered, self.folder, self.cache, self._counter)
             self._parts = self._pool.map(_write_claimed, range(jobs),
