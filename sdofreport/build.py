@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import logging
 import os
 import time
@@ -12,6 +13,7 @@ from pathlib import Path
 from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir, run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
+from sdofreport.project.quantities import without_memo
 from sdofreport.site.render import (gather_site, prepare_output, recover_site,
                                     start_record_figures)
 from sdofreport.site.tree import StagedTree
@@ -68,12 +70,16 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
         from sdofreport.archive.compare import load_run
 
         old = load_run(compare_to).results
-    project = load_project(project_file)
+    with contextlib.nullcontext() if use_cache else without_memo():
+        project = load_project(project_file)  # --no-cache: no remembered unit strings
     _check_inside(project, allow_outside)
     prepare_output(output)  # a folder that cannot take the site fails before any work
     figure_cache = None
-    if use_cache:
-        figure_cache = ResultCache(Path(cache_dir or default_cache_dir()) / "figures")
+    if use_cache:  # a folder another user could write is not used (and reported)
+        folder = ResultCache(cache_dir or default_cache_dir()).folder
+        use_cache = folder is not None
+        if use_cache:
+            cache_dir, figure_cache = folder, ResultCache(folder / "figures")
     extra = None
     if old is not None:
         from sdofreport.archive.compare import revision_page

@@ -56,11 +56,13 @@ def _feed(digest, value) -> None:
 
 
 def figure_key(spec: FigureSpec) -> str:
-    """Content hash of a figure: function, arguments and the versions that draw it."""
+    """Content hash of a figure: function, arguments, the versions that draw it and the
+    cache format and source fingerprint (:func:`sdofreport.cache.code_fingerprint`)."""
+    from sdofreport.cache import CACHE_FORMAT, code_fingerprint
     from sdofreport.site.figures import matplotlib_version
 
-    digest = hashlib.sha256(f"figure|{__version__}|{matplotlib_version()}|"
-                            f"{spec.function}".encode())
+    digest = hashlib.sha256(f"figure|{__version__}|{matplotlib_version()}|{CACHE_FORMAT}|"
+                            f"{code_fingerprint()}|{spec.function}".encode())
     _feed(digest, spec.kwargs)
     return digest.hexdigest()
 
