@@ -33,7 +33,7 @@ from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
 from sdofreport.errors import RecordError
-from sdofreport.executors import execute, fork_context
+from sdofreport.executors import execute, fork_context, local_pool
 from sdofreport.jobs import record_products, run_job
 from sdofreport.project.model import Project, RecordSpec, SystemSpec
 from sdofreport.records import Record, process_record, read_record
@@ -585,13 +585,12 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
     the two one-off costs of a build that computes overlap. The records (and any error
     about them) are the same as read here; if the reader dies, they are read here.
     """
-    from concurrent.futures import ProcessPoolExecutor
     from concurrent.futures.process import BrokenProcessPool
 
     global _TO_READ
     _TO_READ = (project, cache)
     try:
-        with ProcessPoolExecutor(max_workers=1, mp_context=fork_context()) as pool:
+        with local_pool(1) as pool:
             future = pool.submit(_read_inherited)
             warm_kernels(project)
             try:

@@ -159,3 +159,59 @@ def test_unreachable_scheduler_is_a_user_error(monkeypatch):
     jobs = [("a", _square, (2,))]
     with pytest.raises(BuildError, match="cannot reach a Dask scheduler"):
         _collect(jobs, scheduler="tcp://127.0.0.1:9")
+
+
+# A process that starts every kind of local pool the package makes, leaves their workers
+# idle (blocked on the task queue) or busy, prints their process ids and waits.
+_ORPHANS = r"""
+import sys, time
+from sdofreport.executors import local_pool
+from sdofreport.site.drawing import FigureWriter
+idle = local_pool(2)
+list(idle.map(time.sleep, [0.01, 0.01]))        # both workers started, now waiting
+busy = local_pool(1)
+busy.submit(time.sleep, 600)
+time.sleep(0.3)
+print(" ".join(str(pid) for pool in (idle, busy) for pid in pool._processes), flush=True)
+time.sleep(600)
+"""
+
+
+def _alive(pid: int) -> bool:
+    """True while ``pid`` exists and is not a zombie (per /proc/<pid>/stat, proc(5))."""
+    try:
+        with open(f"/proc/{pid}/stat", encoding="ascii") as handle:
+            return handle.read().rsplit(")", 1)[1].split()[0] != "Z"
+    except FileNotFoundError:
+        return False
+
+
+@pytest.mark.skipif(not os.path.isdir("/proc/self"), reason="needs /proc (Linux)")
+def test_workers_exit_when_the_build_process_is_killed_alone(tmp_path):
+    # Reproduction: the build process killed alone (SIGKILL) left its pool workers
+    # blocked forever, 100-140 MB each.
+    import signal
+    import sys
+
+    process = subprocess.Popen([sys.executable, "-c", _ORPHANS], stdout=subprocess.PIPE,
+                               text=True, cwd=tmp_path)
+    try:
+        workers = [int(pid) for pid in process.stdout.readline().split()]
+        assert len(workers) == 3 and all(_alive(pid) for pid in workers)
+    finally:
+        os.kill(process.pid, signal.SIGKILL)  # the build process alone
+        process.wait()
+    deadline = time.monotonic() + 10.0
+    while any(_alive(pid) for pid in workers) and time.monotonic() < deadline:
+        time.sleep(0.1)
+    # Within seconds (the issue): each worker sees its parent gone (prctl(2)
+    # PR_SET_PDEATHSIG on Linux, else the parent-id watch) and exits.
+    assert [pid for pid in workers if _alive(pid)] == []
+
+
+def test_every_pool_of_the_package_is_made_by_local_pool():
+    """A pool made elsewhere would not stop with the build process."""
+    package = Path(__file__).resolve().parents[1] / "sdofreport"
+    makers = sorted(str(path.relative_to(package)) for path in package.rglob("*.py")
+                    if "ProcessPoolExecutor(" in path.read_text("utf-8"))
+    assert makers == ["executors.py"]
