@@ -14,9 +14,9 @@ from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir,
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
 from sdofreport.project.quantities import without_memo
-from sdofreport.site.render import (gather_site, prepare_output, recover_site,
-                                    start_record_figures)
-from sdofreport.site.tree import StagedTree
+from sdofreport.site.render import (gather_site, output_folder, prepare_output,
+                                    recover_site, start_record_figures)
+from sdofreport.site.tree import OutputLock, StagedTree
 
 log = logging.getLogger("sdofreport.build")
 
@@ -61,9 +61,23 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     then swap it in for ``output``.
 
     Raises :class:`~sdofreport.errors.SdofreportError` subclasses for bad input; in that
-    case nothing is written and any previous site at ``output`` is left intact.
+    case nothing is written and any previous site at ``output`` is left intact. Only one
+    build at a time writes into one folder (:class:`~sdofreport.site.tree.OutputLock`);
+    another one meanwhile is refused.
     """
     started = time.perf_counter()
+    output = output_folder(output)  # not a symbolic link, not the current folder
+    with OutputLock(output):
+        return _build_locked(project_file, output, started, jobs=jobs, cache_dir=cache_dir,
+                             use_cache=use_cache, allow_outside=allow_outside,
+                             progress=progress, scheduler=scheduler,
+                             dask_local=dask_local, compare_to=compare_to)
+
+
+def _build_locked(project_file, output: Path, started: float, *, jobs, cache_dir,
+                  use_cache, allow_outside, progress, scheduler, dask_local,
+                  compare_to) -> BuildOutcome:
+    """:func:`build_site` once the output folder is locked."""
     recover_site(output)  # a previous build killed mid-swap: put its site back first
     old = None
     if compare_to is not None:  # read it first: a bad OLD fails before any work
