@@ -228,26 +228,6 @@ def _tidy(output: Path) -> None:
             shutil.rmtree(folder, ignore_errors=True)
 
 
-def output_folder(output: str | os.PathLike) -> Path:
-    """
-    ``output`` as an absolute path, once it is known to be a folder a build may replace:
-    not a symbolic link (the swap would replace the link, not the folder it points to)
-    and not the current folder or one above it (``-o .``: the swap would pull the folder
-    away from under the shell that is in it). Raises :class:`BuildError` otherwise.
-    """
-    path = Path(os.path.abspath(output))
-    if path.is_symlink():
-        raise BuildError(f"{output}: is a symbolic link (to {os.readlink(path)}); a build "
-                         f"replaces the folder it is given, so give the folder itself, "
-                         f"for example -o {path.resolve()}")
-    real, here = path.resolve(), Path.cwd().resolve()
-    if real == here or real in here.parents:
-        which = "the current folder" if real == here else "a folder above the current one"
-        raise BuildError(f"{output}: is {which}; a build replaces the whole folder it is "
-                         f"given, so give a folder of its own, for example -o _site")
-    return path
-
-
 def prepare_output(output: str | os.PathLike) -> Path:
     """
     Check that ``output`` may receive a site, before any work is done: put back a

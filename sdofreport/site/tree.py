@@ -164,7 +164,7 @@ class OutputLock:
     The right to build into ``output``: an exclusive ``fcntl.flock`` on the file
     ``.<name>.lock`` beside it, held from the first look at the folder to the swap.
 
-    A second build into the same folder meanwhile is refused with a
+    A second build (or register) into the same folder meanwhile is refused with a
     :class:`~sdofreport.errors.BuildError` naming the process that holds the lock (it
     would otherwise tidy away the first build's staging folder). The kernel releases the
     lock when its holder dies, so a killed build never blocks the next one. The lock
@@ -206,9 +206,9 @@ class OutputLock:
                 holder = os.pread(descriptor, 32, 0).decode("ascii", "replace").strip()
                 os.close(descriptor)
                 who = f"process {holder}" if holder.isdigit() else "another process"
-                raise BuildError(f"{self.output}: another build ({who}) is writing this "
-                                 f"site now (lock {self.path}); wait until it has "
-                                 f"finished, or build into another folder with -o.") \
+                raise BuildError(f"{self.output}: another sdofreport run ({who}) is "
+                                 f"writing this folder now (lock {self.path}); wait until "
+                                 f"it has finished, or write into another folder with -o.") \
                     from None
             try:  # the file locked must still be the one at the path (not removed by
                 # a build finishing meanwhile), else try again with the new one
@@ -233,9 +233,31 @@ class OutputLock:
         self._descriptor = None
 
 
+def output_folder(output: str | os.PathLike) -> Path:
+    """
+    ``output`` as an absolute path, once it is known to be a folder a build may replace:
+    not a symbolic link (the swap would replace the link, not the folder it points to)
+    and not the current folder or one above it (``-o .``: the swap would pull the folder
+    away from under the shell that is in it). Raises :class:`BuildError` otherwise.
+    """
+    path = Path(os.path.abspath(output))
+    if path.is_symlink():
+        raise BuildError(f"{output}: is a symbolic link (to {os.readlink(path)}); a build "
+                         f"replaces the folder it is given, so give the folder itself, "
+                         f"for example -o {path.resolve()}")
+    real, here = path.resolve(), Path.cwd().resolve()
+    if real == here or real in here.parents:
+        which = "the current folder" if real == here else "a folder above the current one"
+        raise BuildError(f"{output}: is {which}; a build replaces the whole folder it is "
+                         f"given, so give a folder of its own, for example -o _site")
+    return path
+
+
 def write_tree(files: dict[str, bytes], output: str | os.PathLike) -> Path:
-    """Write ``files`` (relative path → bytes) as a tree that replaces ``output``."""
-    with StagedTree(output) as tree:
+    """Write ``files`` (relative path → bytes) as a tree that replaces ``output``
+    (checked by :func:`output_folder`, locked by :class:`OutputLock`)."""
+    output = output_folder(output)
+    with OutputLock(output), StagedTree(output) as tree:
         for path, data in sorted(files.items()):
             tree.write(path, data)
         return tree.commit()

@@ -38,7 +38,7 @@ def test_a_second_build_into_the_same_folder_is_refused(good_build, tmp_path):
     first_staging.mkdir()
     with OutputLock(site):
         result = _build(good_build, site)
-        assert_user_error(result, "another build", f"process {os.getpid()}",
+        assert_user_error(result, "another sdofreport run", f"process {os.getpid()}",
                           "wait until it has finished")
         assert first_staging.is_dir()  # the first build's work is untouched
         assert snapshot(site) == good_build["snapshot"]
@@ -175,3 +175,20 @@ def test_an_empty_read_only_cache_folder_does_not_stop_a_build(good_build, tmp_p
     assert result.exit_code == 0, (result.output, result.exception)
     assert snapshot(tmp_path / "site") == good_build["snapshot"]
     assert sorted(p.name for p in tmp_path.iterdir()) == ["cache", "site"]
+
+
+def test_every_tree_writer_checks_and_locks_its_output(tmp_path, monkeypatch):
+    """write_tree (the register's writer) follows the same rules as a build."""
+    from sdofreport.errors import BuildError
+    from sdofreport.site.tree import write_tree
+
+    monkeypatch.chdir(tmp_path)
+    with pytest.raises(BuildError, match="is the current folder"):
+        write_tree({"a.txt": b"a"}, ".")
+    (tmp_path / "link").symlink_to(tmp_path / "elsewhere")
+    with pytest.raises(BuildError, match="is a symbolic link"):
+        write_tree({"a.txt": b"a"}, "link")
+    with OutputLock(tmp_path / "register"):
+        with pytest.raises(BuildError, match="another sdofreport run"):
+            write_tree({"a.txt": b"a"}, "register")
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["link"]
