@@ -323,7 +323,7 @@ class ResultCache:
     def __init__(self, folder: str | os.PathLike | None) -> None:
         self.folder = None
         self.discarded = 0
-        self._write_failed = False
+        self._write_failed = self._read_failed = False
         if folder is not None:
             real, reason = private_folder(folder)
             if real is None:
@@ -352,7 +352,10 @@ class ResultCache:
         except FileNotFoundError:
             return None
         except OSError as exc:
-            log.warning("cache entry %s unreadable (%s); recomputing", path, exc)
+            if not self._read_failed:  # once: a folder that cannot be read fails for all
+                self._read_failed = True
+                log.warning("cache entry %s unreadable (%s); recomputing", path,
+                            exc.strerror or exc)
             return None
         try:
             return unpack_entry(data, key)

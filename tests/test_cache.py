@@ -23,6 +23,7 @@ from sdofreport.cache import ResultCache
 from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.records import record_from_array
+from tests.conftest import read_only_folder
 
 KEY_A = "a" * 64
 KEY_B = "b" * 64
@@ -248,10 +249,7 @@ def test_numba_and_pint_caches_follow_the_same_rule(tmp_path, monkeypatch):
 def test_a_read_only_cache_serves_and_does_not_stop(tmp_path, caplog):
     store = ResultCache(tmp_path / "cache")
     store.put(KEY_A, "kept")
-    os.chmod(tmp_path / "cache", 0o500)
-    try:
-        if os.access(tmp_path / "cache", os.W_OK):  # root writes anyway
-            pytest.skip("this user can write a read-only folder")
+    with read_only_folder(tmp_path / "cache"):
         read_only = ResultCache(tmp_path / "cache")
         assert read_only.get(KEY_A) == "kept"
         with caplog.at_level(logging.WARNING, logger="sdofreport.cache"):
@@ -259,5 +257,3 @@ def test_a_read_only_cache_serves_and_does_not_stop(tmp_path, caplog):
             read_only.put("c" * 64, "lost")
         assert read_only.get(KEY_B) is None
         assert caplog.text.count("not written") == 1
-    finally:
-        os.chmod(tmp_path / "cache", 0o700)

@@ -212,7 +212,13 @@ def recover_site(output: str | os.PathLike) -> None:
     if output.exists():
         return
     parent = output.resolve().parent
+    uid = os.getuid() if hasattr(os, "getuid") else None
     for candidate in sorted(parent.glob(f".{output.name}{RETIRED_PREFIX}*/site")):
+        # Only what this user's own build left aside: in a folder others may write, a
+        # planted "previous site" must not become the site.
+        if candidate.is_symlink() or (uid is not None and (
+                candidate.lstat().st_uid != uid or candidate.parent.lstat().st_uid != uid)):
+            continue
         if is_site(candidate):
             os.replace(candidate, output)
             log.warning("restored the previous site from %s (an earlier build was "

@@ -173,7 +173,9 @@ class OutputLock:
 
     def __init__(self, output: str | os.PathLike) -> None:
         output = Path(os.path.abspath(output))
-        self.path = output.parent / f".{output.name}{LOCK_SUFFIX}"
+        # The real parent: two spellings of one folder (through a linked parent, say)
+        # must meet at one lock, as their staging folders meet in one parent.
+        self.path = Path(os.path.realpath(output.parent)) / f".{output.name}{LOCK_SUFFIX}"
         self.output = output
         self._descriptor: int | None = None
 

@@ -13,11 +13,11 @@ from __future__ import annotations
 import os
 import shutil
 import signal
-import subprocess
 
 import pytest
 
 from sdofreport.site.tree import OutputLock
+from tests.conftest import read_only_folder
 from tests.hardening.conftest import assert_user_error, invoke, snapshot, staging_leftovers
 
 NOBODY = 65534
@@ -143,35 +143,14 @@ def test_a_swap_that_fails_leaves_the_old_site_and_nothing_beside(tmp_path, monk
     assert sorted(p.name for p in tmp_path.iterdir()) == ["site"]
 
 
-def _read_only(folder):
-    """Make ``folder`` read-only even for root (chattr +i where root runs the tests)."""
-    if ROOT:
-        subprocess.run(["chattr", "+i", str(folder)], check=True)
-    else:
-        folder.chmod(0o500)
-
-
-def _writable(folder):
-    if ROOT:
-        subprocess.run(["chattr", "-i", str(folder)], check=True)
-    folder.chmod(0o700)
-
-
-@pytest.mark.skipif(ROOT and shutil.which("chattr") is None, reason="needs chattr as root")
 def test_an_empty_read_only_cache_folder_does_not_stop_a_build(good_build, tmp_path):
     # Reproduction: an empty read-only --cache-dir stopped the build with an error.
     cache = tmp_path / "cache"
     cache.mkdir(mode=0o700)
-    try:
-        _read_only(cache)
-    except subprocess.CalledProcessError:
-        pytest.skip("this file system has no immutable folders")
-    try:
+    with read_only_folder(cache):
         result = invoke("build", good_build["project"], "-o", tmp_path / "site",
                         "--cache-dir", cache, "--jobs", "1", "-q")
         assert os.listdir(cache) == []
-    finally:
-        _writable(cache)
     assert result.exit_code == 0, (result.output, result.exception)
     assert snapshot(tmp_path / "site") == good_build["snapshot"]
     assert sorted(p.name for p in tmp_path.iterdir()) == ["cache", "site"]
@@ -192,3 +171,39 @@ def test_every_tree_writer_checks_and_locks_its_output(tmp_path, monkeypatch):
         with pytest.raises(BuildError, match="another sdofreport run"):
             write_tree({"a.txt": b"a"}, "register")
     assert sorted(p.name for p in tmp_path.iterdir()) == ["link"]
+
+
+def test_a_planted_previous_site_is_not_restored(good_build, tmp_path, monkeypatch):
+    """In a folder others may write, a "previous site" left aside by someone else (or a
+    link to one) never becomes the site; one left by this user's own build does."""
+    from sdofreport.site.render import recover_site
+
+    planted = tmp_path / ".site.previous-planted" / "site"
+    shutil.copytree(good_build["site"], planted)
+    owner = planted.stat().st_uid
+    monkeypatch.setattr(os, "getuid", lambda: owner + 12345)  # it is someone else's
+    recover_site(tmp_path / "site")
+    assert not (tmp_path / "site").exists()
+    monkeypatch.undo()
+    linked = tmp_path / ".site.previous-linked"
+    linked.mkdir()
+    (linked / "site").symlink_to(planted)
+    shutil.move(str(planted.parent), str(tmp_path / "elsewhere"))
+    (linked / "site").unlink()
+    (linked / "site").symlink_to(tmp_path / "elsewhere" / "site")
+    recover_site(tmp_path / "site")
+    assert not (tmp_path / "site").exists()
+    (linked / "site").unlink()
+    shutil.move(str(tmp_path / "elsewhere" / "site"), str(linked / "site"))
+    recover_site(tmp_path / "site")  # this user's own: put back
+    assert snapshot(tmp_path / "site") == good_build["snapshot"]
+
+
+def test_two_spellings_of_one_folder_share_one_lock(tmp_path):
+    from sdofreport.errors import BuildError
+
+    (tmp_path / "real").mkdir()
+    (tmp_path / "alias").symlink_to(tmp_path / "real")
+    with OutputLock(tmp_path / "real" / "site"):
+        with pytest.raises(BuildError, match="another sdofreport run"):
+            OutputLock(tmp_path / "alias" / "site").acquire()
