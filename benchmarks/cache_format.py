@@ -40,10 +40,11 @@ def main() -> None:
     for name, value in outputs.items():
         data = cache.pack_entry(key, value)
         pickled = pickle.dumps(value, protocol=pickle.HIGHEST_PROTOCOL)
-        write_entry = _best(lambda: cache.pack_entry(key, value))
-        read_entry = _best(lambda: cache.unpack_entry(bytearray(data), key))
-        write_pickle = _best(lambda: pickle.dumps(value, protocol=pickle.HIGHEST_PROTOCOL))
-        read_pickle = _best(lambda: pickle.loads(pickled))
+        write_entry = _best(lambda value=value: cache.pack_entry(key, value))
+        read_entry = _best(lambda data=data: cache.unpack_entry(bytearray(data), key))
+        write_pickle = _best(lambda value=value: pickle.dumps(
+            value, protocol=pickle.HIGHEST_PROTOCOL))
+        read_pickle = _best(lambda pickled=pickled: pickle.loads(pickled))
         print(f"{name}: {len(data) / 1e3:.0f} kB entry, {len(pickled) / 1e3:.0f} kB pickle")
         print(f"  write {write_entry * 1e3:.2f} ms (pickle {write_pickle * 1e3:.2f} ms, "
               f"ratio {write_entry / write_pickle:.2f})")

@@ -174,7 +174,7 @@ def encode(value) -> tuple[bytes, list[np.ndarray], list[dict]]:
     return text.encode("utf-8"), arrays, described
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _dataclass(name: str):
     module, _, qualname = DATACLASSES[name].partition(":")
     return getattr(importlib.import_module(module), qualname)

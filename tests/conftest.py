@@ -108,7 +108,7 @@ def read_only_folder(folder: Path):
     root = hasattr(os, "getuid") and os.getuid() == 0
     if root:
         if shutil.which("chattr") is None or subprocess.run(
-                ["chattr", "+i", str(folder)], capture_output=True).returncode:
+                ["chattr", "+i", str(folder)], capture_output=True, check=False).returncode:
             pytest.skip("no immutable folders here (chattr +i), and root writes anyway")
     else:
         folder.chmod(0o500)
@@ -118,3 +118,12 @@ def read_only_folder(folder: Path):
         if root:
             subprocess.run(["chattr", "-i", str(folder)], check=True)
         folder.chmod(0o700)
+
+
+def process_alive(pid: int) -> bool:
+    """True while ``pid`` exists and is not a zombie (state in /proc/<pid>/stat, proc(5))."""
+    try:
+        with open(f"/proc/{pid}/stat", encoding="ascii") as handle:
+            return handle.read().rsplit(")", 1)[1].split()[0] != "Z"
+    except OSError:
+        return False

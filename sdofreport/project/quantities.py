@@ -99,7 +99,7 @@ def _memo_path() -> str | None:
 
 def _entries_digest(entries: dict) -> str:
     text = json.dumps(entries, sort_keys=True, separators=(",", ":"))
-    return hashlib.sha256(f"{MEMO_FORMAT}|{text}".encode("utf-8")).hexdigest()
+    return hashlib.sha256(f"{MEMO_FORMAT}|{text}".encode()).hexdigest()
 
 
 def _read_memo() -> dict[str, float]:

@@ -27,6 +27,7 @@ from pathlib import Path
 
 import pytest
 
+from tests.conftest import process_alive
 from tests.hardening.conftest import snapshot, staging_leftovers
 
 ZYGOTE = r"""
@@ -235,14 +236,6 @@ def _children(pid: int) -> set[int]:
     return found
 
 
-def _alive(pid: int) -> bool:
-    try:
-        with open(f"/proc/{pid}/stat", encoding="ascii") as handle:
-            return handle.read().rsplit(")", 1)[1].split()[0] != "Z"
-    except OSError:
-        return False
-
-
 @pytest.mark.skipif(not os.path.isdir("/proc/self"), reason="needs /proc (Linux)")
 def test_helpers_of_a_killed_build_exit(zygote, good_build, tmp_path):
     # Reproduction: the build process killed alone left 1-4 helper processes blocked
@@ -262,7 +255,7 @@ def test_helpers_of_a_killed_build_exit(zygote, good_build, tmp_path):
     if os.WIFEXITED(status):
         pytest.skip("the build finished before the kill")
     deadline = time.monotonic() + 10.0
-    while any(_alive(p) for p in helpers) and time.monotonic() < deadline:
+    while any(process_alive(p) for p in helpers) and time.monotonic() < deadline:
         time.sleep(0.05)
     # Within seconds, as the issue asks (prctl(2) PR_SET_PDEATHSIG or the parent watch).
-    assert [p for p in helpers if _alive(p)] == []
+    assert [p for p in helpers if process_alive(p)] == []

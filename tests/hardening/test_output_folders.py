@@ -167,9 +167,9 @@ def test_every_tree_writer_checks_and_locks_its_output(tmp_path, monkeypatch):
     (tmp_path / "link").symlink_to(tmp_path / "elsewhere")
     with pytest.raises(BuildError, match="is a symbolic link"):
         write_tree({"a.txt": b"a"}, "link")
-    with OutputLock(tmp_path / "register"):
-        with pytest.raises(BuildError, match="another sdofreport run"):
-            write_tree({"a.txt": b"a"}, "register")
+    with OutputLock(tmp_path / "register"), \
+            pytest.raises(BuildError, match="another sdofreport run"):
+        write_tree({"a.txt": b"a"}, "register")
     assert sorted(p.name for p in tmp_path.iterdir()) == ["link"]
 
 
@@ -204,6 +204,6 @@ def test_two_spellings_of_one_folder_share_one_lock(tmp_path):
 
     (tmp_path / "real").mkdir()
     (tmp_path / "alias").symlink_to(tmp_path / "real")
-    with OutputLock(tmp_path / "real" / "site"):
-        with pytest.raises(BuildError, match="another sdofreport run"):
-            OutputLock(tmp_path / "alias" / "site").acquire()
+    with OutputLock(tmp_path / "real" / "site"), \
+            pytest.raises(BuildError, match="another sdofreport run"):
+        OutputLock(tmp_path / "alias" / "site").acquire()
