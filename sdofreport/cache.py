@@ -324,7 +324,7 @@ class ResultCache:
         self.folder = None
         self.discarded = 0
         self._write_failed = self._read_failed = False
-        if folder is not None:
+        if folder:  # None or "": no cache
             real, reason = private_folder(folder)
             if real is None:
                 report_unusable("result cache", reason)

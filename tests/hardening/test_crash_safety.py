@@ -259,3 +259,24 @@ def test_helpers_of_a_killed_build_exit(zygote, good_build, tmp_path):
         time.sleep(0.05)
     # Within seconds, as the issue asks (prctl(2) PR_SET_PDEATHSIG or the parent watch).
     assert [p for p in helpers if process_alive(p)] == []
+
+
+def test_a_second_build_meanwhile_leaves_the_first_to_finish(zygote, setup):
+    # Reproduction: a second build into the same folder deleted the first one's
+    # staging folder, and the first failed.
+    from tests.hardening.conftest import assert_user_error, invoke
+
+    site = setup["site"]
+    lock = site.parent / f".{site.name}.lock"
+    pid = zygote.start(_argv(setup))
+    deadline = time.monotonic() + 30.0
+    while not lock.exists() and time.monotonic() < deadline:
+        time.sleep(0.001)
+    second = invoke(*_argv(setup))
+    status, _ = zygote.finish()
+    assert os.waitstatus_to_exitcode(status) == 0  # the first build finished
+    if second.exit_code == 0:
+        pytest.skip(f"build {pid} had finished before the second one started")
+    assert_user_error(second, "another sdofreport run", f"process {pid}")
+    assert snapshot(site) == setup["before"] and manifest_valid(site)
+    assert staging_leftovers(site) == [] and not lock.exists()
