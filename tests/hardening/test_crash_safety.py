@@ -160,6 +160,11 @@ def _random_kills(zygote, setup, runs: int, seed: int, mode: str) -> list[int]:
         status, _ = zygote.finish()
         finished_first += os.WIFEXITED(status)
         if not site.exists():
+            # Only a kill between the fallback's two renames leaves no site, and then
+            # the previous one is intact aside, for the next build to put back.
+            aside = sorted(site.parent.glob(f".{site.name}.previous-*/site"))
+            assert aside and snapshot(aside[0]) == before, \
+                f"run {run}: no site and none aside after a kill at {delay:.3f} s"
             absent.append(run)
             continue
         # The previous site byte for byte, or a complete new one; never partial.
@@ -186,6 +191,9 @@ def test_killed_builds_leave_the_previous_site(zygote, setup):
 def test_killed_builds_without_atomic_exchange(zygote, setup):
     """The same with the two-rename fallback that StagedTree.commit uses without renameat2."""
     absent = _random_kills(zygote, setup, runs=6, seed=20261201, mode="no-exchange")
+    # Every run checked above left the previous site, a complete new one, or (absent)
+    # the previous one aside; the build after the kills restored the same bytes.
+    assert snapshot(setup["site"]) == setup["before"]
     if absent:
         pytest.xfail(f"site absent after kills {absent}: {WINDOW}")
 
