@@ -45,16 +45,16 @@ import numpy as np
 
 from sdofreport.core._jit import JIT_OPTIONS, njit
 from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
+from sdofreport.core.bilinear_exact import (
+    MIN_STEPS_PER_PERIOD,
+    _bilinear_peak,
+    _branch_coefficients,
+)
 from sdofreport.core.nonlinear import (
-    DEFAULT_MAX_HALVINGS,
-    DEFAULT_MAX_ITERATIONS,
-    DEFAULT_TOLERANCE,
     _check_damping,
-    _check_solver,
     _check_workers,
     _for_each_period,
     _number,
-    _peak_displacement,
 )
 from sdofreport.core.spectra import substep_counts
 
@@ -69,10 +69,13 @@ __all__ = [
 ]
 
 #: Minimum integration steps per initial period (module docstring). Our choice.
-DEFAULT_STEPS_PER_PERIOD = 20.0
+DEFAULT_STEPS_PER_PERIOD = 8.0
 #: Factor between successive normalised strengths η in the downward scan. Our choice: a
 #: 10 % step keeps the scan short and rarely steps over a second crossing.
-SCAN_RATIO = 0.9
+SCAN_RATIO = 0.95
+#: A local maximum of the scanned ductility above this fraction of a target is searched
+#: (golden section) for a narrow window reaching the target. Our choice, by measurement.
+WINDOW_FRACTION = 0.9
 #: Smallest normalised strength η = Fy/Fe scanned (R = 100). Our choice.
 SCAN_MIN_STRENGTH = 0.01
 
@@ -138,31 +141,82 @@ class ConstantDuctilitySpectrum:
 
 # ------------------------------------------------------------------------ kernels
 @njit(**JIT_OPTIONS)
-def _strength_period(ag, dt, n_sub, c, k, alpha, r_factors, tol, max_iter, max_halv,
-                     mu_out, ok_out):
+def _strength_period(ag, dt, n_sub, w, zeta, alpha, r_factors, mu_out, ok_out):
     """Elastic SD [m] of one period, then the ductility for each R (fills the outputs)."""
-    sd, _ = _peak_displacement(ag, dt, n_sub, c, k, np.inf, alpha, np.inf, tol, max_iter,
-                               max_halv)
-    fe = k * sd
+    ce, cp = _branch_coefficients(dt / n_sub, w, zeta, alpha)
+    sd, _ = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, np.inf, np.inf, ce, cp)
     for i in range(r_factors.size):
-        fy = fe / r_factors[i]
-        peak, ok = _peak_displacement(ag, dt, n_sub, c, k, fy, alpha, np.inf, tol, max_iter,
-                                      max_halv)
-        mu_out[i] = peak / (fy / k)
+        uy = sd / r_factors[i]
+        peak, ok = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, np.inf, ce, cp)
+        mu_out[i] = peak / uy
         ok_out[i] = ok
     return sd
 
 
 @njit(**JIT_OPTIONS)
-def _ductility_period(ag, dt, n_sub, c, k, alpha, targets, ratio, eta_min, rel_tol, tol,
-                      max_iter, max_halv, eta_out, mu_out):
+def _ductility_at(eta, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp):
+    """Ductility at η = Fy/Fe; the run stops once it reaches ``stop`` (ductility)."""
+    uy = eta * sd
+    peak, _ = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, stop * uy, ce, cp)
+    return peak / uy
+
+
+@njit(**JIT_OPTIONS)
+def _bisect(target, lo, hi, rel_tol, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp):
+    """Narrow μ(lo) >= target > μ(hi) to ``rel_tol``; returns (lo, μ(lo))."""
+    while hi - lo > rel_tol * lo:
+        mid = 0.5 * (lo + hi)
+        if _ductility_at(mid, target, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp) >= target:
+            lo = mid
+        else:
+            hi = mid
+    return lo, _ductility_at(lo, np.inf, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+
+
+@njit(**JIT_OPTIONS)
+def _window_peak(lo, hi, target, stop, rel_tol, ag, dt, n_sub, w, zeta, alpha, sd, ce,
+                 cp):
     """
-    Elastic SD [m] of one period; fills ``eta_out`` (largest Fy/Fe reaching each target,
-    ``targets`` sorted ascending) and ``mu_out`` (ductility reached there).
+    Golden-section search for the largest μ on (lo, hi), ending early at a point whose
+    ductility reaches ``target``; returns (η, μ(η)) of the best point seen.
     """
-    sd, _ = _peak_displacement(ag, dt, n_sub, c, k, np.inf, alpha, np.inf, tol, max_iter,
-                               max_halv)
-    fe = k * sd
+    g = 0.3819660112501051  # (3 − √5)/2
+    x1 = lo + g * (hi - lo)
+    x2 = hi - g * (hi - lo)
+    f1 = _ductility_at(x1, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+    if f1 >= target:
+        return x1, f1
+    f2 = _ductility_at(x2, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+    while f2 < target and hi - lo > rel_tol * lo:
+        if f1 > f2:
+            hi = x2
+            x2 = x1
+            f2 = f1
+            x1 = lo + g * (hi - lo)
+            f1 = _ductility_at(x1, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+            if f1 >= target:
+                return x1, f1
+        else:
+            lo = x1
+            x1 = x2
+            f1 = f2
+            x2 = hi - g * (hi - lo)
+            f2 = _ductility_at(x2, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+    if f1 > f2:
+        return x1, f1
+    return x2, f2
+
+
+@njit(**JIT_OPTIONS)
+def _ductility_period(ag, dt, n_sub, w, zeta, alpha, targets, ratio, eta_min, rel_tol,
+                      near, eta_out, mu_out):
+    """
+    Elastic SD [m] of one period; fills ``eta_out`` (largest η = Fy/Fe whose ductility
+    equals each target, ``targets`` sorted ascending) and ``mu_out`` (ductility there).
+    The search is described in the module docstring.
+    """
+    ce, cp = _branch_coefficients(dt / n_sub, w, zeta, alpha)
+    sd, _ = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, np.inf, np.inf, ce, cp)
     nt = targets.size
     t = 0
     # Fy = Fe keeps the system elastic: it just reaches yield, μ = 1.
@@ -170,44 +224,44 @@ def _ductility_period(ag, dt, n_sub, c, k, alpha, targets, ratio, eta_min, rel_t
         eta_out[t] = 1.0
         mu_out[t] = 1.0
         t += 1
-    if fe <= 0.0:
+    if not sd > 0.0:
         for j in range(t, nt):
             eta_out[j] = np.nan
             mu_out[j] = np.nan
         return sd
     mu_top = targets[nt - 1]
-    eta_hi = 1.0
+    # The last three scan points (η, μ), newest first; η = 1 gives μ = 1.
+    eta_1 = 1.0
+    mu_1 = 1.0
+    eta_2 = 1.0
+    mu_2 = 1.0
+    i = 0
     while t < nt:
-        eta = eta_hi * ratio
+        i += 1
+        eta = ratio ** i
         if eta < eta_min:
             for j in range(t, nt):
                 eta_out[j] = np.nan
                 mu_out[j] = np.nan
             break
-        uy = eta * fe / k
-        peak, _ = _peak_displacement(ag, dt, n_sub, c, k, eta * fe, alpha, mu_top * uy,
-                                     tol, max_iter, max_halv)
-        mu = peak / uy
+        mu = _ductility_at(eta, mu_top, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+        if mu < targets[t] and mu_1 >= near * targets[t] and mu_1 > mu_2 and mu_1 >= mu:
+            # A local maximum of the scanned μ close below the target: a narrow window
+            # where μ exceeds the target may lie between the scan points around it.
+            e_w, m_w = _window_peak(eta, eta_2, targets[t], mu_top, rel_tol, ag, dt,
+                                    n_sub, w, zeta, alpha, sd, ce, cp)
+            while t < nt and m_w >= targets[t]:
+                eta_out[t], mu_out[t] = _bisect(targets[t], e_w, eta_2, rel_tol, ag, dt,
+                                                n_sub, w, zeta, alpha, sd, ce, cp)
+                t += 1
         while t < nt and mu >= targets[t]:
-            # Bisection on η in (lo, hi): μ(lo) >= target > μ(hi).
-            lo = eta
-            hi = eta_hi
-            while hi - lo > rel_tol * lo:
-                mid = 0.5 * (lo + hi)
-                uy_mid = mid * fe / k
-                p_mid, _ = _peak_displacement(ag, dt, n_sub, c, k, mid * fe, alpha,
-                                              targets[t] * uy_mid, tol, max_iter, max_halv)
-                if p_mid / uy_mid >= targets[t]:
-                    lo = mid
-                else:
-                    hi = mid
-            uy_lo = lo * fe / k
-            p_lo, _ = _peak_displacement(ag, dt, n_sub, c, k, lo * fe, alpha, np.inf, tol,
-                                         max_iter, max_halv)
-            eta_out[t] = lo
-            mu_out[t] = p_lo / uy_lo
+            eta_out[t], mu_out[t] = _bisect(targets[t], eta, eta_1, rel_tol, ag, dt, n_sub,
+                                            w, zeta, alpha, sd, ce, cp)
             t += 1
-        eta_hi = eta
+        eta_2 = eta_1
+        mu_2 = mu_1
+        eta_1 = eta
+        mu_1 = mu
     return sd
 
 
@@ -232,14 +286,13 @@ def _check_common(ground_acceleration, time_step, periods, damping, alpha,
     if not (0.0 <= a < 1.0):
         raise ValueError(f"alpha must be in [0, 1) [-]; got {alpha!r}")
     spp = _number(steps_per_period, "steps_per_period", "-")
-    if not (math.isfinite(spp) and spp >= 0.0):
+    if not (math.isfinite(spp) and spp >= MIN_STEPS_PER_PERIOD):
         raise ValueError(
-            f"steps_per_period must be finite and >= 0 [-] (0 turns sub-steps off); "
+            f"steps_per_period must be finite and >= {MIN_STEPS_PER_PERIOD:g} [-]; "
             f"got {steps_per_period!r}"
         )
     n_sub = substep_counts(t, dt, spp)
-    w = 2.0 * np.pi / t
-    return ag, dt, t, zeta, a, n_sub, w * w, 2.0 * zeta * w
+    return ag, dt, t, zeta, a, n_sub, 2.0 * np.pi / t
 
 
 def _check_factors(values, name: str, minimum: float, strict: bool) -> np.ndarray:
@@ -262,9 +315,6 @@ def _check_factors(values, name: str, minimum: float, strict: bool) -> np.ndarra
 def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
                                strength_reduction_factors, alpha=0.0, *,
                                steps_per_period=DEFAULT_STEPS_PER_PERIOD,
-                               tolerance=DEFAULT_TOLERANCE,
-                               max_iterations=DEFAULT_MAX_ITERATIONS,
-                               max_halvings=DEFAULT_MAX_HALVINGS,
                                workers=1) -> ConstantStrengthSpectrum:
     """
     Ductility demand of bilinear systems with yield strength ``Fy = Fe / R``.
@@ -285,9 +335,6 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
         Post-yield stiffness ratio, 0 <= α < 1. [-]
     steps_per_period : float, optional
         Minimum integration steps per initial period (module docstring). [-]
-    tolerance, max_iterations, max_halvings : optional
-        Newton–Raphson settings as in :func:`sdofreport.core.nonlinear.nonlinear_response`.
-        [-]
     workers : int or None, optional
         Threads running periods side by side (None: every available core). [-]
 
@@ -300,21 +347,19 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
     .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
        2017, sec. 7.4.
     """
-    ag, dt, t, zeta, a, n_sub, k, c = _check_common(ground_acceleration, time_step, periods,
-                                                    damping, alpha, steps_per_period)
+    ag, dt, t, zeta, a, n_sub, w = _check_common(ground_acceleration, time_step, periods,
+                                                 damping, alpha, steps_per_period)
     r = _check_factors(strength_reduction_factors, "strength_reduction_factors", 0.0, True)
-    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
     n_workers = _check_workers(workers)
     mu = np.empty((t.size, r.size))
     ok = np.empty((t.size, r.size))
     sd = np.empty(t.size)
 
     def work(j):
-        sd[j] = _strength_period(ag, dt, n_sub[j], c[j], k[j], a, r, tol, max_iter,
-                                 max_halv, mu[j], ok[j])
+        sd[j] = _strength_period(ag, dt, n_sub[j], w[j], zeta, a, r, mu[j], ok[j])
 
     _for_each_period(t.size, n_workers, work)
-    fe = k * sd
+    fe = w * w * sd
     return ConstantStrengthSpectrum(
         periods_s=t, damping=zeta, hardening_ratio=a, strength_reduction_factors=r,
         ductility=mu.T.copy(), yield_strength_m_s2=fe[None, :] / r[:, None],
@@ -326,9 +371,7 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
 def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping,
                                 target_ductilities, alpha=0.0, *,
                                 steps_per_period=DEFAULT_STEPS_PER_PERIOD,
-                                strength_tolerance=1e-3, tolerance=DEFAULT_TOLERANCE,
-                                max_iterations=DEFAULT_MAX_ITERATIONS,
-                                max_halvings=DEFAULT_MAX_HALVINGS,
+                                strength_tolerance=1e-3, scan_ratio=SCAN_RATIO,
                                 workers=1) -> ConstantDuctilitySpectrum:
     """
     Largest yield strength that holds the ductility demand to each target.
@@ -351,9 +394,6 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
         Minimum integration steps per initial period (module docstring). [-]
     strength_tolerance : float, optional
         Relative width at which the bisection on η stops, in (0, 0.1]. [-]
-    tolerance, max_iterations, max_halvings : optional
-        Newton–Raphson settings as in :func:`sdofreport.core.nonlinear.nonlinear_response`.
-        [-]
     workers : int or None, optional
         Threads running periods side by side (None: every available core). [-]
 
@@ -371,13 +411,15 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
        response of simple systems to earthquake motions," in Proc. 2nd World Conf.
        Earthq. Eng., Tokyo, 1960, vol. 2, pp. 895-912.
     """
-    ag, dt, t, zeta, a, n_sub, k, c = _check_common(ground_acceleration, time_step, periods,
-                                                    damping, alpha, steps_per_period)
+    ag, dt, t, zeta, a, n_sub, w = _check_common(ground_acceleration, time_step, periods,
+                                                 damping, alpha, steps_per_period)
     mu_t = _check_factors(target_ductilities, "target_ductilities", 1.0, False)
     st = _number(strength_tolerance, "strength_tolerance", "-")
     if not (0.0 < st <= 0.1):
         raise ValueError(f"strength_tolerance must be in (0, 0.1] [-]; got {strength_tolerance!r}")
-    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
+    ratio = _number(scan_ratio, "scan_ratio", "-")
+    if not (0.5 <= ratio < 1.0):
+        raise ValueError(f"scan_ratio must be in [0.5, 1) [-]; got {scan_ratio!r}")
     n_workers = _check_workers(workers)
     order = np.argsort(mu_t, kind="stable")
     sorted_targets = np.ascontiguousarray(mu_t[order])
@@ -386,16 +428,16 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
     sd = np.empty(t.size)
 
     def work(j):
-        sd[j] = _ductility_period(ag, dt, n_sub[j], c[j], k[j], a, sorted_targets,
-                                  SCAN_RATIO, SCAN_MIN_STRENGTH, st, tol, max_iter,
-                                  max_halv, eta[j], got[j])
+        sd[j] = _ductility_period(ag, dt, n_sub[j], w[j], zeta, a, sorted_targets,
+                                  ratio, SCAN_MIN_STRENGTH, st, WINDOW_FRACTION, eta[j],
+                                  got[j])
 
     _for_each_period(t.size, n_workers, work)
     back = np.empty_like(order)
     back[order] = np.arange(order.size)
     eta = eta[:, back].T.copy()
     got = got[:, back].T.copy()
-    fe = k * sd
+    fe = w * w * sd
     pga = float(np.max(np.abs(ag)))
     fy = eta * fe[None, :]
     with np.errstate(divide="ignore", invalid="ignore"):

@@ -132,7 +132,8 @@ def test_threads_do_not_change_results():
     ({"periods": [0.5, -1.0]}, r"^periods must be finite and > 0 \[s\]; got -1.0$"),
     ({"strength_tolerance": 0.5}, r"^strength_tolerance must be in \(0, 0.1\] \[-\]; got 0.5$"),
     ({"workers": 0}, r"^workers must be an integer >= 1 \[-\]; got 0$"),
-    ({"steps_per_period": -1}, r"^steps_per_period must be finite and >= 0 \[-\]"),
+    ({"steps_per_period": 2}, r"^steps_per_period must be finite and >= 4 \[-\]; got 2$"),
+    ({"scan_ratio": 0.99999999 + 1}, r"^scan_ratio must be in \[0.5, 1\) \[-\]; got 1.99"),
 ])
 def test_constant_ductility_refuses(kwargs, match):
     args = {"ground_acceleration": np.ones(10), "time_step": 0.01, "periods": [0.5],
