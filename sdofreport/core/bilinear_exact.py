@@ -8,7 +8,7 @@ spring ``αk`` in parallel with an elastic–perfectly-plastic element (stiffnes
 ``(1−α)k``, yield force ``(1−α)k u_y``, committed plastic displacement ``u_p``),
 
 * elastic branch:   ``ü + c u̇ + k u  = −üg(t) + (1−α) k u_p``
-* yielding branch:  ``ü + c u̇ + αk u = −üg(t) − s (1−α) k u_y``,  s = ±1 the direction.
+* yielding branch:  ``ü + c u̇ + αk u = −üg(t) − s (1−α) k u_y``, s = ±1 the direction.
 
 With the ground acceleration linear between samples, each branch is a linear oscillator
 under a linear load, which the first-order-hold (triangle-hold) discretisation of the

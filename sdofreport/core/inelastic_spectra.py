@@ -2,33 +2,44 @@
 Inelastic response spectra of bilinear SDOF systems: constant strength and constant ductility.
 
 Every system is worked per unit mass with initial period T, damping ratio ζ on the
-initial stiffness, and bilinear kinematic hardening (ratio α), integrated by
-:mod:`sdofreport.core.nonlinear` (Newmark average acceleration with Newton–Raphson).
+initial stiffness, and bilinear kinematic hardening (ratio α), integrated exactly between
+yield events by :mod:`sdofreport.core.bilinear_exact` (Nigam–Jennings recurrence on each
+linear branch, events and peaks placed on the exact solution).
 
 Strength is normalised by the elastic force ``Fe = k · SD`` of the same system kept
-linear (same integrator, same sub-steps): ``η = Fy/Fe`` (the normalised yield strength of
-[1]_ §7.5) and the strength reduction factor ``R = Fe/Fy = 1/η``. Also given:
-``Fy/m`` [m/s²] and ``Fy/(m·PGA)`` [-].
+linear (same kernel, which is then the exact linear recurrence with exact peaks):
+``η = Fy/Fe`` (the normalised yield strength of [1]_ §7.5) and the strength reduction
+factor ``R = Fe/Fy = 1/η``. Also given: ``Fy/m`` [m/s²] and ``Fy/(m·PGA)`` [-].
 
 Integration steps: each record step is split into the smallest power of two of sub-steps
 that gives ``h <= T / steps_per_period`` (ground acceleration linear in between), with
-:data:`DEFAULT_STEPS_PER_PERIOD` = 20 — our choice (no source): the Newmark
-average-acceleration period error is then ``(πh/T)²/3 ≈ 0.8 %`` ([2]_, elongation
-``x/arctan x`` with ``x = πh/T``).
+:data:`DEFAULT_STEPS_PER_PERIOD` = 8 (at least
+:data:`~sdofreport.core.bilinear_exact.MIN_STEPS_PER_PERIOD` = 4) — our choice (no
+source). As integration is exact between events, the setting only bounds the step in
+which yield, unloading and peaks are looked for (one velocity reversal per step is
+assumed); the elastic force equals the exact elastic spectrum to round-off (measured
+3e-9 relative, ``benchmarks/inelastic_accuracy.py``).
 
 Constant ductility: the ductility reached, ``μ(η)``, is not monotonic in η, so a target
-can be met by several strengths (well known, e.g. [1]_ §7.5). Common practice takes the
-largest strength that achieves the target; we scan η downward from 1 by the factor
-:data:`SCAN_RATIO` until the target is reached, then bisect between the last two scan
-points to ``strength_tolerance`` (relative). A crossing of the target narrower than one
-scan interval above that bracket can be missed. Targets not reached down to
-``η =`` :data:`SCAN_MIN_STRENGTH` give NaN.
+can be met by several strengths (well known, e.g. [1]_ §7.5); the definition takes the
+largest strength whose ductility equals the target. We scan η downward from 1 (where
+μ = 1) by the factor :data:`SCAN_RATIO` until the largest target is reached. Each
+target's first scan point reaching it closes the highest bracket ``[η_i, η_{i−1}]``
+with ``μ(η_i) >= target > μ(η_{i−1})``, narrowed by bisection to ``strength_tolerance``
+(relative) keeping that order; since μ(η) is continuous, every root below ``η_i`` is
+smaller than one in the bracket. A window narrower than the scan step where μ exceeds the
+target shows as a local maximum of the scanned μ close below the target: wherever one is
+above :data:`WINDOW_FRACTION` of the next target, a golden-section search for the
+largest μ between the scan points around it looks for a point reaching the target, and a
+window found is bisected the same way. A window next to no such local maximum can still
+be missed. Targets not reached down to ``η =`` :data:`SCAN_MIN_STRENGTH` give NaN.
 
 References
 ----------
 .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson, 2017.
-.. [2] N. M. Newmark, "A method of computation for structural dynamics," J. Eng. Mech.
-   Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
+.. [2] N. C. Nigam and P. C. Jennings, "Calculation of response spectra from
+   strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
+   pp. 909-922, 1969.
 .. [3] A. S. Veletsos and N. M. Newmark, "Effect of inelastic behavior on the response of
    simple systems to earthquake motions," in Proc. 2nd World Conf. Earthq. Eng., Tokyo,
    1960, vol. 2, pp. 895-912.
@@ -44,12 +55,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from sdofreport.core._jit import JIT_OPTIONS, njit
-from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
 from sdofreport.core.bilinear_exact import (
     MIN_STEPS_PER_PERIOD,
     _bilinear_peak,
     _branch_coefficients,
 )
+from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
 from sdofreport.core.nonlinear import (
     _check_damping,
     _check_workers,
@@ -70,8 +81,8 @@ __all__ = [
 
 #: Minimum integration steps per initial period (module docstring). Our choice.
 DEFAULT_STEPS_PER_PERIOD = 8.0
-#: Factor between successive normalised strengths η in the downward scan. Our choice: a
-#: 10 % step keeps the scan short and rarely steps over a second crossing.
+#: Factor between successive normalised strengths η in the downward scan. Our choice, by
+#: measurement (``benchmarks/inelastic_accuracy.py``, docs/methods.md).
 SCAN_RATIO = 0.95
 #: A local maximum of the scanned ductility above this fraction of a target is searched
 #: (golden section) for a narrow window reaching the target. Our choice, by measurement.
@@ -103,7 +114,7 @@ class ConstantStrengthSpectrum:
     elastic_force_m_s2: np.ndarray
     #: peak ground acceleration [m/s²]
     pga_m_s2: float
-    #: True where every integration step converged, shape (nR, nT)
+    #: True where every yield and unloading event was placed to tolerance, (nR, nT)
     converged: np.ndarray
 
 
@@ -334,7 +345,7 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
     alpha : float, optional
         Post-yield stiffness ratio, 0 <= α < 1. [-]
     steps_per_period : float, optional
-        Minimum integration steps per initial period (module docstring). [-]
+        Fewest integration steps per initial period, >= 4 (module docstring). [-]
     workers : int or None, optional
         Threads running periods side by side (None: every available core). [-]
 
@@ -391,7 +402,7 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
     alpha : float, optional
         Post-yield stiffness ratio, 0 <= α < 1. [-]
     steps_per_period : float, optional
-        Minimum integration steps per initial period (module docstring). [-]
+        Fewest integration steps per initial period, >= 4 (module docstring). [-]
     strength_tolerance : float, optional
         Relative width at which the bisection on η stops, in (0, 0.1]. [-]
     workers : int or None, optional
