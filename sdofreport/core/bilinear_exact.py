@@ -67,6 +67,7 @@ import math
 import numpy as np
 
 from sdofreport.core._jit import JIT_OPTIONS, njit
+from sdofreport.core.exact import _check_ground_acceleration, _check_time_step, _phi_series
 
 __all__ = ["MIN_STEPS_PER_PERIOD", "bilinear_peak_displacement"]
 
@@ -95,31 +96,8 @@ def _coefficients(theta, r, zeta, w):
     (module docstring; scaled state ``[u, u̇/ω]``, ``X = θ [[0, 1], [−r, −2ζ]]``,
     φ0 = Σ X^k/k!, φ1 = Σ X^k/(k+1)!, φ2 = Σ X^k/(k+2)!).
     """
-    x01 = theta
-    x10 = -r * theta
-    x11 = -2.0 * zeta * theta
-    t00, t01, t10, t11 = 1.0, 0.0, 0.0, 1.0
-    a00, a01, a10, a11 = 1.0, 0.0, 0.0, 1.0
-    b01, b11 = 0.0, 1.0
-    c01, c11 = 0.0, 0.5
-    for k in range(1, _SERIES_MAX_TERMS):
-        n00 = (t01 * x10) / k
-        n01 = (t00 * x01 + t01 * x11) / k
-        n10 = (t11 * x10) / k
-        n11 = (t10 * x01 + t11 * x11) / k
-        t00, t01, t10, t11 = n00, n01, n10, n11
-        a00 += t00
-        a01 += t01
-        a10 += t10
-        a11 += t11
-        f1 = 1.0 / (k + 1)
-        b01 += t01 * f1
-        b11 += t11 * f1
-        f2 = f1 / (k + 2)
-        c01 += t01 * f2
-        c11 += t11 * f2
-        if abs(t00) + abs(t01) + abs(t10) + abs(t11) < _SERIES_EPS:
-            break
+    a00, a01, a10, a11, b01, b11, c01, c11 = _phi_series(theta, r, zeta,
+                                                         _SERIES_MAX_TERMS, _SERIES_EPS)
     w2 = w * w
     return (a00, a01 / w, a10 * w, a11, theta * (b01 - c01) / w2, theta * c01 / w2,
             theta * (b11 - c11) / w, theta * c11 / w)
@@ -223,6 +201,8 @@ def _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop, ce, cp):
                 p1 = q - gb
                 u1 = a11 * u + a12 * v + b1 * p0 + b2 * p1
                 v1 = a21 * u + a22 * v + b3 * p0 + b4 * p1
+                event = False
+                tau = 0.0
                 if events >= _MAX_EVENTS_PER_STEP:
                     ok = False
                     u = u1
@@ -261,14 +241,7 @@ def _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop, ce, cp):
                         u = level
                         v = vv
                         s = 1 if sign > 0.0 else -1
-                        if abs(u) > peak:
-                            peak = abs(u)
-                        ga = ga + (gb - ga) * (tau / span)
-                        span = span - tau
-                        events += 1
-                        if span <= 1e-14 * h:
-                            break
-                        continue
+                        event = True
                 else:
                     if s * v1 < 0.0:
                         # Unloading: u̇ = 0 at tau; commit the plastic displacement there.
@@ -283,14 +256,16 @@ def _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop, ce, cp):
                         v = 0.0
                         up = u - s * uy
                         s = 0
-                        if abs(u) > peak:
-                            peak = abs(u)
-                        ga = ga + (gb - ga) * (tau / span)
-                        span = span - tau
-                        events += 1
-                        if span <= 1e-14 * h:
-                            break
-                        continue
+                        event = True
+                if event:  # go on from the event on the new branch
+                    if abs(u) > peak:
+                        peak = abs(u)
+                    ga = ga + (gb - ga) * (tau / span)
+                    span = span - tau
+                    events += 1
+                    if span <= 1e-14 * h:
+                        break
+                    continue
                 u = u1
                 v = v1
                 break
@@ -355,8 +330,6 @@ def bilinear_peak_displacement(ground_acceleration, time_step, period_s, damping
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
-
     ag = _check_ground_acceleration(ground_acceleration)
     dt = _check_time_step(time_step)
     t = float(period_s)
