@@ -9,7 +9,7 @@ Spectrum: 50 log-spaced periods 0.05–3 s, 5 % damping, elastic–perfectly-pla
 targets μ = 2, 3, 4, 6, default settings (exact integration between yield events with
 at least 8 steps per period, scan factor 0.95 with the window search, bisection to 0.1 %;
 ``sdofreport.core.inelastic_spectra``). Measured 2026-12-05 on the shared 2-core machine:
-0.49 s best of 3 with one thread (the former Newmark kernel at 20 steps per period with
+0.41-0.49 s best of 3 with one thread (the former Newmark kernel at 20 steps per period with
 a 0.9 scan: 0.66 s).
 
 Goal (from the issue): under 2 s on a 2-core machine. The compile time of the first

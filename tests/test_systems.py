@@ -167,8 +167,12 @@ def test_inelastic_steps_per_period_is_read(project_factory, value, expected):
 
     line = "" if value is None else f"steps_per_period = {value}\n"
     text = PROJECT_HEAD + "[inelastic_spectra]\n" + line + TWO_RECORDS + ONE_SYSTEM
-    # Definition: the key reference (docs/project-file.md) gives 8 as the default.
+    # Definition: the key reference (docs/project-file.md) gives 8 as the default, the
+    # same as the core function's default.
+    from sdofreport.core.inelastic_spectra import DEFAULT_STEPS_PER_PERIOD
+
     assert load_project(project_factory(text)).inelastic.steps_per_period == expected
+    assert value is not None or expected == DEFAULT_STEPS_PER_PERIOD
 
 
 def test_inelastic_steps_per_period_below_four_is_refused(project_factory):
