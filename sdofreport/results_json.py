@@ -148,6 +148,7 @@ def suite_blocks(results: Results) -> dict:
         blocks["inelastic_spectra"] = {
             "periods_s": list(spec.periods_s), "damping": spec.damping,
             "post_yield_ratio": spec.post_yield_ratio,
+            "steps_per_period": spec.steps_per_period,
             "ductility_targets": list(spec.ductility),
             "strength_reduction_factors": list(spec.strength_reduction),
             "records": {rid: {

@@ -692,9 +692,16 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
                             f"{where}.periods")
     damping = _read_value(table, spec["damping"], where, problems)
     alpha = _read_value(table, spec["post_yield_ratio"], where, problems)
-    if None in (ductility, reduction, damping, alpha):
+    steps = _read_value(table, spec["steps_per_period"], where, problems)
+    from sdofreport.core.bilinear_exact import MIN_STEPS_PER_PERIOD
+
+    if steps is not None and steps < MIN_STEPS_PER_PERIOD:
+        problems.add(f"{where}.steps_per_period", f"expected a number of at least "
+                     f"{MIN_STEPS_PER_PERIOD:g}, found {steps:g}")
+        steps = None
+    if None in (ductility, reduction, damping, alpha, steps):
         return None
-    return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha)
+    return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha, steps)
 
 
 def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError, text_in: str) -> str:

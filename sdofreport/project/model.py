@@ -105,6 +105,8 @@ class InelasticSpectraSpec:
     periods_s: tuple[float, ...] = ()
     damping: float = 0.05
     post_yield_ratio: float = 0.0
+    #: fewest integration steps per initial period (>= 4) [-]
+    steps_per_period: float = 8.0
 
 
 @dataclass(frozen=True)

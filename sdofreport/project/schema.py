@@ -192,6 +192,11 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("damping", "ratio", "Damping ratio.", default=0.05, example="0.05"),
         KeySpec("post_yield_ratio", "ratio", "Post-yield stiffness ratio α.",
                 default=0.0, example="0.0"),
+        KeySpec("steps_per_period", "number", "Fewest integration steps per initial "
+                "period, at least 4. The bilinear system is integrated exactly between "
+                "yield events, so this only bounds the step in which events and peaks are "
+                "looked for; the elastic force matches the exact elastic spectrum to "
+                "round-off at any setting.", default=8.0, example="8"),
     ),
     "records[]": _keys(
         KeySpec("id", "text", "Unique short name of the record.", required=True,

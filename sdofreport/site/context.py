@@ -395,6 +395,7 @@ class SiteContext:
         return {"r_figure": r_figure, "mu_figure": mu_figure,
                 "damping": f"{100 * spec.damping:g} %",
                 "alpha": number(spec.post_yield_ratio),
+                "steps": f"{spec.steps_per_period:g}",
                 "ductility": ", ".join(f"{m:g}" for m in spec.ductility),
                 "reduction": ", ".join(f"{r:g}" for r in spec.strength_reduction)}
 
