@@ -192,3 +192,14 @@ def test_spreadsheet_matches_results_json(built):
                if row[0] == "record factor"}
     assert factors == pytest.approx(
         {r["id"]: r["factor"] for r in document["scaling"]["records"]}, rel=1e-15)
+
+
+def test_no_page_writes_a_number_with_an_exponent(built):
+    """One number style on every page (sdofreport.site.display.number): no value in
+    exponent notation such as 4.753e-06 anywhere in the pages' text."""
+    pattern = re.compile(r"\b\d+(?:\.\d+)?[eE][-+]?\d+\b")
+    for page in sorted(built[0].rglob("*.html")):
+        if "inputs" in page.relative_to(built[0]).parts:
+            continue
+        text = " ".join(_parse(page).text)
+        assert not pattern.findall(text), (page.name, pattern.findall(text)[:5])
