@@ -214,7 +214,13 @@ def recover_site(output: str | os.PathLike) -> None:
     if output.exists():
         return
     parent = output.resolve().parent
+    uid = os.getuid() if hasattr(os, "getuid") else None
     for candidate in sorted(parent.glob(f".{output.name}{RETIRED_PREFIX}*/site")):
+        # Only what this user's own build left aside: in a folder others may write, a
+        # planted "previous site" must not become the site.
+        if candidate.is_symlink() or (uid is not None and (
+                candidate.lstat().st_uid != uid or candidate.parent.lstat().st_uid != uid)):
+            continue
         if is_site(candidate):
             os.replace(candidate, output)
             log.warning("restored the previous site from %s (an earlier build was "
@@ -240,6 +246,11 @@ def prepare_output(output: str | os.PathLike) -> Path:
     recover_site(output)
     if output.exists() and not output.is_dir():
         raise BuildError(f"{output}: exists and is not a folder; choose another -o.")
+    owner = output.stat().st_uid if output.exists() and hasattr(os, "getuid") else None
+    if owner is not None and owner != os.getuid() and os.getuid() != 0:
+        raise BuildError(f"{output}: the folder belongs to another user (uid {owner}); a "
+                         f"build replaces the whole folder, which only its owner may do. "
+                         f"Ask them to remove it, or choose another -o.")
     if output.is_dir() and any(output.iterdir()) and not is_site(output):
         raise BuildError(f"{output}: the folder is not empty and is not a site built by "
                          f"sdofreport (no {MANIFEST_NAME} of ours); refusing to replace "
