@@ -27,6 +27,7 @@ from sdofreport.results_json import peaks_csv, results_document, spectra_csv
 from sdofreport.site.context import SiteContext, dependency_versions, record_figures
 from sdofreport.site.drawing import FigureWriter
 from sdofreport.site.spreadsheet import results_workbook
+from sdofreport.site.symbols import html_symbols
 from sdofreport.site.tree import RETIRED_PREFIX, STAGING_PREFIX, StagedTree
 
 log = logging.getLogger("sdofreport.site")
@@ -48,10 +49,12 @@ def template_dir() -> Path:
 
 
 def _environment() -> jinja2.Environment:
-    return jinja2.Environment(
+    env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(str(template_dir())),
         autoescape=True, undefined=jinja2.StrictUndefined,
         trim_blocks=False, lstrip_blocks=False, keep_trailing_newline=True)
+    env.filters["symbols"] = html_symbols
+    return env
 
 
 def _input_files(results: Results) -> dict[str, Path]:
