@@ -135,6 +135,13 @@ def suite_blocks(results: Results) -> dict:
                         for c in scaling.result.criteria]
         blocks["scaling"] = {
             "rule": scaling.rule,
+            "complies": scaling.complies,
+            "standard": scaling.standard,
+            "target_level": scaling.target_level,
+            "target_damping": scaling.target_damping,
+            "motions_counted": scaling.motions_counted,
+            "period_range_option": scaling.period_range_option,
+            "cautions": list(scaling.cautions),
             "period_range_s": list(scaling.period_range_s) if scaling.period_range_s
             else None,
             "records": [{"id": r.id, "factor": scaling.factors.get(r.id, 1.0)}

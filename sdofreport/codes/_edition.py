@@ -32,8 +32,8 @@ def period_range_options(clause: str, symbol: str) -> tuple[PeriodRangeOption, .
                           f"0.2 {symbol} to 2 {symbol} of the governing period "
                           f"[scaling] period ({clause})", 0.2, 2.0, True),
         PeriodRangeOption("every-system",
-                          f"0.2 × the shortest to 2 × the longest system period, so the "
-                          f"range of {clause} holds for every system", 0.2, 2.0, False),
+                          f"0.2 × the shortest to 2 × the longest system period, the "
+                          f"range of {clause} for every system at once", 0.2, 2.0, False),
     )
 
 
