@@ -618,7 +618,11 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
     try:
         DesignSpectrumSpec(kind, values, parameters).spectrum()
     except ValueError as exc:
-        problems.add(where, str(exc))
+        message = str(exc)
+        for key, name in mapping.items():  # the file's key names, not the core's
+            if name != key:
+                message = re.sub(rf"\b{re.escape(name)}\b", key, message)
+        problems.add(where, message)
         return None
     return DesignSpectrumSpec(kind, values, parameters)
 
