@@ -112,6 +112,8 @@ class Check:
     statistic: str  # mean | max
     ratio: float
     verdict: str  # VERDICT_WITHIN | VERDICT_EXCEEDS
+    #: True when the statistic is of absolute values (|residual displacement|, ...)
+    absolute: bool = False
 
 
 @dataclass
@@ -323,6 +325,10 @@ CHECK_ATTRIBUTES = {
 }
 
 
+#: Check quantities whose per-record value carries a sign: their statistic is of |value|.
+SIGNED_QUANTITIES = ("residual_displacement",)
+
+
 def _statistic(values: list[float], statistic: str) -> float:
     return float(np.mean(values)) if statistic == "mean" else float(np.max(values))
 
@@ -333,13 +339,15 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
         for quantity, limit in system.limits.items():
             peaks = [getattr(responses[(system.id, r.id)], CHECK_ATTRIBUTES[quantity])
                      for r in project.records]
-            peaks = [abs(p) for p in peaks if p is not None]
+            peaks = [p for p in peaks if p is not None]
             if not peaks:
                 continue
-            demand = _statistic(peaks, statistic)
+            absolute = quantity in SIGNED_QUANTITIES or any(p < 0 for p in peaks)
+            demand = _statistic([abs(p) for p in peaks], statistic)
             ratio = demand / limit
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
-                                VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS))
+                                VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS,
+                                absolute))
     return checks
 
 

@@ -286,3 +286,28 @@ def test_records_show_given_suite_total_factors_and_both_pgas(project_factory):
         scaled = float(re.match(r"[\d.]+", shown["pga"]).group())
         unscaled = float(re.match(r"[\d.]+", shown["pga_unscaled"]).group())
         assert scaled == pytest.approx(unscaled * total, rel=2e-3)
+
+
+# ------------------------------------------------- statistics of absolute values
+def test_residual_check_says_it_is_a_statistic_of_absolute_values(project_factory):
+    # Before: the check took the mean of |residual| while the page showed signed values
+    # and called it the mean. Reference: numpy's mean of the absolute values.
+    system = ('[[systems]]\nid = "y1"\nname = "Yielding"\ndamping = 0.05\nmass = "100 t"\n'
+              'period = "0.5 s"\nyield_strength = "40 kN"\n[systems.limits]\n'
+              'residual_displacement = "10 mm"\n')
+    text = PROJECT_HEAD + '[analysis]\nstatistic = "mean"\n' + \
+        '[[records]]\nid = "r1"\nfile = "records/r1.csv"\n\n' \
+        '[[records]]\nid = "r2"\nfile = "records/r2.txt"\n\n' + system
+    results = _run(project_factory, text)
+    (check,) = results.checks
+    residuals = [results.response("y1", r).residual_displacement_m for r in ("r1", "r2")]
+    assert check.absolute
+    assert check.demand == pytest.approx(np.mean(np.abs(residuals)), rel=1e-12)
+    context = SiteContext(results).system_page(results.project.systems[0]).context
+    assert "mean of |residual displacement|" in context["checks"][0]["label"]
+    rows = [row for row in context["peaks"] if not row["summary"]]
+    for row, value in zip(rows, residuals):
+        shown = float(re.match(r"[\d.]+", row["residual_abs"]).group())
+        assert shown == pytest.approx(abs(value) * 1e3, rel=2e-3)  # mm, 4 figures
+    doc = results_document(results)
+    assert doc["systems"][0]["checks"][0]["of_absolute_values"] is True

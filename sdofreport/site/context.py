@@ -159,7 +159,9 @@ class SiteContext:
             rows.append({
                 "system_id": c.system_id, "system_name": system.name,
                 "system_file": page_name(c.system_id),
-                "label": CHECK_LABELS[c.quantity],
+                "label": CHECK_LABELS[c.quantity] + (
+                    f" ({STATISTIC_TEXT[c.statistic]} of |{CHECK_LABELS[c.quantity].lower()}"
+                    f"| over the records)" if c.absolute else ""),
                 "demand": self.display.check_value(c.quantity, c.demand),
                 "limit": self.display.check_value(c.quantity, c.limit),
                 "ratio": f"{c.ratio:.3f}", "verdict": c.verdict,
@@ -560,8 +562,11 @@ class SiteContext:
                    "shear": d.show(response.peak_base_shear_n, "force"),
                    "accel": d.show(response.peak_total_accel_m_s2, "acceleration")}
             if nonlinear:
+                residual = response.residual_displacement_m
                 row.update({"ductility": number(response.ductility),
-                            "residual": d.show(response.residual_displacement_m, "length")})
+                            "residual": d.show(residual, "length"),
+                            "residual_abs": d.show(abs(residual), "length")
+                            if residual is not None else "–"})
             peaks.append(row)
             panels = [
                 ("Relative displacement", d.convert(1.0, "length") * response.displacement_m,
@@ -606,8 +611,9 @@ class SiteContext:
                    "shear": stat("peak_base_shear_n", "force"),
                    "accel": stat("peak_total_accel_m_s2", "acceleration")}
             if nonlinear:
-                row.update({"ductility": stat("ductility", None),
-                            "residual": stat("residual_displacement_m", "length", True)})
+                row.update({"ductility": stat("ductility", None), "residual": "–",
+                            "residual_abs": stat("residual_displacement_m", "length",
+                                                 True)})
             peaks.append(row)
         periods = results.records[0].spectrum.periods_s
         damping = results.records[0].spectrum.damping
