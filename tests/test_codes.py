@@ -22,15 +22,9 @@ from sdofreport.project import load_project
 from sdofreport.project.schema import SCALING_RULES
 from sdofreport.results_json import results_document
 from sdofreport.site.context import SiteContext, _suite_curves
+from sdofreport.suite import period_range
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD
-
-ASCE = """\
-[design_spectrum]
-kind = "asce7-16"
-sds = 1.0
-sd1 = 0.6
-tl = "8 s"
-"""
+from tests.test_suite_scaling import ASCE, _asce_sa
 
 EN = """\
 [design_spectrum]
@@ -51,15 +45,6 @@ def _pairs(count: int) -> str:
                  f'[[records]]\nid = "b{i}"\nfile = "records/r1.csv"\npair = "p{i}"\n'
                  f'component = "H2"\nscale = {0.8 + 0.1 * i:g}\n\n')
     return text
-
-
-def _asce_sa(periods, sds=1.0, sd1=0.6, tl=8.0):
-    """Published formula: ASCE/SEI 7-16 §11.4.6, Eqs. 11.4-5 to 11.4-8 (by hand)."""
-    t = np.asarray(periods, dtype=float)
-    t0, ts = 0.2 * sd1 / sds, sd1 / sds
-    return np.select([t < t0, t <= ts, t <= tl],
-                     [sds * (0.4 + 0.6 * t / t0), np.full_like(t, sds), sd1 / np.where(
-                         t > 0, t, 1.0)], sd1 * tl / np.where(t > 0, t, 1.0) ** 2)
 
 
 def _run(project_factory, text, name="sdofreport.toml"):
@@ -243,8 +228,7 @@ def test_named_period_range_options(project_factory):
     text = PROJECT_HEAD + ASCE + '[scaling]\nrule = "asce7-16"\nperiod = "0.5 s"\n' \
         'period_range = "every-system"\n' + _pairs(1) + systems
     project = load_project(project_factory(text))
-    from sdofreport.suite import period_range
-    rng, option, words = period_range(project)
+    rng, option, _ = period_range(project)
     assert option == "every-system"
     assert rng == pytest.approx((0.2 * 0.5, 2.0 * 1.2), rel=1e-12)
     project = load_project(project_factory(text.replace("every-system",

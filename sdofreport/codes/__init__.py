@@ -12,8 +12,12 @@ clause. Later editions plug in by adding a module and a line here.
 from __future__ import annotations
 
 from sdofreport.codes import asce7_16, en1998_1_2004
-from sdofreport.codes._edition import Edition, PeriodRangeOption, ScalingInputs, \
-    period_range_options
+from sdofreport.codes._edition import (
+    Edition,
+    PeriodRangeOption,
+    ScalingInputs,
+    period_range_options,
+)
 
 #: ``[scaling] rule`` -> edition.
 EDITIONS: dict[str, Edition] = {e.rule: e for e in (asce7_16.EDITION,
@@ -60,6 +64,14 @@ def auto_statistic(rule: str | None, motions: int) -> tuple[str, str]:
                        f"EN 1998-1:2004 §4.3.3.4.3(3) is used: {reason}")
 
 
-__all__ = ["EDITIONS", "Edition", "PeriodRangeOption", "ScalingInputs",
-           "GENERIC_PERIOD_RANGES", "edition", "period_range_names", "period_range_option",
-           "auto_statistic"]
+__all__ = [
+    "EDITIONS",
+    "GENERIC_PERIOD_RANGES",
+    "Edition",
+    "PeriodRangeOption",
+    "ScalingInputs",
+    "auto_statistic",
+    "edition",
+    "period_range_names",
+    "period_range_option",
+]

@@ -46,7 +46,7 @@ REQUIRED_RATIO = 0.90
 _MINIMUM_CLAUSE = "ASCE/SEI 7-16 §16.2.2 (clause number from memory)"
 _AMPLITUDE_CLAUSE = "ASCE/SEI 7-16 §16.2.3.2 (clause number from memory)"
 _RANGE_CLAUSE = "ASCE/SEI 7-16 §16.2.3.1, from memory"
-_ACCEPTANCE_CLAUSE = "ASCE/SEI 7-16 §16.4 (clause number from memory)"
+_ACCEPTANCE_CLAUSE = "§16.4, clause number from memory"
 
 
 def auto_statistic(motions: int) -> tuple[str, str]:

@@ -48,7 +48,7 @@ SPECTRUM_LIMIT_S = 4.0
 
 _CLAUSE = "EN 1998-1:2004 §3.2.3.1.2(4)"
 _MEMORY = " (clause number from memory)"
-_STATISTIC_CLAUSE = "EN 1998-1:2004 §4.3.3.4.3(3)" + _MEMORY
+_STATISTIC_CLAUSE = "EN 1998-1:2004 §4.3.3.4.3(3), clause number from memory"
 
 
 def auto_statistic(motions: int) -> tuple[str, str]:

@@ -52,7 +52,7 @@ def dependency_versions() -> list[tuple[str, str]]:
 
 def statistic_reason(results: Results) -> str:
     """Why the suite statistic is what it is (the governing edition's rule)."""
-    statistic, reason = results.project.statistic_choice
+    reason = results.project.statistic_choice[1]
     if results.project.analysis.statistic == "auto":
         return f"chosen automatically: {reason}"
     return reason
