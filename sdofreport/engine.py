@@ -35,7 +35,7 @@ from sdofreport.core.units import G
 from sdofreport.errors import RecordError
 from sdofreport.executors import execute, fork_context, local_pool
 from sdofreport.jobs import record_products, run_job
-from sdofreport.project.model import Project, RecordSpec, SystemSpec
+from sdofreport.project.model import Project, RecordSpec, SystemSpec, natural_key
 from sdofreport.records import Record, process_record, read_record
 from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling, \
     scaling_damping
@@ -636,12 +636,13 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
 
 
 def _pairs(project: Project) -> dict[str, tuple[str, str]]:
-    """Pair name -> (H1 record id, H2 record id), in file order."""
+    """Pair name -> (H1 record id, H2 record id), in natural order of the names."""
     pairs: dict[str, dict[str, str]] = {}
     for spec in project.records:
         if spec.pair:
             pairs.setdefault(spec.pair, {})[spec.component] = spec.id
-    return {name: (members["H1"], members["H2"]) for name, members in pairs.items()}
+    return {name: (pairs[name]["H1"], pairs[name]["H2"])
+            for name in sorted(pairs, key=natural_key)}
 
 
 def _scaled_spectrum(spectrum: ResponseSpectrum, factor: float) -> ResponseSpectrum:

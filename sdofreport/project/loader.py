@@ -33,6 +33,7 @@ from sdofreport.project.model import (
     ProcessingSettings,
     Project,
     Revision,
+    natural_key,
     ProjectInfo,
     RecordSpec,
     SystemSpec,
@@ -890,5 +891,7 @@ def load_project(path) -> Project:
     save_memo()  # unit strings pint converted, so the next read need not import it
     if problems.items:
         raise ProjectError(format_problems(shown, problems.items))
+    # Records in natural order of their ids (P1, P2, ... P10), wherever they are listed.
+    records = sorted(records, key=lambda spec: natural_key(spec.id))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
                    tuple(records), tuple(systems), design, scaling, inelastic, synthetic)

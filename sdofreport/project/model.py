@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -19,6 +21,16 @@ class ProcessingSettings:
         return {"baseline_order": self.baseline_order,
                 "bandpass_hz": list(self.bandpass_hz) if self.bandpass_hz else None,
                 "filter_order": self.filter_order, "taper_s": self.taper_s}
+
+
+def natural_key(identifier: str) -> tuple:
+    """
+    Sort key that orders ids as people read them: ``P2`` before ``P10``, ``hcs9`` before
+    ``hcs10`` (digit runs compared as numbers, the rest without regard to case).
+    """
+    parts = re.split(r"(\d+)", str(identifier))
+    return tuple(int(part) if index % 2 else part.casefold()
+                 for index, part in enumerate(parts)) + (str(identifier),)
 
 
 @dataclass(frozen=True)
