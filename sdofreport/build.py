@@ -53,10 +53,14 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
                use_cache: bool = True, allow_outside: bool = False,
                progress: Progress | None = None, scheduler: str | None = None,
                dask_local: int | None = None,
-               compare_to: str | os.PathLike | None = None) -> BuildOutcome:
+               compare_to: str | os.PathLike | None = None,
+               extra_pages=None) -> BuildOutcome:
     """
     Validate the project, compute every result, render every page into a staged tree,
     then swap it in for ``output``.
+
+    ``extra_pages(results_document, fingerprint) -> {site path: bytes}`` adds pages as
+    ``compare_to`` does (``verify --rerun`` passes back a site's own revision page).
 
     Raises :class:`~sdofreport.errors.SdofreportError` subclasses for bad input; in that
     case nothing is written and any previous site at ``output`` is left intact.
@@ -74,7 +78,7 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     figure_cache = None
     if use_cache:
         figure_cache = ResultCache(Path(cache_dir or default_cache_dir()) / "figures")
-    extra = None
+    extra = extra_pages
     if old is not None:
         from sdofreport.archive.compare import revision_page
 

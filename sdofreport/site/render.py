@@ -179,6 +179,15 @@ def fingerprint(manifest: dict) -> str:
     return hashlib.sha256(text.encode("ascii")).hexdigest()[:16]
 
 
+def manifest_versions() -> dict:
+    """The manifest's ``package``, ``dependencies`` and ``platform`` fields for the
+    installed versions (``verify --rerun`` names those that differ from a site's)."""
+    return {"package": {"name": "sdofreport", "version": __version__},
+            "dependencies": dict(dependency_versions()),
+            "platform": {"system": platform.system(), "machine": platform.machine(),
+                         "python_implementation": platform.python_implementation()}}
+
+
 def manifest_document(results: Results, hashes: dict[str, str]) -> dict:
     """The manifest: versions, platform, settings and the SHA-256 of every site file
     (``hashes``: site path → hex digest)."""
@@ -187,10 +196,7 @@ def manifest_document(results: Results, hashes: dict[str, str]) -> dict:
     inputs = sorted(path for path in hashes if path.startswith("inputs/"))
     document = {
         "schema": MANIFEST_SCHEMA,
-        "package": {"name": "sdofreport", "version": __version__},
-        "dependencies": dict(dependency_versions()),
-        "platform": {"system": platform.system(), "machine": platform.machine(),
-                     "python_implementation": platform.python_implementation()},
+        **manifest_versions(),
         "project": {"file": f"inputs/{results.project.path.name}",
                     "title": results.project.info.title,
                     "reference": results.project.info.reference,
