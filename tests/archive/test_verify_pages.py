@@ -1,0 +1,198 @@
+"""verify covers what a reader reads: the pages, figures and tables, not only the hashes.
+
+Reproductions first: each test tampers a built site the way an editor with the manifest
+at hand would (change what a page says, then re-hash ``manifest.json`` and, where it
+helps, recompute the fingerprint) and expects exit status 4 naming what was changed.
+Expected values are independent facts: SHA-256 from hashlib (FIPS 180-4); the
+fingerprint from its definition in manifest.json (``sdofreport.site.render.fingerprint``
+is the documented formula, recomputed here by hand); the build is deterministic (same
+inputs, same versions, byte-identical files), so a rebuild reproduces every untouched
+file.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from pathlib import Path
+
+from click.testing import CliRunner
+
+from sdofreport.archive._sitefiles import RunFiles, read_run
+from sdofreport.archive.verify import _csv_differs, rerun_check
+from sdofreport.build import build_site
+from tests.archive.conftest import project_text, write_project
+
+
+def _verify(group, *args):
+    return CliRunner().invoke(group, ["verify", *map(str, args)])
+
+
+def _fingerprint(manifest: dict) -> str:
+    # Definition (docs and summary page): SHA-256 over canonical JSON of the versions,
+    # platform, settings and the hashes of inputs/ and data/results.json; 16 hex digits.
+    covered = {name: manifest.get(name)
+               for name in ("package", "dependencies", "platform", "settings")}
+    covered["files"] = {p: d for p, d in sorted(manifest["files"].items())
+                        if p.startswith("inputs/") or p == "data/results.json"}
+    text = json.dumps(covered, sort_keys=True, separators=(",", ":"), ensure_ascii=True)
+    return hashlib.sha256(text.encode("ascii")).hexdigest()[:16]
+
+
+def _rehash(site: Path, *, refingerprint: bool = False, edit=None) -> dict:
+    """Re-hash every file into manifest.json (optionally after ``edit(manifest)`` and
+    with a recomputed fingerprint), as a careful tamperer would; return the manifest."""
+    path = site / "manifest.json"
+    manifest = json.loads(path.read_text("utf-8"))
+    if edit is not None:
+        edit(manifest)
+    for name in list(manifest["files"]):
+        manifest["files"][name] = hashlib.sha256((site / name).read_bytes()).hexdigest()
+    if refingerprint:
+        manifest["fingerprint"] = _fingerprint(manifest)
+    path.write_text(json.dumps(manifest, indent=1), "utf-8")
+    return manifest
+
+
+def _replace(path: Path, old: str, new: str, count: int = 1) -> None:
+    text = path.read_text("utf-8")
+    assert old in text, f"{old!r} not in {path}"
+    path.write_text(text.replace(old, new, count), "utf-8")
+
+
+def _retarget_pages(site: Path, old: str, new: str) -> None:
+    for page in site.rglob("*.html"):
+        page.write_text(page.read_text("utf-8").replace(old, new), "utf-8")
+
+
+def test_rehashed_page_figure_and_table_edits_fail_rerun_naming_each(group, sites,
+                                                                    copy_site):
+    site = copy_site(sites["rev0"])
+    _replace(site / "index.html", "within limit", "exceeds limit")          # a verdict
+    _replace(site / "figures/system-s1-r1.svg", 'stroke="#999999"', 'stroke="#999998"')
+    peaks = site / "data/peaks.csv"                                         # a number
+    lines = peaks.read_text("utf-8").splitlines(keepends=True)
+    lines[1] = lines[1].replace(",0.", ",0.1", 1)
+    peaks.write_text("".join(lines), "utf-8")
+    _replace(site / "records/r1.html", "</main>", "<p>Approved.</p></main>")  # words
+    manifest = _rehash(site)
+    # Reproduction: the hashes and the fingerprint (pages are not in it) all still agree.
+    assert _verify(group, site).exit_code == 0
+    result = _verify(group, site, "--rerun", "-j", "1")
+    assert result.exit_code == 4, result.output
+    for path in ("index.html", "figures/system-s1-r1.svg", "data/peaks.csv",
+                 "records/r1.html"):
+        assert f"re-run: differs from the rebuild: {path}" in result.output
+    assert "4 files differ from the rebuild" in result.output
+    assert manifest["fingerprint"] in (site / "index.html").read_text("utf-8")
+
+
+def test_added_page_listed_in_the_manifest_is_not_made_by_the_rebuild(group, sites,
+                                                                     copy_site):
+    site = copy_site(sites["rev0"])
+    (site / "approval.html").write_bytes((site / "suite.html").read_bytes())
+    _rehash(site, edit=lambda m: m["files"].__setitem__("approval.html", ""))
+    assert _verify(group, site).exit_code == 0  # reproduction: hashes and pages agree
+    result = _verify(group, site, "--rerun", "-j", "1")
+    assert result.exit_code == 4
+    assert "re-run: not made by the rebuild: approval.html" in result.output
+
+
+def test_results_with_recomputed_fingerprint_fail_plain_verify(group, sites, copy_site):
+    site = copy_site(sites["rev0"])
+    old = json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
+    results = site / "data/results.json"
+    document = json.loads(results.read_text("utf-8"))
+    document["systems"][0]["checks"][0]["demand"] *= 0.5
+    results.write_text(json.dumps(document, indent=1), "utf-8")
+    new = _rehash(site, refingerprint=True)["fingerprint"]
+    assert new != old
+    result = _verify(group, site)
+    assert result.exit_code == 4, result.output
+    for page in ("index.html", "suite.html", "systems/s1.html", "records/r2.html"):
+        assert (f"page: {page} shows run fingerprint '{old}', but manifest.json states "
+                f"'{new}'") in result.output
+
+
+def test_results_fingerprint_and_pages_all_edited_fail_rerun(group, sites, copy_site):
+    site = copy_site(sites["rev0"])
+    old = json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
+    results = site / "data/results.json"
+    document = json.loads(results.read_text("utf-8"))
+    document["systems"][0]["checks"][0]["demand"] *= 0.5
+    results.write_text(json.dumps(document, indent=1), "utf-8")
+    new = _fingerprint(_rehash(site))
+    _retarget_pages(site, old, new)
+    _rehash(site, refingerprint=True)
+    assert _verify(group, site).exit_code == 0  # reproduction: every printed value agrees
+    result = _verify(group, site, "--rerun", "-j", "1")
+    assert result.exit_code == 4
+    assert "re-run: systems[0].checks[0].demand: stored" in result.output
+
+
+def test_settings_edited_with_fingerprint_and_pages_fail_rerun(group, sites, copy_site):
+    site = copy_site(sites["rev0"])
+    old = json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
+    edit = {"edit": lambda m: m["settings"].__setitem__("statistic_used", "mean")}
+    new = _fingerprint(_rehash(site, **edit))
+    _retarget_pages(site, old, new)
+    _rehash(site, refingerprint=True, **edit)
+    assert _verify(group, site).exit_code == 0
+    result = _verify(group, site, "--rerun", "-j", "1")
+    assert result.exit_code == 4
+    assert ('re-run: manifest.json: settings.statistic_used: stored "mean", recomputed '
+            '"max"') in result.output
+
+
+def test_page_without_fingerprint_or_with_another_project_hash_fails(group, sites,
+                                                                     copy_site):
+    site = copy_site(sites["rev0"])
+    fingerprint = json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
+    _replace(site / "suite.html", f'<code class="fingerprint">{fingerprint}</code>',
+             "<code>see manifest</code>")
+    project_sha = hashlib.sha256((site / "inputs/sdofreport.toml").read_bytes()).hexdigest()
+    _replace(site / "records/r1.html", f"SHA-256 {project_sha[:12]}", "SHA-256 0123456789ab")
+    _rehash(site)
+    result = _verify(group, site)
+    assert result.exit_code == 4
+    assert "page: suite.html shows no run fingerprint" in result.output
+    assert (f"page: records/r1.html shows project file SHA-256 '0123456789ab', but "
+            f"'inputs/sdofreport.toml' has '{project_sha[:12]}'") in result.output
+    assert "2 page problems" in result.output
+
+
+def test_rerun_of_a_site_with_a_revision_page_rebuilds_its_link(sites, tmp_path):
+    project = write_project(tmp_path / "project", project_text("1", limit="40 mm"))
+    site = build_site(project, tmp_path / "site", jobs=1, use_cache=False,
+                      compare_to=sites["rev0"]).output
+    outcome = rerun_check(read_run(site), jobs=1)
+    assert outcome.ok, outcome.lines()
+    assert "revision.html" in outcome.kept
+    assert any("not rebuilt" in line and "revision.html" in line
+               for line in outcome.lines())
+
+
+def test_rerun_names_differing_versions_before_the_numbers(sites):
+    run = read_run(sites["rev0"])
+    manifest = json.loads(run.files["manifest.json"])
+    installed = manifest["dependencies"]["numpy"]
+    manifest["dependencies"]["numpy"] = "0.0.1"
+    stored = json.loads(run.files["data/results.json"])
+    stored["records"][0]["pga_g"] *= 2
+    files = {**run.files, "manifest.json": json.dumps(manifest).encode("utf-8"),
+             "data/results.json": json.dumps(stored).encode("utf-8")}
+    outcome = rerun_check(RunFiles("other numpy", "folder", files), jobs=1)
+    assert outcome.versions == [f"numpy: site 0.0.1, installed {installed}"]
+    assert outcome.tolerance == 1e-9  # another version: the documented default tolerance
+    lines = outcome.lines()
+    version = next(i for i, line in enumerate(lines) if "version: numpy" in line)
+    number = next(i for i, line in enumerate(lines) if "records[0].pga_g" in line)
+    assert version < number
+
+
+def test_csv_numbers_compare_within_the_tolerance():
+    # Definition of the relative difference: |a - b| / max(|a|, |b|).
+    assert not _csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0000000000001,s\n", 1e-9)  # 1e-13
+    assert _csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.00001,s\n", 1e-9)             # 1e-5
+    assert _csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0,t\n", 1e-9)                 # text
+    assert _csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0,s,extra\n", 1e-9)           # shape
