@@ -152,13 +152,16 @@ def test_page_without_fingerprint_or_with_another_project_hash_fails(group, site
              "<code>see manifest</code>")
     project_sha = hashlib.sha256((site / "inputs/sdofreport.toml").read_bytes()).hexdigest()
     _replace(site / "records/r1.html", f"SHA-256 {project_sha[:12]}", "SHA-256 0123456789ab")
+    # A declaration html.parser gives up on: whatever follows could show anything.
+    _replace(site / "records/r2.html", "<main", "<![hidden[ x ]]><main")
     _rehash(site)
     result = _verify(group, site)
     assert result.exit_code == 4
+    assert "page: records/r2.html cannot be parsed as HTML to its end" in result.output
     assert "page: suite.html shows no run fingerprint" in result.output
     assert (f"page: records/r1.html shows project file SHA-256 '0123456789ab', but "
             f"'inputs/sdofreport.toml' has '{project_sha[:12]}'") in result.output
-    assert "2 page problems" in result.output
+    assert "3 page problems" in result.output
 
 
 def test_rerun_of_a_site_with_a_revision_page_rebuilds_its_link(sites, tmp_path):
