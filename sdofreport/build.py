@@ -12,8 +12,9 @@ from pathlib import Path
 from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir, run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
-from sdofreport.site.render import (gather_site, prepare_output, recover_site,
-                                    start_record_figures)
+from sdofreport.jsontext import json_text
+from sdofreport.site.render import (COMPARE_TO_INPUT, gather_site, prepare_output,
+                                    recover_site, start_record_figures)
 from sdofreport.site.tree import StagedTree
 
 log = logging.getLogger("sdofreport.build")
@@ -53,14 +54,14 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
                use_cache: bool = True, allow_outside: bool = False,
                progress: Progress | None = None, scheduler: str | None = None,
                dask_local: int | None = None,
-               compare_to: str | os.PathLike | None = None,
-               extra_pages=None) -> BuildOutcome:
+               compare_to: str | os.PathLike | None = None) -> BuildOutcome:
     """
     Validate the project, compute every result, render every page into a staged tree,
     then swap it in for ``output``.
 
-    ``extra_pages(results_document, fingerprint) -> {site path: bytes}`` adds pages as
-    ``compare_to`` does (``verify --rerun`` passes back a site's own revision page).
+    With ``compare_to``, the earlier run's results are kept as an input
+    (:data:`~sdofreport.site.render.COMPARE_TO_INPUT`), so ``verify --rerun`` can rebuild
+    the revision page too.
 
     Raises :class:`~sdofreport.errors.SdofreportError` subclasses for bad input; in that
     case nothing is written and any previous site at ``output`` is left intact.
@@ -78,9 +79,12 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     figure_cache = None
     if use_cache:
         figure_cache = ResultCache(Path(cache_dir or default_cache_dir()) / "figures")
-    extra = extra_pages
+    extra = None
+    kept_inputs = {}
     if old is not None:
         from sdofreport.archive.compare import revision_page
+
+        kept_inputs[COMPARE_TO_INPUT] = json_text(old).encode("utf-8")
 
         def extra(document, fingerprint):
             return revision_page(old, document, fingerprint=fingerprint)
@@ -104,7 +108,8 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
                               records_ready=records_ready if workers > 1 else None)
         render_started = time.perf_counter()
         count = gather_site(results, tree(), jobs=workers, figure_cache=figure_cache,
-                            extra_pages=extra, early=early[0] if early else None)
+                            extra_pages=extra, extra_inputs=kept_inputs,
+                            early=early[0] if early else None)
         write_started = time.perf_counter()
         path = tree().commit()
     finished = time.perf_counter()

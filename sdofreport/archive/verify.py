@@ -35,7 +35,12 @@ from sdofreport.archive._sitefiles import (
     read_run,
 )
 from sdofreport.errors import SdofreportError
-from sdofreport.site.render import MANIFEST_NAME, fingerprint, manifest_versions
+from sdofreport.site.render import (
+    COMPARE_TO_INPUT,
+    MANIFEST_NAME,
+    fingerprint,
+    manifest_versions,
+)
 
 #: Relative tolerance of the re-run when the site was built by another version. Our own
 #: choice: results are written with full float64 precision (17 significant digits), so
@@ -68,7 +73,6 @@ class RerunOutcome:
     files_differ: list[str] = field(default_factory=list)   # bytes differ from the rebuild
     not_rebuilt: list[str] = field(default_factory=list)    # in the site, not in the rebuild
     not_in_site: list[str] = field(default_factory=list)    # made by the rebuild only
-    kept: list[str] = field(default_factory=list)           # taken from the site as is
 
     @property
     def ok(self) -> bool:
@@ -93,8 +97,6 @@ class RerunOutcome:
         out += [f"  re-run: not made by the rebuild: {path}" for path in self.not_rebuilt]
         out += [f"  re-run: made by the rebuild but missing: {path}"
                 for path in self.not_in_site]
-        out += [f"  re-run: taken from the site, not rebuilt (made by --compare-to from a "
-                f"run the site does not hold): {path}" for path in self.kept]
         return out
 
 
@@ -186,7 +188,7 @@ class VerifyReport:
                                 for d in self.rerun.differences],
                 "files_differ": self.rerun.files_differ,
                 "not_rebuilt": self.rerun.not_rebuilt,
-                "not_in_site": self.rerun.not_in_site, "kept": self.rerun.kept}
+                "not_in_site": self.rerun.not_in_site}
         document["pages"] = self.pages
         return document
 
@@ -276,16 +278,6 @@ def _source_date(date: str | None):
             os.environ["SOURCE_DATE_EPOCH"] = saved
 
 
-#: Files a build with ``--compare-to`` adds from a run the site does not hold; a re-run
-#: passes them back to the rebuild as they are (so the summary page's link to them is
-#: rebuilt) and lists them as not rebuilt.
-def _revision_files(files: dict[str, bytes]) -> dict[str, bytes]:
-    if "revision.html" not in files:
-        return {}
-    return {path: data for path, data in files.items() if path == "revision.html" or
-            (path.startswith("figures/revision-") and path.endswith(".svg"))}
-
-
 def rebuild_site(files: dict[str, bytes], manifest: dict, stored_date: str | None,
                  *, jobs: int | None = 1) -> dict[str, bytes]:
     """
@@ -293,7 +285,8 @@ def rebuild_site(files: dict[str, bytes], manifest: dict, stored_date: str | Non
 
     The inputs are written to a temporary folder at their paths relative to the project
     file and built there without any cache (results or figures), as ``sdofreport build``
-    does. Raises :class:`SdofreportError` when the project cannot be loaded or built or
+    does; a site built with ``--compare-to`` is rebuilt against the earlier results it
+    keeps (:data:`~sdofreport.site.render.COMPARE_TO_INPUT`). Raises :class:`SdofreportError` when the project cannot be loaded or built or
     an input lay outside the project folder.
     """
     from sdofreport.build import build_site
@@ -305,17 +298,18 @@ def rebuild_site(files: dict[str, bytes], manifest: dict, stored_date: str | Non
     project_file = manifest["project"].get("file")
     if project_file not in inputs:
         raise SdofreportError(f"project file {project_file!r} is not in the site")
-    revision = _revision_files(files)
-    extra = (lambda document, run_fingerprint: dict(revision)) if revision else None
     with tempfile.TemporaryDirectory(prefix="sdofreport-rerun-") as folder:
         for path, data in inputs.items():
             target = Path(folder, "project", *path.split("/")[1:])
             target.parent.mkdir(parents=True, exist_ok=True)
             target.write_bytes(data)
         with _source_date(stored_date):
+            compare_to = None
+            if COMPARE_TO_INPUT in inputs:
+                compare_to = Path(folder, "project", *COMPARE_TO_INPUT.split("/")[1:])
             outcome = build_site(Path(folder, "project", *project_file.split("/")[1:]),
                                  Path(folder, "site"), jobs=jobs, use_cache=False,
-                                 extra_pages=extra)
+                                 compare_to=compare_to)
         return read_folder(outcome.output)
 
 
@@ -374,10 +368,8 @@ def compare_rebuild(stored: dict[str, bytes], rebuilt: dict[str, bytes], stored_
         rebuilt_manifest = {}
     old, new = (str(stored_manifest.get("fingerprint", "")),
                 str(rebuilt_manifest.get("fingerprint", "")))
-    kept = _revision_files(stored)
-    outcome.kept = sorted(kept)
     for path in sorted(set(stored) | set(rebuilt)):
-        if path in (RESULTS_PATH, MANIFEST_NAME) or path in kept:
+        if path in (RESULTS_PATH, MANIFEST_NAME):
             continue
         if path not in rebuilt:
             outcome.not_rebuilt.append(path)
