@@ -75,6 +75,14 @@ def _limit_problem(label: str, what: str, size: int, limit: int) -> ArchiveError
                         f"it (a few MB). Nothing was extracted.")
 
 
+def read_bounded(path: Path) -> bytes:
+    """The bytes of one file, refused (exit 2) beyond :data:`MAX_FILE_BYTES`."""
+    size = path.stat().st_size
+    if size > MAX_FILE_BYTES:
+        raise _limit_problem(str(path), "the file", size, MAX_FILE_BYTES)
+    return path.read_bytes()
+
+
 def read_folder(folder: Path) -> dict[str, bytes]:
     """Every regular file under ``folder`` by POSIX relative path (symlinks are refused;
     sizes are bounded as for archives)."""

@@ -280,3 +280,18 @@ def test_register_lists_good_runs_beside_a_bad_one(group, sites, good, tmp_path)
     assert "ratio above" in rows["d-bomb.zip"]["verification"]
     assert rows["a-good.zip"]["link"] and rows["b-bad.zip"]["link"] is None
     assert not any("filler" in str(p) for p in output.rglob("*"))
+
+
+# -- the same bounds for site folders and results files --------------------------------------
+
+def test_oversized_file_in_a_folder_or_given_to_compare_is_unreadable(group, sites,
+                                                                      monkeypatch):
+    limit = 1000  # lowered so that ordinary files exceed it, as a hostile one would
+    monkeypatch.setattr(_sitefiles, "MAX_FILE_BYTES", limit)
+    result = _run(group, "verify", sites["rev0"])
+    assert result.exit_code == 2
+    assert f"more than the {limit} bytes allowed" in result.output
+    results = sites["rev0"] / "data" / "results.json"
+    result = _run(group, "compare", results, results)
+    assert result.exit_code == 2
+    assert f"more than the {limit} bytes allowed" in result.output
