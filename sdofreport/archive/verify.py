@@ -296,7 +296,7 @@ def rebuild_site(files: dict[str, bytes], manifest: dict, stored_date: str | Non
     if outside:
         raise SdofreportError(f"input outside project folder ({', '.join(outside)})")
     project_file = manifest["project"].get("file")
-    if project_file not in inputs:
+    if not isinstance(project_file, str) or project_file not in inputs:
         raise SdofreportError(f"project file {project_file!r} is not in the site")
     with tempfile.TemporaryDirectory(prefix="sdofreport-rerun-") as folder:
         for path, data in inputs.items():
@@ -317,7 +317,8 @@ def version_differences(manifest: dict) -> list[str]:
     """Recorded versions (package, dependencies, platform) the installed ones differ from,
     one ``"<name>: site <recorded>, installed <installed>"`` line each."""
     installed = manifest_versions()
-    recorded = {"sdofreport": (manifest.get("package") or {}).get("version")}
+    package = manifest.get("package") if isinstance(manifest.get("package"), dict) else {}
+    recorded = {"sdofreport": package.get("version", ABSENT)}
     now = {"sdofreport": installed["package"]["version"]}
     for key in ("dependencies", "platform"):
         stored = manifest.get(key) if isinstance(manifest.get(key), dict) else {}
