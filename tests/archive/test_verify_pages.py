@@ -16,6 +16,7 @@ import hashlib
 import json
 from pathlib import Path
 
+import pytest
 from click.testing import CliRunner
 
 from sdofreport.archive._sitefiles import RunFiles, read_run
@@ -60,9 +61,22 @@ def _replace(path: Path, old: str, new: str, count: int = 1) -> None:
     path.write_text(text.replace(old, new, count), "utf-8")
 
 
-def _retarget_pages(site: Path, old: str, new: str) -> None:
+def _rehash_everywhere(site: Path, edit=None) -> None:
+    """Re-hash, recompute the fingerprint and print the new one on every page."""
+    old = json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
+    new = _fingerprint(_rehash(site, edit=edit))
     for page in site.rglob("*.html"):
         page.write_text(page.read_text("utf-8").replace(old, new), "utf-8")
+    _rehash(site, refingerprint=True, edit=edit)
+
+
+def _halve_first_demand(site: Path) -> str:
+    """Halve the first check's demand in results.json; the fingerprint before."""
+    results = site / "data/results.json"
+    document = json.loads(results.read_text("utf-8"))
+    document["systems"][0]["checks"][0]["demand"] *= 0.5
+    results.write_text(json.dumps(document, indent=1), "utf-8")
+    return json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
 
 
 def test_rehashed_page_figure_and_table_edits_fail_rerun_naming_each(group, sites,
@@ -87,24 +101,9 @@ def test_rehashed_page_figure_and_table_edits_fail_rerun_naming_each(group, site
     assert manifest["fingerprint"] in (site / "index.html").read_text("utf-8")
 
 
-def test_added_page_listed_in_the_manifest_is_not_made_by_the_rebuild(group, sites,
-                                                                     copy_site):
-    site = copy_site(sites["rev0"])
-    (site / "approval.html").write_bytes((site / "suite.html").read_bytes())
-    _rehash(site, edit=lambda m: m["files"].__setitem__("approval.html", ""))
-    assert _verify(group, site).exit_code == 0  # reproduction: hashes and pages agree
-    result = _verify(group, site, "--rerun", "-j", "1")
-    assert result.exit_code == 4
-    assert "re-run: not made by the rebuild: approval.html" in result.output
-
-
 def test_results_with_recomputed_fingerprint_fail_plain_verify(group, sites, copy_site):
     site = copy_site(sites["rev0"])
-    old = json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
-    results = site / "data/results.json"
-    document = json.loads(results.read_text("utf-8"))
-    document["systems"][0]["checks"][0]["demand"] *= 0.5
-    results.write_text(json.dumps(document, indent=1), "utf-8")
+    old = _halve_first_demand(site)
     new = _rehash(site, refingerprint=True)["fingerprint"]
     assert new != old
     result = _verify(group, site)
@@ -114,34 +113,35 @@ def test_results_with_recomputed_fingerprint_fail_plain_verify(group, sites, cop
                 f"'{new}'") in result.output
 
 
-def test_results_fingerprint_and_pages_all_edited_fail_rerun(group, sites, copy_site):
-    site = copy_site(sites["rev0"])
-    old = json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
-    results = site / "data/results.json"
-    document = json.loads(results.read_text("utf-8"))
-    document["systems"][0]["checks"][0]["demand"] *= 0.5
-    results.write_text(json.dumps(document, indent=1), "utf-8")
-    new = _fingerprint(_rehash(site))
-    _retarget_pages(site, old, new)
-    _rehash(site, refingerprint=True)
-    assert _verify(group, site).exit_code == 0  # reproduction: every printed value agrees
-    result = _verify(group, site, "--rerun", "-j", "1")
-    assert result.exit_code == 4
-    assert "re-run: systems[0].checks[0].demand: stored" in result.output
+def _add_page(site: Path) -> None:
+    (site / "approval.html").write_bytes((site / "suite.html").read_bytes())
+    _rehash(site, edit=lambda m: m["files"].__setitem__("approval.html", ""))
 
 
-def test_settings_edited_with_fingerprint_and_pages_fail_rerun(group, sites, copy_site):
+def _halve_demand_everywhere(site: Path) -> None:
+    _halve_first_demand(site)
+    _rehash_everywhere(site)
+
+
+def _change_settings_everywhere(site: Path) -> None:
+    _rehash_everywhere(site, lambda m: m["settings"].__setitem__("statistic_used", "mean"))
+
+
+@pytest.mark.parametrize("tamper, expected", [
+    (_add_page, "re-run: not made by the rebuild: approval.html"),
+    (_halve_demand_everywhere, "re-run: systems[0].checks[0].demand: stored"),
+    (_change_settings_everywhere,
+     're-run: manifest.json: settings.statistic_used: stored "mean", recomputed "max"'),
+])
+def test_consistent_tampering_passes_plain_verify_but_fails_rerun(group, sites, copy_site,
+                                                                  tamper, expected):
     site = copy_site(sites["rev0"])
-    old = json.loads((site / "manifest.json").read_text("utf-8"))["fingerprint"]
-    edit = {"edit": lambda m: m["settings"].__setitem__("statistic_used", "mean")}
-    new = _fingerprint(_rehash(site, **edit))
-    _retarget_pages(site, old, new)
-    _rehash(site, refingerprint=True, **edit)
+    tamper(site)
+    # Reproduction: hashes, fingerprint and every printed value agree.
     assert _verify(group, site).exit_code == 0
     result = _verify(group, site, "--rerun", "-j", "1")
     assert result.exit_code == 4
-    assert ('re-run: manifest.json: settings.statistic_used: stored "mean", recomputed '
-            '"max"') in result.output
+    assert expected in result.output
 
 
 def test_page_without_fingerprint_or_with_another_project_hash_fails(group, sites,
