@@ -22,8 +22,8 @@ from sdofreport.archive._sitefiles import (
     parse_manifest,
     parse_results,
     read_bounded,
-    read_zip,
 )
+from sdofreport.archive._zipfiles import read_zip
 from sdofreport.jsontext import json_text
 from sdofreport.site.render import MANIFEST_NAME
 

@@ -286,8 +286,9 @@ def rebuild_site(files: dict[str, bytes], manifest: dict, stored_date: str | Non
     The inputs are written to a temporary folder at their paths relative to the project
     file and built there without any cache (results or figures), as ``sdofreport build``
     does; a site built with ``--compare-to`` is rebuilt against the earlier results it
-    keeps (:data:`~sdofreport.site.render.COMPARE_TO_INPUT`). Raises :class:`SdofreportError` when the project cannot be loaded or built or
-    an input lay outside the project folder.
+    keeps (:data:`~sdofreport.site.render.COMPARE_TO_INPUT`). Raises
+    :class:`SdofreportError` when the project cannot be loaded or built or an input lay
+    outside the project folder.
     """
     from sdofreport.build import build_site
 
@@ -379,7 +380,7 @@ def compare_rebuild(stored: dict[str, bytes], rebuilt: dict[str, bytes], stored_
         else:
             data = rebuilt[path]
             if old and new and old != new:
-                data = data.replace(new.encode("ascii"), old.encode("ascii"))
+                data = data.replace(new.encode("utf-8"), old.encode("utf-8"))
             if data == stored[path]:
                 continue
             if tolerance and path.endswith(".csv") and not _csv_differs(stored[path], data,
@@ -461,10 +462,10 @@ def rerun_check(run: RunFiles, *, rtol: float | None = None,
     stored_date = (stored.get("project") or {}).get("date")
     try:
         rebuilt = rebuild_site(run.files, manifest, stored_date, jobs=jobs)
-        recomputed = parse_results(rebuilt[RESULTS_PATH], RESULTS_PATH)
-    except (SdofreportError, KeyError) as exc:
-        reason = exc.message if isinstance(exc, SdofreportError) else f"no {exc} rebuilt"
-        return RerunOutcome(False, " ".join(reason.split()), tolerance, versions=versions)
+        recomputed = parse_results(rebuilt.get(RESULTS_PATH, b""), RESULTS_PATH)
+    except SdofreportError as exc:
+        return RerunOutcome(False, " ".join(exc.message.split()), tolerance,
+                            versions=versions)
     differences, count = compare_documents(stored, recomputed, tolerance)
     outcome = RerunOutcome(True, "", tolerance, count, differences, versions)
     compare_rebuild(run.files, rebuilt, manifest, tolerance, outcome)
@@ -484,8 +485,8 @@ def verify_site(path: str | os.PathLike, *, rerun: bool = False, rtol: float | N
         Also rebuild the site from ``inputs/``: compare ``data/results.json`` by value
         and every other file byte for byte.
     rtol : float, optional
-        Relative tolerance of the re-run comparison [-]; default exact with the same
-        package version, else :data:`DEFAULT_RTOL`.
+        Relative tolerance of the re-run comparison of numbers [-]; default exact with
+        the same recorded versions, else :data:`DEFAULT_RTOL`.
     jobs : int, optional
         Worker processes for the re-run.
 

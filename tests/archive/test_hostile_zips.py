@@ -18,13 +18,12 @@ import struct
 import tracemalloc
 import warnings
 import zipfile
-import zlib
 from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
 
-from sdofreport.archive import _sitefiles
+from sdofreport.archive import _sitefiles, _zipfiles
 from sdofreport.archive._sitefiles import read_run
 from sdofreport.archive.pack import zip_bytes
 
@@ -232,14 +231,14 @@ def test_declared_sizes_beyond_the_bounds_are_unreadable(group, good, tmp_path,
     result = _run(group, "verify", _write(tmp_path, data))
     assert result.exit_code == 2
     assert f"'index.html' would take {size} bytes" in result.output
-    monkeypatch.setattr(_sitefiles, "MAX_TOTAL_BYTES", 1000)
+    monkeypatch.setattr(_zipfiles, "MAX_TOTAL_BYTES", 1000)
     result = _run(group, "verify", _write(tmp_path, _zip(_members(good)), "small.zip"))
     assert result.exit_code == 2
     assert "more than the 1000 bytes allowed" in result.output
 
 
 def test_too_many_members_is_unreadable(group, good, tmp_path, monkeypatch):
-    monkeypatch.setattr(_sitefiles, "MAX_MEMBERS", 5)
+    monkeypatch.setattr(_zipfiles, "MAX_MEMBERS", 5)
     result = _run(group, "verify", _write(tmp_path, _zip(_members(good))))
     assert result.exit_code == 2
     assert "more than the 5 allowed" in result.output
