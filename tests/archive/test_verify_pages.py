@@ -20,7 +20,8 @@ import pytest
 from click.testing import CliRunner
 
 from sdofreport.archive._sitefiles import RunFiles, read_run
-from sdofreport.archive.verify import _csv_differs, rerun_check
+from sdofreport.archive._rebuild import csv_differs
+from sdofreport.archive.verify import rerun_check
 from sdofreport.build import build_site
 from tests.archive.conftest import project_text, write_project
 
@@ -201,7 +202,7 @@ def test_rerun_names_differing_versions_before_the_numbers(sites):
 
 def test_csv_numbers_compare_within_the_tolerance():
     # Definition of the relative difference: |a - b| / max(|a|, |b|).
-    assert not _csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0000000000001,s\n", 1e-9)  # 1e-13
-    assert _csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.00001,s\n", 1e-9)             # 1e-5
-    assert _csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0,t\n", 1e-9)                 # text
-    assert _csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0,s,extra\n", 1e-9)           # shape
+    assert not csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0000000000001,s\n", 1e-9)  # 1e-13
+    assert csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.00001,s\n", 1e-9)             # 1e-5
+    assert csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0,t\n", 1e-9)                 # text
+    assert csv_differs(b"x,a\n1.0,s\n", b"x,a\n1.0,s,extra\n", 1e-9)           # shape
