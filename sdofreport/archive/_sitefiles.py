@@ -81,10 +81,10 @@ def read_folder(folder: Path) -> dict[str, bytes]:
             total += size
             if size > MAX_FILE_BYTES:
                 raise size_problem(str(folder), f"'{relative.as_posix()}'", size,
-                                     MAX_FILE_BYTES)
+                                   MAX_FILE_BYTES)
             if total > MAX_TOTAL_BYTES or len(files) >= MAX_MEMBERS:
                 raise size_problem(str(folder), f"the site's {len(files) + 1} files",
-                                     total, MAX_TOTAL_BYTES)
+                                   total, MAX_TOTAL_BYTES)
             files[relative.as_posix()] = path.read_bytes()
     return files
 

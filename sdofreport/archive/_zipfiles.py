@@ -157,7 +157,7 @@ def _plan_zip(archive: zipfile.ZipFile, label: str) -> list[tuple[zipfile.ZipInf
         folders.update("/".join(parts[:depth]) for depth in range(1, len(parts)))
         if info.file_size > MAX_FILE_BYTES:
             raise size_problem(label, f"archive member '{shown}'", info.file_size,
-                                 MAX_FILE_BYTES)
+                               MAX_FILE_BYTES)
         if (info.file_size > RATIO_FLOOR_BYTES
                 and info.file_size > MAX_RATIO * max(info.compress_size, 1)):
             raise ArchiveError(f"{label}: archive member '{shown}' would unpack "
@@ -167,7 +167,7 @@ def _plan_zip(archive: zipfile.ZipFile, label: str) -> list[tuple[zipfile.ZipInf
         total += info.file_size
         if total > MAX_TOTAL_BYTES:
             raise size_problem(label, f"the archive's {len(plan) + 1} members", total,
-                                 MAX_TOTAL_BYTES)
+                               MAX_TOTAL_BYTES)
         plan.append((info, name))
     clash = sorted(key for key in seen if key in folders)
     if clash:
