@@ -84,17 +84,18 @@ def _member_name(info: zipfile.ZipInfo, label: str) -> str | None:
     return posix.as_posix()
 
 
-def _check_local_header(stream, info: zipfile.ZipInfo, label: str) -> None:
+def _check_local_header(stream, info: zipfile.ZipInfo, label: str) -> int:
     """The member's local header must agree with its central directory entry: unzip
     tools read one, Python the other, so a difference would verify one file and extract
-    another (APPNOTE.TXT 4.3.7 and 4.3.12)."""
+    another (APPNOTE.TXT 4.3.7 and 4.3.12). Returns the offset where the member's data
+    (and any data descriptor) ends."""
     stream.seek(info.header_offset)
     raw = stream.read(_LOCAL_HEADER.size)
     if len(raw) != _LOCAL_HEADER.size:
         raise ArchiveError(f"{label}: archive member '{_shown(info.filename)}' is cut "
                            f"short (no local header); the archive is damaged.")
     (signature, _, _, flags, method, _, _, crc, compressed, size, name_length,
-     _) = _LOCAL_HEADER.unpack(raw)
+     extra_length) = _LOCAL_HEADER.unpack(raw)
     name = stream.read(name_length)
     found = []
     if signature != b"PK\x03\x04":
@@ -119,6 +120,37 @@ def _check_local_header(stream, info: zipfile.ZipInfo, label: str) -> None:
                               f"{'; '.join(found)}; expected one consistent entry per file "
                               f"as sdofreport pack writes it. The archive was not "
                               f"extracted.")
+    return (info.header_offset + _LOCAL_HEADER.size + name_length + extra_length
+            + info.compress_size)
+
+
+#: Sizes a data descriptor may take after a member's data (APPNOTE.TXT 4.3.9): CRC-32
+#: and two sizes of 4 or 8 bytes, with or without the optional 4-byte signature.
+_DESCRIPTOR_SIZES = (0, 12, 16, 20, 24)
+
+
+def _check_layout(stream, archive: zipfile.ZipFile, label: str) -> None:
+    """Every member's local header agrees with the directory, and the members fill the
+    space before the central directory with nothing between them: hidden bytes there
+    (a prefix, or a local entry the directory does not list) are what tools that read
+    local headers in order would extract instead."""
+    expected = 0
+    for info in sorted(archive.infolist(), key=lambda item: item.header_offset):
+        gap = info.header_offset - expected
+        if gap not in _DESCRIPTOR_SIZES or (gap and expected == 0):
+            where = ("before the first member" if expected == 0 else
+                     f"before member '{_shown(info.filename)}'")
+            raise TamperedArchive(f"{label}: the archive holds {gap} bytes {where} that no "
+                                  f"directory entry covers (hidden or overlapping data); "
+                                  f"expected members one after another as sdofreport pack "
+                                  f"writes them. The archive was not extracted.")
+        expected = _check_local_header(stream, info, label)
+    gap = archive.start_dir - expected
+    if gap not in _DESCRIPTOR_SIZES:
+        raise TamperedArchive(f"{label}: the archive holds {gap} bytes before its central "
+                              f"directory that no directory entry covers (hidden or "
+                              f"overlapping data); expected members one after another as "
+                              f"sdofreport pack writes them. The archive was not extracted.")
 
 
 def _plan_zip(archive: zipfile.ZipFile, label: str) -> list[tuple[zipfile.ZipInfo, str]]:
@@ -207,10 +239,10 @@ def read_zip(path: Path) -> dict[str, bytes]:
     try:
         with open(path, "rb") as raw, zipfile.ZipFile(raw) as archive:
             plan = _plan_zip(archive, label)
+            _check_layout(raw, archive, label)
             files = {}
             for info, name in plan:
                 member = info.filename
-                _check_local_header(raw, info, label)
                 files[name] = _read_member(archive, info)
     except ArchiveError:
         raise

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import io
 import json
+import shutil
 import struct
 import tracemalloc
 import warnings
@@ -93,6 +94,34 @@ def _members(good: dict[str, bytes]) -> list[tuple[str, bytes]]:
     return sorted(good.items())
 
 
+class _Unseekable:
+    """A write-only stream: zipfile then writes data descriptors (APPNOTE 4.3.9)."""
+
+    def __init__(self, stream):
+        self.stream = stream
+
+    def write(self, data):
+        return self.stream.write(data)
+
+    def flush(self):
+        self.stream.flush()
+
+
+def test_archives_of_the_site_from_other_writers_still_verify(group, sites, tmp_path):
+    # No false alarms: folder entries and a top folder (shutil.make_archive) and data
+    # descriptors after each member (zipfile writing to a stream it cannot seek).
+    made = shutil.make_archive(str(tmp_path / "shutil"), "zip", sites["rev0"].parent, "site")
+    streamed = tmp_path / "streamed.zip"
+    with open(streamed, "wb") as raw, \
+            zipfile.ZipFile(_Unseekable(raw), "w", zipfile.ZIP_DEFLATED) as archive:
+        for path in sorted(sites["rev0"].rglob("*")):
+            if path.is_file():
+                archive.write(path, path.relative_to(sites["rev0"]).as_posix())
+    for path in (made, streamed):
+        result = _run(group, "verify", path)
+        assert result.exit_code == 0, result.output
+
+
 # -- names: duplicates, escaping, links ----------------------------------------------------
 
 @pytest.mark.parametrize("second", ["index.html", "INDEX.html", "./index.html",
@@ -165,6 +194,46 @@ def test_local_header_with_another_name_is_tampered(group, good, tmp_path):
     result = _run(group, "verify", _write(tmp_path, bytes(data)))
     assert result.exit_code == 4
     assert "suite.html" in result.output
+
+
+def _drop_from_directory(data: bytes, name: str) -> bytes:
+    """The archive with the first central directory entry of ``name`` removed (its local
+    entry and data stay in place) and the end record (APPNOTE 4.3.16) updated to match."""
+    with zipfile.ZipFile(io.BytesIO(data)) as archive:
+        start = archive.start_dir
+    entries, offset, dropped = [], start, False
+    while data[offset:offset + 4] == b"PK\x01\x02":
+        fields = CENTRAL.unpack_from(data, offset)
+        end = offset + 46 + fields[12] + fields[13] + fields[14]
+        if dropped or data[offset + 46:offset + 46 + fields[12]].decode("cp437") != name:
+            entries.append(data[offset:end])
+        else:
+            dropped = True
+        offset = end
+    directory = b"".join(entries)
+    record = struct.pack("<4s4H2LH", b"PK\x05\x06", 0, 0, len(entries), len(entries),
+                         len(directory), start, 0)
+    return data[:start] + directory + record
+
+
+def test_local_entry_hidden_from_the_directory_is_tampered(group, good, tmp_path):
+    # A tool that reads local headers in order would extract the hidden page first.
+    hidden = good["index.html"].replace(b"within limit", b"exceeds limit", 1)
+    data = _drop_from_directory(_zip([("index.html", hidden)] + _members(good)),
+                                "index.html")
+    with zipfile.ZipFile(io.BytesIO(data)) as archive:  # zipfile itself sees one copy
+        assert archive.namelist().count("index.html") == 1
+    result = _run(group, "verify", _write(tmp_path, data))
+    assert result.exit_code == 4, result.output
+    assert "that no directory entry covers" in result.output
+
+
+def test_prefix_before_the_first_member_is_tampered(group, good, tmp_path):
+    fake = _zip([("index.html", b"<p>Approved.</p>")])
+    prefix = fake[:fake.index(b"PK\x01\x02")]  # a whole local entry, no directory
+    result = _run(group, "verify", _write(tmp_path, prefix + _zip(_members(good))))
+    assert result.exit_code == 4, result.output
+    assert "before the first member" in result.output
 
 
 # -- what cannot be read: encryption, methods, corrupt streams, sizes ----------------------
