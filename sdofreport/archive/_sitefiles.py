@@ -118,17 +118,46 @@ def read_run(path: str | Path) -> RunFiles:
     return run
 
 
+#: Deepest nesting of JSON arrays and objects read from a run (our choice, common practice
+#: (no source)): manifest.json and results.json nest a few levels; a hostile document
+#: nested thousands deep would exhaust Python's recursion limit in json and in the
+#: comparisons.
+MAX_JSON_DEPTH = 64
+
+
+def _json_document(data: bytes, what: str) -> object:
+    """Parse JSON; :class:`ArchiveError` when it is not UTF-8 JSON or nests too deep."""
+    try:
+        document = json.loads(data.decode("utf-8"))
+    except RecursionError:
+        document = None
+        depth = MAX_JSON_DEPTH + 1
+    except (UnicodeDecodeError, ValueError) as exc:
+        raise ArchiveError(f"{what} is not valid JSON ({exc}); expected it as "
+                           f"sdofreport build writes it.") from None
+    else:
+        depth, level = 0, [(document, 1)]
+        while level and depth <= MAX_JSON_DEPTH:
+            value, depth_here = level.pop()
+            depth = max(depth, depth_here)
+            children = (value.values() if isinstance(value, dict) else
+                        value if isinstance(value, list) else ())
+            level += [(child, depth_here + 1) for child in children
+                      if isinstance(child, (dict, list))]
+    if depth > MAX_JSON_DEPTH:
+        raise ArchiveError(f"{what} nests arrays or objects more than {MAX_JSON_DEPTH} "
+                           f"deep; expected it as sdofreport build writes it (a few "
+                           f"levels).")
+    return document
+
+
 def parse_manifest(files: dict[str, bytes], label: str) -> dict:
     """manifest.json of a run, checked for the fields verification relies on."""
     if MANIFEST_NAME not in files:
         raise ArchiveError(f"{label}: no {MANIFEST_NAME} found; expected a site folder "
                            f"built by sdofreport build (or a zip made by sdofreport pack), "
                            f"which always carries one.")
-    try:
-        manifest = json.loads(files[MANIFEST_NAME].decode("utf-8"))
-    except (UnicodeDecodeError, ValueError) as exc:
-        raise ArchiveError(f"{label}: {MANIFEST_NAME} is not valid JSON ({exc}); expected "
-                           f"the manifest written by sdofreport build.") from None
+    manifest = _json_document(files[MANIFEST_NAME], f"{label}: {MANIFEST_NAME}")
     if not isinstance(manifest, dict) or manifest.get("schema") != MANIFEST_SCHEMA:
         found = manifest.get("schema") if isinstance(manifest, dict) else type(manifest)
         raise ArchiveError(f"{label}: {MANIFEST_NAME} has schema {found!r}; expected "
@@ -150,11 +179,7 @@ def parse_manifest(files: dict[str, bytes], label: str) -> dict:
 
 def parse_results(data: bytes, label: str) -> dict:
     """A results.json document, checked only for being our schema."""
-    try:
-        document = json.loads(data.decode("utf-8"))
-    except (UnicodeDecodeError, ValueError) as exc:
-        raise ArchiveError(f"{label}: not valid JSON ({exc}); expected data/results.json "
-                           f"as written by sdofreport build.") from None
+    document = _json_document(data, label)
     schema = document.get("schema") if isinstance(document, dict) else None
     if not isinstance(schema, str) or not schema.startswith("sdofreport/results@"):
         raise ArchiveError(f"{label}: schema {schema!r}; expected 'sdofreport/results@1' "

@@ -313,6 +313,19 @@ def test_too_many_members_is_unreadable(group, good, tmp_path, monkeypatch):
     assert "more than the 5 allowed" in result.output
 
 
+@pytest.mark.parametrize("member", ["manifest.json", "data/results.json"])
+@pytest.mark.parametrize("depth", [200, 100_000])  # within json's recursion limit, beyond
+def test_json_nested_too_deep_is_unreadable(group, good, tmp_path, member, depth):
+    members = dict(good)
+    members[member] = b"[" * depth + b"]" * depth
+    arguments = ["verify", _write(tmp_path, _zip(sorted(members.items())))]
+    if member != "manifest.json":
+        arguments.append("--rerun")  # results.json is read by the re-run and the register
+    result = _run(group, *arguments)
+    assert result.exit_code in (2, 4), result.output
+    assert "nests arrays or objects more than 64 deep" in result.output
+
+
 # -- pack and register -----------------------------------------------------------------------
 
 @pytest.mark.parametrize("make, status", [
@@ -337,15 +350,19 @@ def test_register_lists_good_runs_beside_a_bad_one(group, sites, good, tmp_path)
     (folder / "c-good.zip").write_bytes(zip_bytes(read_run(sites["rev2"]).files))
     (folder / "d-bomb.zip").write_bytes(
         _zip(_members(good) + [("data/filler.bin", bytes(8 * 2**20))]))
+    deep = {**good, "manifest.json": b"[" * 100_000 + b"]" * 100_000}
+    (folder / "e-deep.zip").write_bytes(zip_bytes(deep))
     output = tmp_path / "register"
     result = _run(group, "register", folder, "-o", output)
     assert result.exit_code == 4, result.output
     rows = {row["source"]: row for row in
             json.loads((output / "register.json").read_text("utf-8"))["runs"]}
-    assert sorted(rows) == ["a-good.zip", "b-bad.zip", "c-good.zip", "d-bomb.zip"]
+    assert sorted(rows) == ["a-good.zip", "b-bad.zip", "c-good.zip", "d-bomb.zip",
+                            "e-deep.zip"]
     assert rows["a-good.zip"]["verified"] and rows["c-good.zip"]["verified"]
     assert not rows["b-bad.zip"]["verified"] and "twice" in rows["b-bad.zip"]["verification"]
     assert "ratio above" in rows["d-bomb.zip"]["verification"]
+    assert "more than 64 deep" in rows["e-deep.zip"]["verification"]
     assert rows["a-good.zip"]["link"] and rows["b-bad.zip"]["link"] is None
     assert not any("filler" in str(p) for p in output.rglob("*"))
 
