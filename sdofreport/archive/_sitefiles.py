@@ -36,7 +36,7 @@ class RunFiles:
 
 
 #: Bounds on what one run may hold once read (our choice, common practice (no source)):
-#: a built site is a few MB (the example site is under 1 MB), so these leave ample room
+#: a built site is a few MB (the example site packs into about 2 MB), so these leave room
 #: while a hostile archive cannot make verify, pack or register use unbounded memory.
 MAX_MEMBERS = 20_000
 MAX_FILE_BYTES = 256 * 2**20
