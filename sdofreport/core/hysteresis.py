@@ -87,6 +87,8 @@ __all__ = [
 
 #: Hysteresis model names accepted by :func:`hysteresis` and the project file.
 HYSTERESIS_MODELS = ("bilinear", "clough", "takeda", "bouc-wen", "flag-shaped")
+#: Length of the kernel's state vector (see :func:`_restoring`).
+_STATE = 10
 #: Kernel codes of the models (``friction`` is the sliding pendulum's element).
 _CODES = {"bilinear": 0, "friction": 0, "clough": 1, "takeda": 1, "bouc-wen": 2,
           "flag-shaped": 3}
@@ -286,6 +288,8 @@ def _initial_state(model, p, state):
         state[3] = p[1]
         state[4] = -uy
         state[5] = -p[1]
+        state[8] = p[0]
+        state[9] = p[0]
 
 
 @njit(**JIT_OPTIONS)
@@ -311,8 +315,8 @@ def _friction_pair(p, sc, u, v, dvdu, st):
 @njit(**JIT_OPTIONS)
 def _peak_oriented(p, sc, u, st):
     """Clough (p[3] = 0) or Takeda (p[3] = β) peak-oriented model; state
-    [u, F, u+, F+, u−, F−, u0+, u0−]: peaks on each side and the zero crossings from
-    which reloading on each side started."""
+    [u, F, u+, F+, u−, F−, u0+, u0−, k+, k−]: peaks on each side, the zero crossings from
+    which reloading on each side started, and the unloading stiffness of each side."""
     k = p[0]
     fy = p[1]
     ak = p[2] * k
@@ -322,8 +326,8 @@ def _peak_oriented(p, sc, u, st):
     fc = sc[1]
     upos = sc[2]
     uneg = sc[4]
-    kup = k * (uy / upos) ** beta
-    kun = k * (uy / -uneg) ** beta
+    kup = sc[8]
+    kun = sc[9]
     du = u - uc
     if du >= 0.0:
         if fc < 0.0:
@@ -352,7 +356,9 @@ def _peak_oriented(p, sc, u, st):
         if u > upos:
             st[2] = u
             st[3] = env
-            kup = k * (uy / u) ** beta
+            if beta != 0.0:
+                kup = k * (uy / u) ** beta
+            st[8] = kup
         return env, k_env, kup
     if fc > 0.0:
         f_try = fc + kup * du
@@ -380,8 +386,21 @@ def _peak_oriented(p, sc, u, st):
     if u < uneg:
         st[4] = u
         st[5] = env
-        kun = k * (uy / -u) ** beta
+        if beta != 0.0:
+            kun = k * (uy / -u) ** beta
+        st[9] = kun
     return env, k_env, kun
+
+
+@njit(**JIT_OPTIONS)
+def _abs_pow(x, n):
+    """|x|^n, without a power call for n = 1 and n = 2 (the usual Bouc–Wen choices)."""
+    a = abs(x)
+    if n == 2.0:
+        return a * a
+    if n == 1.0:
+        return a
+    return a ** n
 
 
 @njit(**JIT_OPTIONS)
@@ -396,8 +415,8 @@ def _bouc_wen(p, sc, u, st):
     uy = fy / k
     du = u - sc[0]
     z = sc[2]
-    if du == 0.0:
-        dzdu = (1.0 - abs(z) ** n * (gamma + beta)) / uy
+    if du == 0.0:  # tangent of further loading
+        dzdu = (1.0 - _abs_pow(z, n) * (gamma + beta)) / uy
         return a * k * u + (1.0 - a) * fy * z, a * k + (1.0 - a) * fy * dzdu, k
     pieces = 1 + int(abs(du) / (0.05 * uy))
     if pieces > 10000:
@@ -413,19 +432,23 @@ def _bouc_wen(p, sc, u, st):
         else:
             lo = min(z0, -1.0)
             hi = z0
-        x = z0
+        # explicit Euler predictor, kept inside the bracket
+        sg0 = 1.0 if d * z0 > 0.0 else -1.0
+        x = z0 + s * (1.0 - _abs_pow(z0, n) * (gamma + beta * sg0))
+        if not (lo < x < hi):
+            x = 0.5 * (lo + hi)
         g_d = 1.0
         phi = 0.0
         for _it in range(60):
             ax = abs(x)
             sg = 1.0 if d * x > 0.0 else -1.0
             w = gamma + beta * sg
-            phi = 1.0 - ax ** n * w
+            pw = _abs_pow(x, n - 1.0) if ax > 0.0 else 0.0  # |z|^(n−1)
+            phi = 1.0 - pw * ax * w
             g = x - z0 - s * phi
             sx = 1.0 if x > 0.0 else (-1.0 if x < 0.0 else 0.0)
-            dphi = -n * ax ** (n - 1.0) * sx * w if ax > 0.0 else 0.0
-            g_d = 1.0 - s * dphi
-            if abs(g) <= 1e-14:
+            g_d = 1.0 + s * n * pw * sx * w
+            if abs(g) <= 1e-13:
                 break
             if g > 0.0:
                 hi = x
@@ -434,7 +457,8 @@ def _bouc_wen(p, sc, u, st):
             x_new = x - g / g_d
             if not (lo < x_new < hi):
                 x_new = 0.5 * (lo + hi)
-            if x_new == x:
+            if abs(x_new - x) <= 1e-15:
+                x = x_new
                 break
             x = x_new
         z = x
@@ -506,8 +530,11 @@ def _damper_force(v, c_d, a_d, v_r):
     if av <= v_r:
         slope = c_d * v_r ** (a_d - 1.0)
         return slope * v, slope
-    f = c_d * av ** a_d
-    return (f if v > 0.0 else -f), c_d * a_d * av ** (a_d - 1.0)
+    if a_d == 1.0:
+        return c_d * v, c_d
+    slope = c_d * av ** (a_d - 1.0)
+    f = slope * av
+    return (f if v > 0.0 else -f), a_d * slope
 
 
 @njit(**JIT_OPTIONS)
@@ -525,14 +552,14 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
     The run stops after the step in which |u| >= ``u_stop``.
     """
     npts = ag.size
-    sc = np.zeros(8)
-    st = np.zeros(8)
-    tsc = np.zeros(8)
+    sc = np.zeros(_STATE)
+    st = np.zeros(_STATE)
+    tsc = np.zeros(_STATE)
     _initial_state(model, p, sc)
     u = u_init
     v = v_init
     f, kt, ku = _restoring(model, p, sc, u, v, 0.0, st)
-    for q in range(8):
+    for q in range(_STATE):
         sc[q] = st[q]
     fd, dfd = _damper_force(v, c_d, a_d, v_r)
     a = (-m * ag[0] - c * v - fd - f + k_geo * u) / m
@@ -569,7 +596,7 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
             tf = f
             tfd = fd
             tku = ku
-            for q in range(8):
+            for q in range(_STATE):
                 tsc[q] = sc[q]
             t_in = e_in
             t_d = e_d
@@ -621,7 +648,7 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
                 tf = f1
                 tfd = fd1
                 tku = ku1
-                for q in range(8):
+                for q in range(_STATE):
                     tsc[q] = st[q]
                 if abs(u1) > t_pu:
                     t_pu = abs(u1)
@@ -638,7 +665,7 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
                 f = tf
                 fd = tfd
                 ku = tku
-                for q in range(8):
+                for q in range(_STATE):
                     sc[q] = tsc[q]
                 e_in = t_in
                 e_d = t_d
@@ -682,13 +709,13 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
 @njit(**JIT_OPTIONS)
 def _force_path(model, p, path, out):
     """Restoring force along an imposed displacement path (one commit per sample)."""
-    sc = np.zeros(8)
-    st = np.zeros(8)
+    sc = np.zeros(_STATE)
+    st = np.zeros(_STATE)
     _initial_state(model, p, sc)
     for i in range(path.size):
         f, kt, ku = _restoring(model, p, sc, path[i], 0.0, 0.0, st)
         out[i] = f
-        for q in range(8):
+        for q in range(_STATE):
             sc[q] = st[q]
 
 
