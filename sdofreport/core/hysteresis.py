@@ -404,20 +404,15 @@ def _abs_pow(x, n):
 
 
 @njit(**JIT_OPTIONS)
-def _bouc_wen(p, sc, u, st):
-    """Bouc–Wen with A = 1, γ = 1 − β; state [u, F, z]. Backward Euler on dz/du."""
-    k = p[0]
-    fy = p[1]
-    a = p[2]
-    n = p[3]
-    beta = p[4]
-    gamma = p[5]
+def _bouc_wen(k, fy, a, n, beta, gamma, uc, z, u):
+    """Bouc–Wen with A = 1, γ = 1 − β from committed (u_c, z) to u: force, tangent and
+    the new z (state [u, F, z]). Backward Euler on dz/du. Scalars only, so that the call
+    costs no reference counting when the compiler does not inline it."""
     uy = fy / k
-    du = u - sc[0]
-    z = sc[2]
+    du = u - uc
     if du == 0.0:  # tangent of further loading
         dzdu = (1.0 - _abs_pow(z, n) * (gamma + beta)) / uy
-        return a * k * u + (1.0 - a) * fy * z, a * k + (1.0 - a) * fy * dzdu, k
+        return a * k * u + (1.0 - a) * fy * z, a * k + (1.0 - a) * fy * dzdu, z
     pieces = 1 + int(abs(du) / (0.05 * uy))
     if pieces > 10000:
         pieces = 10000
@@ -463,8 +458,7 @@ def _bouc_wen(p, sc, u, st):
             x = x_new
         z = x
         dzdu = dzdu / g_d + (phi / uy) / (pieces * g_d)
-    st[2] = z
-    return a * k * u + (1.0 - a) * fy * z, a * k + (1.0 - a) * fy * dzdu, k
+    return a * k * u + (1.0 - a) * fy * z, a * k + (1.0 - a) * fy * dzdu, z
 
 
 @njit(**JIT_OPTIONS)
@@ -513,7 +507,9 @@ def _restoring(model, p, sc, u, v, dvdu, st):
     elif model == 1:
         f, kt, ku = _peak_oriented(p, sc, u, st)
     elif model == 2:
-        f, kt, ku = _bouc_wen(p, sc, u, st)
+        f, kt, z = _bouc_wen(p[0], p[1], p[2], p[3], p[4], p[5], sc[0], sc[2], u)
+        st[2] = z
+        ku = p[0]
     else:
         f, kt, ku = _flag_shaped(p, sc, u, st)
     st[0] = u

@@ -478,7 +478,8 @@ class SiteContext:
             {"name": "Circular frequency ω", "value":
              f"{number(2 * np.pi / system.period_s)} rad/s", "basis": "ω = 2π/T"},
             {"name": "Damping ratio ζ", "value": f"{100 * system.damping:.3g} %",
-             "basis": "as given (fraction of critical)"},
+             "basis": "as given (fraction of critical" + (
+                 "; with P-Δ, of the stiffness k − W/h)" if system.p_delta else ")")},
         ]
         if system.height_m is not None:
             rows.append({"name": "Height h", "value": d.show(system.height_m, "length"),
