@@ -404,60 +404,66 @@ def _abs_pow(x, n):
 
 
 @njit(**JIT_OPTIONS)
+def _bouc_wen_increment(z0, d, s, n, beta, gamma):
+    """One backward-Euler increment z1 = z0 + s φ(z1) of the Bouc–Wen variable by a
+    bracketed Newton iteration; z1, φ(z1) and g'(z1) = 1 − s φ'(z1)."""
+    if d > 0.0:
+        lo = z0
+        hi = max(z0, 1.0)
+    else:
+        lo = min(z0, -1.0)
+        hi = z0
+    # explicit Euler predictor, kept inside the bracket
+    sg0 = 1.0 if d * z0 > 0.0 else -1.0
+    x = z0 + s * (1.0 - _abs_pow(z0, n) * (gamma + beta * sg0))
+    if not (lo < x < hi):
+        x = 0.5 * (lo + hi)
+    g_d = 1.0
+    phi = 0.0
+    for _it in range(60):
+        ax = abs(x)
+        sg = 1.0 if d * x > 0.0 else -1.0
+        w = gamma + beta * sg
+        pw = _abs_pow(x, n - 1.0) if ax > 0.0 else 0.0  # |z|^(n−1)
+        phi = 1.0 - pw * ax * w
+        g = x - z0 - s * phi
+        sx = 1.0 if x > 0.0 else (-1.0 if x < 0.0 else 0.0)
+        g_d = 1.0 + s * n * pw * sx * w
+        if abs(g) <= 1e-13:
+            break
+        if g > 0.0:
+            hi = x
+        else:
+            lo = x
+        x_new = x - g / g_d
+        if not (lo < x_new < hi):
+            x_new = 0.5 * (lo + hi)
+        if abs(x_new - x) <= 1e-9:  # Newton: the error left is of order step²
+            x = x_new
+            break
+        x = x_new
+    return x, phi, g_d
+
+
+@njit(**JIT_OPTIONS)
 def _bouc_wen(k, fy, a, n, beta, gamma, uc, z, u):
     """Bouc–Wen with A = 1, γ = 1 − β from committed (u_c, z) to u: force, tangent and
     the new z (state [u, F, z]). Backward Euler on dz/du. Scalars only, so that the call
     costs no reference counting when the compiler does not inline it."""
-    uy = fy / k
+    inv_uy = k / fy
     du = u - uc
     if du == 0.0:  # tangent of further loading
-        dzdu = (1.0 - _abs_pow(z, n) * (gamma + beta)) / uy
+        dzdu = (1.0 - _abs_pow(z, n) * (gamma + beta)) * inv_uy
         return a * k * u + (1.0 - a) * fy * z, a * k + (1.0 - a) * fy * dzdu, z
-    pieces = 1 + int(abs(du) / (0.05 * uy))
+    pieces = 1 + int(abs(du) * (20.0 * inv_uy))
     if pieces > 10000:
         pieces = 10000
     d = du / pieces
-    s = d / uy
+    s = d * inv_uy
     dzdu = 0.0
     for _ in range(pieces):
-        z0 = z
-        if d > 0.0:
-            lo = z0
-            hi = max(z0, 1.0)
-        else:
-            lo = min(z0, -1.0)
-            hi = z0
-        # explicit Euler predictor, kept inside the bracket
-        sg0 = 1.0 if d * z0 > 0.0 else -1.0
-        x = z0 + s * (1.0 - _abs_pow(z0, n) * (gamma + beta * sg0))
-        if not (lo < x < hi):
-            x = 0.5 * (lo + hi)
-        g_d = 1.0
-        phi = 0.0
-        for _it in range(60):
-            ax = abs(x)
-            sg = 1.0 if d * x > 0.0 else -1.0
-            w = gamma + beta * sg
-            pw = _abs_pow(x, n - 1.0) if ax > 0.0 else 0.0  # |z|^(n−1)
-            phi = 1.0 - pw * ax * w
-            g = x - z0 - s * phi
-            sx = 1.0 if x > 0.0 else (-1.0 if x < 0.0 else 0.0)
-            g_d = 1.0 + s * n * pw * sx * w
-            if abs(g) <= 1e-13:
-                break
-            if g > 0.0:
-                hi = x
-            else:
-                lo = x
-            x_new = x - g / g_d
-            if not (lo < x_new < hi):
-                x_new = 0.5 * (lo + hi)
-            if abs(x_new - x) <= 1e-15:
-                x = x_new
-                break
-            x = x_new
-        z = x
-        dzdu = dzdu / g_d + (phi / uy) / (pieces * g_d)
+        z, phi, g_d = _bouc_wen_increment(z, d, s, n, beta, gamma)
+        dzdu = dzdu / g_d + (phi * inv_uy) / (pieces * g_d)
     return a * k * u + (1.0 - a) * fy * z, a * k + (1.0 - a) * fy * dzdu, z
 
 
