@@ -576,7 +576,8 @@ class SiteContext:
         figure = self._figure(f"figures/system-{system.id}-spectra.svg", "spectra_figure",
                               periods_s=periods, curves=spectrum_curves,
                               ylabel=f"PSA at ζ = {100 * damping[z_index]:g} % [g]",
-                              highlight_periods=[system.period_s],
+                              highlight_periods=[system.period_s] + (
+                                  [system.p_delta["period_s"]] if system.p_delta else []),
                               design=self._design(periods))
         context = {**self.common("../", f"System {system.id}", "system", system.id),
                    **self._statistic_bits(),
