@@ -274,11 +274,11 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 dimension="inertia", example='"2400 kg*m**2"'),
         KeySpec("pivot_to_centre", "quantity", "hanging: distance from the pivot to the "
                 "centre of mass.", dimension="length", example='"1.5 m"'),
-        KeySpec("yield_strength", "quantity", "Bilinear hysteresis: yield strength F_y "
+        KeySpec("yield_strength", "quantity", "Yielding system: yield strength F_y "
                 "(or give yield_displacement).", dimension="force", example='"300 kN"'),
-        KeySpec("yield_displacement", "quantity", "Bilinear hysteresis: yield "
+        KeySpec("yield_displacement", "quantity", "Yielding system: yield "
                 "displacement u_y.", dimension="length", example='"25 mm"'),
-        KeySpec("post_yield_ratio", "ratio", "Bilinear hysteresis: post-yield stiffness "
+        KeySpec("post_yield_ratio", "ratio", "Yielding system: post-yield stiffness "
                 "ratio α (0 = elastic-perfectly plastic).", default=0.0, example="0.03"),
         KeySpec("hysteresis", "choice", "Hysteresis model of a yielding system: bilinear "
                 "(kinematic hardening), clough (peak-oriented stiffness degradation, Clough "
