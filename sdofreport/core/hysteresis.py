@@ -23,6 +23,14 @@ stiffness ratio a):
   the side being unloaded. [3]_ uses a trilinear (cracking–yield) backbone; here the
   backbone is bilinear, and reloading after a partial unloading retraces the unloading
   stiffness up to the reloading line;
+* cyclic deterioration of clough and takeda after Ibarra, Medina & Krawinkler [8]_:
+  at every zero-force crossing the hysteretic energy E_i of the excursion just ended
+  gives ``β_i = (E_i / (E_t − ΣE_j))^c`` with ``E_t = λ F_y u_y``; the backbone's
+  strength and hardening stiffness (basic strength deterioration) and the unloading
+  stiffness are each multiplied by ``1 − β_i``, and reloading aims at the earlier peak
+  displacement on the deteriorated backbone. Once ΣE_j reaches E_t no strength is left
+  and the run is reported unstable. The post-capping and accelerated-reloading modes of
+  [8]_ are not modelled;
 * ``bouc-wen`` — smooth hysteresis of Wen [4]_: ``F = a k u + (1−a) F_y z`` with
   ``dz/du = [A − |z|^n (γ + β sign(u̇ z))] / u_y``, here with A = 1 and γ = 1 − β so that
   |z| <= 1 and F_y keeps its meaning (a common normalisation); integrated by backward
@@ -60,6 +68,9 @@ References
 .. [7] M. C. Constantinou and M. D. Symans, "Experimental and analytical investigation
    of seismic response of structures with supplemental fluid viscous dampers," NCEER
    Rep. 92-0032, State Univ. of New York at Buffalo, 1992.
+.. [8] L. F. Ibarra, R. A. Medina and H. Krawinkler, "Hysteretic models that incorporate
+   strength and stiffness deterioration," Earthquake Eng. Struct. Dyn., vol. 34, no. 12,
+   pp. 1489-1511, 2005, doi: 10.1002/eqe.495.
 """
 
 from __future__ import annotations
@@ -88,7 +99,7 @@ __all__ = [
 #: Hysteresis model names accepted by :func:`hysteresis` and the project file.
 HYSTERESIS_MODELS = ("bilinear", "clough", "takeda", "bouc-wen", "flag-shaped")
 #: Length of the kernel's state vector (see :func:`_restoring`).
-_STATE = 10
+_STATE = 16
 #: Kernel codes of the models (``friction`` is the sliding pendulum's element).
 _CODES = {"bilinear": 0, "friction": 0, "clough": 1, "takeda": 1, "bouc-wen": 2,
           "flag-shaped": 3}
@@ -100,6 +111,9 @@ DEFAULT_BOUC_WEN_EXPONENT = 2.0
 DEFAULT_BOUC_WEN_BETA = 0.5
 #: Flag-shaped energy-dissipation ratio β_E (our default: a full flag).
 DEFAULT_DISSIPATION_RATIO = 1.0
+#: Exponent c of the cyclic deterioration rule (Ibarra, Medina & Krawinkler 2005 used
+#: c = 1 to 2; from memory): 1.
+DEFAULT_DETERIORATION_EXPONENT = 1.0
 #: Velocity below which the damper law is linear, relative to the damper's
 #: characteristic velocity u_y ω (our choice, no source). [-]
 DAMPER_LINEAR_BELOW = 1e-3
@@ -128,6 +142,10 @@ class Hysteresis:
     bouc_wen_beta: float = DEFAULT_BOUC_WEN_BETA
     #: flag-shaped: energy-dissipation ratio β_E in [0, 1] [-]
     dissipation_ratio: float = DEFAULT_DISSIPATION_RATIO
+    #: clough, takeda: cyclic deterioration capacity λ, E_t = λ F_y u_y (0: none) [-]
+    deterioration_capacity: float = 0.0
+    #: clough, takeda: deterioration exponent c [-]
+    deterioration_exponent: float = DEFAULT_DETERIORATION_EXPONENT
 
     @property
     def yield_displacement_m(self) -> float:
@@ -139,10 +157,10 @@ class Hysteresis:
         k, fy, a = self.stiffness_n_m, self.yield_strength_n, self.hardening_ratio
         if self.model == "bilinear":
             return 0, np.array([a * k, (1.0 - a) * k, (1.0 - a) * fy, 0.0, 0.0, 0.0])
-        if self.model == "clough":
-            return 1, np.array([k, fy, a, 0.0, 0.0, 0.0])
-        if self.model == "takeda":
-            return 1, np.array([k, fy, a, self.unloading_exponent, 0.0, 0.0])
+        if self.model in ("clough", "takeda"):
+            beta = self.unloading_exponent if self.model == "takeda" else 0.0
+            e_t = self.deterioration_capacity * fy * fy / k  # E_t = λ F_y u_y
+            return 1, np.array([k, fy, a, beta, e_t, self.deterioration_exponent])
         if self.model == "bouc-wen":
             return 2, np.array([k, fy, a, self.bouc_wen_exponent, self.bouc_wen_beta,
                                 1.0 - self.bouc_wen_beta])
@@ -177,7 +195,8 @@ def hysteresis(model, stiffness_n_m, yield_strength_n, hardening_ratio=0.0, *,
                unloading_exponent=DEFAULT_UNLOADING_EXPONENT,
                bouc_wen_exponent=DEFAULT_BOUC_WEN_EXPONENT,
                bouc_wen_beta=DEFAULT_BOUC_WEN_BETA,
-               dissipation_ratio=DEFAULT_DISSIPATION_RATIO) -> Hysteresis:
+               dissipation_ratio=DEFAULT_DISSIPATION_RATIO, deterioration_capacity=0.0,
+               deterioration_exponent=DEFAULT_DETERIORATION_EXPONENT) -> Hysteresis:
     """
     A checked hysteresis model.
 
@@ -200,10 +219,21 @@ def hysteresis(model, stiffness_n_m, yield_strength_n, hardening_ratio=0.0, *,
         loading or equal). [-]
     dissipation_ratio : float, optional
         flag-shaped: energy-dissipation ratio β_E in [0, 1]. [-]
+    deterioration_capacity : float, optional
+        clough, takeda: λ >= 0 of the hysteretic energy capacity E_t = λ F_y u_y of
+        Ibarra, Medina & Krawinkler (2005); 0 (default) means no deterioration. [-]
+    deterioration_exponent : float, optional
+        clough, takeda: exponent c in (0, 10] of β_i = (E_i / (E_t − ΣE_j))^c. [-]
 
     Returns
     -------
     Hysteresis
+
+    References
+    ----------
+    .. [1] L. F. Ibarra, R. A. Medina and H. Krawinkler, "Hysteretic models that
+       incorporate strength and stiffness deterioration," Earthquake Eng. Struct. Dyn.,
+       vol. 34, no. 12, pp. 1489-1511, 2005, doi: 10.1002/eqe.495.
     """
     if model not in HYSTERESIS_MODELS:
         raise ValueError(f"hysteresis must be one of {', '.join(HYSTERESIS_MODELS)}; "
@@ -216,12 +246,19 @@ def hysteresis(model, stiffness_n_m, yield_strength_n, hardening_ratio=0.0, *,
     a = _ratio(hardening_ratio, "hardening_ratio", 0.0, 1.0)
     if a >= 1.0:
         raise ValueError(f"hardening_ratio must be in [0, 1) [-]; got {hardening_ratio!r}")
+    capacity = _ratio(deterioration_capacity, "deterioration_capacity", 0.0, math.inf)
+    if not math.isfinite(capacity) or (capacity > 0.0 and model not in ("clough", "takeda")):
+        raise ValueError(f"deterioration_capacity must be finite, and > 0 only for clough "
+                         f"or takeda [-]; got {deterioration_capacity!r} for {model!r}")
     return Hysteresis(
         model, k, fy, a,
         unloading_exponent=_ratio(unloading_exponent, "unloading_exponent", 0.0, 1.0),
         bouc_wen_exponent=_ratio(bouc_wen_exponent, "bouc_wen_exponent", 1.0, 200.0),
         bouc_wen_beta=_ratio(bouc_wen_beta, "bouc_wen_beta", 0.5, 1.0),
-        dissipation_ratio=_ratio(dissipation_ratio, "dissipation_ratio", 0.0, 1.0))
+        dissipation_ratio=_ratio(dissipation_ratio, "dissipation_ratio", 0.0, 1.0),
+        deterioration_capacity=capacity,
+        deterioration_exponent=_ratio(deterioration_exponent, "deterioration_exponent", 0.0,
+                                      10.0, low_open=True))
 
 
 def damper(coefficient, exponent) -> Damper:
@@ -290,6 +327,8 @@ def _initial_state(model, p, state):
         state[5] = -p[1]
         state[8] = p[0]
         state[9] = p[0]
+        state[13] = 1.0
+        state[14] = 1.0
 
 
 @njit(**JIT_OPTIONS)
@@ -313,21 +352,58 @@ def _friction_pair(p, sc, u, v, dvdu, st):
 
 
 @njit(**JIT_OPTIONS)
+def _deteriorate(p, sc, st, e_cross):
+    """At a zero-force crossing: the excursion's hysteretic energy E_i and
+    β_i = (E_i / (E_t − ΣE_j))^c of Ibarra, Medina & Krawinkler (2005); the strength
+    (and hardening) factor and the unloading-stiffness factor are each multiplied by
+    1 − β_i (p[4] = E_t, p[5] = c). State [.., 10 ∫F du, 11 ∫F du at the last crossing,
+    12 ΣE_j, 13 strength factor, 14 unloading factor]."""
+    e_i = e_cross - sc[11]
+    st[11] = e_cross
+    if e_i <= 0.0:
+        return
+    total = sc[12] + e_i
+    st[12] = total
+    remaining = p[4] - total
+    b = 1.0 if remaining <= 0.0 else (e_i / remaining) ** p[5]
+    if b >= 1.0:
+        b = 1.0
+    st[13] = sc[13] * (1.0 - b)
+    st[14] = sc[14] * (1.0 - b)
+
+
+@njit(**JIT_OPTIONS)
 def _peak_oriented(p, sc, u, st):
+    """Peak-oriented model with cyclic deterioration when p[4] > 0; see
+    :func:`_peak_oriented_force`. Tracks ∫F du (state 10) for the deterioration."""
+    f, kt, ku = _peak_oriented_force(p, sc, u, st)
+    if p[4] > 0.0:
+        if st[11] != sc[11]:  # crossed zero force at u0 = state 15 in this trial
+            st[10] = st[11] + 0.5 * f * (u - st[15])
+        else:
+            st[10] = sc[10] + 0.5 * (sc[1] + f) * (u - sc[0])
+    return f, kt, ku
+
+
+@njit(**JIT_OPTIONS)
+def _peak_oriented_force(p, sc, u, st):
     """Clough (p[3] = 0) or Takeda (p[3] = β) peak-oriented model; state
-    [u, F, u+, F+, u−, F−, u0+, u0−, k+, k−]: peaks on each side, the zero crossings from
-    which reloading on each side started, and the unloading stiffness of each side."""
+    [u, F, u+, F+, u−, F−, u0+, u0−, k+, k−, ...]: peaks on each side, the zero crossings
+    from which reloading on each side started, and the unloading stiffness of each side
+    (before deterioration, see :func:`_deteriorate`)."""
     k = p[0]
-    fy = p[1]
-    ak = p[2] * k
+    fy0 = p[1]
+    ak0 = p[2] * k
     beta = p[3]
-    uy = fy / k
+    uy0 = fy0 / k
     uc = sc[0]
     fc = sc[1]
     upos = sc[2]
     uneg = sc[4]
-    kup = sc[8]
-    kun = sc[9]
+    sf = sc[13]
+    uf = sc[14]
+    kup = sc[8] * uf
+    kun = sc[9] * uf
     du = u - uc
     if du >= 0.0:
         if fc < 0.0:
@@ -336,18 +412,28 @@ def _peak_oriented(p, sc, u, st):
                 return f_try, kun, kun
             u0 = uc - fc / kun
             st[6] = u0
+            if p[4] > 0.0:
+                st[15] = u0
+                _deteriorate(p, sc, st, sc[10] + 0.5 * fc * (u0 - uc))
+                sf = st[13]
+                uf = st[14]
+                kup = sc[8] * uf
             u_from = u0
             f_from = 0.0
         else:
             u0 = sc[6]
             u_from = uc
             f_from = fc
+        fy = sf * fy0
+        ak = sf * ak0
+        uy = fy / k
         f_el = f_from + kup * (u - u_from)
         if u > upos:
             env = fy + ak * (u - uy)
             k_env = ak
         elif u > u0 and upos > u0:
-            k_env = sc[3] / (upos - u0)
+            target = min(sc[3], fy + ak * (upos - uy))
+            k_env = target / (upos - u0)
             env = k_env * (u - u0)
         else:
             return f_el, kup, kup
@@ -356,9 +442,11 @@ def _peak_oriented(p, sc, u, st):
         if u > upos:
             st[2] = u
             st[3] = env
+            base = sc[8]
             if beta != 0.0:
-                kup = k * (uy / u) ** beta
-            st[8] = kup
+                base = k * (uy0 / u) ** beta
+            st[8] = base
+            kup = base * uf
         return env, k_env, kup
     if fc > 0.0:
         f_try = fc + kup * du
@@ -366,18 +454,28 @@ def _peak_oriented(p, sc, u, st):
             return f_try, kup, kup
         u0 = uc - fc / kup
         st[7] = u0
+        if p[4] > 0.0:
+            st[15] = u0
+            _deteriorate(p, sc, st, sc[10] + 0.5 * fc * (u0 - uc))
+            sf = st[13]
+            uf = st[14]
+            kun = sc[9] * uf
         u_from = u0
         f_from = 0.0
     else:
         u0 = sc[7]
         u_from = uc
         f_from = fc
+    fy = sf * fy0
+    ak = sf * ak0
+    uy = fy / k
     f_el = f_from + kun * (u - u_from)
     if u < uneg:
         env = -fy + ak * (u + uy)
         k_env = ak
     elif u < u0 and uneg < u0:
-        k_env = sc[5] / (uneg - u0)
+        target = max(sc[5], -fy + ak * (uneg + uy))
+        k_env = target / (uneg - u0)
         env = k_env * (u - u0)
     else:
         return f_el, kun, kun
@@ -386,9 +484,11 @@ def _peak_oriented(p, sc, u, st):
     if u < uneg:
         st[4] = u
         st[5] = env
+        base = sc[9]
         if beta != 0.0:
-            kun = k * (uy / -u) ** beta
-        st[9] = kun
+            base = k * (uy0 / -u) ** beta
+        st[9] = base
+        kun = base * uf
     return env, k_env, kun
 
 
@@ -689,7 +789,10 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
         hist[8, i + 1] = fd
         hist[9, i + 1] = ku
         stored = i + 2
-        if not (peak_u < u_stop) or not math.isfinite(u):
+        # unstable: past the bound, not finite, or (Ibarra et al. 2005) the energy
+        # capacity used up so that no strength is left
+        if not (peak_u < u_stop) or not math.isfinite(u) or (model == 1 and
+                                                             sc[13] <= 0.0):
             stopped = 1
             break
     stats[0] = peak_u

@@ -696,7 +696,8 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
             strain = strain + f_fric * f_fric / (2.0 * k_p)
         ductility = None
     else:
-        strain = f * f / (2.0 * k_un)
+        # f²/(2 k_u); zero where deterioration has left no stiffness (and no force)
+        strain = np.divide(f * f, 2.0 * k_un, out=np.zeros_like(f), where=k_un > 0.0)
         ductility = float(stats[0] / system.yield_displacement_m)
     gravity = -0.5 * k_geo * u * u
     # ∫F du = ΔE_strain + E_hysteretic; initial energy E0 enters the balance ([3]).

@@ -286,3 +286,44 @@ def test_hysteresis_refuses_nonsense(kwargs, match):
 def test_damper_refuses_nonsense(coefficient, exponent, match):
     with pytest.raises(ValueError, match=match):
         damper(coefficient, exponent)
+
+
+# ------------------------------------------------------------- cyclic deterioration
+def test_clough_cyclic_deterioration_follows_ibarra_rule():
+    # Ibarra, Medina & Krawinkler (2005): at the end of excursion i (force back to zero)
+    # β_i = (E_i / (E_t − ΣE_j))^c with E_t = λ F_y u_y; the backbone strength and its
+    # hardening stiffness scale by 1 − β_i. Check the first excursion with c = 1.
+    lam = 60.0
+    model = hysteresis("clough", K, FY, ALPHA, deterioration_capacity=lam)
+    amp = 4 * UY
+    u = _cycle(amp, -amp, step=UY / 2000)
+    f = force_path(model, u)
+    top = int(np.argmax(u))
+    cross = top + int(np.argmax(f[top:] <= 0.0))
+    # E_1: work ∫F du from rest to the zero crossing (trapezoid on the fine path)
+    e_1 = float(np.sum(0.5 * (f[1:cross] + f[:cross - 1]) * np.diff(u[:cross])))
+    beta = e_1 / (lam * FY * UY - e_1)
+    s = 1.0 - beta
+    fy1, ak1 = s * FY, s * ALPHA * K
+    expected = -(fy1 + ak1 * (amp - fy1 / K))  # deteriorated backbone at −amp
+    assert f[-1] == pytest.approx(expected, rel=2e-3)
+    # without deterioration the same path reaches the original backbone
+    plain = force_path(hysteresis("clough", K, FY, ALPHA), u)
+    assert plain[-1] == pytest.approx(-float(_backbone(amp)), rel=1e-9)
+
+
+def test_deterioration_exhausted_is_unstable():
+    # Ibarra et al. (2005): once ΣE_j reaches E_t no strength is left; the run says so.
+    ag, dt = enveloped_noise(0.01, seed=71, peak=6.0), 0.01
+    k = (2 * math.pi / 0.6) ** 2
+    r = nonlinear_response(ag, dt, hysteresis("takeda", k, 0.05 * g, 0.02,
+                                              deterioration_capacity=5.0), 0.05)
+    assert r.unstable and np.all(np.isfinite(r.displacement_m))
+    kept = nonlinear_response(ag, dt, hysteresis("takeda", k, 0.05 * g, 0.02), 0.05)
+    assert not kept.unstable
+
+
+def test_deterioration_refused_for_other_models():
+    with pytest.raises(ValueError, match="deterioration_capacity must be finite, and > 0 "
+                                         "only for clough or takeda"):
+        hysteresis("bilinear", 1.0, 1.0, deterioration_capacity=10.0)
