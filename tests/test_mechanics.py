@@ -89,6 +89,15 @@ def test_gravity_load_at_or_above_stiffness_is_refused_exit_2(project_factory):
      "systems[1].damper.coefficient: missing"),
     ('kind = "hanging"\nmass = "200 kg"\npivot_inertia = "500 kg*m**2"\n'
      'pivot_to_centre = "1.5 m"\np_delta = true', "does not apply to kind 'hanging'"),
+    ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\ndeterioration_capacity = 50',
+     "systems[1].deterioration_capacity: applies only to hysteresis = 'clough' or "
+     "'takeda'"),
+    ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nhysteresis = "takeda"\n'
+     'deterioration_capacity = 0', "systems[1].deterioration_capacity: must be greater "
+                                   "than 0"),
+    ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nhysteresis = "clough"\n'
+     'deterioration_exponent = 2', "systems[1].deterioration_exponent: applies only with "
+                                   "deterioration_capacity"),
 ])
 def test_bad_mechanics_keys_name_the_key(project_factory, body, fragment):
     with pytest.raises(ProjectError) as info:
@@ -159,6 +168,7 @@ def test_unstable_system_verdict_page_and_json(project_factory):
 
 @pytest.mark.parametrize("model, extra", [
     ("clough", ""), ("takeda", "unloading_exponent = 0.5\n"),
+    ("takeda", "deterioration_capacity = 200\ndeterioration_exponent = 1.2\n"),
     ("bouc-wen", "bouc_wen_exponent = 3\nbouc_wen_beta = 0.6\n"),
     ("flag-shaped", "dissipation_ratio = 0.7\n"),
 ])

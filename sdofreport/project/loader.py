@@ -448,13 +448,22 @@ def _hysteresis_keys(values: dict, table: dict, where: str, problems: _Problems)
 
     name = values.get("hysteresis") or "bilinear"
     parameters = {}
-    for key, owner in HYSTERESIS_PARAMETER_KEYS.items():
-        if key in table and owner != name:
-            problems.add(f"{where}.{key}", f"applies only to hysteresis = {owner!r}; this "
+    for key, owners in HYSTERESIS_PARAMETER_KEYS.items():
+        if key in table and name not in owners:
+            allowed = " or ".join(repr(owner) for owner in owners)
+            problems.add(f"{where}.{key}", f"applies only to hysteresis = {allowed}; this "
                          f"system's hysteresis is {name!r}")
             return None
         if key in values:
             parameters[key] = values[key]
+    if "deterioration_exponent" in parameters and "deterioration_capacity" not in parameters:
+        problems.add(f"{where}.deterioration_exponent", "applies only with "
+                     "deterioration_capacity")
+        return None
+    if "deterioration_capacity" in parameters and not parameters["deterioration_capacity"] > 0:
+        problems.add(f"{where}.deterioration_capacity", "must be greater than 0 (omit it "
+                     f"for no deterioration), found {parameters['deterioration_capacity']!r}")
+        return None
     for key, value in parameters.items():
         try:
             hy.hysteresis(name, 1.0, 1.0, **{key: value})

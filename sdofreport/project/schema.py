@@ -47,13 +47,17 @@ SYSTEM_KINDS = ("lumped", "columns", "springs", "static-deflection", "sliding-pe
 #: Keys of a yielding system with P-Δ and a supplemental damper (lumped, columns, springs).
 _HYSTERETIC_KEYS = ("yield_strength", "yield_displacement", "post_yield_ratio",
                     "hysteresis", "unloading_exponent", "bouc_wen_exponent",
-                    "bouc_wen_beta", "dissipation_ratio", "p_delta", "gravity_load",
-                    "damper")
+                    "bouc_wen_beta", "dissipation_ratio", "deterioration_capacity",
+                    "deterioration_exponent", "p_delta", "gravity_load", "damper")
 
-#: Hysteresis-model parameters and the model each applies to.
-HYSTERESIS_PARAMETER_KEYS = {"unloading_exponent": "takeda",
-                             "bouc_wen_exponent": "bouc-wen", "bouc_wen_beta": "bouc-wen",
-                             "dissipation_ratio": "flag-shaped"}
+#: Hysteresis-model parameters and the models each applies to.
+HYSTERESIS_PARAMETER_KEYS: dict[str, tuple[str, ...]] = {
+    "unloading_exponent": ("takeda",),
+    "bouc_wen_exponent": ("bouc-wen",), "bouc_wen_beta": ("bouc-wen",),
+    "dissipation_ratio": ("flag-shaped",),
+    "deterioration_capacity": ("clough", "takeda"),
+    "deterioration_exponent": ("clough", "takeda"),
+}
 
 #: Keys each system kind reads besides id, name, kind, damping, height and limits.
 SYSTEM_KIND_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
@@ -296,6 +300,13 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("dissipation_ratio", "number", "flag-shaped: energy-dissipation ratio β_E, "
                 "0 (nonlinear elastic) to 1 (unloading branch through the origin).",
                 default=1.0, example="0.8"),
+        KeySpec("deterioration_capacity", "number", "clough, takeda: cyclic deterioration "
+                "(Ibarra, Medina & Krawinkler 2005) with the hysteretic energy capacity "
+                "E_t = λ·F_y·u_y; λ > 0 (omit for none). Strength, hardening and unloading "
+                "stiffness scale by 1 − β_i at each zero-force crossing.", example="80"),
+        KeySpec("deterioration_exponent", "number", "clough, takeda: exponent c of "
+                "β_i = (E_i/(E_t − ΣE_j))^c, above 0 and at most 10.", default=1.0,
+                example="1.0"),
         KeySpec("p_delta", "boolean", "P-Δ: the gravity load W on the height h adds the "
                 "stiffness −W/h to every branch. Default: on when the system has a height, "
                 "a mass and a stiffness (lumped, columns, springs).", example="true"),

@@ -673,6 +673,10 @@ _PARAMETER_ROWS = {
     "bouc_wen_beta": ("Shape parameter β (γ = 1 − β)", "bouc-wen, with A = 1"),
     "dissipation_ratio": ("Energy-dissipation ratio β_E",
                           "flag-shaped: 0 nonlinear elastic, 1 full flag"),
+    "deterioration_capacity": ("Deterioration capacity λ",
+                               "E_t = λ F_y u_y; β_i = (E_i/(E_t − ΣE_j))^c (Ibarra, Medina "
+                               "& Krawinkler 2005)"),
+    "deterioration_exponent": ("Deterioration exponent c", "Ibarra et al. (2005)"),
 }
 
 
@@ -691,7 +695,9 @@ def _hysteresis_rows(system, model: dict, d) -> list[dict]:
     # every parameter of the model, with its default when not given
     full = hysteresis(model["model"], 1.0, 1.0, **model.get("parameters", {}))
     for key, (label, basis) in _PARAMETER_ROWS.items():
-        if HYSTERESIS_PARAMETER_KEYS[key] == model["model"]:
+        if model["model"] in HYSTERESIS_PARAMETER_KEYS[key]:
+            if key.startswith("deterioration") and key not in model.get("parameters", {}):
+                continue  # no deterioration unless asked for
             given = key in model.get("parameters", {})
             rows.append({"name": label, "value": number(getattr(full, key)),
                          "basis": basis + ("" if given else " (default)")})
