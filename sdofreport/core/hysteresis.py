@@ -351,7 +351,7 @@ def _friction_pair(p, sc, u, v, dvdu, st):
     return k_lin * u + fe, k_lin + k_p + c_s * dvdu, k_lin + k_p
 
 
-@njit(**JIT_OPTIONS)
+@njit(inline="always", **JIT_OPTIONS)
 def _deteriorate(p, sc, st, e_cross):
     """At a zero-force crossing: the excursion's hysteretic energy E_i and
     β_i = (E_i / (E_t − ΣE_j))^c of Ibarra, Medina & Krawinkler (2005); the strength
@@ -372,7 +372,7 @@ def _deteriorate(p, sc, st, e_cross):
     st[14] = sc[14] * (1.0 - b)
 
 
-@njit(**JIT_OPTIONS)
+@njit(inline="always", **JIT_OPTIONS)
 def _peak_oriented(p, sc, u, st):
     """Peak-oriented model with cyclic deterioration when p[4] > 0; see
     :func:`_peak_oriented_force`. Tracks ∫F du (state 10) for the deterioration."""
@@ -385,7 +385,7 @@ def _peak_oriented(p, sc, u, st):
     return f, kt, ku
 
 
-@njit(**JIT_OPTIONS)
+@njit(inline="always", **JIT_OPTIONS)
 def _peak_oriented_force(p, sc, u, st):
     """Clough (p[3] = 0) or Takeda (p[3] = β) peak-oriented model; state
     [u, F, u+, F+, u−, F−, u0+, u0−, k+, k−, ...]: peaks on each side, the zero crossings
