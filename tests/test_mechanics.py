@@ -63,15 +63,15 @@ def test_gravity_load_at_or_above_stiffness_is_refused_exit_2(project_factory):
     assert "Traceback" not in result.output
 
 
-@pytest.mark.parametrize("body, fragment", [
+_BAD = [
     ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nunloading_exponent = 0.4',
      "systems[1].unloading_exponent: applies only to hysteresis = 'takeda'"),
     ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nhysteresis = "takeda"\n'
-     'unloading_exponent = 3', "systems[1].unloading_exponent"),
+     "unloading_exponent = 3", "systems[1].unloading_exponent"),
     ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nhysteresis = "flag-shaped"\n'
-     'dissipation_ratio = 1.5', "systems[1].dissipation_ratio"),
+     "dissipation_ratio = 1.5", "systems[1].dissipation_ratio"),
     ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nhysteresis = "bouc-wen"\n'
-     'bouc_wen_beta = 0.1', "systems[1].bouc_wen_beta"),
+     "bouc_wen_beta = 0.1", "systems[1].bouc_wen_beta"),
     ('mass = "1 t"\nperiod = "0.5 s"\nhysteresis = "clough"',
      "systems[1].hysteresis: applies only with yield_strength"),
     ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nhysteresis = "elasto"',
@@ -82,9 +82,9 @@ def test_gravity_load_at_or_above_stiffness_is_refused_exit_2(project_factory):
     ('mass = "1 t"\nperiod = "0.5 s"\nheight = "3 m"\np_delta = false\n'
      'gravity_load = "10 kN"', "systems[1].gravity_load: applies only with P-Δ"),
     ('mass = "1 t"\nperiod = "0.5 s"\n[systems.damper]\ncoefficient = "1 kN*s/m"\n'
-     'exponent = 0', "systems[1].damper.exponent"),
+     "exponent = 0", "systems[1].damper.exponent"),
     ('mass = "1 t"\nperiod = "0.5 s"\n[systems.damper]\ncoefficient = "1 kN*s"\n'
-     'exponent = 1', "systems[1].damper.coefficient"),
+     "exponent = 1", "systems[1].damper.coefficient"),
     ('mass = "1 t"\nperiod = "0.5 s"\n[systems.damper]\nexponent = 1',
      "systems[1].damper.coefficient: missing"),
     ('kind = "hanging"\nmass = "200 kg"\npivot_inertia = "500 kg*m**2"\n'
@@ -93,12 +93,15 @@ def test_gravity_load_at_or_above_stiffness_is_refused_exit_2(project_factory):
      "systems[1].deterioration_capacity: applies only to hysteresis = 'clough' or "
      "'takeda'"),
     ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nhysteresis = "takeda"\n'
-     'deterioration_capacity = 0', "systems[1].deterioration_capacity: must be greater "
-                                   "than 0"),
+     "deterioration_capacity = 0",
+     "systems[1].deterioration_capacity: must be greater than 0"),
     ('mass = "1 t"\nperiod = "0.5 s"\nyield_strength = "1 kN"\nhysteresis = "clough"\n'
-     'deterioration_exponent = 2', "systems[1].deterioration_exponent: applies only with "
-                                   "deterioration_capacity"),
-])
+     "deterioration_exponent = 2",
+     "systems[1].deterioration_exponent: applies only with deterioration_capacity"),
+]
+
+
+@pytest.mark.parametrize("body, fragment", _BAD)
 def test_bad_mechanics_keys_name_the_key(project_factory, body, fragment):
     with pytest.raises(ProjectError) as info:
         _load(project_factory, body)

@@ -660,10 +660,10 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
     _initial_state(model, p, sc)
     u = u_init
     v = v_init
-    f, kt, ku = _restoring(model, p, sc, u, v, 0.0, st)
+    f, _, ku = _restoring(model, p, sc, u, v, 0.0, st)
     for q in range(_STATE):
         sc[q] = st[q]
-    fd, dfd = _damper_force(v, c_d, a_d, v_r)
+    fd = _damper_force(v, c_d, a_d, v_r)[0]
     a = (-m * ag[0] - c * v - fd - f + k_geo * u) / m
     e_in = 0.0
     e_d = 0.0
@@ -818,8 +818,7 @@ def _force_path(model, p, path, out):
     st = np.zeros(_STATE)
     _initial_state(model, p, sc)
     for i in range(path.size):
-        f, kt, ku = _restoring(model, p, sc, path[i], 0.0, 0.0, st)
-        out[i] = f
+        out[i] = _restoring(model, p, sc, path[i], 0.0, 0.0, st)[0]
         for q in range(_STATE):
             sc[q] = st[q]
 

@@ -51,7 +51,7 @@ def test_elastic_p_delta_period_is_t_over_sqrt_one_minus_theta():
 def test_elastic_p_delta_forced_response_matches_lsim():
     # Reference: scipy.signal.lsim of m ü + c u̇ + (k − W/h) u = −m üg, ζ on k − W/h.
     ag, dt = enveloped_noise(0.005, duration=10.0, seed=21), 0.005
-    m, k, theta, zeta = 1.0, (2 * math.pi / 0.8) ** 2, 0.2, 0.05
+    k, theta, zeta = (2 * math.pi / 0.8) ** 2, 0.2, 0.05  # per unit mass
     r = nonlinear_response(ag, dt, bilinear(k, yield_strength_n=math.inf), zeta,
                            gravity_stiffness_n_m=theta * k, substeps=4)
     w = math.sqrt(k * (1 - theta))
@@ -207,7 +207,7 @@ def test_nonlinear_damper_force_law():
     from scipy.integrate import simpson
 
     ag, dt = enveloped_noise(0.005, seed=42), 0.005
-    m, k = 1.0, (2 * math.pi) ** 2
+    k = (2 * math.pi) ** 2  # per unit mass
     c, alpha = 0.4, 0.35
     r = nonlinear_response(ag, dt, bilinear(k, yield_strength_n=math.inf), 0.0,
                            damper=damper(c, alpha), substeps=2)
@@ -237,7 +237,7 @@ def test_strongly_negative_post_yield_stiffness_is_unstable():
     # Chopra 2017 §7.11: with αk − W/h < 0 the backbone's force vanishes at
     # u = (1−α)F_y/(W/h − αk); past it gravity wins and the displacement runs away.
     ag, dt = enveloped_noise(0.01, seed=61, peak=8.0), 0.01
-    m, k = 1.0, (2 * math.pi / 1.0) ** 2
+    k = (2 * math.pi / 1.0) ** 2  # per unit mass
     fy, theta = 0.05 * g, 0.25
     bound = collapse_displacement(k, fy, 0.0, theta * k)
     assert bound == pytest.approx(fy / (theta * k))
