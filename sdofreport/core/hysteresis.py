@@ -390,106 +390,73 @@ def _peak_oriented_force(p, sc, u, st):
     """Clough (p[3] = 0) or Takeda (p[3] = β) peak-oriented model; state
     [u, F, u+, F+, u−, F−, u0+, u0−, k+, k−, ...]: peaks on each side, the zero crossings
     from which reloading on each side started, and the unloading stiffness of each side
-    (before deterioration, see :func:`_deteriorate`)."""
+    (before deterioration, see :func:`_deteriorate`). Moving in −u is the mirror image of
+    moving in +u (:func:`_peak_toward`)."""
+    if u - sc[0] >= 0.0:
+        return _peak_toward(p, sc, st, u, 1.0, 2, 6, 8, 9)
+    return _peak_toward(p, sc, st, -u, -1.0, 4, 7, 9, 8)
+
+
+@njit(inline="always", **JIT_OPTIONS)
+def _peak_toward(p, sc, st, x, sgn, i_peak, i_zero, i_own, i_other):
+    """The peak-oriented rules for motion towards the side ``sgn`` (+1 or −1), written
+    in mirrored coordinates x = sgn·u, force sgn·F: state ``i_peak`` (and the next
+    index) holds that side's peak, ``i_zero`` its reloading start, ``i_own`` and
+    ``i_other`` the unloading stiffness of that side and of the other side."""
     k = p[0]
     fy0 = p[1]
     ak0 = p[2] * k
     beta = p[3]
     uy0 = fy0 / k
-    uc = sc[0]
-    fc = sc[1]
-    upos = sc[2]
-    uneg = sc[4]
+    xc = sgn * sc[0]
+    fc = sgn * sc[1]
+    x_peak = sgn * sc[i_peak]
     sf = sc[13]
     uf = sc[14]
-    kup = sc[8] * uf
-    kun = sc[9] * uf
-    du = u - uc
-    if du >= 0.0:
-        if fc < 0.0:
-            f_try = fc + kun * du
-            if f_try <= 0.0:
-                return f_try, kun, kun
-            u0 = uc - fc / kun
-            st[6] = u0
-            if p[4] > 0.0:
-                st[15] = u0
-                _deteriorate(p, sc, st, sc[10] + 0.5 * fc * (u0 - uc))
-                sf = st[13]
-                uf = st[14]
-                kup = sc[8] * uf
-            u_from = u0
-            f_from = 0.0
-        else:
-            u0 = sc[6]
-            u_from = uc
-            f_from = fc
-        fy = sf * fy0
-        ak = sf * ak0
-        uy = fy / k
-        f_el = f_from + kup * (u - u_from)
-        if u > upos:
-            env = fy + ak * (u - uy)
-            k_env = ak
-        elif u > u0 and upos > u0:
-            target = min(sc[3], fy + ak * (upos - uy))
-            k_env = target / (upos - u0)
-            env = k_env * (u - u0)
-        else:
-            return f_el, kup, kup
-        if f_el <= env:
-            return f_el, kup, kup
-        if u > upos:
-            st[2] = u
-            st[3] = env
-            base = sc[8]
-            if beta != 0.0:
-                base = k * (uy0 / u) ** beta
-            st[8] = base
-            kup = base * uf
-        return env, k_env, kup
-    if fc > 0.0:
-        f_try = fc + kup * du
-        if f_try >= 0.0:
-            return f_try, kup, kup
-        u0 = uc - fc / kup
-        st[7] = u0
+    k_own = sc[i_own] * uf
+    k_other = sc[i_other] * uf
+    if fc < 0.0:  # unloading from the other side
+        f_try = fc + k_other * (x - xc)
+        if f_try <= 0.0:
+            return sgn * f_try, k_other, k_other
+        x0 = xc - fc / k_other
+        st[i_zero] = sgn * x0
         if p[4] > 0.0:
-            st[15] = u0
-            _deteriorate(p, sc, st, sc[10] + 0.5 * fc * (u0 - uc))
+            st[15] = sgn * x0
+            _deteriorate(p, sc, st, sc[10] + 0.5 * fc * (x0 - xc))
             sf = st[13]
             uf = st[14]
-            kun = sc[9] * uf
-        u_from = u0
+            k_own = sc[i_own] * uf
+        x_from = x0
         f_from = 0.0
     else:
-        u0 = sc[7]
-        u_from = uc
+        x0 = sgn * sc[i_zero]
+        x_from = xc
         f_from = fc
     fy = sf * fy0
     ak = sf * ak0
     uy = fy / k
-    f_el = f_from + kun * (u - u_from)
-    if u < uneg:
-        env = -fy + ak * (u + uy)
+    f_el = f_from + k_own * (x - x_from)
+    if x > x_peak:
+        env = fy + ak * (x - uy)
         k_env = ak
-    elif u < u0 and uneg < u0:
-        target = max(sc[5], -fy + ak * (uneg + uy))
-        k_env = target / (uneg - u0)
-        env = k_env * (u - u0)
+    elif x > x0 and x_peak > x0:
+        target = min(sgn * sc[i_peak + 1], fy + ak * (x_peak - uy))
+        k_env = target / (x_peak - x0)
+        env = k_env * (x - x0)
     else:
-        return f_el, kun, kun
-    if f_el >= env:
-        return f_el, kun, kun
-    if u < uneg:
-        st[4] = u
-        st[5] = env
-        base = sc[9]
+        return sgn * f_el, k_own, k_own
+    if f_el <= env:
+        return sgn * f_el, k_own, k_own
+    if x > x_peak:
+        st[i_peak] = sgn * x
+        st[i_peak + 1] = sgn * env
+        base = sc[i_own]
         if beta != 0.0:
-            base = k * (uy0 / -u) ** beta
-        st[9] = base
-        kun = base * uf
-    return env, k_env, kun
+            base = k * (uy0 / x) ** beta
+        st[i_own] = base
+        k_own = base * uf
+    return sgn * env, k_env, k_own
 
 
 @njit(**JIT_OPTIONS)
