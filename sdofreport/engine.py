@@ -533,25 +533,65 @@ def _record_args(record: Record, analysis) -> tuple:
 # Loading the compiled kernels while the records are read
 
 
-def warm_kernels(project: Project) -> None:
-    """
-    Load numba and the compiled kernels of the record jobs (response spectra) of
-    ``project``, by running one on a very short made-up record (32 steps of 0.01 s of a
-    decaying 5 Hz sine: the kernels' types, not the record, decide what is loaded) and
-    discarding the output. That first kernel call carries the one-off costs, about a
-    second: importing numba, setting up its type registry, loading machine code from
-    its cache. Afterwards the record jobs run at full speed here and in workers forked
-    from here; other job kinds load their few extra kernels when they first run.
-    """
+def _made_up_record() -> Record:
+    """A very short made-up record for the warm-ups: 32 steps of 0.01 s of a decaying
+    5 Hz sine (the kernels' argument types, not the record, decide what is compiled)."""
     from sdofreport.records import record_from_array
 
     time_s = np.arange(32) * 0.01
-    made_up = record_from_array(0.5 * np.sin(10.0 * np.pi * time_s) * np.exp(-5.0 * time_s),
-                                0.01, record_id="warm-up")
+    return record_from_array(0.5 * np.sin(10.0 * np.pi * time_s) * np.exp(-5.0 * time_s),
+                             0.01, record_id="warm-up")
+
+
+def warm_kernels(project: Project) -> None:
+    """
+    Load numba and the compiled kernels of the record jobs (response spectra) of
+    ``project``, by running one on a made-up record (:func:`_made_up_record`) and
+    discarding the output. That first kernel call carries the one-off costs, about a
+    second: importing numba, setting up its type registry, loading machine code from
+    its cache (or, on a fresh machine, compiling it: several seconds). Afterwards the
+    record jobs run at full speed here and in workers forked from here; the kernels of
+    the other job kinds come from :func:`warm_later_kernels`, run meanwhile in another
+    process, or are loaded when they first run.
+    """
     try:
-        run_job("record", _record_args(made_up, project.analysis))
+        run_job("record", _record_args(_made_up_record(), project.analysis))
     except Exception as exc:  # only a warm-up: the real jobs report any problem
         log.debug("warm-up stopped: %s", exc)
+
+
+def warm_later_kernels(project: Project) -> None:
+    """
+    Compile, or load, the kernels that ``project``'s later phases need beyond the
+    record jobs' — the response-history kernel (pairs and linear systems), the
+    hysteresis kernels (nonlinear systems) and the inelastic-spectrum kernels (an
+    ``[inelastic]`` table) — by running those jobs on a made-up record, without the
+    spectrum kernel (:func:`warm_kernels` compiles that meanwhile in another process).
+    Only what the project uses is compiled. Compiled kernels go to numba's cache on
+    disk, where the build process and its workers load them in milliseconds.
+    """
+    from sdofreport.core.spectra import load_history_kernel
+
+    record = _made_up_record()
+    acc, dt = record.acceleration_m_s2, record.dt_s
+    models = [system_model(system) for system in project.systems]
+    steps = []
+    if _pairs(project) or any(model["model"] == "linear" for model in models):
+        steps.append(load_history_kernel)
+    nonlinear = [model for model in models if model["model"] != "linear"]
+    if nonlinear:
+        steps.append(lambda: run_job("responses", (acc, dt, nonlinear,
+                                                    project.analysis.method)))
+    spec = project.inelastic
+    if spec is not None:
+        steps.append(lambda: run_job("inelastic", (acc, dt, spec.periods_s, spec.damping,
+                                                   spec.ductility, spec.strength_reduction,
+                                                   spec.post_yield_ratio)))
+    for step in steps:
+        try:
+            step()
+        except Exception as exc:  # only a warm-up: the real jobs report any problem
+            log.debug("warm-up of later kernels stopped: %s", exc)
 
 
 def _probably_cold(project: Project, cache: ResultCache) -> bool:
@@ -578,11 +618,18 @@ def _read_inherited() -> list[Record]:
     return load_records(project, cache)
 
 
+def _warm_inherited() -> None:
+    warm_later_kernels(_TO_READ[0])
+
+
 def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]:
     """
     :func:`load_records` in a forked process while this one runs :func:`warm_kernels`:
     the two one-off costs of a build that computes overlap. The records (and any error
-    about them) are the same as read here; if the reader dies, they are read here.
+    about them) are the same as read here; if the reader dies, they are read here. The
+    forked process then runs :func:`warm_later_kernels`, and this one waits for it, so
+    on a fresh machine the later phases' kernels are compiled beside the spectrum
+    kernel rather than after it.
     """
     from concurrent.futures import ProcessPoolExecutor
     from concurrent.futures.process import BrokenProcessPool
@@ -592,12 +639,16 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
     try:
         with ProcessPoolExecutor(max_workers=1, mp_context=fork_context()) as pool:
             future = pool.submit(_read_inherited)
+            later = pool.submit(_warm_inherited)  # after the reading, in that process
             warm_kernels(project)
             try:
                 records = future.result()
             except (BrokenProcessPool, OSError) as exc:
                 log.debug("record reader lost (%s); reading here", exc)
                 records = None
+            except BaseException:
+                later.cancel()  # a bad record ends the build: no warm-up is needed
+                raise
     finally:
         _TO_READ = (None, None)
     if records is None:

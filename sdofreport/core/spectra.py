@@ -689,6 +689,22 @@ def _run(ag, dt, periods, zeta, method, gamma, beta, steps_per_period, store,
     return peaks, hist, steps
 
 
+def load_history_kernel() -> None:
+    """
+    Compile, or load from the kernel cache, the kernel that :func:`oscillator_histories`
+    adds to those of :func:`oscillator_peaks`, without compiling the peak kernel.
+
+    It runs that kernel on a made-up 2-sample input with the argument types :func:`_run`
+    passes (read-only ground motion, C-ordered work arrays, an integer shift), so a
+    process doing this while another compiles the peak kernel overlaps the two
+    compilations; both land in the kernel cache, where later processes find them.
+    """
+    ag = _check_ground_acceleration([0.0, 0.0])
+    one = np.zeros(1)
+    hu, hv, ha = (np.empty((1, ag.size)) for _ in range(3))
+    _recurrence_samples(ag, 0, np.zeros((8, 1)), one, one, one, one, hu, hv, ha)
+
+
 def _peaks_from(raw) -> OscillatorPeaks:
     return OscillatorPeaks(
         displacement_m=raw[0].copy(),
