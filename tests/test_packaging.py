@@ -3,7 +3,7 @@
 Sources of expected values: the files under templates/, the package list of
 pyproject.toml and the package's own modules, read back from the wheel with an
 independent reference library (zipfile); the example site built from the checkout, which
-the integration tests check against closed forms; pip's own ``pip hash`` for the pin.
+the integration tests check against closed forms.
 
 Cost: one wheel build (pip, about 10 s), one virtual environment that sees the installed
 dependencies (``--system-site-packages``) so only the wheel is new, and one build of the
@@ -13,9 +13,6 @@ on the 2-core reference machine).
 
 from __future__ import annotations
 
-import os
-import shutil
-import subprocess
 import sys
 import zipfile
 from pathlib import Path
@@ -25,49 +22,27 @@ from click.testing import CliRunner
 
 from sdofreport import __version__
 from sdofreport.cli import cli
-from tests.conftest import EXAMPLE
+from tests.conftest import EXAMPLE, fresh_venv, run_checked as _run
 
 ROOT = Path(__file__).resolve().parents[1]
-BIN = "Scripts" if os.name == "nt" else "bin"
-#: Left out of the copy the wheel is built from: what a clean clone does not have.
-_NOT_SOURCES = shutil.ignore_patterns(".git", "build", "dist", "*.egg-info", "__pycache__",
-                                      "_site", "_artifacts", ".pytest_cache", ".hypothesis",
-                                      "*.nbi", "*.nbc")
-
-
-def _run(args, **kwargs) -> subprocess.CompletedProcess:
-    result = subprocess.run([str(a) for a in args], capture_output=True, text=True,
-                            check=False, **kwargs)
-    assert result.returncode == 0, f"{args}: {result.stdout[-2000:]}{result.stderr[-2000:]}"
-    return result
 
 
 @pytest.fixture(scope="module")
-def wheel(tmp_path_factory) -> Path:
-    """The wheel pip builds from a clean copy of the repository (as docs/ci.md says)."""
-    root = tmp_path_factory.mktemp("wheel")
-    source = root / "sdofreport-src"
-    shutil.copytree(ROOT, source, ignore=_NOT_SOURCES)
-    _run([sys.executable, "-m", "pip", "wheel", "--no-deps", "-q", "-w", root / "dist",
-          source])
-    (built,) = (root / "dist").glob("sdofreport-*.whl")
-    return built
+def wheel(built_wheel) -> Path:
+    return built_wheel
 
 
 @pytest.fixture(scope="module")
 def installed(wheel, tmp_path_factory) -> tuple[Path, dict]:
     """
-    (virtual environment, environment variables) with only the wheel installed into it.
-    The dependencies come from the system site-packages; the checkout is not
-    importable: no PYTHONPATH, and commands run from a folder outside it.
+    (scripts folder, environment variables) of a fresh virtual environment with only
+    the wheel installed into it: the dependencies come from the system site-packages,
+    and commands run from a folder outside the checkout, which is not importable.
     """
-    venv = tmp_path_factory.mktemp("venv") / "env"
-    _run([sys.executable, "-m", "venv", "--system-site-packages", venv])
-    env = {k: v for k, v in os.environ.items() if k not in ("PYTHONPATH", "PYTHONHOME")}
-    env["PATH"] = f"{venv / BIN}{os.pathsep}{env.get('PATH', '')}"
-    _run([venv / BIN / "python", "-m", "pip", "install", "--no-deps", "--no-index", "-q",
+    scripts, env = fresh_venv(tmp_path_factory.mktemp("venv") / "env")
+    _run([scripts / "python", "-m", "pip", "install", "--no-deps", "--no-index", "-q",
           wheel], env=env)
-    return venv, env
+    return scripts, env
 
 
 def _files(site: Path) -> dict[str, bytes]:
@@ -91,12 +66,12 @@ def test_wheel_contains_templates_schemas_and_every_module(wheel):
 
 
 def test_installed_wheel_runs_outside_the_checkout(installed, tmp_path):
-    venv, env = installed
-    where = _run([venv / BIN / "python", "-c",
+    scripts, env = installed
+    where = _run([scripts / "python", "-c",
                   "import sdofreport; print(sdofreport.__file__)"], env=env, cwd=tmp_path)
-    assert Path(where.stdout.strip()).resolve().is_relative_to(venv.resolve())
-    command = _run([venv / BIN / "sdofreport", "--version"], env=env, cwd=tmp_path)
-    module = _run([venv / BIN / "python", "-m", "sdofreport", "--version"], env=env,
+    assert Path(where.stdout.strip()).resolve().is_relative_to(scripts.parent.resolve())
+    command = _run([scripts / "sdofreport", "--version"], env=env, cwd=tmp_path)
+    module = _run([scripts / "python", "-m", "sdofreport", "--version"], env=env,
                   cwd=tmp_path)
     assert command.stdout == module.stdout
     assert command.stdout.startswith(f"sdofreport {__version__} ")
@@ -104,9 +79,9 @@ def test_installed_wheel_runs_outside_the_checkout(installed, tmp_path):
 
 def test_installed_wheel_builds_the_example_byte_identical_to_the_checkout(installed,
                                                                            tmp_path):
-    venv, env = installed
+    scripts, env = installed
     from_wheel = tmp_path / "wheel-site"
-    _run([venv / BIN / "sdofreport", "build", EXAMPLE / "sdofreport.toml", "-o", from_wheel,
+    _run([scripts / "sdofreport", "build", EXAMPLE / "sdofreport.toml", "-o", from_wheel,
           "--quiet", "--no-cache"], env=env, cwd=tmp_path)
     from_checkout = tmp_path / "checkout-site"
     result = CliRunner().invoke(cli, ["build", str(EXAMPLE / "sdofreport.toml"), "-o",
