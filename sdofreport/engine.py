@@ -554,7 +554,10 @@ def warm_kernels(project: Project) -> None:
     the other job kinds come from :func:`warm_later_kernels`, run meanwhile in another
     process, or are loaded when they first run.
     """
+    from sdofreport.core.spectra import load_peak_kernel
+
     try:
+        load_peak_kernel()  # first, so the helper can compile the coefficients meanwhile
         run_job("record", _record_args(_made_up_record(), project.analysis))
     except Exception as exc:  # only a warm-up: the real jobs report any problem
         log.debug("warm-up stopped: %s", exc)
@@ -562,20 +565,24 @@ def warm_kernels(project: Project) -> None:
 
 def warm_later_kernels(project: Project) -> None:
     """
-    Compile, or load, the kernels that ``project``'s later phases need beyond the
-    record jobs' — the response-history kernel (pairs and linear systems), the
-    hysteresis kernels (nonlinear systems) and the inelastic-spectrum kernels (an
-    ``[inelastic]`` table) — by running those jobs on a made-up record, without the
-    spectrum kernel (:func:`warm_kernels` compiles that meanwhile in another process).
-    Only what the project uses is compiled. Compiled kernels go to numba's cache on
-    disk, where the build process and its workers load them in milliseconds.
+    Compile, or load, the kernels ``project`` needs besides the spectrum kernel: the
+    exact method's coefficient kernel (first: the record jobs need it soonest), the
+    response-history kernel (pairs and linear systems), the hysteresis kernels
+    (nonlinear systems) and the inelastic-spectrum kernels (an ``[inelastic]`` table),
+    by running them on made-up input, without the spectrum kernel
+    (:func:`warm_kernels` compiles that meanwhile in another process). Only what the
+    project uses is compiled. Compiled kernels go to numba's cache on disk, where the
+    build process and its workers load them in milliseconds.
     """
+    from sdofreport.core.exact import exact_coefficients
     from sdofreport.core.spectra import load_history_kernel
 
     record = _made_up_record()
     acc, dt = record.acceleration_m_s2, record.dt_s
     models = [system_model(system) for system in project.systems]
     steps = []
+    if project.analysis.method == "exact":  # the array types spectra._run passes
+        steps.append(lambda: exact_coefficients(np.array([1.0]), np.array([0.05]), dt))
     if _pairs(project) or any(model["model"] == "linear" for model in models):
         steps.append(load_history_kernel)
     nonlinear = [model for model in models if model["model"] != "linear"]

@@ -137,6 +137,6 @@ def test_the_two_warm_ups_load_every_kernel_the_build_uses_and_split_the_work():
     # compilation is not done twice when the two warm-ups run side by side...
     assert seen["later"]["sdofreport.core.spectra._recurrence_peaks"] == []
     # ... and it loads the kernels of the later phases the example uses.
-    for kernel in ("spectra._recurrence_samples", "nonlinear._integrate",
-                   "inelastic_spectra._ductility_period"):
+    for kernel in ("exact._exact_coefficients_into", "spectra._recurrence_samples",
+                   "nonlinear._integrate", "inelastic_spectra._ductility_period"):
         assert seen["later"][f"sdofreport.core.{kernel}"], kernel

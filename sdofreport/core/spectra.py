@@ -689,6 +689,19 @@ def _run(ag, dt, periods, zeta, method, gamma, beta, steps_per_period, store,
     return peaks, hist, steps
 
 
+def load_peak_kernel() -> None:
+    """
+    Compile, or load from the kernel cache, the kernel of :func:`oscillator_peaks` (and
+    the kernels it calls) alone, on a made-up 2-sample input with the argument types
+    :func:`_run` passes; the recurrence coefficients are left to
+    :func:`sdofreport.core.exact.exact_coefficients`, which another process may compile
+    meanwhile (see :func:`load_history_kernel`).
+    """
+    ag = _check_ground_acceleration([0.0, 0.0])
+    one = np.zeros(1)
+    _recurrence_peaks(ag, 0, 0.01, np.zeros((8, 1)), one, one, one, one, np.empty((3, 1)))
+
+
 def load_history_kernel() -> None:
     """
     Compile, or load from the kernel cache, the kernel that :func:`oscillator_histories`
