@@ -139,6 +139,17 @@ def fresh_venv(folder: Path) -> tuple[Path, dict]:
 
     run_checked([sys.executable, "-m", "venv", "--system-site-packages", folder])
     scripts = folder / ("Scripts" if os.name == "nt" else "bin")
+    if sys.prefix != sys.base_prefix:
+        # Run from inside a virtual environment, whose packages --system-site-packages
+        # does not reach: list its folders after the new environment's own (a .pth file
+        # only extends sys.path; the .pth files in those folders, such as an editable
+        # install's, are not run).
+        import site
+
+        purelib = run_checked([scripts / "python", "-c",
+                               "import sysconfig; print(sysconfig.get_path('purelib'))"])
+        Path(purelib.stdout.strip(), "_test_parent_packages.pth").write_text(
+            "\n".join(site.getsitepackages()) + "\n", encoding="utf-8")
     # Not inherited either: numba settings this test process made for itself
     # (sdofreport.core._jit sets NUMBA_CACHE_DIR when it is imported).
     env = {k: v for k, v in os.environ.items()

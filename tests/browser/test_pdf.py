@@ -22,7 +22,7 @@ def _words(text: str) -> str:
 def packet(example_site, tmp_path_factory):
     """The example's PDF, printed once with SOURCE_DATE_EPOCH unset."""
     pypdf = pytest.importorskip("pypdf", reason="pypdf is not installed "
-                                "(pip install -e ".[test]")")
+                                "(pip install -e '.[test]')")
     output = tmp_path_factory.mktemp("pdf") / "packet.pdf"
     saved = os.environ.pop("SOURCE_DATE_EPOCH", None)
     try:
