@@ -494,9 +494,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     inelastic_spec = project.inelastic
     if inelastic_spec is not None:
         for record in (scaled[r.id] for r in project.records):
-            args = (record.acceleration_m_s2, record.dt_s, inelastic_spec.periods_s,
-                    inelastic_spec.damping, inelastic_spec.ductility,
-                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio)
+            args = _inelastic_args(record, inelastic_spec)
             key = content_hash({**base, "job": "inelastic", "sha": _array_hash(args[0]),
                                 "dt": record.dt_s, "spec": dataclasses.asdict(
                                     inelastic_spec)})
@@ -527,6 +525,13 @@ def _record_args(record: Record, analysis) -> tuple:
     """Arguments of a record job (see sdofreport.jobs), for the plan and the warm-up."""
     return (record.acceleration_m_s2, record.dt_s, analysis.periods_s, analysis.damping,
             analysis.method)
+
+
+def _inelastic_args(record: Record, spec) -> tuple:
+    """Arguments of an inelastic-spectra job, for the plan and the warm-up."""
+    return (record.acceleration_m_s2, record.dt_s, spec.periods_s, spec.damping,
+            spec.ductility, spec.strength_reduction, spec.post_yield_ratio,
+            spec.steps_per_period)
 
 
 # ---------------------------------------------------------------------------------------
@@ -568,7 +573,7 @@ def warm_later_kernels(project: Project) -> None:
     Compile, or load, the kernels ``project`` needs besides the spectrum kernel: the
     exact method's coefficient kernel (first: the record jobs need it soonest), the
     response-history kernel (pairs and linear systems), the hysteresis kernels
-    (nonlinear systems) and the inelastic-spectrum kernels (an ``[inelastic]`` table),
+    (nonlinear systems) and the inelastic-spectrum kernels (an ``[inelastic_spectra]`` table),
     by running them on made-up input, without the spectrum kernel
     (:func:`warm_kernels` compiles that meanwhile in another process). Only what the
     project uses is compiled. Compiled kernels go to numba's cache on disk, where the
@@ -589,11 +594,9 @@ def warm_later_kernels(project: Project) -> None:
     if nonlinear:
         steps.append(lambda: run_job("responses", (acc, dt, nonlinear,
                                                     project.analysis.method)))
-    spec = project.inelastic
-    if spec is not None:
-        steps.append(lambda: run_job("inelastic", (acc, dt, spec.periods_s, spec.damping,
-                                                   spec.ductility, spec.strength_reduction,
-                                                   spec.post_yield_ratio)))
+    if project.inelastic is not None:
+        steps.append(lambda: run_job("inelastic", _inelastic_args(record,
+                                                                  project.inelastic)))
     for step in steps:
         try:
             step()
