@@ -82,12 +82,12 @@ from sdofreport import engine
 from sdofreport.cache import ResultCache
 from sdofreport.jobs import run_job
 from sdofreport.project import load_project
-import sdofreport.core.exact, sdofreport.core.inelastic_spectra, sdofreport.core.newmark
-import sdofreport.core.nonlinear, sdofreport.core.rotd, sdofreport.core.spectra
+import importlib, pkgutil
+import sdofreport.core
 
-MODULES = (sdofreport.core.exact, sdofreport.core.inelastic_spectra,
-           sdofreport.core.newmark, sdofreport.core.nonlinear, sdofreport.core.rotd,
-           sdofreport.core.spectra)
+# Every module of sdofreport.core, so kernels in modules added later are seen too.
+MODULES = [importlib.import_module(f"sdofreport.core.{info.name}")
+           for info in pkgutil.iter_modules(sdofreport.core.__path__)]
 
 def loaded():
     return {f"{module.__name__}.{name}": sorted(map(str, value.signatures))
