@@ -550,53 +550,48 @@ def _made_up_record() -> Record:
 
 def warm_kernels(project: Project) -> None:
     """
-    Load numba and the compiled kernels of the record jobs (response spectra) of
-    ``project``, by running one on a made-up record (:func:`_made_up_record`) and
-    discarding the output. That first kernel call carries the one-off costs, about a
-    second: importing numba, setting up its type registry, loading machine code from
-    its cache (or, on a fresh machine, compiling it: several seconds). Afterwards the
-    record jobs run at full speed here and in workers forked from here; the kernels of
-    the other job kinds come from :func:`warm_later_kernels`, run meanwhile in another
-    process, or are loaded when they first run.
+    Load numba and the compiled kernels of the linear path of ``project`` — the record
+    jobs' (response spectra: the peak kernel, the exact method's coefficients) and the
+    response-history kernel (pairs and linear systems) — by running them on made-up
+    input (:func:`_made_up_record`) and discarding the output. The first kernel call
+    carries the one-off costs, about a second: importing numba, setting up its type
+    registry, loading machine code from its cache (or, on a fresh machine, compiling
+    it: several seconds). Afterwards the record jobs run at full speed here and in
+    workers forked from here; the nonlinear kernels come from
+    :func:`warm_later_kernels`, run meanwhile in another process, or are loaded when
+    they first run.
     """
-    from sdofreport.core.spectra import load_peak_kernel
+    from sdofreport.core.spectra import load_history_kernel, load_peak_kernel
 
     try:
-        load_peak_kernel()  # first, so the helper can compile the coefficients meanwhile
+        load_peak_kernel()
         run_job("record", _record_args(_made_up_record(), project.analysis))
+        if _pairs(project) or any(system_model(system)["model"] == "linear"
+                                  for system in project.systems):
+            load_history_kernel()
     except Exception as exc:  # only a warm-up: the real jobs report any problem
         log.debug("warm-up stopped: %s", exc)
 
 
 def warm_later_kernels(project: Project) -> None:
     """
-    Compile, or load, the kernels ``project`` needs besides the spectrum kernel: the
-    exact method's coefficient kernel (first: the record jobs need it soonest), the
-    response-history kernel (pairs and linear systems), the hysteresis kernels
-    (nonlinear systems) and the inelastic-spectrum kernels (an ``[inelastic_spectra]`` table),
-    by running them on made-up input, without the spectrum kernel
-    (:func:`warm_kernels` compiles that meanwhile in another process). Only what the
-    project uses is compiled. Compiled kernels go to numba's cache on disk, where the
-    build process and its workers load them in milliseconds.
+    Compile, or load, the nonlinear kernels ``project`` needs: the inelastic-spectrum
+    kernels (an ``[inelastic_spectra]`` table; first, the costliest to compile) and the
+    hysteresis kernels (nonlinear systems), by running those jobs on a made-up record
+    while :func:`warm_kernels` compiles the linear path in another process; only what
+    the project uses. Compiled kernels go to numba's cache on disk, where the build
+    process and its workers load them in milliseconds.
     """
-    from sdofreport.core.exact import exact_coefficients
-    from sdofreport.core.spectra import load_history_kernel
-
     record = _made_up_record()
-    acc, dt = record.acceleration_m_s2, record.dt_s
-    models = [system_model(system) for system in project.systems]
     steps = []
-    if project.analysis.method == "exact":  # the array types spectra._run passes
-        steps.append(lambda: exact_coefficients(np.array([1.0]), np.array([0.05]), dt))
-    if _pairs(project) or any(model["model"] == "linear" for model in models):
-        steps.append(load_history_kernel)
-    nonlinear = [model for model in models if model["model"] != "linear"]
-    if nonlinear:
-        steps.append(lambda: run_job("responses", (acc, dt, nonlinear,
-                                                    project.analysis.method)))
     if project.inelastic is not None:
         steps.append(lambda: run_job("inelastic", _inelastic_args(record,
                                                                   project.inelastic)))
+    nonlinear = [model for model in map(system_model, project.systems)
+                 if model["model"] != "linear"]
+    if nonlinear:
+        steps.append(lambda: run_job("responses", (record.acceleration_m_s2, record.dt_s,
+                                                    nonlinear, project.analysis.method)))
     for step in steps:
         try:
             step()
@@ -638,8 +633,8 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
     the two one-off costs of a build that computes overlap. The records (and any error
     about them) are the same as read here; if the reader dies, they are read here. The
     forked process then runs :func:`warm_later_kernels`, and this one waits for it, so
-    on a fresh machine the later phases' kernels are compiled beside the spectrum
-    kernel rather than after it.
+    on a fresh machine the nonlinear kernels are compiled beside the linear ones rather
+    than after them.
     """
     from concurrent.futures import ProcessPoolExecutor
     from concurrent.futures.process import BrokenProcessPool
