@@ -536,10 +536,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     inelastic_spec = project.inelastic
     if inelastic_spec is not None:
         for record in (scaled[r.id] for r in project.records):
-            args = (record.acceleration_m_s2, record.dt_s, inelastic_spec.periods_s,
-                    inelastic_spec.damping, inelastic_spec.ductility,
-                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio,
-                    inelastic_spec.steps_per_period)
+            args = _inelastic_args(record, inelastic_spec)
             key = cache_key({**base, "job": "inelastic", "sha": _array_hash(args[0]),
                                 "dt": record.dt_s, "spec": dataclasses.asdict(
                                     inelastic_spec)})
@@ -581,29 +578,76 @@ def _spectrum_at(spectrum: ResponseSpectrum, damping) -> ResponseSpectrum:
                                **{n: np.asarray(getattr(spectrum, n))[rows] for n in names})
 
 
+def _inelastic_args(record: Record, spec) -> tuple:
+    """Arguments of an inelastic-spectra job, for the plan and the warm-up."""
+    return (record.acceleration_m_s2, record.dt_s, spec.periods_s, spec.damping,
+            spec.ductility, spec.strength_reduction, spec.post_yield_ratio,
+            spec.steps_per_period)
+
+
 # ---------------------------------------------------------------------------------------
 # Loading the compiled kernels while the records are read
 
 
-def warm_kernels(project: Project) -> None:
-    """
-    Load numba and the compiled kernels of the record jobs (response spectra) of
-    ``project``, by running one on a very short made-up record (32 steps of 0.01 s of a
-    decaying 5 Hz sine: the kernels' types, not the record, decide what is loaded) and
-    discarding the output. That first kernel call carries the one-off costs, about a
-    second: importing numba, setting up its type registry, loading machine code from
-    its cache. Afterwards the record jobs run at full speed here and in workers forked
-    from here; other job kinds load their few extra kernels when they first run.
-    """
+def _made_up_record() -> Record:
+    """A very short made-up record for the warm-ups: 32 steps of 0.01 s of a decaying
+    5 Hz sine (the kernels' argument types, not the record, decide what is compiled)."""
     from sdofreport.records import record_from_array
 
     time_s = np.arange(32) * 0.01
-    made_up = record_from_array(0.5 * np.sin(10.0 * np.pi * time_s) * np.exp(-5.0 * time_s),
-                                0.01, record_id="warm-up")
+    return record_from_array(0.5 * np.sin(10.0 * np.pi * time_s) * np.exp(-5.0 * time_s),
+                             0.01, record_id="warm-up")
+
+
+def warm_kernels(project: Project) -> None:
+    """
+    Load numba and the compiled kernels of the linear path of ``project`` — the record
+    jobs' (response spectra: the peak kernel, the exact method's coefficients) and the
+    response-history kernel (pairs and linear systems) — by running them on made-up
+    input (:func:`_made_up_record`) and discarding the output. The first kernel call
+    carries the one-off costs, about a second: importing numba, setting up its type
+    registry, loading machine code from its cache (or, on a fresh machine, compiling
+    it: several seconds). Afterwards the record jobs run at full speed here and in
+    workers forked from here; the nonlinear kernels come from
+    :func:`warm_later_kernels`, run meanwhile in another process, or are loaded when
+    they first run.
+    """
+    from sdofreport.core.spectra import load_history_kernel, load_peak_kernel
+
     try:
-        run_job("record", _record_args(made_up, project.analysis))
+        load_peak_kernel()
+        run_job("record", _record_args(_made_up_record(), project.analysis))
+        if _pairs(project) or any(system_model(system)["model"] == "linear"
+                                  for system in project.systems):
+            load_history_kernel()
     except Exception as exc:  # only a warm-up: the real jobs report any problem
         log.debug("warm-up stopped: %s", exc)
+
+
+def warm_later_kernels(project: Project) -> None:
+    """
+    Compile, or load, the nonlinear kernels ``project`` needs: the inelastic-spectrum
+    kernels (an ``[inelastic_spectra]`` table; first, the costliest to compile) and the
+    hysteresis kernels (nonlinear systems), by running those jobs on a made-up record
+    while :func:`warm_kernels` compiles the linear path in another process; only what
+    the project uses. Compiled kernels go to numba's cache on disk, where the build
+    process and its workers load them in milliseconds.
+    """
+    record = _made_up_record()
+    steps = []
+    if project.inelastic is not None:
+        steps.append(lambda: run_job("inelastic", _inelastic_args(record,
+                                                                  project.inelastic)))
+    nonlinear = [model for model in map(system_model, project.systems)
+                 if model["model"] != "linear"]
+    if nonlinear:
+        steps.append(lambda: run_job("responses", (record.acceleration_m_s2, record.dt_s,
+                                                    nonlinear, project.analysis.method)))
+    for step in steps:
+        try:
+            step()
+        except Exception as exc:  # only a warm-up: the real jobs report any problem
+            log.debug("warm-up of later kernels stopped: %s", exc)
 
 
 def _probably_cold(project: Project, cache: ResultCache) -> bool:
@@ -630,11 +674,18 @@ def _read_inherited() -> list[Record]:
     return load_records(project, cache)
 
 
+def _warm_inherited() -> None:
+    warm_later_kernels(_TO_READ[0])
+
+
 def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]:
     """
     :func:`load_records` in a forked process while this one runs :func:`warm_kernels`:
     the two one-off costs of a build that computes overlap. The records (and any error
-    about them) are the same as read here; if the reader dies, they are read here.
+    about them) are the same as read here; if the reader dies, they are read here. The
+    forked process then runs :func:`warm_later_kernels`, and this one waits for it, so
+    on a fresh machine the nonlinear kernels are compiled beside the linear ones rather
+    than after them.
     """
     from concurrent.futures.process import BrokenProcessPool
 
@@ -643,12 +694,16 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
     try:
         with local_pool(1) as pool:
             future = pool.submit(_read_inherited)
+            later = pool.submit(_warm_inherited)  # after the reading, in that process
             warm_kernels(project)
             try:
                 records = future.result()
             except (BrokenProcessPool, OSError) as exc:
                 log.debug("record reader lost (%s); reading here", exc)
                 records = None
+            except BaseException:
+                later.cancel()  # a bad record ends the build: no warm-up is needed
+                raise
     finally:
         _TO_READ = (None, None)
     if records is None:
