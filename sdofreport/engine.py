@@ -29,6 +29,7 @@ import numpy as np
 
 from sdofreport import __version__
 from sdofreport.cache import ResultCache, cache_key, default_cache_dir
+from sdofreport.core.fragility import demand_statistics
 from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
@@ -115,6 +116,9 @@ class Check:
     verdict: str  # VERDICT_WITHIN | VERDICT_EXCEEDS
     #: True when the statistic is of absolute values (|residual displacement|, ...)
     absolute: bool = False
+    #: mean, median, p84, beta, min, max of the per-record peaks (SI; beta [-]), see
+    #: sdofreport.core.fragility.demand_statistics; ``statistic`` names the governing one
+    statistics: dict = field(default_factory=dict)
 
 
 @dataclass
@@ -348,7 +352,7 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
             ratio = demand / limit
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
                                 VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS,
-                                absolute))
+                                absolute, demand_statistics(np.abs(peaks))))
     return checks
 
 

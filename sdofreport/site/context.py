@@ -13,6 +13,7 @@ from importlib import metadata
 import numpy as np
 
 from sdofreport import __version__, codes
+from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import VERDICT_EXCEEDS, Results
 from sdofreport.site.display import CHECK_LABELS, Display, number
@@ -168,6 +169,21 @@ class SiteContext:
                 "ratio": f"{c.ratio:.3f}", "verdict": c.verdict,
                 "css": "exceeds" if c.verdict == VERDICT_EXCEEDS else "within",
             })
+        return rows
+
+    def _statistics_rows(self, checks) -> list[dict]:
+        """Demand statistics of each check (system page); ``governing`` marks the one
+        the verdict reads (the edition's statistic)."""
+        rows = []
+        for c in checks:
+            cells = []
+            for key in STATISTIC_KEYS:
+                value = c.statistics.get(key)
+                text = "–" if value is None else (
+                    number(value) if key == "beta" else
+                    self.display.check_value(c.quantity, value))
+                cells.append({"text": text, "governing": key == c.statistic})
+            rows.append({"label": CHECK_LABELS[c.quantity], "cells": cells})
         return rows
 
     def _statistic_bits(self) -> dict:
@@ -638,6 +654,7 @@ class SiteContext:
                               "derivation": list(system.derivation)},
                    "properties": self._properties(system),
                    "checks": self._check_rows(checks), "nonlinear": nonlinear,
+                   "demand_statistics": self._statistics_rows(checks),
                    "peaks": peaks, "histories": histories, "energies": energies,
                    "energy_flag": f"{100 * ENERGY_IMBALANCE_FLAG:g} %",
                    "figures": {"spectrum": figure}}

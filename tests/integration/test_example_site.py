@@ -232,3 +232,39 @@ def test_symbols_render_as_subscripts_on_the_pages(built):
         text = " ".join(_parse(page).text)
         raw = [s for s in SYMBOLS if re.search(rf"(?<![\w/]){re.escape(s)}(?!\w)", text)]
         assert not raw, (page.name, raw)
+
+
+def test_demand_statistics_match_numpy_and_the_csv(built):
+    """checks[].statistics of every check equal numpy's statistics of the per-record
+    peaks in the same results.json; data/checks.csv carries the same numbers."""
+    import csv
+
+    import numpy as np
+
+    doc = json.loads((built[0] / "data" / "results.json").read_text())
+    keys = {"displacement": "peak_displacement_m", "drift_ratio": "peak_drift_ratio",
+            "base_shear": "peak_base_shear_n", "ductility": "ductility",
+            "residual_displacement": "residual_displacement_m",
+            "bearing_displacement": "peak_displacement_m"}
+    rows = list(csv.DictReader((built[0] / "data" / "checks.csv").open()))
+    assert len(rows) == sum(len(s["checks"]) for s in doc["systems"])
+    for system in doc["systems"]:
+        for check in system["checks"]:
+            if check["quantity"] == "total_accel":  # results.json peaks are in g
+                x = np.array([r["peak_total_accel_g"] for r in system["responses"]]) \
+                    * 9.80665
+            else:
+                x = np.abs([r[keys[check["quantity"]]] for r in system["responses"]])
+            stats = check["statistics"]
+            # numpy: mean, median, 84th percentile, std of ln (ddof 1), min, max.
+            assert [stats[k] for k in ("mean", "median", "p84", "beta", "min", "max")] \
+                == pytest.approx([np.mean(x), np.median(x), np.percentile(x, 84),
+                                  np.std(np.log(x), ddof=1), x.min(), x.max()], rel=1e-9)
+            # The governing statistic (the edition's) is the demand the verdict reads.
+            assert stats[check["statistic"]] == pytest.approx(check["demand"], rel=1e-15)
+            row = next(r for r in rows if (r["system"], r["quantity"]) ==
+                       (system["id"], check["quantity"]))
+            assert float(row["p84"]) == stats["p84"]
+            assert row["governing_statistic"] == check["statistic"]
+    html = (built[0] / "systems" / "pier.html").read_text()
+    assert 'id="demand-statistics"' in html and 'class="num governing"' in html
