@@ -114,7 +114,8 @@ def results_document(results: Results) -> dict:
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
                    "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute,
-                   "statistics": statistics_block(c)}
+                   "statistics": statistics_block(c),
+                   **fragility_block(results, c)}
                   for c in results.checks if c.system_id == system.id]
         systems.append({
             "id": system.id, "name": system.name, "mass_kg": system.mass_kg,
@@ -137,6 +138,22 @@ def statistics_block(check) -> dict:
     beta [-] of the per-record peaks; null where not defined."""
     return {key: finite_or_none(value) if value is not None else None
             for key, value in check.statistics.items()}
+
+
+def fragility_block(results: Results, check) -> dict:
+    """``checks[].fragility`` (only for the systems of ``[fragility]``): the stripes'
+    counts and the fitted lognormal curve; levels and median in ``unit`` (g)."""
+    found = next((f for f in results.fragility if (f.system_id, f.quantity) ==
+                  (check.system_id, check.quantity)), None)
+    if found is None:
+        return {}
+    fit = found.fit
+    return {"fragility": {
+        "measure": found.measure, "unit": "g", "status": fit.status,
+        "median": fit.median, "beta": fit.beta, "levels": list(fit.levels),
+        "exceeding": list(fit.exceeding), "motions": list(fit.motions),
+        "design_level": found.design_level_g,
+        "design_probability": found.design_probability}}
 
 
 def suite_blocks(results: Results) -> dict:

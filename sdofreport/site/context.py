@@ -186,6 +186,36 @@ class SiteContext:
             rows.append({"label": CHECK_LABELS[c.quantity], "cells": cells})
         return rows
 
+    def _fragility_bits(self, system) -> dict | None:
+        """The fragility section of a system page (None when the system has none)."""
+        found = [f for f in self.results.fragility if f.system_id == system.id]
+        if not found:
+            return None
+        measure = found[0].measure
+        symbol = (f"Sa(T = {number(system.period_s)} s, ζ = {100 * system.damping:.3g} %)"
+                  if measure == "sa" else "PGA")
+        design = found[0].design_level_g
+        rows, curves = [], []
+        for f in found:
+            fit, label = f.fit, CHECK_LABELS[f.quantity]
+            rows.append({
+                "label": label, "status": fit.status,
+                "median": "–" if fit.median is None else f"{number(fit.median)} g",
+                "beta": "–" if fit.beta is None else number(fit.beta),
+                "probability": "–" if f.design_probability is None else
+                f"{100 * f.design_probability:.1f} %",
+                "counts": ", ".join(f"{z}/{n}" for z, n in zip(fit.exceeding, fit.motions))})
+            curves.append({"label": label, "levels": list(fit.levels),
+                           "fractions": [z / n for z, n in zip(fit.exceeding, fit.motions)],
+                           "median": fit.median if fit.beta else None, "beta": fit.beta})
+        figure = self._figure(f"figures/system-{system.id}-fragility.svg",
+                              "fragility_figure", curves=curves, xlabel=f"{symbol} [g]",
+                              design_level=design)
+        return {"symbol": symbol, "rows": rows, "figure": figure,
+                "levels": ", ".join(f"{x:g}" for x in found[0].fit.levels),
+                "design": None if design is None else f"{number(design)} g",
+                "records": found[0].fit.motions[0]}
+
     def _statistic_bits(self) -> dict:
         return {"statistic": self.results.statistic,
                 "statistic_text": STATISTIC_TEXT[self.results.statistic],
@@ -655,6 +685,7 @@ class SiteContext:
                    "properties": self._properties(system),
                    "checks": self._check_rows(checks), "nonlinear": nonlinear,
                    "demand_statistics": self._statistics_rows(checks),
+                   "fragility": self._fragility_bits(system),
                    "peaks": peaks, "histories": histories, "energies": energies,
                    "energy_flag": f"{100 * ENERGY_IMBALANCE_FLAG:g} %",
                    "figures": {"spectrum": figure}}
