@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import math
 import re
 from html.parser import HTMLParser
 from pathlib import Path
@@ -268,3 +269,33 @@ def test_demand_statistics_match_numpy_and_the_csv(built):
             assert row["governing_statistic"] == check["statistic"]
     html = (built[0] / "systems" / "pier.html").read_text()
     assert 'id="demand-statistics"' in html and 'class="num governing"' in html
+
+
+def test_example_shows_one_fragility(built):
+    """The example's [fragility] (the pier): every pier check carries the stripes and
+    its fit; the probability at the design level is Φ(ln(x/θ)/β) (scipy.stats.norm);
+    the design level is the target spectrum at the pier's period."""
+    from scipy import stats
+
+    doc = json.loads((built[0] / "data" / "results.json").read_text())
+    with_fragility = {s["id"] for s in doc["systems"] for c in s["checks"]
+                      if "fragility" in c}
+    assert with_fragility == {"pier"}
+    pier = next(s for s in doc["systems"] if s["id"] == "pier")
+    # Published formula: ASCE/SEI 7-16 §11.4.6, Sa = S_D1 / T for T_S < T <= T_L; the
+    # MCE_R target is 1.5 × the design spectrum (from memory, see REFERENCES).
+    design = 1.5 * 0.42 / pier["period_s"]
+    fitted = 0
+    for check in pier["checks"]:
+        f = check["fragility"]
+        assert f["motions"] == [22] * len(f["levels"]) and f["unit"] == "g"
+        assert f["design_level"] == pytest.approx(design, rel=1e-12)
+        if f["status"] == "fitted":
+            fitted += 1
+            # scipy.stats: the lognormal CDF at the design level.
+            assert f["design_probability"] == pytest.approx(stats.norm.cdf(
+                math.log(design / f["median"]) / f["beta"]), rel=1e-9)
+    assert fitted >= 1
+    html = (built[0] / "systems" / "pier.html").read_text()
+    assert 'id="fragility"' in html and "only as good as the suite" in html
+    assert (built[0] / "figures" / "system-pier-fragility.svg").is_file()
