@@ -40,7 +40,9 @@ def stripes(tmp_path_factory):
     root = tmp_path_factory.mktemp("stripes")
     write_test_records(root)
     path = root / "sdofreport.toml"
-    path.write_text(PROJECT_HEAD + "\n" + TWO_RECORDS + "\n" + ONE_SYSTEM + FRAGILITY,
+    # P-Δ off: the closed forms below are those of the plain linear oscillator.
+    linear = ONE_SYSTEM.replace('height = "4 m"\n', 'height = "4 m"\np_delta = false\n')
+    path.write_text(PROJECT_HEAD + "\n" + TWO_RECORDS + "\n" + linear + FRAGILITY,
                     encoding="utf-8")
     project = load_project(path)
     return project, run_project(project, jobs=1, cache_dir=root / "cache")
@@ -80,13 +82,52 @@ def test_linear_limit_is_a_step_and_unreached_limit_gives_no_number(stripes):
 def test_unstable_or_non_finite_runs_exceed_every_limit():
     def response(peak, **extra):
         empty = np.zeros(0)
-        r = ResponseResult("s", "r", peak, 0.0, 0.0, None, None, empty, empty, empty)
-        for name, value in extra.items():
-            object.__setattr__(r, name, value)
-        return r
+        return ResponseResult("s", "r", peak, 0.0, 0.0, None, None, empty, empty, empty,
+                              **extra)
 
     # Rule of the issue: a run that becomes unstable counts as exceeding every limit.
     assert run_exceeds(response(math.nan), "displacement", 1.0)
     assert run_exceeds(response(math.inf), "displacement", 1.0)
     assert run_exceeds(response(0.01, unstable=True), "displacement", 1.0)
     assert not run_exceeds(response(0.01), "displacement", 1.0)
+
+
+RUNAWAY = PROJECT_HEAD + "\n" + TWO_RECORDS + """
+[fragility]
+levels = [0.05, 6.0]
+
+[[systems]]
+id = "lean"
+name = "Yielding column with P-delta"
+mass = "60 t"
+period = "1.6 s"
+height = "3 m"
+damping = 0.05
+yield_strength = "60 kN"
+post_yield_ratio = 0.0
+p_delta = true
+gravity_load = "280 kN"
+[systems.limits]
+ductility = 1000.0
+"""
+
+
+def test_runs_that_become_unstable_count_as_exceeding(project_factory, tmp_path):
+    project = load_project(project_factory(RUNAWAY))
+    results = run_project(project, jobs=1, cache_dir=tmp_path / "cache")
+    (fragility,) = results.fragility
+    system = project.systems[0]
+    records = [r.record for r in results.records]
+    model = {**system_model(system), "system_id": system.id}
+    flags = []
+    for level in fragility.fit.levels:
+        out = stripe_job(tuple(r.acceleration_m_s2 for r in records),
+                         tuple(r.dt_s for r in records), model, "exact", "sa", level * G)
+        flags.append(sum(bool(run["response"].unstable) for run in out["runs"]))
+    # Closed form: at 0.05 g the elastic SD = 0.05 g / ω² ≈ 3 cm stays below the yield
+    # displacement, so nothing can run away; at 6 g, with zero post-yield stiffness
+    # less W/h (negative), both runs pass the 3 m bound. A ductility of 1000 (3 m is
+    # about 40 yield displacements) is never reached by a stable run: each exceedance
+    # counted is an unstable run (rule of issue 20).
+    assert flags[0] == 0 and flags[-1] > 0
+    assert list(fragility.fit.exceeding) == flags
