@@ -23,9 +23,9 @@ from build_example import run_build
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
-from sdofreport.core.stochastic import kanai_tajimi_accelerogram  # noqa: E402
-from sdofreport.core.units import G  # noqa: E402
-from sdofreport.records.writers import write_two_column  # noqa: E402
+from sdofreport.core.stochastic import kanai_tajimi_accelerogram
+from sdofreport.core.units import G
+from sdofreport.records.writers import write_two_column
 
 PAIRS = 22
 LEVELS = [round(0.05 * 1.25 ** k, 4) for k in range(15)]  # 0.05 g to about 1.1 g

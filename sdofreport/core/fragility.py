@@ -208,6 +208,15 @@ def exceedance_probability(intensity, median, beta):
     return float(p) if np.ndim(p) == 0 else p
 
 
-__all__ = ["STATISTIC_KEYS", "FITTED", "NOT_REACHED", "EXCEEDED_EVERYWHERE", "NO_SPREAD",
-           "Fragility", "demand_statistics", "fit_fragility", "exceedance_probability",
-           "log_likelihood"]
+__all__ = [
+    "EXCEEDED_EVERYWHERE",
+    "FITTED",
+    "Fragility",
+    "NOT_REACHED",
+    "NO_SPREAD",
+    "STATISTIC_KEYS",
+    "demand_statistics",
+    "exceedance_probability",
+    "fit_fragility",
+    "log_likelihood",
+]

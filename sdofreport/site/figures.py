@@ -56,8 +56,8 @@ __all__ = [
     "PALETTE",
     "checks_bar_figure",
     "decimate_minmax",
-    "fragility_figure",
     "fourier_figure",
+    "fragility_figure",
     "histories_figure",
     "hysteresis_figure",
     "spectra_figure",
@@ -613,14 +613,7 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
     ylim = data_limits(arrays, log=logy,
                        bottom_zero=not logy and _all_non_negative(prepared, design_xy))
     markers = tuple((p, f" T = {_with_unit(p, x_unit or 's')}") for p in highlights)
-    margins = _single_axes_margins(title)
-    legend_in = (max(0.2, _legend_width_in([e.label for e in handles],
-                                           width=_figure_text_width_pt))
-                 if handles else 0.0)
-    layout = PanelLayout(width_in=FIGURE_WIDTH_IN, height_in=4.2, hspace_in=0.0,
-                         left_in=margins["left_in"],
-                         right_in=margins["right_in"] if not handles else 0.0,
-                         bottom_in=margins["bottom_in"], top_in=margins["top_in"])
+    layout, legend_in = _layout_with_legend(title, handles, 4.2)
     spec = AxesSpec(xlim=xlim, ylim=ylim, xlog=logx, ylog=logy, spans=tuple(spans),
                     bands=tuple(bands), curves=tuple(lines), markers=markers,
                     legend=tuple(handles), xlabel=xlabel, ylabel=ylabel,
@@ -632,6 +625,20 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
 def _single_axes_margins(title):
     return {"left_in": _LEFT_IN, "right_in": 0.25, "bottom_in": _BOTTOM_IN,
             "top_in": _TITLE_IN if title else 0.15}
+
+
+def _layout_with_legend(title, handles, height_in):
+    """(PanelLayout, legend width [in]) of a single-axes figure with a legend of
+    ``handles`` to the right (none when empty). [in]"""
+    margins = _single_axes_margins(title)
+    legend_in = (max(0.2, _legend_width_in([e.label for e in handles],
+                                           width=_figure_text_width_pt))
+                 if handles else 0.0)
+    layout = PanelLayout(width_in=FIGURE_WIDTH_IN, height_in=height_in, hspace_in=0.0,
+                         left_in=margins["left_in"],
+                         right_in=margins["right_in"] if not handles else 0.0,
+                         bottom_in=margins["bottom_in"], top_in=margins["top_in"])
+    return layout, legend_in
 
 
 def _all_non_negative(prepared, design_xy):
@@ -727,14 +734,7 @@ def fragility_figure(curves, *, xlabel, unit="g", design_level=None, title=None)
                                    dash=dash))
     markers = () if design_level is None else (
         (design_level, f" design level {_with_unit(design_level, unit)}"),)
-    margins = _single_axes_margins(title)
-    legend_in = (max(0.2, _legend_width_in([e.label for e in handles],
-                                           width=_figure_text_width_pt))
-                 if handles else 0.0)
-    layout = PanelLayout(width_in=FIGURE_WIDTH_IN, height_in=3.8, hspace_in=0.0,
-                         left_in=margins["left_in"],
-                         right_in=margins["right_in"] if not handles else 0.0,
-                         bottom_in=margins["bottom_in"], top_in=margins["top_in"])
+    layout, legend_in = _layout_with_legend(title, handles, 3.8)
     spec = AxesSpec(xlim=(0.0, top), ylim=(-0.04, 1.06), curves=tuple(lines),
                     markers=markers, legend=tuple(handles), xlabel=xlabel,
                     ylabel="P(exceeding the limit) [-]",
