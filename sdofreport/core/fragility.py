@@ -211,10 +211,10 @@ def exceedance_probability(intensity, median, beta):
 __all__ = [
     "EXCEEDED_EVERYWHERE",
     "FITTED",
-    "Fragility",
     "NOT_REACHED",
     "NO_SPREAD",
     "STATISTIC_KEYS",
+    "Fragility",
     "demand_statistics",
     "exceedance_probability",
     "fit_fragility",
