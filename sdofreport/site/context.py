@@ -216,6 +216,10 @@ class SiteContext:
         return {"symbol": symbol, "rows": rows, "figure": figure,
                 "levels": ", ".join(f"{x:g}" for x in found[0].fit.levels),
                 "design": None if design is None else f"{number(design)} g",
+                "design_source": "as set in [fragility] design_level"
+                if self.project.fragility.design_level_g is not None else
+                f"the target spectrum, {_design_label(self.project.design_spectrum)}, at "
+                + (f"T = {number(system.period_s)} s" if measure == "sa" else "T = 0"),
                 "records": found[0].fit.motions[0]}
 
     def _statistic_bits(self) -> dict:
