@@ -26,6 +26,7 @@ from sdofreport.errors import ProjectError
 from sdofreport.project.model import (
     AnalysisSettings,
     DesignSpectrumSpec,
+    FragilitySpec,
     InelasticSpectraSpec,
     SyntheticSpec,
     ScalingSpec,
@@ -955,6 +956,43 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
     return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha, steps)
 
 
+def _read_fragility(table, systems, problems: _Problems) -> FragilitySpec | None:
+    where = "fragility"
+    table = _section(table, where, problems)
+    if table is None:
+        return None
+    spec = SECTIONS["fragility"]
+    levels = None
+    if "levels" not in table:
+        problems.add(f"{where}.levels", f"missing; expected a list of at least 2 levels "
+                     f"in g (example: levels = {spec['levels'].example})")
+    else:
+        levels = _number_list(table["levels"], f"{where}.levels", 0.0, problems,
+                              strict=True)
+        if levels is not None and not 2 <= len(levels) <= 50:
+            problems.add(f"{where}.levels", f"expected 2 to 50 different levels, found "
+                         f"{len(levels)}")
+            levels = None
+    measure = _read_value(table, spec["measure"], where, problems)
+    design = _read_value(table, spec["design_level"], where, problems)
+    _positive(design, f"{where}.design_level", "the design level", problems, "g")
+    known = [s.id for s in systems]
+    chosen = table.get("systems", [s.id for s in systems if s.limits.items()])
+    if not isinstance(chosen, list) or not chosen or \
+            not all(isinstance(i, str) for i in chosen):
+        problems.add(f"{where}.systems", f"expected a list of system ids, found {chosen!r}")
+        chosen = None
+    else:
+        for name in chosen:
+            if name not in known:
+                problems.add(f"{where}.systems", f"no system has id {name!r}; the ids are "
+                             f"{', '.join(known)}")
+                chosen = None
+    if levels is None or measure is None or chosen is None:
+        return None
+    return FragilitySpec(levels, measure, tuple(dict.fromkeys(chosen)), design)
+
+
 def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError, text_in: str) -> str:
     text = str(exc)
     match = re.search(r"\(at line (\d+), column (\d+)\)", text)
@@ -1037,6 +1075,7 @@ def load_project(path) -> Project:
     scaling = _read_scaling(document.get("scaling"), design, "design_spectrum" in document,
                             problems)
     inelastic = _read_inelastic(document.get("inelastic_spectra"), problems)
+    fragility = _read_fragility(document.get("fragility"), systems, problems)
     synthetic = _read_synthetic(synthetic_table, design if design_early is not None else
                                 None, problems)
     if synthetic is not None:
@@ -1050,4 +1089,5 @@ def load_project(path) -> Project:
     # Records in natural order of their ids (P1, P2, ... P10), wherever they are listed.
     records = sorted(records, key=lambda spec: natural_key(spec.id))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
-                   tuple(records), tuple(systems), design, scaling, inelastic, synthetic)
+                   tuple(records), tuple(systems), design, scaling, inelastic, synthetic,
+                   fragility)

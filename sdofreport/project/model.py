@@ -126,6 +126,16 @@ class ScalingSpec:
 
 
 @dataclass(frozen=True)
+class FragilitySpec:
+    """Optional multiple-stripe fragility: levels [g] of a measure, systems to run."""
+
+    levels_g: tuple[float, ...]
+    measure: str = "sa"
+    systems: tuple[str, ...] = ()
+    design_level_g: float | None = None
+
+
+@dataclass(frozen=True)
 class InelasticSpectraSpec:
     """Optional constant-ductility and constant-strength spectra of every record."""
 
@@ -204,6 +214,7 @@ class Project:
     scaling: ScalingSpec = field(default_factory=ScalingSpec)
     inelastic: InelasticSpectraSpec | None = None
     synthetic: SyntheticSpec | None = None
+    fragility: FragilitySpec | None = None
 
     @property
     def root(self) -> Path:

@@ -83,6 +83,16 @@ BAD_CASES = [
      ["analysis.periods", "expected 0 < min < max"]),
     ("bad statistic", '[analysis]\nstatistic = "median"\n',
      ["analysis.statistic", "expected one of auto, mean, max"]),
+    ("fragility without levels", '[fragility]\nmeasure = "sa"\n',
+     ["fragility.levels: missing; expected a list of at least 2 levels in g"]),
+    ("fragility level zero", '[fragility]\nlevels = [0.0, 0.2]\n',
+     ["fragility.levels: expected a list of numbers > 0, found [0.0, 0.2]"]),
+    ("fragility one level", '[fragility]\nlevels = [0.2]\n',
+     ["fragility.levels: expected 2 to 50 different levels, found 1"]),
+    ("fragility unknown system", '[fragility]\nlevels = [0.1, 0.2]\nsystems = ["s9"]\n',
+     ["fragility.systems: no system has id 's9'; the ids are s1"]),
+    ("fragility measure", '[fragility]\nlevels = [0.1, 0.2]\nmeasure = "pgv"\n',
+     ["fragility.measure: expected one of sa, pga, found 'pgv'"]),
 ]
 
 
