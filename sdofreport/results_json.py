@@ -117,7 +117,8 @@ def results_document(results: Results) -> dict:
             responses.append(entry)
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
-                   "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute}
+                   "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute,
+                   "basis": system.limits.basis_of(c.quantity)}
                   for c in results.checks if c.system_id == system.id]
         systems.append({
             "id": system.id, "name": system.name, "mass_kg": system.mass_kg,

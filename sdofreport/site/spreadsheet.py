@@ -20,7 +20,7 @@ SHEETS = ("checks", "peaks", "spectra", "scaling")
 
 _CHECK_COLUMNS = (("system", "system"), ("quantity", "quantity"), ("unit", "unit"),
                   ("limit", "limit"), ("demand", "demand"), ("statistic", "statistic"),
-                  ("ratio", "ratio"), ("verdict", "verdict"))
+                  ("ratio", "ratio"), ("verdict", "verdict"), ("basis", "basis"))
 _PEAK_COLUMNS = ("peak_displacement_m", "peak_drift_ratio", "peak_base_shear_n",
                  "peak_total_accel_g", "ductility", "residual_displacement_m")
 _SPECTRUM_COLUMNS = ("sd_m", "psa_g", "sa_g", "sv_m_s")
