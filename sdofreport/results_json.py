@@ -119,6 +119,7 @@ def results_document(results: Results) -> dict:
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
                    "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute,
+                   "basis": system.limits.basis_of(c.quantity),
                    "statistics": statistics_block(c),
                    **fragility_block(results, c)}
                   for c in results.checks if c.system_id == system.id]

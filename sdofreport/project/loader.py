@@ -428,6 +428,7 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
         return Limits()
     _check_unknown(table, "systems[].limits", where, problems)
     spec = SECTIONS["systems[].limits"]
+    table, basis = _limits_and_basis(table, where, problems)
     values = {}
     for name, key in spec.items():
         value = _read_value(table, key, where, problems) if name in table else None
@@ -444,7 +445,44 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
                      "height")
     return Limits(values["displacement"], values["drift_ratio"], values["base_shear"],
                   values["total_accel"], values["ductility"],
-                  values["residual_displacement"], values["bearing_displacement"])
+                  values["residual_displacement"], values["bearing_displacement"],
+                  tuple((name, basis[name]) for name in spec if name in basis
+                        and values[name] is not None))
+
+
+#: Keys of a limit written as a table: ``displacement = { value = "50 mm", basis = "..." }``.
+LIMIT_TABLE_KEYS = ("value", "basis")
+
+
+def _limits_and_basis(table: dict, where: str, problems: _Problems) -> tuple[dict, dict]:
+    """
+    Split limits written as ``{ value = ..., basis = "..." }`` into their values (a
+    table of plain limits, as the rest of the reader expects) and their stated basis
+    (quantity -> text); every problem is named.
+    """
+    values, basis = {}, {}
+    for name, raw in table.items():
+        if not isinstance(raw, dict):
+            values[name] = raw
+            continue
+        for key in raw:
+            if key not in LIMIT_TABLE_KEYS:
+                problems.add(f"{where}.{name}.{key}", f"unknown key"
+                             f"{_did_you_mean(key, LIMIT_TABLE_KEYS)}")
+        if "value" not in raw:
+            problems.add(f"{where}.{name}.value", f"missing; a limit written as a table "
+                         f"needs its value (example: {name} = {{ value = ..., basis = "
+                         f"\"owner's specification\" }})")
+        else:
+            values[name] = raw["value"]
+        text = raw.get("basis")
+        if text is not None:
+            if not isinstance(text, str) or not text.strip():
+                problems.add(f"{where}.{name}.basis", f"expected non-empty text, found "
+                             f"{text!r}")
+            else:
+                basis[name] = text.strip()
+    return values, basis
 
 
 _COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits")

@@ -159,6 +159,13 @@ class Limits:
     ductility: float | None = None
     residual_displacement_m: float | None = None
     bearing_displacement_m: float | None = None
+    #: (quantity, basis) for limits that state where they come from (a clause, the
+    #: owner's specification), in the order of :meth:`items`.
+    basis: tuple[tuple[str, str], ...] = ()
+
+    def basis_of(self, quantity: str) -> str | None:
+        """The stated basis of the limit on ``quantity``, or None."""
+        return dict(self.basis).get(quantity)
 
     def items(self) -> list[tuple[str, float]]:
         """(quantity, limit) pairs that are set, in a fixed order."""

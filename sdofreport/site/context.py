@@ -167,6 +167,7 @@ class SiteContext:
                     f"| over the records)" if c.absolute else ""),
                 "demand": self.display.check_value(c.quantity, c.demand),
                 "limit": self.display.check_value(c.quantity, c.limit),
+                "basis": system.limits.basis_of(c.quantity) or "not stated",
                 "ratio": f"{c.ratio:.3f}", "verdict": c.verdict,
                 "css": "exceeds" if c.verdict in (VERDICT_EXCEEDS, VERDICT_UNSTABLE)
                 else "within",

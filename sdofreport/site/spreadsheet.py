@@ -22,7 +22,7 @@ SHEETS = ("checks", "peaks", "spectra", "scaling")
 
 _CHECK_COLUMNS = (("system", "system"), ("quantity", "quantity"), ("unit", "unit"),
                   ("limit", "limit"), ("demand", "demand"), ("statistic", "statistic"),
-                  ("ratio", "ratio"), ("verdict", "verdict"))
+                  ("ratio", "ratio"), ("verdict", "verdict"), ("basis", "basis"))
 #: Statistics of the per-record peaks appended to each checks row (results.json
 #: ``checks[].statistics``; the ``statistic`` column names the governing one).
 _STATISTIC_COLUMNS = STATISTIC_KEYS

@@ -299,3 +299,17 @@ def test_example_shows_one_fragility(built):
     html = (built[0] / "systems" / "pier.html").read_text()
     assert 'id="fragility"' in html and "only as good as the suite" in html
     assert (built[0] / "figures" / "system-pier-fragility.svg").is_file()
+
+
+def test_limit_basis_is_a_column_of_the_checks_tables(built):
+    """The example's pier states the basis of two limits (its project file); the
+    summary's checks table and results.json carry them, 'not stated' elsewhere."""
+    site = built[0]
+    document = json.loads((site / "data" / "results.json").read_text("utf-8"))
+    pier = next(s for s in document["systems"] if s["id"] == "pier")
+    basis = {c["quantity"]: c["basis"] for c in pier["checks"]}
+    assert basis["residual_displacement"].endswith("§5.4") and basis["displacement"] is None
+    summary = (site / "index.html").read_text("utf-8")
+    assert "<th>Basis of the limit</th>" in summary
+    assert "owner&#39;s pipe-rack specification (invented) §5.4" in summary
+    assert "not stated" in summary

@@ -256,3 +256,29 @@ def test_records_and_pairs_follow_natural_order(project_factory):
     assert [r.id for r in project.records] == ["r1", "r2", "r3", "r10"]
     assert [name for name, _ in motions(project)] == ["P2", "P10"]
     assert list(_pairs(project)) == ["P2", "P10"]
+
+
+def test_a_limit_may_state_its_basis(project_factory):
+    """`displacement = { value = "50 mm", basis = "..." }`: the value is read as a
+    plain limit (1 mm = 0.001 m by definition) and the basis kept beside it."""
+    system = ONE_SYSTEM.replace('displacement = "50 mm"',
+                                'displacement = { value = "50 mm", basis = "Spec §4" }')
+    assert system != ONE_SYSTEM
+    limits = load_project(project_factory(PROJECT_HEAD + "\n" + TWO_RECORDS + "\n"
+                                          + system)).systems[0].limits
+    assert limits.displacement_m == pytest.approx(0.050)
+    assert limits.basis_of("displacement") == "Spec §4"
+    assert limits.basis_of("drift_ratio") is None
+
+
+@pytest.mark.parametrize("written, fragment", [
+    ('{ basis = "Spec" }', "limits.displacement.value: missing"),
+    ('{ value = "50 mm", basis = "" }', "limits.displacement.basis: expected non-empty"),
+    ('{ value = "50 mm", source = "Spec" }',
+     "limits.displacement.source: unknown key; allowed keys: value, basis"),
+])
+def test_a_limit_table_names_its_problem(project_factory, written, fragment):
+    system = ONE_SYSTEM.replace('displacement = "50 mm"', f"displacement = {written}")
+    with pytest.raises(ProjectError) as caught:
+        load_project(project_factory(PROJECT_HEAD + "\n" + TWO_RECORDS + "\n" + system))
+    assert fragment in str(caught.value)
