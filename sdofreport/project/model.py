@@ -32,6 +32,7 @@ class ProjectInfo:
     notes_path: Path | None = None
     notes_file: str | None = None  # as written in the project file
     display_units: str = "SI"
+    plain_numbers: str | None = None  # "SI": bare numbers of dimensional keys are SI
 
 
 @dataclass(frozen=True)

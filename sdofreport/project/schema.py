@@ -60,6 +60,10 @@ SYSTEM_KIND_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
 #: Unit systems the pages may be shown in (results.json always stays SI).
 DISPLAY_UNITS = ("SI", "US")
 
+#: What a bare number for a dimensional key (type "quantity") may mean: only SI, and
+#: only when the project says so; otherwise it is refused.
+PLAIN_NUMBERS = ("SI",)
+
 
 @dataclass(frozen=True)
 class KeySpec:
@@ -109,6 +113,16 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("display_units", "choice", "Units shown on the pages: SI (mm, kN, m/s², "
                 "g) or US customary (in, kip, in/s², g). results.json stays SI.",
                 default="SI", choices=DISPLAY_UNITS, example='"SI"'),
+        KeySpec("plain_numbers", "choice", "Omit it, and every dimensional value (a key "
+                "whose type is quantity) must be text with its unit (mass = \"6 t\"): "
+                "a bare number is an error. State \"SI\" to read bare numbers for those "
+                "keys in SI units (kg, m, s, N, N/m, Pa, m/s²); the provenance on the summary "
+                "page then says so. Ratios, factors and the keys defined in g or "
+                "with their unit in the name (damping, post_yield_ratio, friction, "
+                "drift_ratio, ductility, sds, sd1, agr, scale, suite_factor, taper_s, "
+                "bandpass_hz, the period lists and ranges, given in seconds) are plain numbers in "
+                "either case.",
+                choices=PLAIN_NUMBERS, example='"SI"'),
     ),
     "analysis": _keys(
         KeySpec("method", "choice", "Integration method for spectra and histories.",
