@@ -27,6 +27,7 @@ from typing import Callable
 import numpy as np
 
 from sdofreport import __version__
+from sdofreport.amplitude import check_results, header_unit_problem
 from sdofreport.cache import ResultCache, content_hash, default_cache_dir
 from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
@@ -194,7 +195,8 @@ def _read_key(spec: RecordSpec, digest: str | None) -> str:
     """Cache key of a record file as parsed with its reading settings."""
     return content_hash({"version": __version__, "job": "read", "sha": digest,
                          "name": spec.path.name, "format": spec.file_format,
-                         "units": spec.units, "dt": spec.dt_s, "id": spec.id})
+                         "units": spec.units, "dt": spec.dt_s, "id": spec.id,
+                         "reader": "stated-units"})
 
 
 def _read_cached(spec: RecordSpec, cache: ResultCache | None, pending: list) -> Record:
@@ -239,6 +241,9 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
         except RecordError as exc:
             problems.append(f"{where}: {exc.message}")
             continue
+        unit_problem = header_unit_problem(spec, record)
+        if unit_problem:
+            problems.append(unit_problem)
         if longest is not None and record.duration_s < longest.period_s:
             # A record shorter than the system's period cannot bring out its response:
             # the peak would depend on where the record stops (common practice, no source).
@@ -478,6 +483,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     pair_results = [PairResult(name, h1, h2, _scaled_rotd(pair_outputs[name]["rotd"],
                                                           scaling.factors.get(h1, 1.0)))
                     for name, (h1, h2) in pairs.items()]
+    check_results(project.path.name, record_results)  # PGA in range, finite values
     if records_ready is not None:
         records_ready(record_results)
 
@@ -515,6 +521,7 @@ def run_project(project: Project, *, jobs: int | None = None,
             if raw["model"] == "linear":  # linear jobs send no time axis: it is n · dt
                 raw = {**raw, "time_s": time_s}
             responses[(system.id, spec.id)] = _response_result(system, spec.id, raw)
+    check_results(project.path.name, (), responses.values())
     statistic = project.statistic_used
     checks = _checks(project, responses, statistic)
     return Results(project, record_results, responses, checks, statistic, scaling,

@@ -67,6 +67,7 @@ TYPE_TEXT = {
     "number": "number",
     "integer": "integer",
     "ratio": "ratio",
+    "boolean": "true or false",
     "quantity": "quantity",
     "choice": "choice",
     "list": "list",
@@ -210,6 +211,7 @@ def render_reference() -> str:
         "`site_examples/harbourview_cold_store/sdofreport.toml` uses all of them.",
         "",
         "Types: *text*; *number*; *integer*; *ratio* (a fraction, 0.05 for 5 %); "
+        "*true or false*; "
         "*quantity* (see [Units of quantities](#units-of-quantities)); *choice* (one of "
         "the listed values); *list* (a TOML array); *table* (an inline or nested TOML "
         "table).",

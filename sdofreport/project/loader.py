@@ -5,8 +5,8 @@ against :data:`~sdofreport.project.schema.SECTIONS` (unknown keys with a "did yo
 then cross-checks (unique ids, files present, limits that need a mass or height). Each
 problem is ``(location, message)``; the location is a key path such as
 ``systems[2].limits.drift_ratio`` (array positions count from 1, in file order), shown
-to the reader with the entry's id and the key's line (``systems[frame].limits.drift_ratio
-(line 31)``, see :mod:`sdofreport.project.locate`).
+to the reader with the entry's id and the key's line (``line 31,
+systems[frame].limits.drift_ratio``, see :mod:`sdofreport.project.locate`).
 """
 
 from __future__ import annotations
@@ -102,6 +102,11 @@ def _read_value(table: dict, spec: KeySpec, location: str, problems: _Problems):
         if value not in choices:
             problems.add(where, f"expected one of {', '.join(map(str, choices))}, found "
                          f"{value!r}")
+            return None
+        return value
+    if spec.type == "boolean":
+        if not isinstance(value, bool):
+            problems.add(where, f"expected true or false, found {value!r}")
             return None
         return value
     if spec.type in ("number", "ratio", "integer"):
@@ -331,13 +336,15 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
                                problems, processing)
         pair = _read_value(table, spec["pair"], where, problems)
         component = _read_value(table, spec["component"], where, problems)
+        amplitude_ok = bool(_read_value(table, spec["amplitude_ok"], where, problems))
         if ("pair" in table) != ("component" in table):
             problems.add(where, "a paired record needs both pair and component "
                          "(H1 or H2)")
         path = _input_file(root, file, f"{where}.file", problems) if file else None
         if record_id and file and path is not None:
             records.append(RecordSpec(record_id, path, file, fmt, units, dt_s,
-                                      scale if scale else 1.0, own, pair, component))
+                                      scale if scale else 1.0, own, pair, component,
+                                      amplitude_ok))
     _check_pairs(records, problems)
     return records
 

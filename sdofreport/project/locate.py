@@ -2,7 +2,7 @@
 
 The loader reports problems at key paths with array positions (``systems[2].dampng``,
 counting from 1 in file order). For the reader these become the entry's id and the line
-of the key (``systems[skid].dampng (line 14)``). The line map comes from a small scan of
+of the key (``line 14, systems[skid].dampng``). The line map comes from a small scan of
 the TOML text (table headers and ``key =`` lines); it runs only after the file has
 parsed, so it need not handle invalid TOML. A key inside an inline table or a
 multi-line value is placed at the line of the key that opens it.
@@ -133,10 +133,10 @@ def entry_ids(document: dict) -> dict[str, str]:
 
 
 def describe(location: str, lines: dict[str, int], names: dict[str, str]) -> str:
-    """``systems[2].dampng`` -> ``systems[skid].dampng (line 14)``."""
+    """``systems[2].dampng`` -> ``line 14, systems[skid].dampng``."""
     line = line_of(location, lines)
     match = _POSITION.match(location)
     shown = location
     if match and match.group(0) in names:
         shown = names[match.group(0)] + location[match.end():]
-    return f"{shown} (line {line})" if line is not None else shown
+    return f"line {line}, {shown}" if line is not None else shown

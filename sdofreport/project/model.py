@@ -73,6 +73,7 @@ class RecordSpec:
     processing: ProcessingSettings = field(default_factory=ProcessingSettings)
     pair: str | None = None
     component: str | None = None  # "H1" | "H2"
+    amplitude_ok: bool = False  # PGA and header-unit checks acknowledged by the user
 
 
 @dataclass(frozen=True)

@@ -70,7 +70,7 @@ class KeySpec:
     """One project-file key: how to read it and how to document it."""
 
     name: str
-    type: str  # text | path | number | integer | ratio | quantity | choice | list | table
+    type: str  # text | path | number | integer | ratio | boolean | quantity | choice | list | table
     description: str
     required: bool = False
     default: object = None
@@ -226,6 +226,10 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "(two records share it, one H1 and one H2).", example='"p1"'),
         KeySpec("component", "choice", "Component of the pair.", choices=COMPONENTS,
                 example='"H1"'),
+        KeySpec("amplitude_ok", "boolean", "Acknowledges an amplitude the build would "
+                "otherwise stop at: a PGA after scaling above 4 g or below 0.001 g, or a "
+                "file header that states a unit other than units. Set it only after "
+                "checking the record.", default=False, example="true"),
     ),
     "records[].processing": _PROCESSING_KEYS,
     "systems[]": _keys(

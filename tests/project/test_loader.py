@@ -140,13 +140,13 @@ def test_every_problem_reported_at_once(project_factory):
         load_project(path)
     message = info.value.message
     assert "has 3 problems:" in message
-    assert "records[r2].file (line 12): file 'records/missing.txt' not found" in message
+    assert "line 12, records[r2].file: file 'records/missing.txt' not found" in message
     assert "systems[s1].damping" in message and "systems[s1].mass" in message
 
 
 def test_duplicate_ids(project_factory):
     records = TWO_RECORDS.replace('id = "r2"', 'id = "r1"')
-    with pytest.raises(ProjectError, match=r"records\[2\]\.id \(line \d+\): duplicate id 'r1' "
+    with pytest.raises(ProjectError, match=r"line \d+, records\[2\]\.id: duplicate id 'r1' "
                                            r"\(also records\[1\]\)"):
         load_project(project_factory(PROJECT_HEAD + records + ONE_SYSTEM))
 
@@ -172,14 +172,14 @@ def test_not_utf8(project_factory, valid_project_text):
 
 def test_missing_required_keys(project_factory):
     head = PROJECT_HEAD.replace('prepared_by = "tester"\n', "")
-    with pytest.raises(ProjectError, match=r"project\.prepared_by \(line 1\): missing"):
+    with pytest.raises(ProjectError, match=r"line 1, project\.prepared_by: missing"):
         load_project(project_factory(head + TWO_RECORDS + ONE_SYSTEM))
 
 
 def test_base_shear_needs_mass(project_factory):
     system = ONE_SYSTEM.replace('mass = "100 t"\n', "").replace(
         'displacement = "50 mm"', 'base_shear = "100 kN"')
-    with pytest.raises(ProjectError, match=r"systems\[s1\]\.limits\.base_shear \(line \d+\): a "
+    with pytest.raises(ProjectError, match=r"line \d+, systems\[s1\]\.limits\.base_shear: a "
                                            r"base-shear limit needs the system's mass"):
         load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + system))
 
@@ -206,7 +206,7 @@ def test_bare_mass_is_refused_naming_key_id_line_and_fix(project_factory):
     # The file, the item by id, the key and its line (PROJECT_HEAD has 5 lines,
     # TWO_RECORDS 7, a blank line, then mass is the 5th line of SKID: 5 + 7 + 1 + 5).
     assert path.name in message
-    assert "systems[skid].mass (line 18): found the bare number 6" in message
+    assert "line 18, systems[skid].mass: found the bare number 6" in message
     assert 'mass = "6 t"' in message and 'plain_numbers = "SI"' in message
 
 
@@ -229,7 +229,7 @@ def test_every_dimensional_key_refuses_bare_numbers(project_factory, change, loc
 def test_record_dt_refuses_a_bare_number(project_factory):
     records = TWO_RECORDS.replace('file = "records/r2.txt"',
                                   'file = "records/r2.txt"\ndt = 0.005')
-    with pytest.raises(ProjectError, match=r"records\[r2\]\.dt \(line 13\): found the "
+    with pytest.raises(ProjectError, match=r"line 13, records\[r2\]\.dt: found the "
                                            r"bare number 0\.005.*dt = \"0\.005 s\""):
         load_project(project_factory(PROJECT_HEAD + records + ONE_SYSTEM))
 
@@ -246,7 +246,7 @@ def test_plain_numbers_si_reads_bare_numbers_as_si(project_factory):
 
 def test_plain_numbers_accepts_only_si(project_factory):
     head = PROJECT_HEAD + 'plain_numbers = "US"\n'
-    with pytest.raises(ProjectError, match=r"project\.plain_numbers \(line 6\): expected "
+    with pytest.raises(ProjectError, match=r"line 6, project\.plain_numbers: expected "
                                            r"one of SI, found 'US'"):
         load_project(project_factory(head + TWO_RECORDS + ONE_SYSTEM))
 
@@ -269,5 +269,5 @@ def test_unknown_key_names_item_by_id_and_line(project_factory):
                                                                      'mass = "6 t"')
     with pytest.raises(ProjectError) as info:
         load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + "\n" + system))
-    assert "systems[skid].dampng (line 17): unknown key; did you mean 'damping'?" in \
+    assert "line 17, systems[skid].dampng: unknown key; did you mean 'damping'?" in \
         info.value.message

@@ -46,8 +46,8 @@ def test_describe_names_unique_ids_and_the_nearest_line():
     lines, names = key_lines(TEXT), entry_ids(tomllib.loads(TEXT))
     # Inside an inline table: the line of the key that opens it.
     assert describe("systems[1].limits.displacement", lines, names) == \
-        "systems[a].limits.displacement (line 12)"
+        "line 12, systems[a].limits.displacement"
     # A duplicated id ("b" twice) keeps the position, which is unambiguous.
-    assert describe("systems[3].id", lines, names) == "systems[3].id (line 19)"
-    assert describe("analysis.damping[2]", lines, names) == "analysis.damping[2] (line 6)"
+    assert describe("systems[3].id", lines, names) == "line 19, systems[3].id"
+    assert describe("analysis.damping[2]", lines, names) == "line 6, analysis.damping[2]"
     assert describe("records pair 'p1'", lines, names) == "records pair 'p1'"
