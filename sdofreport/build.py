@@ -67,7 +67,8 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     if compare_to is not None:  # read it first: a bad OLD fails before any work
         from sdofreport.archive.compare import load_run
 
-        old = load_run(compare_to).results
+        old_run = load_run(compare_to)
+        old = old_run.results
     project = load_project(project_file)
     _check_inside(project, allow_outside)
     prepare_output(output)  # a folder that cannot take the site fails before any work
@@ -79,7 +80,9 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
         from sdofreport.archive.compare import revision_page
 
         def extra(document, fingerprint):
-            return revision_page(old, document, fingerprint=fingerprint)
+            return revision_page(old, document, fingerprint=fingerprint,
+                                 old_fingerprint=(old_run.manifest or {}).get(
+                                     "fingerprint") or "")
     workers = jobs or os.cpu_count() or 1
     with ExitStack() as stack:  # on leaving: stop any figure workers, then the tree
         staged: list[StagedTree] = []
