@@ -222,7 +222,7 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
     records, problems, pending = [], [], []
     longest = max(project.systems, key=lambda system: system.period_s, default=None)
     for index, spec in enumerate(project.records):
-        where = f"records[{index + 1}] (id '{spec.id}')"
+        where = f"records[{spec.id}]"
         try:
             if spec.path is None:
                 records.append(synthetic_record(project, index, cache))

@@ -133,3 +133,18 @@ def test_other_inputs_and_a_missing_inputs_block(pair):
     document = compare_results(old, new)
     assert "The old run was built by an sdofreport without the inputs block" in \
         comparison_text(document)
+
+
+def test_plain_numbers_si_is_said_and_gives_the_same_numbers(pair, tmp_path):
+    # 60 t written as the bare SI number 60000 kg (1 t = 1000 kg): only the bare-number
+    # mode may differ from revision A; the summary page's provenance says so.
+    text = PIER.format(revision="A", units="SI", strength="40 kN").replace(
+        'prepared_by = "tester"', 'prepared_by = "tester"\nplain_numbers = "SI"').replace(
+        'mass = "60 t"', "mass = 60000")
+    site = _build(tmp_path / "c", text)
+    summary = (site / "index.html").read_text(encoding="utf-8")
+    assert "Bare numbers" in summary and "plain_numbers = &#34;SI&#34;" in summary
+    document = compare_results(_results(pair[0]), _results(site))
+    assert document["checks"] == [] and document["systems"]["changed"] == []
+    assert [(c["path"], c["old"], c["new"]) for c in document["inputs"]] == \
+        [("plain_numbers", None, "SI")]

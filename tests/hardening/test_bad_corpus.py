@@ -88,7 +88,7 @@ PROJECT_CASES = [
     ("missing_record_file.toml", ["line 13, records[r2].file", "'records/r9.csv' not found"], []),
     ("record_is_folder.toml", ["records[r1].file", "'records'"], []),
     ("record_is_folder.toml", ["records[r1].file", "is a folder"], []),
-    ("record_is_project.toml", ["records[1] (id 'r1')", "record_is_project.toml", "line 1",
+    ("record_is_project.toml", ["records[r1]", "record_is_project.toml", "line 1",
                                 "'[project]' is not a number"], []),
     ("pair_missing_partner.toml", ["records pair 'p1'", "expected one H1 and one H2",
                                    "r1 (H1)"], []),
@@ -117,9 +117,9 @@ PROJECT_CASES = [
     ("limit_in_kg.toml", ["systems[s1].limits.displacement", "'50 kg'", "[mass]"], []),
     ("drift_without_height.toml", ["systems[s1].limits.drift_ratio", "height"], []),
     ("scale_zero.toml", ["records[r1].scale", "greater than 0"], []),
-    ("bad_record_nan.toml", ["records[1] (id 'r1')", "nan_value.csv", "line 6", "'nan'"], []),
-    ("bad_record_utf16.toml", ["records[1] (id 'r1')", "utf16_bom.csv", "line 1", "UTF-16"], []),
-    ("bad_record_truncated.toml", ["records[3] (id 'r3')", "truncated_headed.txt", "line 3",
+    ("bad_record_nan.toml", ["records[r1]", "nan_value.csv", "line 6", "'nan'"], []),
+    ("bad_record_utf16.toml", ["records[r1]", "utf16_bom.csv", "line 1", "UTF-16"], []),
+    ("bad_record_truncated.toml", ["records[r3]", "truncated_headed.txt", "line 3",
                                    "states NPTS=40 but 24 values"], []),
     # STYLE.md shows record problems under the project file's name with the key
     # (records[3] "rec03" file ... line 212); the build names neither today.
@@ -129,7 +129,7 @@ PROJECT_CASES = [
     # Not checked today: a record far shorter than a system's period gives a peak that
     # depends on when the record stops, not on the motion. Expected message proposed to
     # the lead; the test flips to passing once the check exists.
-    ("short_record.toml", ["records[1] (id 'short')", "short_record.csv", "0.19 s",
+    ("short_record.toml", ["records[short]", "short_record.csv", "0.19 s",
                            "shorter than", "5 s"], []),
 ]
 
@@ -181,7 +181,7 @@ def test_bad_record_build(good_build, workspace, name, options, keys, fragments)
     project = workspace / f"record-{Path(name).stem}.toml"
     project.write_text(f'{PROJECT_HEAD}\n[[records]]\nid = "r1"\nfile = "bad/{name}"\n'
                        f"{extra}\n{ONE_SYSTEM}", encoding="utf-8")
-    _build_must_fail(good_build, workspace, project, ["records[1] (id 'r1')", name, *fragments])
+    _build_must_fail(good_build, workspace, project, ["records[r1]", name, *fragments])
 
 
 @pytest.mark.parametrize("name, fragments", [
@@ -267,7 +267,7 @@ def test_200_mb_record_is_refused_with_bounded_memory(good_build, workspace, tmp
         project.write_text(f'{PROJECT_HEAD}\n[[records]]\nid = "big"\n'
                            f'file = "bad/huge_record.txt"\n\n{ONE_SYSTEM}')
         _build_must_fail(good_build, workspace, project,
-                         ["records[1] (id 'big')", "huge_record.txt", "MiB"])
+                         ["records[big]", "huge_record.txt", "MiB"])
     finally:
         (workspace / "bad" / "huge_record.txt").unlink()
     assert resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024 < 2 * GIB
