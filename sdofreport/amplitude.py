@@ -127,7 +127,16 @@ def response_problems(response) -> list[str]:
             f"check the record's amplitude and the system's properties"]
 
 
-def check_results(project_name: str, records, responses=()) -> None:
+def pair_problems(pair) -> list[str]:
+    """Problems of one pair's RotD spectra (engine.PairResult): values not finite."""
+    bad = _bad_values(pair.rotd)
+    if not bad:
+        return []
+    return [f"pair {pair.name!r} ({pair.h1}, {pair.h2}): RotD {', '.join(bad)} are not "
+            f"finite numbers (overflow); check the records' values, units and scale"]
+
+
+def check_results(project_name: str, records, responses=(), pairs=()) -> None:
     """
     Stop the build when any record or response fails the checks above.
 
@@ -138,6 +147,7 @@ def check_results(project_name: str, records, responses=()) -> None:
     records : iterable of engine.RecordResult
         The records as used (processed and scaled).
     responses : iterable of engine.ResponseResult, optional
+    pairs : iterable of engine.PairResult, optional
 
     Raises
     ------
@@ -145,6 +155,7 @@ def check_results(project_name: str, records, responses=()) -> None:
         Listing every problem, each naming the record (and system) by id.
     """
     problems = [text for result in records for text in record_problems(result)]
+    problems += [text for pair in pairs for text in pair_problems(pair)]
     problems += [text for response in responses for text in response_problems(response)]
     if problems:
         count = len(problems)

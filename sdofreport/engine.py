@@ -483,7 +483,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     pair_results = [PairResult(name, h1, h2, _scaled_rotd(pair_outputs[name]["rotd"],
                                                           scaling.factors.get(h1, 1.0)))
                     for name, (h1, h2) in pairs.items()]
-    check_results(project.path.name, record_results)  # PGA in range, finite values
+    check_results(project.path.name, record_results, pairs=pair_results)  # PGA, finite
     if records_ready is not None:
         records_ready(record_results)
 

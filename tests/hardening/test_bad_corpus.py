@@ -123,7 +123,7 @@ PROJECT_CASES = [
                                    "states NPTS=40 but 24 values"], []),
     # STYLE.md shows record problems under the project file's name with the key
     # (records[3] "rec03" file ... line 212); the build names neither today.
-    ("bad_record_nan.toml", ["bad_record_nan.toml", "records[1]"], []),
+    ("bad_record_nan.toml", ["bad_record_nan.toml", "records[r1]"], []),
     ("several_problems.toml", ["has 3 problems", "records[2].id", "systems[s1].damping",
                                "systems[s1].mass"], []),
     # Not checked today: a record far shorter than a system's period gives a peak that
