@@ -122,9 +122,9 @@ def response_problems(response) -> list[str]:
     bad = _bad_values(response)
     if not bad:
         return []
-    return [f"system {response.system_id!r} under record {response.record_id!r}: "
-            f"{', '.join(bad)} are not finite numbers (the integration overflowed); "
-            f"check the record's amplitude and the system's properties"]
+    return [(f"system {response.system_id!r} under record {response.record_id!r}: "
+             f"{', '.join(bad)} are not finite numbers (the integration overflowed); "
+             f"check the record's amplitude and the system's properties")]
 
 
 def pair_problems(pair) -> list[str]:
@@ -132,8 +132,8 @@ def pair_problems(pair) -> list[str]:
     bad = _bad_values(pair.rotd)
     if not bad:
         return []
-    return [f"pair {pair.name!r} ({pair.h1}, {pair.h2}): RotD {', '.join(bad)} are not "
-            f"finite numbers (overflow); check the records' values, units and scale"]
+    return [(f"pair {pair.name!r} ({pair.h1}, {pair.h2}): RotD {', '.join(bad)} are "
+             f"not finite numbers (overflow); check the records' values, units and scale")]
 
 
 def check_results(project_name: str, records, responses=(), pairs=()) -> None:
