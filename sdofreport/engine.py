@@ -502,7 +502,8 @@ def run_project(project: Project, *, jobs: int | None = None,
         for record in (scaled[r.id] for r in project.records):
             args = (record.acceleration_m_s2, record.dt_s, inelastic_spec.periods_s,
                     inelastic_spec.damping, inelastic_spec.ductility,
-                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio)
+                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio,
+                    inelastic_spec.steps_per_period)
             key = content_hash({**base, "job": "inelastic", "sha": _array_hash(args[0]),
                                 "dt": record.dt_s, "spec": dataclasses.asdict(
                                     inelastic_spec)})

@@ -22,6 +22,16 @@ class ProcessingSettings:
 
 
 @dataclass(frozen=True)
+class Revision:
+    """One row of ``[[project.revisions]]``: the history of the document's issues."""
+
+    revision: str
+    date: str | None = None
+    description: str | None = None
+    by: str | None = None
+
+
+@dataclass(frozen=True)
 class ProjectInfo:
     title: str
     reference: str
@@ -33,6 +43,11 @@ class ProjectInfo:
     notes_file: str | None = None  # as written in the project file
     display_units: str = "SI"
     plain_numbers: str | None = None  # "SI": bare numbers of dimensional keys are SI
+    prepared_date: str | None = None
+    checked_date: str | None = None
+    approved_by: str | None = None
+    approved_date: str | None = None
+    revisions: tuple[Revision, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -107,6 +122,8 @@ class InelasticSpectraSpec:
     periods_s: tuple[float, ...] = ()
     damping: float = 0.05
     post_yield_ratio: float = 0.0
+    #: fewest integration steps per initial period (>= 4) [-]
+    steps_per_period: float = 8.0
 
 
 @dataclass(frozen=True)

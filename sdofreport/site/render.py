@@ -26,6 +26,7 @@ from sdofreport.jsontext import json_text as _json_text
 from sdofreport.results_json import peaks_csv, results_document, spectra_csv
 from sdofreport.site.context import SiteContext, dependency_versions, record_figures
 from sdofreport.site.drawing import FigureWriter
+from sdofreport.site.spreadsheet import results_workbook
 from sdofreport.site.tree import RETIRED_PREFIX, STAGING_PREFIX, StagedTree
 
 log = logging.getLogger("sdofreport.site")
@@ -153,6 +154,7 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
             put(path, data)
         put("data/spectra.csv", spectra_csv(results).encode("utf-8"))
         put("data/peaks.csv", peaks_csv(results).encode("utf-8"))
+        put("data/results.xlsx", results_workbook(document))
         if early is not None:
             hashes.update(early.result())
         hashes.update(figures.result())
