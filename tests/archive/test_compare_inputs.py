@@ -93,7 +93,7 @@ def test_compare_names_a_changed_yield_strength_and_both_fingerprints(pair):
 
 
 def test_compare_json_gives_old_and_new_si_values(pair):
-    result = CliRunner().invoke(cli, ["compare", str(pair[0]), str(pair[1]), "--output",
+    result = CliRunner().invoke(cli, ["compare", str(pair[0]), str(pair[1]), "--format",
                                       "json"])
     document = json.loads(result.output)
     change = next(c for c in document["systems"]["changed"]
