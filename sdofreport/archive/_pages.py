@@ -17,6 +17,7 @@ from sdofreport import __version__
 from sdofreport.errors import BuildError
 from sdofreport.site.context import CAUTION_FULL, CAUTION_SHORT
 from sdofreport.site.render import template_dir
+from sdofreport.site.symbols import html_symbols
 
 #: Characters after which a long file name may wrap: folder separators first, then
 #: the separators of its words.
@@ -37,6 +38,7 @@ def environment() -> jinja2.Environment:
         autoescape=True, undefined=jinja2.StrictUndefined,
         trim_blocks=False, lstrip_blocks=False, keep_trailing_newline=True)
     env.filters["breakable"] = breakable
+    env.filters["symbols"] = html_symbols
     return env
 
 

@@ -203,3 +203,18 @@ def test_no_page_writes_a_number_with_an_exponent(built):
             continue
         text = " ".join(_parse(page).text)
         assert not pattern.findall(text), (page.name, pattern.findall(text)[:5])
+
+
+def test_symbols_render_as_subscripts_on_the_pages(built):
+    """No listed symbol (sdofreport.site.symbols.SYMBOLS) is left in its raw
+    underscore form in any page's text; the suite page writes S_DS as S<sub>DS</sub>."""
+    from sdofreport.site.symbols import SYMBOLS
+
+    site = built[0]
+    assert "S<sub>DS</sub>" in (site / "suite.html").read_text("utf-8")
+    for page in sorted(site.rglob("*.html")):
+        if "inputs" in page.relative_to(site).parts:
+            continue
+        text = " ".join(_parse(page).text)
+        raw = [s for s in SYMBOLS if re.search(rf"(?<![\w/]){re.escape(s)}(?!\w)", text)]
+        assert not raw, (page.name, raw)
