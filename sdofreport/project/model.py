@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -19,6 +21,16 @@ class ProcessingSettings:
         return {"baseline_order": self.baseline_order,
                 "bandpass_hz": list(self.bandpass_hz) if self.bandpass_hz else None,
                 "filter_order": self.filter_order, "taper_s": self.taper_s}
+
+
+def natural_key(identifier: str) -> tuple:
+    """
+    Sort key that orders ids as people read them: ``P2`` before ``P10``, ``hcs9`` before
+    ``hcs10`` (digit runs compared as numbers, the rest without regard to case).
+    """
+    parts = re.split(r"(\d+)", str(identifier))
+    return tuple(int(part) if index % 2 else part.casefold()
+                 for index, part in enumerate(parts)) + (str(identifier),)
 
 
 @dataclass(frozen=True)
@@ -109,8 +121,10 @@ class DesignSpectrumSpec:
 class ScalingSpec:
     rule: str = "none"
     period_s: float | None = None
-    period_range_s: tuple[float, float] | None = None
+    period_range_s: tuple[float, float] | None = None  # explicit [low, high] [s]
     suite_factor: float = 1.0
+    #: named period-range option (sdofreport.codes), None when explicit
+    period_range_option: str | None = None
 
 
 @dataclass(frozen=True)
@@ -194,8 +208,22 @@ class Project:
         return self.path.parent
 
     @property
+    def motions_counted(self) -> int:
+        """Ground motions as the standards count them: a horizontal pair is one."""
+        pairs = {r.pair for r in self.records if r.pair}
+        return len(pairs) + sum(1 for r in self.records if not r.pair)
+
+    @property
     def statistic_used(self) -> str:
-        """``mean`` or ``max``: ``auto`` resolved by the number of records."""
+        """``mean`` or ``max``: ``auto`` resolved by the governing edition."""
+        return self.statistic_choice[0]
+
+    @property
+    def statistic_choice(self) -> tuple[str, str]:
+        """(``mean`` or ``max``, why), ``auto`` resolved by the governing edition
+        counting motions (:func:`sdofreport.codes.auto_statistic`)."""
         if self.analysis.statistic != "auto":
-            return self.analysis.statistic
-        return "mean" if len(self.records) >= 7 else "max"
+            return self.analysis.statistic, "as set in the project file"
+        from sdofreport.codes import auto_statistic
+
+        return auto_statistic(self.scaling.rule, self.motions_counted)
