@@ -12,6 +12,7 @@ revision page diff it key by key.
 
 from __future__ import annotations
 
+import dataclasses
 import hashlib
 import json
 
@@ -73,6 +74,15 @@ def _record(item) -> dict:
     }
 
 
+def _plain(spec) -> dict | None:
+    """Every field of a settings dataclass (tuples as lists), so a field added later is
+    recorded too; None for an absent section."""
+    if spec is None:
+        return None
+    return {key: list(value) if isinstance(value, tuple) else value
+            for key, value in dataclasses.asdict(spec).items()}
+
+
 def _grid(periods_s) -> dict:
     """A period grid by its count, ends and the SHA-256 of its values as JSON."""
     values = [float(p) for p in periods_s]
@@ -108,23 +118,14 @@ def inputs_block(results) -> dict:
                      "periods": _grid(analysis.periods_s),
                      "statistic": analysis.statistic, "statistic_used": results.statistic},
         "processing": project.processing.as_dict(),
-        "scaling": {"rule": scaling.rule, "period_s": scaling.period_s,
-                    "period_range_s": list(scaling.period_range_s)
-                    if scaling.period_range_s else None,
-                    "suite_factor": scaling.suite_factor},
+        "scaling": _plain(scaling),
         "design_spectrum": None if design is None else {
             "kind": design.kind,
             "parameters": dict(sorted(design.parameters.items()))},
         "inelastic_spectra": None if inelastic is None else {
-            "ductility": list(inelastic.ductility),
-            "strength_reduction": list(inelastic.strength_reduction),
-            "periods": _grid(inelastic.periods_s), "damping": inelastic.damping,
-            "post_yield_ratio": inelastic.post_yield_ratio},
-        "synthetic_records": None if synthetic is None else {
-            "count": synthetic.count, "duration_s": synthetic.duration_s,
-            "dt_s": synthetic.dt_s, "seed": synthetic.seed,
-            "envelope": synthetic.envelope,
-            "period_range_s": list(synthetic.period_range_s)},
+            **{key: value for key, value in _plain(inelastic).items()
+               if key != "periods_s"}, "periods": _grid(inelastic.periods_s)},
+        "synthetic_records": _plain(synthetic),
         "records": {item.spec.id: _record(item) for item in results.records},
         "systems": {system.id: _system(system, results.statistic)
                     for system in project.systems},
