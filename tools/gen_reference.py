@@ -67,11 +67,11 @@ TYPE_TEXT = {
     "number": "number",
     "integer": "integer",
     "ratio": "ratio",
-    "boolean": "true or false",
     "quantity": "quantity",
     "choice": "choice",
     "list": "list",
     "table": "table",
+    "boolean": "true or false",
 }
 
 

@@ -178,6 +178,9 @@ class SystemSpec:
     kind: str = "lumped"
     model: dict | None = None  # nonlinear model parameters for the engine (SI)
     inputs: dict = field(default_factory=dict)  # the builder's inputs (SI), for display
+    #: P-Δ when on: gravity_load_n, height_m, gravity_stiffness_n_m, stability_coefficient
+    #: θ = W/(k h), period_s (elastic, with P-Δ: T/√(1−θ)), weight_given
+    p_delta: dict | None = None
 
     @property
     def frequency_hz(self) -> float:
@@ -185,7 +188,8 @@ class SystemSpec:
 
     @property
     def model_name(self) -> str:
-        """``linear``, ``bilinear`` or ``sliding-pendulum``."""
+        """``linear``, ``elastic`` (with a damper), a hysteresis model name or
+        ``sliding-pendulum``."""
         return (self.model or {}).get("model", "linear")
 
 

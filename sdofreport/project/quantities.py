@@ -281,6 +281,67 @@ def _convert(text: str, value: str, dimension: str) -> float:
     return number
 
 
+def _bare_damper(number: float, unit: str) -> str:
+    return (f"found the bare number {number:g}, which has no unit; write the damper "
+            f"coefficient with its unit as text, for example coefficient = "
+            f"\"{number:g} {unit}\" (or, if every bare number in this file is meant in SI "
+            f"units, state [project] plain_numbers = \"SI\")")
+
+
+def parse_damper_coefficient(value: object, exponent: float, *,
+                             plain_si: bool = True) -> float:
+    """
+    A damper coefficient C of ``F = C |v|^α sign(v)`` in SI, [N·(s/m)^α].
+
+    Parameters
+    ----------
+    value : int, float or str
+        A number already in N·(s/m)^α, or text with units such as ``"120 kN*s/m"`` or
+        ``"40 kN*(s/m)**0.5"``. [-]
+    exponent : float
+        The velocity exponent α. [-]
+    plain_si : bool, optional
+        Whether a plain number is read in N·(s/m)^α; when False it is refused with
+        :class:`BareNumberError` (see :func:`parse_quantity`).
+
+    Returns
+    -------
+    float
+        C in N·(s/m)^α.
+
+    Raises
+    ------
+    QuantityError
+        When the text cannot be read or has another dimension than force·(time/length)^α.
+    """
+    unit = f"N*(s/m)**{exponent:g}"
+    if isinstance(value, bool) or not isinstance(value, (int, float, str)):
+        raise QuantityError(f"expected a damper coefficient (number in {unit} or text with "
+                            f"units), found {value!r}")
+    if isinstance(value, (int, float)):
+        number = float(value)
+        if not plain_si and math.isfinite(number):
+            raise BareNumberError(_bare_damper(number, unit))
+    else:
+        try:
+            number = float(value.strip())
+        except ValueError:
+            ureg = _registry()
+            try:
+                quantity = ureg.Quantity(value.strip())
+                number = float(quantity.to(unit).magnitude)
+            except Exception:
+                raise QuantityError(f"expected a damper coefficient in units of force × "
+                                    f"(time/length)^{exponent:g}, such as '{unit}', found "
+                                    f"{value!r}") from None
+        else:  # a bare number written as text
+            if not plain_si and math.isfinite(number):
+                raise BareNumberError(_bare_damper(number, unit))
+    if not math.isfinite(number):
+        raise QuantityError(f"expected a finite damper coefficient, found {value!r}")
+    return number
+
+
 _EXAMPLES = {
     "length": "300 mm",
     "mass": "120 t",
