@@ -219,6 +219,9 @@ def test_bare_mass_is_refused_naming_key_id_line_and_fix(project_factory):
      "systems[skid].limits.displacement"),
     (('stiffness = "2 MN/m"', 'kind = "springs"\nnetwork = { series = [{ k = 2e6 }] }'),
      "systems[skid].network"),
+    (('stiffness = "2 MN/m"', 'stiffness = "2 MN/m"\n'
+                              'damper = { coefficient = 5000, exponent = 1 }'),
+     "systems[skid].damper.coefficient"),
 ])
 def test_every_dimensional_key_refuses_bare_numbers(project_factory, change, location):
     system = SKID.replace('mass = 6', 'mass = "6 t"') if change[0] != 'mass = 6' else SKID
