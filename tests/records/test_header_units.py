@@ -19,6 +19,10 @@ from sdofreport.records.header_units import disagreement, stated_units
     ("# acceleration units: g\ntime_s,accel_g\n0,1\n", [("g", 1), ("g", 2)]),
     ("title\nACCELERATION IN G, NPTS= 5000, DT= 0.005 SEC\n1 2\n", [("g", 2)]),
     ("values [mm/sec**2]\n1\n", [("mm/s2", 1)]),
+    # sdofreport's own headed layout states "unit: <u>" on its own line.
+    ("sdofreport record: x\nunit: cm/s2\nsamples: 4, step: 0.01 s\n1 2 3 4\n",
+     [("cm/s2", 2)]),
+    ("sdofreport record: x\nunit: g\nsamples: 4, step: 0.01 s\n1 2 3 4\n", [("g", 2)]),
     ("in/s2 values\n1\n", [("in/s2", 1)]),
     # Quantities are values, not the file's unit: "0.41 g", "294 cm/s2".
     ("seed 7302, PGA 0.41 g\nPeak 294 cm/s2 at 3 s\nNPTS=4 DT=.01\n1 2 3 4\n", []),
