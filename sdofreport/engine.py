@@ -29,6 +29,7 @@ from typing import Callable
 import numpy as np
 
 from sdofreport import __version__
+from sdofreport.amplitude import check_results, header_unit_problem
 from sdofreport.cache import ResultCache, cache_key, default_cache_dir
 from sdofreport.core.fragility import (
     FITTED,
@@ -232,7 +233,8 @@ def _read_key(spec: RecordSpec, digest: str | None) -> str:
     """Cache key of a record file as parsed with its reading settings."""
     return cache_key({"version": __version__, "job": "read", "sha": digest,
                          "name": spec.path.name, "format": spec.file_format,
-                         "units": spec.units, "dt": spec.dt_s, "id": spec.id})
+                         "units": spec.units, "dt": spec.dt_s, "id": spec.id,
+                         "reader": "stated-units"})
 
 
 def _read_cached(spec: RecordSpec, cache: ResultCache | None, pending: list) -> Record:
@@ -258,7 +260,7 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
     records, problems, pending = [], [], []
     longest = max(project.systems, key=lambda system: system.period_s, default=None)
     for index, spec in enumerate(project.records):
-        where = f"records[{index + 1}] (id '{spec.id}')"
+        where = f"records[{spec.id}]"
         try:
             if spec.path is None:
                 records.append(synthetic_record(project, index, cache))
@@ -277,6 +279,9 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
         except RecordError as exc:
             problems.append(f"{where}: {exc.message}")
             continue
+        unit_problem = header_unit_problem(spec, record)
+        if unit_problem:
+            problems.append(unit_problem)
         if longest is not None and record.duration_s < longest.period_s:
             # A record shorter than the system's period cannot bring out its response:
             # the peak would depend on where the record stops (common practice, no source).
@@ -543,6 +548,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     pair_results = [PairResult(name, h1, h2, _scaled_rotd(pair_outputs[name]["rotd"],
                                                           scaling.factors.get(h1, 1.0)))
                     for name, (h1, h2) in pairs.items()]
+    check_results(project.path.name, record_results, pairs=pair_results)  # PGA, finite
     if records_ready is not None:
         records_ready(record_results)
 
@@ -583,6 +589,7 @@ def run_project(project: Project, *, jobs: int | None = None,
             if raw["model"] == "linear":  # linear jobs send no time axis: it is n · dt
                 raw = {**raw, "time_s": time_s}
             responses[(system.id, spec.id)] = _response_result(system, spec.id, raw)
+    check_results(project.path.name, (), responses.values())
     statistic = project.statistic_used
     checks = _checks(project, responses, statistic)
     return Results(project, record_results, responses, checks, statistic, scaling,

@@ -164,7 +164,28 @@ def _parse_project(path: Path) -> SynthesisTarget:
     if kind is None:
         raise SdofreportError(f"{path} [design_spectrum]: missing key 'kind'; allowed: "
                               f"{', '.join(DESIGN_SPECTRUM_KINDS)}.")
-    return _from_parameters(kind, values, f"{path} [design_spectrum]")
+    head = data.get("project")
+    plain_si = isinstance(head, dict) and head.get("plain_numbers") == "SI"
+    return _from_parameters(kind, _project_quantities(values, plain_si, path),
+                            f"{path} [design_spectrum]")
+
+
+def _project_quantities(values: dict, plain_si: bool, path: Path) -> dict:
+    """``values`` with dimensional keys (``tl = "8 s"``) converted to SI, read as the
+    project loader reads them (a bare number only with plain_numbers = "SI")."""
+    from sdofreport.project.quantities import QuantityError, parse_quantity
+    from sdofreport.project.schema import SECTIONS
+
+    out = dict(values)
+    for key, value in values.items():
+        spec = SECTIONS["design_spectrum"].get(key)
+        if spec is None or spec.type != "quantity":
+            continue
+        try:
+            out[key] = parse_quantity(value, spec.dimension, plain_si=plain_si, key=key)
+        except QuantityError as exc:
+            raise SdofreportError(f"{path} [design_spectrum] {key}: {exc}.") from None
+    return out
 
 
 def _parse_table_file(path: Path) -> SynthesisTarget:

@@ -4,7 +4,9 @@ Validation runs in phases: TOML syntax (with the line), then every key of every 
 against :data:`~sdofreport.project.schema.SECTIONS` (unknown keys with a "did you mean"),
 then cross-checks (unique ids, files present, limits that need a mass or height). Each
 problem is ``(location, message)``; the location is a key path such as
-``systems[2].limits.drift_ratio`` (array positions count from 1, in file order).
+``systems[2].limits.drift_ratio`` (array positions count from 1, in file order), shown
+to the reader with the entry's id and the key's line (``line 31,
+systems[frame].limits.drift_ratio``, see :mod:`sdofreport.project.locate`).
 """
 
 from __future__ import annotations
@@ -39,6 +41,7 @@ from sdofreport.project.model import (
     RecordSpec,
     SystemSpec,
 )
+from sdofreport.project.locate import describe, entry_ids, key_lines
 from sdofreport.project.quantities import (
     QuantityError,
     parse_damper_coefficient,
@@ -62,8 +65,10 @@ _ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
 class _Problems:
     """Collects ``(location, message)`` pairs in the order they are found."""
 
-    def __init__(self) -> None:
+    def __init__(self, plain_si: bool = False) -> None:
         self.items: list[tuple[str, str]] = []
+        #: Whether bare numbers for dimensional keys are SI ([project] plain_numbers).
+        self.plain_si = plain_si
 
     def add(self, location: str, message: str) -> None:
         self.items.append((location, message))
@@ -132,7 +137,8 @@ def _read_value(table: dict, spec: KeySpec, location: str, problems: _Problems):
         return float(value) if spec.type != "integer" else int(value)
     if spec.type == "quantity":
         try:
-            return parse_quantity(value, spec.dimension)
+            return parse_quantity(value, spec.dimension, plain_si=problems.plain_si,
+                                  key=spec.name)
         except QuantityError as exc:
             problems.add(where, str(exc))
             return None
@@ -221,7 +227,7 @@ def _read_periods(value, problems: _Problems,
         for key in unknown:
             problems.add(f"{where}.{key}", f"unknown key"
                          f"{_did_you_mean(key, ('min', 'max', 'count'))}")
-        try:
+        try:  # bare numbers are seconds: the key is documented "in s"
             low = parse_quantity(value.get("min", 0.01), "time")
             high = parse_quantity(value.get("max", 10.0), "time")
         except QuantityError as exc:
@@ -299,6 +305,7 @@ def _read_info(table, project_path: Path, problems: _Problems) -> ProjectInfo:
         revision=values["revision"] or "", prepared_by=values["prepared_by"] or "",
         checked_by=values["checked_by"], date=date, notes_path=notes_path,
         notes_file=values["notes"], display_units=values["display_units"] or "SI",
+        plain_numbers=values["plain_numbers"],
         prepared_date=values["prepared_date"], checked_date=values["checked_date"],
         approved_by=values["approved_by"], approved_date=values["approved_date"],
         revisions=_read_revisions(values["revisions"], problems))
@@ -397,13 +404,15 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
                                problems, processing)
         pair = _read_value(table, spec["pair"], where, problems)
         component = _read_value(table, spec["component"], where, problems)
+        amplitude_ok = bool(_read_value(table, spec["amplitude_ok"], where, problems))
         if ("pair" in table) != ("component" in table):
             problems.add(where, "a paired record needs both pair and component "
                          "(H1 or H2)")
         path = _input_file(root, file, f"{where}.file", problems) if file else None
         if record_id and file and path is not None:
             records.append(RecordSpec(record_id, path, file, fmt, units, dt_s,
-                                      scale if scale else 1.0, own, pair, component))
+                                      scale if scale else 1.0, own, pair, component,
+                                      amplitude_ok))
     _check_pairs(records, problems)
     return records
 
@@ -495,7 +504,8 @@ def _network_to_si(node, path: str, problems: _Problems):
         for key, value in node.items():
             if key == "k":
                 try:
-                    out[key] = parse_quantity(value, "stiffness")
+                    out[key] = parse_quantity(value, "stiffness",
+                                              plain_si=problems.plain_si, key="k")
                 except QuantityError as exc:
                     problems.add(f"{path}.k", str(exc))
                     return None
@@ -597,7 +607,8 @@ def _damper(table, where: str, problems: _Problems):
                      f"2, found {alpha!r}")
         return None
     try:
-        coefficient = parse_damper_coefficient(table["coefficient"], float(alpha))
+        coefficient = parse_damper_coefficient(table["coefficient"], float(alpha),
+                                               plain_si=problems.plain_si)
         hy.damper(coefficient, float(alpha))
     except (QuantityError, ValueError) as exc:
         problems.add(f"{where}.coefficient", str(exc))
@@ -1044,11 +1055,15 @@ def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError, text_in: str
             f"between key and value, and [section] headers.")
 
 
-def format_problems(path: Path, problems: list[tuple[str, str]]) -> str:
-    """One message listing every problem, each starting with where it is."""
+def format_problems(path: Path, problems: list[tuple[str, str]], text: str = "",
+                    document: dict | None = None) -> str:
+    """One message listing every problem, each starting with where it is: the key path
+    with array entries named by id, and the line of the key in ``text``."""
     count = len(problems)
     head = f"{path} has {count} problem{'s' if count != 1 else ''}:"
-    return "\n".join([head, *(f"  {where}: {message}" for where, message in problems)])
+    lines, names = key_lines(text), entry_ids(document or {})
+    return "\n".join([head, *(f"  {describe(where, lines, names)}: {message}"
+                              for where, message in problems)])
 
 
 def load_project(path) -> Project:
@@ -1088,7 +1103,9 @@ def load_project(path) -> Project:
         raise ProjectError(_syntax_error_message(path, exc, text)) from None
     shown = path
     path = path.resolve()
-    problems = _Problems()
+    head = document.get("project")
+    problems = _Problems(plain_si=isinstance(head, dict) and
+                         head.get("plain_numbers") == "SI")
     for key in document:
         if key not in TOP_LEVEL:
             problems.add(key, f"unknown section{_did_you_mean(key, TOP_LEVEL)}")
@@ -1123,7 +1140,7 @@ def load_project(path) -> Project:
                    for i in range(synthetic.count)]
     save_memo()  # unit strings pint converted, so the next read need not import it
     if problems.items:
-        raise ProjectError(format_problems(shown, problems.items))
+        raise ProjectError(format_problems(shown, problems.items, text, document))
     # Records in natural order of their ids (P1, P2, ... P10), wherever they are listed.
     records = sorted(records, key=lambda spec: natural_key(spec.id))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,

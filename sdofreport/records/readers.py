@@ -45,6 +45,7 @@ from sdofreport.core.units import (
     normalise_acceleration_unit,
 )
 from sdofreport.errors import RecordError
+from sdofreport.records.header_units import stated_units
 from sdofreport.records.record import Record
 
 #: Format names accepted by :func:`read_record` (the single registry; "auto" first).
@@ -752,6 +753,7 @@ def _read(path, file_format, units, dt_s, record_id, *, fast=True) -> Record:
         file_format=chosen,
         history=tuple(history),
         warnings=(warning,) if warning else (),
+        stated_units=stated_units(text),
     )
 
 

@@ -287,6 +287,10 @@ class SiteContext:
             ("Suite statistic", f"{analysis.statistic} → {results.statistic}"),
             ("Default processing", _processing_text(self.project.processing)),
         ]
+        if self.project.info.plain_numbers:
+            settings.append(("Bare numbers", "read in SI units (kg, m, s, N, N/m) for "
+                             "dimensional keys, as the project states with [project] "
+                             f"plain_numbers = \"{self.project.info.plain_numbers}\""))
         context = {**self.common("", "Summary", "summary"), **self._statistic_bits(),
                    "checks": self._check_rows(checks), "checks_summary": summary_text,
                    "figures": {"checks": figure}, "systems": systems,

@@ -90,7 +90,7 @@ def test_run_against_itself_is_identical(group, sites):
     results = sites["rev0"] / "data" / "results.json"
     result = CliRunner().invoke(group, ["compare", str(results), str(sites["rev0"])])
     assert result.exit_code == 0, result.output
-    assert "No check, system, record, setting or project detail changed." in result.output
+    assert "No check, system, record, input, setting or project detail changed." in result.output
 
 
 def test_text_output_names_each_change(group, sites):

@@ -182,7 +182,7 @@ PROJECT_FILES: dict[str, bytes | str] = {
     "record_is_folder.toml": project(records=one_record("records")),
     # the record entry names the project file itself
     "record_is_project.toml": project(records=one_record("record_is_project.toml",
-                                                         more="dt = 0.01\n")),
+                                                         more="dt = \"0.01 s\"\n")),
     "pair_missing_partner.toml": project(records=RECORDS_TWO.replace(
         'file = "records/r1.csv"', 'file = "records/r1.csv"\npair = "p1"\ncomponent = "H1"')),
     "pair_without_component.toml": project(records=RECORDS_TWO.replace(
@@ -213,7 +213,7 @@ PROJECT_FILES: dict[str, bytes | str] = {
     "unknown_section.toml": GOOD + "\n[sytems]\nid = \"s2\"\n",
     "empty.toml": "",
     "record_dt_negative.toml": project(records=one_record("records/r1.csv",
-                                                          more="dt = -0.01\n")),
+                                                          more="dt = \"-0.01 s\"\n")),
     "record_units_furlongs.toml": project(records=one_record(
         "records/r1.csv", more='units = "furlong/s2"\n')),
     "limit_in_kg.toml": project(system=sys_with('displacement = "50 mm"',
