@@ -35,6 +35,7 @@ from sdofreport.project.model import (
     RecordSpec,
     SystemSpec,
 )
+from sdofreport.project.ids import id_case_problems, id_problem, with_lines
 from sdofreport.project.quantities import QuantityError, parse_quantity, save_memo
 from sdofreport.core.units import G
 from sdofreport.project.schema import (
@@ -45,7 +46,6 @@ from sdofreport.project.schema import (
     KeySpec,
 )
 
-_ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
 
 
 class _Problems:
@@ -288,9 +288,9 @@ def _read_id(table: dict, where: str, seen: dict, problems: _Problems) -> str | 
     if value is None:
         problems.add(f"{where}.id", "missing; every entry needs a unique id")
         return None
-    if not isinstance(value, str) or not _ID_PATTERN.match(value):
-        problems.add(f"{where}.id", f"expected letters, digits, '-', '_' or '.' (up to 64, "
-                     f"starting with a letter or digit), found {value!r}")
+    problem = id_problem(value)
+    if problem is not None:
+        problems.add(f"{where}.id", problem)
         return None
     if value in seen:
         problems.add(f"{where}.id", f"duplicate id {value!r} (also {seen[value]})")
@@ -322,7 +322,7 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         _positive(scale, f"{where}.scale", "the scale factor", problems, "")
         own = _read_processing(table.get("processing", {}), f"{where}.processing",
                                problems, processing)
-        pair = _read_value(table, spec["pair"], where, problems)
+        pair = _read_pair(table, spec["pair"], where, problems)
         component = _read_value(table, spec["component"], where, problems)
         if ("pair" in table) != ("component" in table):
             problems.add(where, "a paired record needs both pair and component "
@@ -333,6 +333,15 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
                                       scale if scale else 1.0, own, pair, component))
     _check_pairs(records, problems)
     return records
+
+
+def _read_pair(table: dict, spec: KeySpec, where: str, problems: _Problems) -> str | None:
+    """The pair name: it names a figure file, so it is an id like any other."""
+    pair = _read_value(table, spec, where, problems)
+    if pair is not None and (problem := id_problem(pair)) is not None:
+        problems.add(f"{where}.pair", problem)
+        return None
+    return pair
 
 
 def _check_pairs(records: list[RecordSpec], problems: _Problems) -> None:
@@ -787,7 +796,10 @@ def load_project(path) -> Project:
                               synthetic.dt_s, 1.0, processing)
                    for i in range(synthetic.count)]
     save_memo()  # unit strings pint converted, so the next read need not import it
+    for where, message in id_case_problems(document):
+        problems.add(where, message)
     if problems.items:
-        raise ProjectError(format_problems(shown, problems.items))
+        raise ProjectError(format_problems(shown, with_lines(problems.items, text,
+                                                             document)))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
                    tuple(records), tuple(systems), design, scaling, inelastic, synthetic)

@@ -33,7 +33,7 @@ def artifacts(group, sites, tmp_path):
     assert result.exit_code == 0, result.output
     shutil.copytree(sites["rev1"], folder / "job2" / "_site")
     shutil.copytree(sites["rev0"], folder / "job3" / "_site")
-    flip_byte(folder / "job3" / "_site" / "figures" / "record-r1-psa.svg")
+    flip_byte(folder / "job3" / "_site" / "figures" / "record-psa~r1.svg")
     flip_byte(folder / "job3" / "_site" / "inputs" / "records" / "r2.txt")
     return folder
 
@@ -165,7 +165,7 @@ FORGED = [
     ("index.html", b"<main>", b'<main><a href="/\\evil.example/">n</a>'),
     ("suite.html", b"<main>", b"<main><script>window.x=1</script>"),
     ("index.html", b"<head>", b'<head><meta http-equiv="refresh" content="0;url=data:,x">'),
-    ("figures/record-r1-psa.svg", b"<svg ", b'<svg onload="window.x=1" '),
+    ("figures/record-psa~r1.svg", b"<svg ", b'<svg onload="window.x=1" '),
 ]
 
 

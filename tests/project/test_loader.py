@@ -146,8 +146,9 @@ def test_every_problem_reported_at_once(project_factory):
 
 def test_duplicate_ids(project_factory):
     records = TWO_RECORDS.replace('id = "r2"', 'id = "r1"')
-    with pytest.raises(ProjectError, match=r"records\[2\]\.id: duplicate id 'r1' "
-                                           r"\(also records\[1\]\)"):
+    # Line 11: PROJECT_HEAD has 5 lines, each [[records]] table 4 (header, id, file, blank).
+    with pytest.raises(ProjectError, match=r"records\[2\]\.id \(line 11\): duplicate id "
+                                           r"'r1' \(also records\[1\]\)"):
         load_project(project_factory(PROJECT_HEAD + records + ONE_SYSTEM))
 
 
