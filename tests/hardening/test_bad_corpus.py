@@ -124,6 +124,15 @@ PROJECT_CASES = [
     # STYLE.md shows record problems under the project file's name with the key
     # (records[3] "rec03" file ... line 212); the build names neither today.
     ("bad_record_nan.toml", ["bad_record_nan.toml", "records[1]"], []),
+    # Issue 15 part 2: every id that reaches a file name, with its key and line.
+    ("pair_escapes_site.toml", ["records[1].pair (line 10)", "'x/../../victim/evil'",
+                                "records[2].pair (line 16)", "letters, digits"], []),
+    ("system_id_traversal.toml", ["systems[1].id (line 16)", "'../s1'"], []),
+    ("record_ids_case_twins.toml", ["records[2].id (line 12)", "'R1' differs only in case "
+                                    "from 'r1' (records[1].id)"], []),
+    ("system_id_reserved.toml", ["systems[1].id (line 16)", "'NUL' is a name the site or "
+                                 "Windows reserves"], []),
+    ("record_id_separator.toml", ["records[1].id (line 8)", "'a~b'"], []),
     ("several_problems.toml", ["has 3 problems", "records[2].id", "systems[1].damping",
                                "systems[1].mass"], []),
     # Not checked today: a record far shorter than a system's period gives a peak that

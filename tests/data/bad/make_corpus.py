@@ -227,6 +227,18 @@ PROJECT_FILES: dict[str, bytes | str] = {
         "bad/truncated_headed.txt", record_id="r3")),
     "short_record.toml": project(records=one_record("bad/short_record.csv", "short"),
                                  system=sys_with('period = "0.5 s"', 'period = "5 s"')),
+    # ids that reach file names (issue 15, part 2): a pair name climbing out of the site
+    # (line 10), a system id with '..' (line 16), ids differing only in case (line 12),
+    # a name Windows reserves (line 16), the figure-name separator '~' (line 8)
+    "pair_escapes_site.toml": project(records=RECORDS_TWO.replace(
+        'file = "records/r1.csv"\n', 'file = "records/r1.csv"\npair = "x/../../victim/evil"\n'
+        'component = "H1"\n').replace('file = "records/r2.txt"\n',
+                                       'file = "records/r2.txt"\npair = "x/../../victim/evil"\n'
+                                       'component = "H2"\n')),
+    "system_id_traversal.toml": project(system=sys_with('id = "s1"', 'id = "../s1"')),
+    "record_ids_case_twins.toml": project(records=RECORDS_TWO.replace('"r2"', '"R1"')),
+    "system_id_reserved.toml": project(system=sys_with('id = "s1"', 'id = "NUL"')),
+    "record_id_separator.toml": project(records=RECORDS_TWO.replace('"r1"', '"a~b"')),
     # three problems at once: every one must be reported
     "several_problems.toml": project(records=RECORDS_TWO.replace('"r2"', '"r1"'),
                                      system=sys_with("damping = 0.05", "damping = 7")
