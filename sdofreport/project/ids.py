@@ -40,13 +40,15 @@ def id_problem(value) -> str | None:
     return None
 
 
-def line_of(text: str, key: str, value: str, section: str | None = None,
+def line_of(text: str, key: str, value: str | None, section: str | None = None,
             index: int = 1) -> int | None:
     """
-    The line (1-based) of project ``text`` that sets ``key`` to ``value``: inside the
+    The line (1-based) of project ``text`` that sets ``key`` to ``value`` (to anything
+    when ``value`` is None): inside the
     ``index``-th ``[[section]]`` table when that header is found, else the first such line.
     """
-    pattern = re.compile(rf"^\s*{re.escape(key)}\s*=\s*(['\"]){re.escape(value)}\1")
+    pattern = re.compile(rf"^\s*{re.escape(key)}\s*=\s*(['\"]){re.escape(value)}\1"
+                         if value is not None else rf"^\s*{re.escape(key)}\s*=")
     header = re.compile(rf"^\s*\[\[\s*{re.escape(section or '')}\s*\]\]")
     lines = text.splitlines()
     start, stop = 0, len(lines)
@@ -92,12 +94,13 @@ def id_case_problems(document: dict) -> list[tuple[str, str]]:
     return problems
 
 
-_LOCATED = re.compile(r"^(records|systems)\[(\d+)\]\.(id|pair)$")
+_LOCATED = re.compile(r"^(records|systems)\[(\d+)\]\.(id|pair|scale|network)$")
 
 
 def with_lines(items: list[tuple[str, str]], text: str,
                document: dict) -> list[tuple[str, str]]:
-    """``items`` with ``(line N)`` after each id or pair location whose line is found."""
+    """``items`` with ``(line N)`` after each id, pair, scale or network location whose
+    line is found."""
     located = []
     for where, message in items:
         match = _LOCATED.match(where)
@@ -107,8 +110,8 @@ def with_lines(items: list[tuple[str, str]], text: str,
                 value = document[section][index - 1][key]
             except (KeyError, IndexError, TypeError):
                 value = None
-            line = (line_of(text, key, value, section, index) if isinstance(value, str)
-                    else None)
+            line = line_of(text, key, value if isinstance(value, str) else None,
+                           section, index)
             if line is not None:
                 where = f"{where} (line {line})"
         located.append((where, message))

@@ -35,6 +35,7 @@ from sdofreport.project.model import (
     RecordSpec,
     SystemSpec,
 )
+from sdofreport.project.bounds import MAX_NETWORK_DEPTH, MAX_SCALE
 from sdofreport.project.ids import id_case_problems, id_problem, with_lines
 from sdofreport.project.quantities import QuantityError, parse_quantity, save_memo
 from sdofreport.core.units import G
@@ -320,6 +321,7 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         _positive(dt_s, f"{where}.dt", "the time step", problems, "s")
         scale = _read_value(table, spec["scale"], where, problems)
         _positive(scale, f"{where}.scale", "the scale factor", problems, "")
+        _check_bounded(scale, f"{where}.scale", MAX_SCALE, "scale factor", problems)
         own = _read_processing(table.get("processing", {}), f"{where}.processing",
                                problems, processing)
         pair = _read_pair(table, spec["pair"], where, problems)
@@ -488,6 +490,8 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
                              f"({spec[key].description})")
             continue
         if key == "network":
+            if not _network_depth_ok(table[key], f"{where}.network", problems):
+                continue
             values[key] = _network_to_si(table[key], f"{where}.network", problems)
             continue
         value = _read_value(table, spec[key], where, problems)
@@ -706,6 +710,53 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
     return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha)
 
 
+def _without_bom(text: str) -> str:
+    """``text`` without a leading byte-order mark (some Windows editors write one)."""
+    return text.removeprefix("\ufeff")
+
+
+def _too_deep_message(path: Path, text: str) -> str:
+    """The message for TOML nested beyond what the parser (and Python) can follow."""
+    depth, deepest, line = 0, 0, 1
+    for number, row in enumerate(text.splitlines(), start=1):
+        for char in row:
+            depth += char in "[{"
+            depth -= char in "]}"
+            if depth > deepest:
+                deepest, line = depth, number
+    return (f"{path} line {line}: brackets and braces nested {deepest} deep, beyond what "
+            f"the TOML reader follows; expected a spring network of at most "
+            f"{MAX_NETWORK_DEPTH} levels of series and parallel groups.")
+
+
+def _check_bounded(value, where: str, limit: float, what: str, problems: _Problems) -> None:
+    """A problem when ``value`` (already > 0) exceeds ``limit``."""
+    if isinstance(value, (int, float)) and value > limit:
+        problems.add(where, f"expected a {what} of at most {limit:g}, found {value:g}")
+
+
+def _network_depth_ok(node, where: str, problems: _Problems) -> bool:
+    """False (with a problem) when a spring network nests deeper than allowed.
+
+    Measured without recursion, so a network hundreds of levels deep is a message, not
+    a RecursionError."""
+    deepest, stack = 0, [(node, 1)]
+    while stack:
+        item, depth = stack.pop()
+        deepest = max(deepest, depth)
+        if deepest > MAX_NETWORK_DEPTH:
+            problems.add(where, f"nested more than {MAX_NETWORK_DEPTH} levels deep; expected "
+                         f"a spring network of at most {MAX_NETWORK_DEPTH} levels of series "
+                         f"and parallel groups")
+            return False
+        children = item.values() if isinstance(item, dict) else (
+            item if isinstance(item, list) else ())
+        # A level is a node (a table); the lists between nodes do not count.
+        stack += [(child, depth + isinstance(child, dict)) for child in children
+                  if isinstance(child, (dict, list))]
+    return True
+
+
 def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError, text_in: str) -> str:
     text = str(exc)
     match = re.search(r"\(at line (\d+), column (\d+)\)", text)
@@ -752,7 +803,7 @@ def load_project(path) -> Project:
                            f"sdofreport.toml.")
     raw = path.read_bytes()
     try:
-        text = raw.decode("utf-8")
+        text = _without_bom(raw.decode("utf-8"))
     except UnicodeDecodeError as exc:
         line = raw[:exc.start].count(b"\n") + 1
         raise ProjectError(f"{path} line {line}: not UTF-8 text (byte {exc.start}); save "
@@ -761,6 +812,8 @@ def load_project(path) -> Project:
         document = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ProjectError(_syntax_error_message(path, exc, text)) from None
+    except RecursionError:
+        raise ProjectError(_too_deep_message(path, text)) from None
     shown = path
     path = path.resolve()
     problems = _Problems()

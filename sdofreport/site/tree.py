@@ -78,6 +78,16 @@ def write_file(root: Path, relative: str, data: bytes, made: set[str]) -> str:
     the file itself is opened without following a symbolic link.
     """
     parts = inside_parts(root, relative)
+    try:
+        return _write_file(root, relative, parts, data, made)
+    except OSError as exc:  # disk full, quota, read-only: say where, never a traceback
+        raise BuildError(f"{root / relative}: could not be written: {exc.strerror or exc}; "
+                         f"nothing was replaced (the previous site, if any, is intact). "
+                         f"Free some space or choose another -o folder.") from None
+
+
+def _write_file(root: Path, relative: str, parts: list[str], data: bytes,
+                made: set[str]) -> str:
     for depth in range(1, len(parts)):
         folder = "/".join(parts[:depth])
         if folder not in made:

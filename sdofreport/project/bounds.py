@@ -1,0 +1,13 @@
+"""Bounds on inputs that are absurd rather than merely unusual (issue 15, part 7).
+
+Each is our own choice (no published source); they sit far beyond anything a real
+project needs, and refuse inputs whose arithmetic would overflow or whose structure
+would exhaust the interpreter.
+"""
+
+#: Largest ``records[].scale`` accepted [-]. Suites are scaled by factors of about 0.25
+#: to 4 in common practice (no source); 1000 leaves room for unit conversions by scale.
+MAX_SCALE = 1e3
+#: Deepest spring network accepted (levels of series/parallel groups) [-]. Real
+#: structures need a handful; the TOML reader itself fails at a few hundred.
+MAX_NETWORK_DEPTH = 32
