@@ -67,6 +67,10 @@ RECORD_CASES = [
     ("words_in_values.txt", ["--dt", "0.01"], {"dt": 0.01}, ["line 3", "'abc' is not a number"]),
     ("values_without_dt.txt", ["--format", "values"], {"format": "values"},
      ["no time step", "dt"]),
+    # Issue 15 part 7: absurd amplitude, a byte-order mark alone, numbers in quotes.
+    ("absurd_1e200g.csv", [], {}, ["line 7", "1e+200 g is beyond any ground motion"]),
+    ("bom_only.csv", [], {}, ["line 1", "holds only a UTF-8 byte-order mark"]),
+    ("quoted_numbers.csv", [], {}, ["line 2", "the numbers are in quotes (\"0.0000\")"]),
     ("good_two_column.csv", ["--dt", "0.02"], {"dt": 0.02},
      ["dt_s=0.02 s disagrees with the time column (0.01 s)"]),
 ]
@@ -133,6 +137,13 @@ PROJECT_CASES = [
     ("system_id_reserved.toml", ["systems[1].id (line 16)", "'NUL' is a name the site or "
                                  "Windows reserves"], []),
     ("record_id_separator.toml", ["records[1].id (line 8)", "'a~b'"], []),
+    # Issue 15 part 7: absurd inputs are refused with the key and line.
+    ("scale_1e300.toml", ["records[1].scale (line 10)", "at most 1000, found 1e+300"], []),
+    ("network_40_deep.toml", ["systems[1].network (line 21)",
+                              "nested more than 32 levels deep"], []),
+    ("network_400_deep.toml", ["line 21", "nested", "at most 32 levels"], []),
+    ("period_too_short.toml", ["systems[1] (id 's1') period", "1e-06 s is too short for "
+                               "the time step 0.01 s of record 'r1'"], []),
     ("several_problems.toml", ["has 3 problems", "records[2].id", "systems[1].damping",
                                "systems[1].mass"], []),
     # Not checked today: a record far shorter than a system's period gives a peak that
