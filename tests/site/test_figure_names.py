@@ -17,7 +17,7 @@ import re
 import pytest
 
 from sdofreport.build import build_site
-from tests.conftest import PROJECT_HEAD, write_test_records
+from tests.conftest import PROJECT_HEAD, TWO_RECORDS, write_test_records
 
 SYSTEM = """\
 [[systems]]
@@ -28,20 +28,8 @@ mass = "100 t"
 period = "{period}"
 """
 
-RECORDS = """\
-[[records]]
-id = "b-c"
-file = "records/r1.csv"
-
-[[records]]
-id = "c"
-file = "records/r2.txt"
-
-[[records]]
-id = "spectra"
-file = "records/r1.csv"
-scale = 0.5
-"""
+RECORDS = (TWO_RECORDS.replace('id = "r1"', 'id = "b-c"').replace('id = "r2"', 'id = "c"')
+           + '\n[[records]]\nid = "spectra"\nfile = "records/r1.csv"\nscale = 0.5\n')
 
 
 @pytest.fixture(scope="module")
