@@ -299,8 +299,8 @@ def _check_periods(project: Project, records: list[Record], problems: list[str])
     # Yielding systems take ceil(dt / (T/100)) sub-steps (jobs._nonlinear_response): 100
     # steps per period; linear ones the method's default steps per period.
     tail = (f"too short for the time step {coarse.dt_s:g} s of record '{coarse.id}': it "
-            f"would need more than {_MAX_SUBSTEPS} integration sub-steps per sample; check the value "
-            f"and its unit, or use a record with a finer time step")
+            f"would need more than {_MAX_SUBSTEPS} integration sub-steps per sample; check "
+            f"the value and its unit, or use a record with a finer time step")
     for index, system in enumerate(project.systems, start=1):
         linear = (system.model or {}).get("model", "linear") == "linear"
         spp = DEFAULT_STEPS_PER_PERIOD.get(method, 8.0) if linear else 100.0

@@ -48,7 +48,6 @@ from sdofreport.project.schema import (
 )
 
 
-
 class _Problems:
     """Collects ``(location, message)`` pairs in the order they are found."""
 
