@@ -72,6 +72,9 @@ class ResultCache:
             with os.fdopen(fd, "wb") as handle:
                 pickle.dump(value, handle, protocol=pickle.HIGHEST_PROTOCOL)
             os.replace(tmp, path)
+        except OSError as exc:  # a full disk must not stop a build either: say where
+            Path(tmp).unlink(missing_ok=True)
+            log.warning("cache entry %s not written (%s)", path, exc.strerror or exc)
         except BaseException:
             Path(tmp).unlink(missing_ok=True)
             raise

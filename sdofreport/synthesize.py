@@ -22,7 +22,7 @@ import numpy as np
 from sdofreport.core.compatible import COMPATIBLE_ENVELOPES, spectrum_compatible_record
 from sdofreport.core.design_spectra import DESIGN_SPECTRUM_KINDS, design_spectrum
 from sdofreport.core.units import G
-from sdofreport.errors import SdofreportError
+from sdofreport.errors import SdofreportError, naming_path
 from sdofreport.records.writers import write_two_column
 
 __all__ = [
@@ -308,6 +308,11 @@ def synthesize(target: SynthesisTarget, folder, *, count=1, duration_s=25.0, dt_
     }
     text = json.dumps(summary, indent=2) + "\n"
     tmp = folder / f".{SUMMARY_FILE}.tmp"
-    tmp.write_text(text, encoding="utf-8")
-    os.replace(tmp, folder / SUMMARY_FILE)
+    try:
+        with naming_path(folder / SUMMARY_FILE):
+            tmp.write_text(text, encoding="utf-8")
+            os.replace(tmp, folder / SUMMARY_FILE)
+    except BaseException:
+        tmp.unlink(missing_ok=True)
+        raise
     return summaries

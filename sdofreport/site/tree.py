@@ -17,7 +17,7 @@ import shutil
 import tempfile
 from pathlib import Path
 
-from sdofreport.errors import BuildError
+from sdofreport.errors import BuildError, naming_path
 
 FOLDER_MODE = 0o755
 FILE_MODE = 0o644
@@ -78,12 +78,8 @@ def write_file(root: Path, relative: str, data: bytes, made: set[str]) -> str:
     the file itself is opened without following a symbolic link.
     """
     parts = inside_parts(root, relative)
-    try:
+    with naming_path(root / relative):  # disk full, quota: say where, never a traceback
         return _write_file(root, relative, parts, data, made)
-    except OSError as exc:  # disk full, quota, read-only: say where, never a traceback
-        raise BuildError(f"{root / relative}: could not be written: {exc.strerror or exc}; "
-                         f"nothing was replaced (the previous site, if any, is intact). "
-                         f"Free some space or choose another -o folder.") from None
 
 
 def _write_file(root: Path, relative: str, parts: list[str], data: bytes,

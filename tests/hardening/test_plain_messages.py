@@ -97,3 +97,44 @@ def test_numpy_warnings_never_reach_the_terminal(tmp_path):
                                                                    '["-v", "overflow"]')],
                              capture_output=True, text=True, cwd=ROOT, env=env, timeout=120)
     assert "RuntimeWarning" in verbose.stderr and "overflow" in verbose.stderr
+
+
+@pytest.mark.parametrize("writer", ["record", "starter"])
+def test_full_disk_names_the_file_of_every_writer(tmp_path, monkeypatch, writer):
+    # Path.write_bytes and file objects fail inside write() with no file name, as a full
+    # disk does (ENOSPC); the message must still name the file.
+    class _Full:
+        def __init__(self, handle):
+            self.handle = handle
+
+        def write(self, data):
+            raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+        def __getattr__(self, name):
+            return getattr(self.handle, name)
+
+        def __enter__(self):
+            return self
+
+        def __exit__(self, *exc):
+            self.handle.close()
+
+    if writer == "record":
+        from sdofreport.records import writers
+
+        real_fdopen = os.fdopen
+        monkeypatch.setattr(writers.os, "fdopen", lambda *a, **k: _Full(real_fdopen(*a, **k)))
+        target = tmp_path / "r.csv"
+        with pytest.raises(BuildError, match=f"{target}: could not be written: "
+                                             f"{os.strerror(errno.ENOSPC)}"):
+            writers.write_two_column(target, 0.01, [0.0, 0.1, 0.0], units="g")
+        assert list(tmp_path.iterdir()) == []  # no temporary file left behind
+    else:
+        from sdofreport import starter
+
+        def full(self, data):
+            raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+        monkeypatch.setattr(starter.Path, "write_bytes", full)
+        with pytest.raises(BuildError, match=f"{tmp_path / 'new'}/.*: could not be written"):
+            starter.write_starter(tmp_path / "new")
