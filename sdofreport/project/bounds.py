@@ -11,3 +11,6 @@ MAX_SCALE = 1e3
 #: Deepest spring network accepted (levels of series/parallel groups) [-]. Real
 #: structures need a handful; the TOML reader itself fails at a few hundred.
 MAX_NETWORK_DEPTH = 32
+#: Largest design-spectrum acceleration accepted [g]. Design spectra in use stay within a
+#: few g (from memory); 100 g can only be a slip of value or unit.
+MAX_SPECTRAL_G = 100.0

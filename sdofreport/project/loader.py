@@ -35,7 +35,7 @@ from sdofreport.project.model import (
     RecordSpec,
     SystemSpec,
 )
-from sdofreport.project.bounds import MAX_NETWORK_DEPTH, MAX_SCALE
+from sdofreport.project.bounds import MAX_NETWORK_DEPTH, MAX_SCALE, MAX_SPECTRAL_G
 from sdofreport.project.ids import id_case_problems, id_problem, with_lines
 from sdofreport.project.quantities import QuantityError, parse_quantity, save_memo
 from sdofreport.core.units import G
@@ -734,6 +734,23 @@ def _check_bounded(value, where: str, limit: float, what: str, problems: _Proble
         problems.add(where, f"expected a {what} of at most {limit:g}, found {value:g}")
 
 
+def _check_absurd_design(design: DesignSpectrumSpec | None, scaling: ScalingSpec,
+                         analysis: AnalysisSettings, problems: _Problems) -> None:
+    """Problems for a design spectrum beyond any real one, or an absurd suite factor."""
+    _check_bounded(scaling.suite_factor, "scaling.suite_factor", MAX_SCALE, "suite factor",
+                   problems)
+    if design is None:
+        return
+    # Zero period too: a huge plateau can lie entirely below the analysis periods.
+    periods = sorted({0.0, *analysis.periods_s, *(design.values.get("periods") or [])})
+    with np.errstate(all="ignore"):
+        peak = float(np.max(design.spectrum().sa_g(np.asarray(periods, dtype=float))))
+    if not (math.isfinite(peak) and peak <= MAX_SPECTRAL_G):
+        shown = ", ".join(f"{key} = {value!r}" for key, value in design.values.items())
+        problems.add("design_spectrum", f"the spectrum reaches {peak:.3g} g ({shown}); "
+                     f"expected at most {MAX_SPECTRAL_G:g} g: check the values and units")
+
+
 def _network_depth_ok(node, where: str, problems: _Problems) -> bool:
     """False (with a problem) when a spring network nests deeper than allowed.
 
@@ -840,6 +857,7 @@ def load_project(path) -> Project:
     scaling = _read_scaling(document.get("scaling"), design, "design_spectrum" in document,
                             problems)
     inelastic = _read_inelastic(document.get("inelastic_spectra"), problems)
+    _check_absurd_design(design, scaling, analysis, problems)
     synthetic = _read_synthetic(synthetic_table, design if design_early is not None else
                                 None, problems)
     if synthetic is not None:

@@ -142,6 +142,9 @@ PROJECT_CASES = [
     ("network_40_deep.toml", ["systems[1].network (line 21)",
                               "nested more than 32 levels deep"], []),
     ("network_400_deep.toml", ["line 21", "nested", "at most 32 levels"], []),
+    ("design_sds_1e200.toml", ["design_spectrum: the spectrum reaches 4e+199 g",
+                               "sds = 1e+200", "at most 100 g"], []),
+    ("suite_factor_1e300.toml", ["scaling.suite_factor", "at most 1000, found 1e+300"], []),
     ("period_too_short.toml", ["systems[1] (id 's1') period", "1e-06 s is too short for "
                                "the time step 0.01 s of record 'r1'"], []),
     ("several_problems.toml", ["has 3 problems", "records[2].id", "systems[1].damping",

@@ -266,6 +266,12 @@ PROJECT_FILES: dict[str, bytes | str] = {
     "period_too_short.toml": project(system=sys_with('period = "0.5 s"',
                                                      'period = "0.000001 s"')),
     "bom_project.toml": b"\xef\xbb\xbf" + GOOD.encode("utf-8"),
+    "design_sds_1e200.toml": project(extra='[design_spectrum]\nkind = "asce7-16"\n'
+                                           'sds = 1e200\nsd1 = 0.5\ntl = "8 s"\n'),
+    "suite_factor_1e300.toml": project(extra='[design_spectrum]\nkind = "asce7-16"\n'
+                                             'sds = 1.0\nsd1 = 0.5\ntl = "8 s"\n\n'
+                                             '[scaling]\nrule = "fit"\n'
+                                             'suite_factor = 1e300\n'),
     # three problems at once: every one must be reported
     "several_problems.toml": project(records=RECORDS_TWO.replace('"r2"', '"r1"'),
                                      system=sys_with("damping = 0.05", "damping = 7")
