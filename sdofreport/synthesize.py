@@ -23,6 +23,7 @@ from sdofreport.core.compatible import COMPATIBLE_ENVELOPES, spectrum_compatible
 from sdofreport.core.design_spectra import DESIGN_SPECTRUM_KINDS, design_spectrum
 from sdofreport.core.units import G
 from sdofreport.errors import SdofreportError, naming_path
+from sdofreport.project.bounds import MAX_SYNTHETIC_SAMPLES
 from sdofreport.records.writers import write_two_column
 
 __all__ = [
@@ -253,6 +254,11 @@ def synthesize(target: SynthesisTarget, folder, *, count=1, duration_s=25.0, dt_
     if envelope not in COMPATIBLE_ENVELOPES:
         raise SdofreportError(f"--envelope {envelope!r}: allowed: "
                               f"{', '.join(COMPATIBLE_ENVELOPES)}.")
+    if dt_s > 0 and duration_s / dt_s > MAX_SYNTHETIC_SAMPLES:
+        raise SdofreportError(f"--duration {duration_s:g} s at --dt {dt_s:g} s makes "
+                              f"{duration_s / dt_s:.3g} samples per record; expected at most "
+                              f"{MAX_SYNTHETIC_SAMPLES:,} (shorten the duration or coarsen "
+                              f"dt).")
     zeta = damping if damping is not None else (target.damping or 0.05)
     folder = Path(folder)
     names = [record_file_name(i + 1) for i in range(count)] + [SUMMARY_FILE]

@@ -14,3 +14,6 @@ MAX_NETWORK_DEPTH = 32
 #: Largest design-spectrum acceleration accepted [g]. Design spectra in use stay within a
 #: few g (from memory); 100 g can only be a slip of value or unit.
 MAX_SPECTRAL_G = 100.0
+#: Most samples in one synthetic record [-]: 1e6 is 10000 s at 0.01 s, or 1000 s at
+#: 0.001 s; beyond it the memory of a 2-core, 24 GiB machine runs out.
+MAX_SYNTHETIC_SAMPLES = 1_000_000

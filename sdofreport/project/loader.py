@@ -35,7 +35,12 @@ from sdofreport.project.model import (
     RecordSpec,
     SystemSpec,
 )
-from sdofreport.project.bounds import MAX_NETWORK_DEPTH, MAX_SCALE, MAX_SPECTRAL_G
+from sdofreport.project.bounds import (
+    MAX_NETWORK_DEPTH,
+    MAX_SCALE,
+    MAX_SPECTRAL_G,
+    MAX_SYNTHETIC_SAMPLES,
+)
 from sdofreport.project.ids import id_case_problems, id_problem, with_lines
 from sdofreport.project.quantities import QuantityError, parse_quantity, save_memo
 from sdofreport.core.units import G
@@ -676,9 +681,12 @@ def _read_synthetic(table, design, problems: _Problems) -> SyntheticSpec | None:
     count, duration, dt = values["count"], values["duration"], values["dt"]
     if count is not None and not 1 <= count <= 100:
         problems.add(f"{where}.count", f"expected 1 to 100 records, found {count}")
+        values["count"] = None  # never make (or list) that many records
     if duration is not None and dt is not None and not 0 < 20 * dt <= duration:
         problems.add(f"{where}.dt", f"expected 0 < dt and at least 20 steps in the "
                      f"duration, found dt {dt:g} s for {duration:g} s")
+    if not _synthetic_length_ok(duration, dt, where, problems):
+        values["duration"] = None
     period_range = _period_range(table, where, (0.05, 4.0), problems)
     if design is None:
         problems.add(where, "synthetic records need a [design_spectrum] section (their "
@@ -749,6 +757,19 @@ def _check_absurd_design(design: DesignSpectrumSpec | None, scaling: ScalingSpec
         shown = ", ".join(f"{key} = {value!r}" for key, value in design.values.items())
         problems.add("design_spectrum", f"the spectrum reaches {peak:.3g} g ({shown}); "
                      f"expected at most {MAX_SPECTRAL_G:g} g: check the values and units")
+
+
+def _synthetic_length_ok(duration, dt, where: str, problems: _Problems) -> bool:
+    """False (with a problem) when a synthetic record would hold too many samples."""
+    if duration is None or dt is None or not dt > 0:
+        return True
+    samples = duration / dt
+    if samples <= MAX_SYNTHETIC_SAMPLES:
+        return True
+    problems.add(f"{where}.duration", f"duration {duration:g} s at dt {dt:g} s makes "
+                 f"{samples:.3g} samples per record; expected at most "
+                 f"{MAX_SYNTHETIC_SAMPLES:,} (shorten the duration or coarsen dt)")
+    return False
 
 
 def _network_depth_ok(node, where: str, problems: _Problems) -> bool:

@@ -144,6 +144,9 @@ PROJECT_CASES = [
     ("network_400_deep.toml", ["line 21", "nested", "at most 32 levels"], []),
     ("design_sds_1e200.toml", ["design_spectrum: the spectrum reaches 4e+199 g",
                                "sds = 1e+200", "at most 100 g"], []),
+    ("synthetic_1e9_s.toml", ["synthetic_records.duration", "1e+11 samples per record",
+                              "at most 1,000,000"], []),
+    ("synthetic_count_1e8.toml", ["synthetic_records.count", "found 100000000"], []),
     ("suite_factor_1e300.toml", ["scaling.suite_factor", "at most 1000, found 1e+300"], []),
     ("period_too_short.toml", ["systems[1] (id 's1') period", "1e-06 s is too short for "
                                "the time step 0.01 s of record 'r1'"], []),

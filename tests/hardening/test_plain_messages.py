@@ -138,3 +138,18 @@ def test_full_disk_names_the_file_of_every_writer(tmp_path, monkeypatch, writer)
         monkeypatch.setattr(starter.Path, "write_bytes", full)
         with pytest.raises(BuildError, match=f"{tmp_path / 'new'}/.*: could not be written"):
             starter.write_starter(tmp_path / "new")
+
+
+@pytest.mark.parametrize("option, found", [(["--duration", "1e9"], "1e+11 samples"),
+                                           (["--dt", "1e-12"], "2.5e+13 samples")])
+def test_synthesize_refuses_records_beyond_memory(tmp_path, option, found):
+    # 1e11 float64 samples are 800 GB (arithmetic); the machine has 24 GiB.
+    from click.testing import CliRunner
+
+    from sdofreport.cli import cli
+
+    result = CliRunner().invoke(cli, ["synthesize", "--target", "asce7-16:sds=1.0,sd1=0.6,"
+                                      "tl=8", "-o", str(tmp_path / "out"), *option])
+    assert result.exit_code == 2, result.output
+    assert found in result.output and "at most 1,000,000" in result.output
+    assert not (tmp_path / "out").exists()

@@ -268,6 +268,13 @@ PROJECT_FILES: dict[str, bytes | str] = {
     "bom_project.toml": b"\xef\xbb\xbf" + GOOD.encode("utf-8"),
     "design_sds_1e200.toml": project(extra='[design_spectrum]\nkind = "asce7-16"\n'
                                            'sds = 1e200\nsd1 = 0.5\ntl = "8 s"\n'),
+    "synthetic_1e9_s.toml": project(records="", extra='[design_spectrum]\n'
+                                    'kind = "asce7-16"\nsds = 1.0\nsd1 = 0.5\ntl = "8 s"\n\n'
+                                    '[synthetic_records]\ncount = 3\nduration = "1e9 s"\n'),
+    "synthetic_count_1e8.toml": project(records="", extra='[design_spectrum]\n'
+                                        'kind = "asce7-16"\nsds = 1.0\nsd1 = 0.5\n'
+                                        'tl = "8 s"\n\n[synthetic_records]\n'
+                                        'count = 100000000\n'),
     "suite_factor_1e300.toml": project(extra='[design_spectrum]\nkind = "asce7-16"\n'
                                              'sds = 1.0\nsd1 = 0.5\ntl = "8 s"\n\n'
                                              '[scaling]\nrule = "fit"\n'
