@@ -278,14 +278,11 @@ def _absurd_after_scaling(spec: RecordSpec, record: Record, where: str) -> str |
 
 
 def _too_short(period_s: float, dt_s: float, spp: float) -> bool:
-    """True when ``period_s`` needs more sub-steps per sample than the kernels allow."""
-    from sdofreport.core.spectra import substep_counts
+    """True when ``period_s`` needs more sub-steps per sample than the kernels allow
+    (``dt · spp / T`` sub-steps, as :func:`sdofreport.core.spectra.substep_counts`)."""
+    from sdofreport.core.spectra import _MAX_SUBSTEPS
 
-    try:
-        substep_counts(np.array([period_s]), dt_s, spp)
-    except ValueError:
-        return True
-    return False
+    return not dt_s * spp / period_s <= _MAX_SUBSTEPS
 
 
 def _check_periods(project: Project, records: list[Record], problems: list[str]) -> None:

@@ -17,3 +17,6 @@ MAX_SPECTRAL_G = 100.0
 #: Most samples in one synthetic record [-]: 1e6 is 10000 s at 0.01 s, or 1000 s at
 #: 0.001 s; beyond it the memory of a 2-core, 24 GiB machine runs out.
 MAX_SYNTHETIC_SAMPLES = 1_000_000
+#: Longest spectrum period accepted [s]. Spectra stop at 10 s or so in common practice
+#: (no source); no record lasts long enough to excite 1000 s.
+MAX_PERIOD_S = 1e3

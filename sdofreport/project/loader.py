@@ -37,6 +37,7 @@ from sdofreport.project.model import (
 )
 from sdofreport.project.bounds import (
     MAX_NETWORK_DEPTH,
+    MAX_PERIOD_S,
     MAX_SCALE,
     MAX_SPECTRAL_G,
     MAX_SYNTHETIC_SAMPLES,
@@ -257,6 +258,7 @@ def _read_analysis(table, problems: _Problems) -> AnalysisSettings:
             else:
                 damping.append(float(value))
     periods = _read_periods(table.get("periods", spec["periods"].default), problems)
+    _check_longest_period(periods, "analysis.periods", problems)
     return AnalysisSettings(method, tuple(sorted(set(damping))) or (0.05,), periods,
                             statistic)
 
@@ -710,6 +712,7 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
                              f"{where}.strength_reduction", 1.0, problems)
     periods = _read_periods(table.get("periods", spec["periods"].default), problems,
                             f"{where}.periods")
+    _check_longest_period(periods, f"{where}.periods", problems)
     damping = _read_value(table, spec["damping"], where, problems)
     alpha = _read_value(table, spec["post_yield_ratio"], where, problems)
     if None in (ductility, reduction, damping, alpha):
@@ -770,6 +773,13 @@ def _synthetic_length_ok(duration, dt, where: str, problems: _Problems) -> bool:
                  f"{samples:.3g} samples per record; expected at most "
                  f"{MAX_SYNTHETIC_SAMPLES:,} (shorten the duration or coarsen dt)")
     return False
+
+
+def _check_longest_period(periods, where: str, problems: _Problems) -> None:
+    """A problem when a spectrum period exceeds :data:`MAX_PERIOD_S`."""
+    if periods and max(periods) > MAX_PERIOD_S:
+        problems.add(where, f"expected periods of at most {MAX_PERIOD_S:g} s, found "
+                     f"{max(periods):g} s")
 
 
 def _network_depth_ok(node, where: str, problems: _Problems) -> bool:

@@ -147,6 +147,9 @@ PROJECT_CASES = [
     ("synthetic_1e9_s.toml", ["synthetic_records.duration", "1e+11 samples per record",
                               "at most 1,000,000"], []),
     ("synthetic_count_1e8.toml", ["synthetic_records.count", "found 100000000"], []),
+    ("periods_max_1e300.toml", ["analysis.periods", "at most 1000 s, found 1e+300 s"], []),
+    ("periods_min_1e-300.toml", ["analysis.periods: the shortest spectrum period 1e-300 s "
+                                 "is too short for the time step 0.01 s"], []),
     ("suite_factor_1e300.toml", ["scaling.suite_factor", "at most 1000, found 1e+300"], []),
     ("period_too_short.toml", ["systems[1] (id 's1') period", "1e-06 s is too short for "
                                "the time step 0.01 s of record 'r1'"], []),

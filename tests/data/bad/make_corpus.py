@@ -275,6 +275,10 @@ PROJECT_FILES: dict[str, bytes | str] = {
                                         'kind = "asce7-16"\nsds = 1.0\nsd1 = 0.5\n'
                                         'tl = "8 s"\n\n[synthetic_records]\n'
                                         'count = 100000000\n'),
+    "periods_max_1e300.toml": project(extra='[analysis]\nperiods = { min = "0.1 s", '
+                                            'max = "1e300 s", count = 20 }\n'),
+    "periods_min_1e-300.toml": project(extra='[analysis]\nperiods = { min = "1e-300 s", '
+                                             'max = "2 s", count = 20 }\n'),
     "suite_factor_1e300.toml": project(extra='[design_spectrum]\nkind = "asce7-16"\n'
                                              'sds = 1.0\nsd1 = 0.5\ntl = "8 s"\n\n'
                                              '[scaling]\nrule = "fit"\n'
