@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import logging
 import os
 import time
@@ -12,9 +13,9 @@ from pathlib import Path
 from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir, run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
-from sdofreport.site.render import (gather_site, prepare_output, recover_site,
-                                    start_record_figures)
-from sdofreport.site.tree import StagedTree
+from sdofreport.project.quantities import without_memo
+from sdofreport.site.render import gather_site, prepare_output, recover_site, start_record_figures
+from sdofreport.site.tree import OutputLock, StagedTree, output_folder
 
 log = logging.getLogger("sdofreport.build")
 
@@ -59,21 +60,39 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     then swap it in for ``output``.
 
     Raises :class:`~sdofreport.errors.SdofreportError` subclasses for bad input; in that
-    case nothing is written and any previous site at ``output`` is left intact.
+    case nothing is written and any previous site at ``output`` is left intact. Only one
+    build at a time writes into one folder (:class:`~sdofreport.site.tree.OutputLock`);
+    another one meanwhile is refused.
     """
     started = time.perf_counter()
+    output = output_folder(output)  # not a symbolic link, not the current folder
+    with OutputLock(output):
+        return _build_locked(project_file, output, started, jobs=jobs, cache_dir=cache_dir,
+                             use_cache=use_cache, allow_outside=allow_outside,
+                             progress=progress, scheduler=scheduler,
+                             dask_local=dask_local, compare_to=compare_to)
+
+
+def _build_locked(project_file, output: Path, started: float, *, jobs, cache_dir,
+                  use_cache, allow_outside, progress, scheduler, dask_local,
+                  compare_to) -> BuildOutcome:
+    """:func:`build_site` once the output folder is locked."""
     recover_site(output)  # a previous build killed mid-swap: put its site back first
     old = None
     if compare_to is not None:  # read it first: a bad OLD fails before any work
         from sdofreport.archive.compare import load_run
 
         old = load_run(compare_to).results
-    project = load_project(project_file)
+    with contextlib.nullcontext() if use_cache else without_memo():
+        project = load_project(project_file)  # --no-cache: no remembered unit strings
     _check_inside(project, allow_outside)
     prepare_output(output)  # a folder that cannot take the site fails before any work
     figure_cache = None
-    if use_cache:
-        figure_cache = ResultCache(Path(cache_dir or default_cache_dir()) / "figures")
+    if use_cache:  # a folder another user could write is not used (and reported)
+        folder = ResultCache(cache_dir or default_cache_dir()).folder
+        use_cache = folder is not None
+        if use_cache:
+            cache_dir, figure_cache = folder, ResultCache(folder / "figures")
     extra = None
     if old is not None:
         from sdofreport.archive.compare import revision_page

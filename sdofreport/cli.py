@@ -16,10 +16,13 @@ import sys
 import click
 
 from sdofreport import __version__
+from sdofreport.cli_options import deprecated, emit, output_option, resolve_format
 from sdofreport.core.spectra import SPECTRUM_METHODS
 from sdofreport.errors import SdofreportError
 
 log = logging.getLogger("sdofreport")
+
+SPECTRUM_FORMATS = ("json", "csv")
 
 
 def _version_text() -> str:
@@ -100,9 +103,10 @@ def _record_options(func):
     func = click.option("--units", type=click.Choice(acceleration_unit_names(),
                         case_sensitive=False), default=None,
                         help="Units of the acceleration values in the file (default g).")(func)
-    func = click.option("--format", "file_format", type=click.Choice(RECORD_FORMATS),
-                        default="auto", show_default=True,
-                        help="Record file layout; auto detects it and says which.")(func)
+    func = click.option("--layout", "file_format", type=click.Choice(RECORD_FORMATS),
+                        default=None,
+                        help="Record file layout (default auto: detected, and said "
+                             "which).")(func)
     return func
 
 
@@ -115,32 +119,49 @@ def _record_options(func):
               help="Comma-separated periods [s]. Default 200 log-spaced, 0.01-10 s.")
 @click.option("--method", type=click.Choice(SPECTRUM_METHODS), default="exact",
               show_default=True, help="Integration method.")
-@click.option("--output", type=click.Choice(["json", "csv"]), default="json",
-              show_default=True, help="Format written to standard output.")
-def spectrum_command(file, file_format, units, dt_s, damping, periods_text, method, output):
+@click.option("--format", "output_format", default=None, metavar="[json|csv]",
+              help="Format written: json (spectra and intensity measures) or csv (the "
+                   "same as tables; default json).")
+@output_option("Write to this file instead of standard output.")
+def spectrum_command(file, file_format, units, dt_s, damping, periods_text, method,
+                     output_format, output):
     """Response spectra and intensity measures of one record, to standard output.
+
+    The detected (or given) file layout, the point count and the time step are said on
+    standard error.
 
     \b
     Example:
-      sdofreport spectrum record.txt --units g --damping 0.02 --damping 0.05 --output csv
+      sdofreport spectrum record.txt --units g --damping 0.02 --damping 0.05 --format csv
     """
+    from sdofreport.records import RECORD_FORMATS
     from sdofreport.spectrum_report import spectrum_report
 
+    if output_format in RECORD_FORMATS and file_format is None:
+        deprecated(f"'--format {output_format}' names a record layout; use "
+                   f"'--layout {output_format}' ('--format' is now the output format).")
+        file_format, output_format = output_format, None
+    if output_format is not None and output_format not in SPECTRUM_FORMATS:
+        raise click.BadParameter(f"expected one of {', '.join(SPECTRUM_FORMATS)}, found "
+                                 f"{output_format!r}.", param_hint="'--format'")
+    output_format, output = resolve_format(SPECTRUM_FORMATS, "json", output_format, output)
     periods = _float_list(periods_text, "--periods")
-    report = spectrum_report(file, file_format=file_format, units=units, dt_s=dt_s,
-                             damping=list(damping) or [0.05], periods=periods,
+    report = spectrum_report(file, file_format=file_format or "auto", units=units,
+                             dt_s=dt_s, damping=list(damping) or [0.05], periods=periods,
                              method=method)
+    click.echo(report["read"], err=True)
     for warning in report["warnings"]:
         click.echo(f"Warning: {warning}", err=True)
     for note in report["notes"]:
         log.info(note)
-    if output == "json":
-        click.echo(json.dumps(report["json"], indent=1))
+    if output_format == "json":
+        text = json.dumps(report["json"], indent=1) + "\n"
     else:
         buffer = io.StringIO()
         writer = csv.writer(buffer, lineterminator="\n")
         writer.writerows(report["csv"])
-        click.echo(buffer.getvalue(), nl=False)
+        text = buffer.getvalue()
+    emit(text, output)
 
 
 @cli.command("build")

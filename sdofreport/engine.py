@@ -9,8 +9,9 @@ Phases (each a batch of independent jobs, see :mod:`sdofreport.jobs`):
    (exact: a linear oscillator's response is proportional to its excitation);
 3. per system × record: the response history of the system to the scaled record.
 
-Each job's result is cached under a content hash of its inputs, its settings and the
-package version, so a rebuild with nothing changed recomputes nothing. Outputs are
+Each job's result is cached under a content hash of its inputs, its settings, the
+package version and a fingerprint of its sources (:func:`sdofreport.cache.cache_key`),
+so a rebuild with nothing changed recomputes nothing. Outputs are
 assembled in plan order, never completion order, so the same inputs give the same results.
 """
 
@@ -27,12 +28,12 @@ from typing import Callable
 import numpy as np
 
 from sdofreport import __version__
-from sdofreport.cache import ResultCache, content_hash, default_cache_dir
+from sdofreport.cache import ResultCache, cache_key, default_cache_dir
 from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
 from sdofreport.errors import RecordError
-from sdofreport.executors import execute, fork_context
+from sdofreport.executors import execute, fork_context, local_pool
 from sdofreport.jobs import record_products, run_job
 from sdofreport.project.model import Project, RecordSpec, SystemSpec
 from sdofreport.records import Record, process_record, read_record
@@ -159,7 +160,7 @@ def synthetic_record(project: Project, index: int, cache: ResultCache | None = N
     seed = spec.seed + index
     periods = np.geomspace(0.02, 10.0, 200)
     target = project.design_spectrum.spectrum().sa_g(periods)
-    key = content_hash({"version": __version__, "job": "synthetic", "seed": seed,
+    key = cache_key({"version": __version__, "job": "synthetic", "seed": seed,
                         "spec": dataclasses.asdict(spec),
                         "design": project.design_spectrum.parameters,
                         "kind": project.design_spectrum.kind})
@@ -192,7 +193,7 @@ def _file_digest(spec: RecordSpec) -> str | None:
 
 def _read_key(spec: RecordSpec, digest: str | None) -> str:
     """Cache key of a record file as parsed with its reading settings."""
-    return content_hash({"version": __version__, "job": "read", "sha": digest,
+    return cache_key({"version": __version__, "job": "read", "sha": digest,
                          "name": spec.path.name, "format": spec.file_format,
                          "units": spec.units, "dt": spec.dt_s, "id": spec.id})
 
@@ -499,14 +500,14 @@ def run_project(project: Project, *, jobs: int | None = None,
     plan = []
     for record in records:
         args = _record_args(record, analysis)
-        key = content_hash({**base, "job": "record", "sha": _array_hash(args[0]),
+        key = cache_key({**base, "job": "record", "sha": _array_hash(args[0]),
                             "dt": record.dt_s, "periods": list(analysis.periods_s),
                             "damping": list(analysis.damping)})
         plan.append((f"record {record.id} (spectra)", "record", args, key))
     for name, (h1, h2) in pairs.items():
         a1, a2 = by_id[h1].acceleration_m_s2, by_id[h2].acceleration_m_s2
         args = (a1, a2, by_id[h1].dt_s, analysis.periods_s, SCALING_DAMPING, analysis.method)
-        key = content_hash({**base, "job": "pair", "sha1": _array_hash(a1),
+        key = cache_key({**base, "job": "pair", "sha1": _array_hash(a1),
                             "sha2": _array_hash(a2), "dt": by_id[h1].dt_s,
                             "periods": list(analysis.periods_s), "damping": SCALING_DAMPING})
         plan.append((f"pair {name} (RotD)", "pair", args, key))
@@ -540,7 +541,7 @@ def run_project(project: Project, *, jobs: int | None = None,
               for system in project.systems]
     for record in (scaled[r.id] for r in project.records):
         args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
-        key = content_hash({**base, "job": "responses", "sha": _array_hash(args[0]),
+        key = cache_key({**base, "job": "responses", "sha": _array_hash(args[0]),
                             "dt": record.dt_s, "models": models})
         plan.append((f"record {record.id} (responses of {len(models)} systems)",
                      "responses", args, key))
@@ -549,8 +550,9 @@ def run_project(project: Project, *, jobs: int | None = None,
         for record in (scaled[r.id] for r in project.records):
             args = (record.acceleration_m_s2, record.dt_s, inelastic_spec.periods_s,
                     inelastic_spec.damping, inelastic_spec.ductility,
-                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio)
-            key = content_hash({**base, "job": "inelastic", "sha": _array_hash(args[0]),
+                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio,
+                    inelastic_spec.steps_per_period)
+            key = cache_key({**base, "job": "inelastic", "sha": _array_hash(args[0]),
                                 "dt": record.dt_s, "spec": dataclasses.asdict(
                                     inelastic_spec)})
             plan.append((f"record {record.id} (inelastic spectra)", "inelastic", args,
@@ -637,13 +639,12 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
     the two one-off costs of a build that computes overlap. The records (and any error
     about them) are the same as read here; if the reader dies, they are read here.
     """
-    from concurrent.futures import ProcessPoolExecutor
     from concurrent.futures.process import BrokenProcessPool
 
     global _TO_READ
     _TO_READ = (project, cache)
     try:
-        with ProcessPoolExecutor(max_workers=1, mp_context=fork_context()) as pool:
+        with local_pool(1) as pool:
             future = pool.submit(_read_inherited)
             warm_kernels(project)
             try:

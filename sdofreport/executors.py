@@ -9,6 +9,9 @@ from __future__ import annotations
 
 import logging
 import os
+import signal
+import sys
+import threading
 import time
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from concurrent.futures.process import BrokenProcessPool
@@ -43,6 +46,56 @@ def fork_context():
     return None
 
 
+#: Seconds between a worker's checks that the process that started it is still alive.
+PARENT_CHECK_SECONDS = 0.5
+
+
+def _watch_parent(parent_pid: int) -> None:
+    """Exit this process (a pool worker) as soon as its parent ``parent_pid`` is gone."""
+    while os.getppid() == parent_pid:
+        time.sleep(PARENT_CHECK_SECONDS)
+    os._exit(1)
+
+
+def exit_with_parent(parent_pid: int) -> None:
+    """
+    Pool initializer: make this worker exit when the process that started it dies,
+    even by SIGKILL (which it cannot catch, so it cannot stop its workers itself).
+
+    On Linux the kernel sends the worker SIGKILL when its parent ends
+    (``prctl(PR_SET_PDEATHSIG)``, see prctl(2)); everywhere, a daemon thread also
+    checks the parent's process id every :data:`PARENT_CHECK_SECONDS` and exits when the
+    worker has been handed to another parent. Without this a worker blocked on its task
+    queue would wait forever, holding its memory.
+    """
+    if sys.platform.startswith("linux"):
+        try:
+            import ctypes
+
+            pr_set_pdeathsig = 1  # linux/prctl.h
+            libc = ctypes.CDLL(None, use_errno=True)
+            libc.prctl(pr_set_pdeathsig, signal.SIGKILL, 0, 0, 0)
+        except (OSError, AttributeError):  # the thread below still works
+            pass
+    if os.getppid() != parent_pid:  # the parent died before the line above ran
+        os._exit(1)
+    threading.Thread(target=_watch_parent, args=(parent_pid,), daemon=True,
+                     name="sdofreport-parent-watch").start()
+
+
+def local_pool(workers: int, context=None) -> ProcessPoolExecutor:
+    """
+    A local process pool whose workers exit when this process dies
+    (:func:`exit_with_parent`); forking where the platform can. Every pool of the
+    package is made here.
+    """
+    import multiprocessing
+
+    context = context or fork_context() or multiprocessing.get_context()
+    return ProcessPoolExecutor(max_workers=workers, mp_context=context,
+                               initializer=exit_with_parent, initargs=(os.getpid(),))
+
+
 def run_inline(jobs: list[Job], done: Done) -> None:
     """Run every job in this process, in order."""
     for index, (label, function, args) in enumerate(jobs):
@@ -69,16 +122,13 @@ def run_process_pool(jobs: list[Job], done: Done, workers: int) -> None:
     Run jobs in a local process pool, several small jobs per task to save round trips; a
     pool broken by a dying worker is rebuilt and the lost jobs run again one by one.
     """
-    import multiprocessing
-
-    context = fork_context() or multiprocessing.get_context()
     pending = list(range(len(jobs)))
     attempts = {index: 0 for index in pending}
     size = max(1, -(-len(pending) // (workers * 8)))  # about 8 tasks per worker
     while pending:
         retry = []
         batches = [pending[i:i + size] for i in range(0, len(pending), size)]
-        with ProcessPoolExecutor(max_workers=workers, mp_context=context) as pool:
+        with local_pool(workers) as pool:
             futures = {pool.submit(_run_batch, [(jobs[i][1], jobs[i][2]) for i in batch]):
                        batch for batch in batches}
             for future in as_completed(futures):

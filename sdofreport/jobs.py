@@ -101,7 +101,7 @@ def response_job(acceleration, dt_s, model: dict, method: str) -> dict:
 
 
 def inelastic_job(acceleration, dt_s, periods_s, damping, ductility, reduction,
-                  alpha) -> dict:
+                  alpha, steps_per_period) -> dict:
     """Constant-ductility and constant-strength spectra of one record (bilinear SDOF)."""
     from sdofreport.core.inelastic_spectra import (
         constant_ductility_spectrum,
@@ -111,9 +111,11 @@ def inelastic_job(acceleration, dt_s, periods_s, damping, ductility, reduction,
     periods = np.asarray(periods_s)
     return {
         "ductility": constant_ductility_spectrum(acceleration, dt_s, periods, damping,
-                                                 np.asarray(ductility), alpha),
+                                                 np.asarray(ductility), alpha,
+                                                 steps_per_period=steps_per_period),
         "strength": constant_strength_spectrum(acceleration, dt_s, periods, damping,
-                                               np.asarray(reduction), alpha),
+                                               np.asarray(reduction), alpha,
+                                               steps_per_period=steps_per_period),
     }
 
 

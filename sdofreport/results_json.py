@@ -25,12 +25,28 @@ from sdofreport.site.display import CHECK_SI_UNITS
 RESULTS_SCHEMA = "sdofreport/results@1"
 
 
+def signoff_block(info) -> dict:
+    """``signoff``: who prepared, checked and approved the document, with dates
+    (``approved`` is None when nobody is named), and ``revisions``, oldest first."""
+    approved = None
+    if info.approved_by:
+        approved = {"by": info.approved_by, "date": info.approved_date}
+    return {
+        "signoff": {"prepared": {"by": info.prepared_by, "date": info.prepared_date},
+                    "checked": {"by": info.checked_by, "date": info.checked_date},
+                    "approved": approved},
+        "revisions": [{"revision": r.revision, "date": r.date,
+                       "description": r.description, "by": r.by} for r in info.revisions],
+    }
+
+
 def project_block(results: Results) -> dict:
     info = results.project.info
     return {"title": info.title, "reference": info.reference, "revision": info.revision,
             "prepared_by": info.prepared_by, "checked_by": info.checked_by,
             "date": info.date, "display_units": info.display_units,
-            "file": results.project.path.name, "sha256": results.project.source_sha256}
+            "file": results.project.path.name, "sha256": results.project.source_sha256,
+            **signoff_block(info)}
 
 
 def settings_block(results: Results) -> dict:
@@ -148,6 +164,7 @@ def suite_blocks(results: Results) -> dict:
         blocks["inelastic_spectra"] = {
             "periods_s": list(spec.periods_s), "damping": spec.damping,
             "post_yield_ratio": spec.post_yield_ratio,
+            "steps_per_period": spec.steps_per_period,
             "ductility_targets": list(spec.ductility),
             "strength_reduction_factors": list(spec.strength_reduction),
             "records": {rid: {

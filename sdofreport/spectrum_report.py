@@ -36,8 +36,10 @@ def spectrum_report(path, *, file_format="auto", units=None, dt_s=None, damping=
     Returns
     -------
     dict
-        ``json``: the interface document; ``csv``: rows with a header; ``warnings`` and
-        ``notes``: text for the user.
+        ``json``: the interface document; ``csv``: rows with a header (spectra, then
+        the record's intensity measures on every row); ``read``: one line saying the
+        file layout (detected or given), point count, time step and units;
+        ``warnings`` and ``notes``: text for the user.
     """
     record = read_record(path, file_format=file_format, units=units, dt_s=dt_s)
     period_grid = default_periods() if periods is None else periods
@@ -52,6 +54,13 @@ def spectrum_report(path, *, file_format="auto", units=None, dt_s=None, damping=
         "intensity": intensity_to_dict(measures),
         **spectrum_to_dict(spectrum),
     }
-    rows = [spectrum_csv_header()] + spectrum_csv_rows(spectrum)
+    measures_row = intensity_to_dict(measures)
+    # One table: the record's intensity measures repeat on every row, so a spreadsheet
+    # or csv reader gets them without a second section.
+    rows = [spectrum_csv_header() + list(measures_row)] + [
+        row + list(measures_row.values()) for row in spectrum_csv_rows(spectrum)]
+    how = "detected" if file_format == "auto" else "as given"
+    read = (f"Read {path}: layout {record.file_format} ({how}), {record.npts} points at "
+            f"{record.dt_s:g} s, units {record.units}.")
     return {"json": document, "csv": rows, "warnings": list(record.warnings),
-            "notes": list(record.history)}
+            "notes": list(record.history), "read": read}

@@ -211,6 +211,17 @@ def _record_bytes(motion: StarterMotion, scratch: Path) -> bytes:
     return path.read_bytes()
 
 
+#: Keeps what a build writes beside the project out of version control: the site
+#: (``build`` writes ``_site/`` beside the project file by default) and the review packet
+#: (``build --pdf`` writes ``<site>-review-packet.pdf`` beside the site by default).
+GITIGNORE_TEXT = """\
+# Written by 'sdofreport build' (rebuild them from this folder; archive them with
+# 'sdofreport pack' rather than committing them).
+_site/
+*-review-packet.pdf
+"""
+
+
 def starter_files() -> dict[str, bytes]:
     """
     Every file of the starter project, keyed by its path relative to the project folder.
@@ -218,10 +229,11 @@ def starter_files() -> dict[str, bytes]:
     Returns
     -------
     dict of str to bytes
-        ``sdofreport.toml``, ``notes.md``, ``records/README.md`` and the three
+        ``sdofreport.toml``, ``.gitignore``, ``notes.md``, ``records/README.md`` and the three
         ``records/<id>.csv`` files; the same bytes on every call. [-]
     """
     files = {PROJECT_FILE: PROJECT_TEXT.encode("utf-8"),
+             ".gitignore": GITIGNORE_TEXT.encode("utf-8"),
              "notes.md": NOTES_TEXT.encode("utf-8"),
              "records/README.md": _records_readme().encode("utf-8")}
     with tempfile.TemporaryDirectory(prefix="sdofreport-new-") as scratch:

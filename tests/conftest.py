@@ -8,7 +8,10 @@ reference library, common practice or memory).
 
 from __future__ import annotations
 
+import contextlib
 import os
+import shutil
+import subprocess
 import textwrap
 from pathlib import Path
 
@@ -94,3 +97,33 @@ def project_factory(tmp_path):
 @pytest.fixture
 def valid_project_text() -> str:
     return PROJECT_HEAD + "\n" + TWO_RECORDS + "\n" + ONE_SYSTEM
+
+
+@contextlib.contextmanager
+def read_only_folder(folder: Path):
+    """
+    ``folder`` read-only for this process while inside: mode 500, and for root (who
+    writes anyway) the immutable attribute, chattr +i. Skips the test when neither works.
+    """
+    root = hasattr(os, "getuid") and os.getuid() == 0
+    if root:
+        if shutil.which("chattr") is None or subprocess.run(
+                ["chattr", "+i", str(folder)], capture_output=True, check=False).returncode:
+            pytest.skip("no immutable folders here (chattr +i), and root writes anyway")
+    else:
+        folder.chmod(0o500)
+    try:
+        yield folder
+    finally:
+        if root:
+            subprocess.run(["chattr", "-i", str(folder)], check=True)
+        folder.chmod(0o700)
+
+
+def process_alive(pid: int) -> bool:
+    """True while ``pid`` exists and is not a zombie (state in /proc/<pid>/stat, proc(5))."""
+    try:
+        with open(f"/proc/{pid}/stat", encoding="ascii") as handle:
+            return handle.read().rsplit(")", 1)[1].split()[0] != "Z"
+    except OSError:
+        return False

@@ -38,7 +38,7 @@ def test_spectrum_json_interface_and_values(records):
     result = run("spectrum", str(folder / "records" / "r1.csv"), "--damping", "0.05",
                  "--damping", "0.02", "--periods", "0.2,1.0")
     assert result.exit_code == 0, result.output
-    doc = json.loads(result.output)
+    doc = json.loads(result.stdout)
     assert list(doc) == ["record", "intensity", "method", "damping", "periods_s", "sd_m",
                          "sv_m_s", "psv_m_s", "psa_g", "sa_g"]
     assert set(doc["record"]) == {"id", "dt_s", "npts", "sha256", "units"}
@@ -61,21 +61,50 @@ def test_spectrum_json_interface_and_values(records):
 
 def test_spectrum_csv(records):
     folder, _ = records
-    result = run("spectrum", str(folder / "records" / "r2.txt"), "--output", "csv",
+    result = run("spectrum", str(folder / "records" / "r2.txt"), "--format", "csv",
                  "--periods", "0.1,0.5,2", "--method", "newmark-average")
     assert result.exit_code == 0, result.output
-    rows = list(csv.reader(io.StringIO(result.output)))
-    assert rows[0] == ["damping", "period_s", "sd_m", "sv_m_s", "psv_m_s", "psa_g", "sa_g"]
+    rows = list(csv.reader(io.StringIO(result.stdout)))
+    assert rows[0][:7] == ["damping", "period_s", "sd_m", "sv_m_s", "psv_m_s", "psa_g",
+                           "sa_g"]
     assert len(rows) == 1 + 3
+    # The intensity measures are in the csv too, equal to the json's.
+    doc = json.loads(run("spectrum", str(folder / "records" / "r2.txt"), "--periods",
+                         "0.1,0.5,2", "--method", "newmark-average").stdout)
+    for name, value in doc["intensity"].items():
+        column = rows[0].index(name)
+        assert {row[column] for row in rows[1:]} == {"" if value is None else repr(value)}
+    # The detected layout is said without -v (on standard error).
+    assert "layout" in result.stderr and "detected" in result.stderr
+
+
+def test_spectrum_old_spellings_still_work_with_a_deprecation(records, tmp_path):
+    """'--output csv' (a format) and '--format headed' (a layout) keep working for one
+    release, each with a deprecation message; '-o' now writes a file."""
+    folder, _ = records
+    path = str(folder / "records" / "r2.txt")
+    new = run("spectrum", path, "--format", "csv", "--periods", "0.5")
+    old = run("spectrum", path, "--output", "csv", "--periods", "0.5")
+    assert old.exit_code == 0 and old.stdout == new.stdout
+    assert "Deprecated" in old.stderr and "--format csv" in old.stderr
+    target = tmp_path / "out.csv"
+    written = run("spectrum", path, "--format", "csv", "--periods", "0.5", "-o", str(target))
+    assert written.exit_code == 0 and target.read_text("utf-8") == new.stdout
+    layout_old = run("spectrum", path, "--format", "headed", "--periods", "0.5")
+    layout_new = run("spectrum", path, "--layout", "headed", "--periods", "0.5")
+    assert layout_old.exit_code == 0 and layout_old.stdout == layout_new.stdout
+    assert "--layout headed" in layout_old.stderr
+    bad = run("spectrum", path, "--format", "xml")
+    assert bad.exit_code == 2 and "--format" in bad.output
 
 
 def test_spectrum_values_file_needs_dt(tmp_path):
     path = tmp_path / "v.txt"
     path.write_text("\n".join(f"{np.sin(i / 5):.5f}" for i in range(100)) + "\n")
-    result = run("spectrum", str(path), "--format", "values")
+    result = run("spectrum", str(path), "--layout", "values")
     assert result.exit_code == 2
     assert "v.txt" in result.output and "time step" in result.output
-    ok = run("spectrum", str(path), "--format", "values", "--dt", "0.01", "--units", "m/s2",
+    ok = run("spectrum", str(path), "--layout", "values", "--dt", "0.01", "--units", "m/s2",
              "--periods", "0.5")
     assert ok.exit_code == 0, ok.output
 

@@ -73,7 +73,9 @@ def test_damaged_cache_entry_is_recomputed(project_factory, valid_project_text, 
     project = load_project(project_factory(valid_project_text))
     cache = tmp_path / "cache"
     run_project(project, jobs=1, cache_dir=cache)
-    for entry in cache.rglob("*.pickle"):
+    entries = list(cache.rglob("*.entry"))
+    assert len(entries) >= 4
+    for entry in entries:
         entry.write_bytes(b"garbage")
     again = run_project(project, jobs=1, cache_dir=cache)
     assert again.cache_misses == 4

@@ -159,3 +159,30 @@ def test_inelastic_spectra_section(project_factory):
         assert np.all(mu[0] <= 1.0 + 1e-6)
         # Common practice (no source): a larger allowed ductility permits a larger R.
         assert np.all(r[1] > r[0])
+
+
+@pytest.mark.parametrize("value, expected", [("6", 6.0), (None, 8.0)])
+def test_inelastic_steps_per_period_is_read(project_factory, value, expected):
+    from tests.conftest import ONE_SYSTEM
+
+    line = "" if value is None else f"steps_per_period = {value}\n"
+    text = PROJECT_HEAD + "[inelastic_spectra]\n" + line + TWO_RECORDS + ONE_SYSTEM
+    # Definition: the key reference (docs/project-file.md) gives 8 as the default, the
+    # same as the core function's default.
+    from sdofreport.core.inelastic_spectra import DEFAULT_STEPS_PER_PERIOD
+
+    assert load_project(project_factory(text)).inelastic.steps_per_period == expected
+    assert value is not None or expected == DEFAULT_STEPS_PER_PERIOD
+
+
+def test_inelastic_steps_per_period_below_four_is_refused(project_factory):
+    from tests.conftest import ONE_SYSTEM
+
+    text = (PROJECT_HEAD + "[inelastic_spectra]\nsteps_per_period = 2\n" + TWO_RECORDS
+            + ONE_SYSTEM)
+    with pytest.raises(ProjectError) as info:
+        load_project(project_factory(text))
+    # Closed form: the kernel needs h <= T/4 (sdofreport.core.bilinear_exact).
+    assert ("inelastic_spectra.steps_per_period: expected a number of at least 4, found 2"
+            in info.value.message), info.value.message
+    assert info.value.exit_code == 2

@@ -1,11 +1,9 @@
 """Rendering the archive pages (comparison, revision, register) in the site's look.
 
-The templates extend the site's ``base.html``, so every page carries the same cautions.
-Pages that stand outside a site (a comparison on standard output, the register) need
-to replace base.html's masthead, site navigation, stylesheet link and provenance line.
-base.html is read through a loader that wraps those parts in named blocks (``masthead``,
-``nav``, ``stylesheet``, ``provenance``) whose default content is the original text, so
-pages inside a site render exactly as base.html has them.
+The templates extend the site's ``base.html``, so every page carries the same cautions,
+header and column. Pages that stand outside a site (a comparison on standard output,
+the register) replace base.html's named blocks ``masthead_id``, ``nav``, ``stylesheet``
+and ``provenance``.
 """
 
 from __future__ import annotations
@@ -19,35 +17,29 @@ from sdofreport import __version__
 from sdofreport.errors import BuildError
 from sdofreport.site.context import CAUTION_FULL, CAUTION_SHORT
 from sdofreport.site.render import template_dir
+from sdofreport.site.symbols import html_symbols
 
-_BLOCKS = (
-    ("masthead", re.compile(r'<div class="masthead-id">.*?</div>', re.S)),
-    ("nav", re.compile(r'<nav class="pages">.*?</nav>', re.S)),
-    ("stylesheet", re.compile(r'<link rel="stylesheet"[^>]*>')),
-    ("provenance", re.compile(r'<p class="provenance-line">.*?</p>', re.S)),
-)
+#: Characters after which a long file name may wrap: folder separators first, then
+#: the separators of its words.
+_BREAK_AFTER = re.compile(r"([/\\_.\-])")
 
 
-class _BlockedBaseLoader(jinja2.FileSystemLoader):
-    """FileSystemLoader that wraps parts of base.html in named blocks when it lacks them."""
-
-    def get_source(self, environment, template):
-        source, filename, uptodate = super().get_source(environment, template)
-        if template == "base.html":
-            for name, pattern in _BLOCKS:
-                if f"{{% block {name} %}}" in source:
-                    continue
-                source = pattern.sub(lambda m, n=name: f"{{% block {n} %}}{m.group(0)}"
-                                     f"{{% endblock %}}", source, count=1)
-        return source, filename, uptodate
+def breakable(text) -> markupsafe.Markup:
+    """``text`` escaped, with a line-break opportunity (``<wbr>``) after each ``/``,
+    ``\\``, ``_``, ``.`` and ``-``, so long file names wrap at sensible points."""
+    escaped = str(markupsafe.escape(str(text)))
+    return markupsafe.Markup(_BREAK_AFTER.sub(r"\1<wbr>", escaped))
 
 
 def environment() -> jinja2.Environment:
     """A jinja2 environment over the templates folder, autoescaping all user text."""
-    return jinja2.Environment(
-        loader=_BlockedBaseLoader(str(template_dir())),
+    env = jinja2.Environment(
+        loader=jinja2.FileSystemLoader(str(template_dir())),
         autoescape=True, undefined=jinja2.StrictUndefined,
         trim_blocks=False, lstrip_blocks=False, keep_trailing_newline=True)
+    env.filters["breakable"] = breakable
+    env.filters["symbols"] = html_symbols
+    return env
 
 
 def stylesheet() -> markupsafe.Markup:

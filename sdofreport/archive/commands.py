@@ -7,32 +7,24 @@ Each command parses its options, calls one function and reports. Exit status: 0 
 
 from __future__ import annotations
 
-import contextlib
 import json
-import os
 import sys
-import tempfile
-from pathlib import Path
 
 import click
+
+from sdofreport.cli_options import (
+    emit,
+    format_option,
+    old_output_file_option,
+    output_option,
+    resolve_format,
+)
 
 #: Exit status when a file, manifest entry or re-run result differs.
 EXIT_DIFFERS = 4
 
-
-def _write_text_atomically(text: str, target: Path) -> None:
-    target.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".partial",
-                                         dir=target.parent)
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as stream:
-            stream.write(text)
-        os.chmod(temporary, 0o644)
-        os.replace(temporary, target)
-    except BaseException:
-        with contextlib.suppress(OSError):
-            os.unlink(temporary)
-        raise
+VERIFY_FORMATS = ("text", "json")
+COMPARE_FORMATS = ("text", "json", "html")
 
 
 @click.command("verify")
@@ -45,9 +37,9 @@ def _write_text_atomically(text: str, target: Path) -> None:
                    "another version; exact with the same version unless given).")
 @click.option("--jobs", "-j", type=click.IntRange(min=1), default=None,
               help="Worker processes for --rerun (default: the number of cores).")
-@click.option("--output", type=click.Choice(["text", "json"]), default="text",
-              show_default=True, help="Report format written to standard output.")
-def verify_command(site, rerun, rtol, jobs, output):
+@format_option(VERIFY_FORMATS, "text")
+@output_option("Write the report to this file instead of standard output.")
+def verify_command(site, rerun, rtol, jobs, output_format, output):
     """Check a site folder or packed zip against its manifest.json.
 
     Re-hashes every file (SHA-256) and lists any file added, missing or changed; checks
@@ -61,12 +53,13 @@ def verify_command(site, rerun, rtol, jobs, output):
     """
     from sdofreport.archive.verify import verify_site
 
+    output_format, output = resolve_format(VERIFY_FORMATS, "text", output_format, output)
     report = verify_site(site, rerun=rerun, rtol=rtol, jobs=jobs)
-    if output == "json":
-        click.echo(json.dumps(report.as_dict(), indent=1, ensure_ascii=False))
+    if output_format == "json":
+        text = json.dumps(report.as_dict(), indent=1, ensure_ascii=False) + "\n"
     else:
-        for line in report.lines():
-            click.echo(line)
+        text = "".join(f"{line}\n" for line in report.lines())
+    emit(text, output)
     if not report.ok:
         sys.exit(EXIT_DIFFERS)
 
@@ -74,12 +67,10 @@ def verify_command(site, rerun, rtol, jobs, output):
 @click.command("compare")
 @click.argument("old", type=click.Path(path_type=str))
 @click.argument("new", type=click.Path(path_type=str))
-@click.option("--output", "output_format", type=click.Choice(["text", "json", "html"]),
-              default="text", show_default=True,
-              help="Format: text or json tables, or a self-contained html page.")
-@click.option("-o", "--output-file", type=click.Path(dir_okay=False, path_type=str),
-              default=None, help="Write to this file instead of standard output.")
-def compare_command(old, new, output_format, output_file):
+@format_option(COMPARE_FORMATS, "text")
+@output_option("Write to this file instead of standard output.")
+@old_output_file_option()
+def compare_command(old, new, output_format, output, output_file):
     """Compare two runs: checks, systems, records and settings that changed.
 
     OLD and NEW are each a site folder, a zip made by 'sdofreport pack' or a
@@ -88,7 +79,7 @@ def compare_command(old, new, output_format, output_file):
 
     \b
     Example:
-      sdofreport compare old_site new_site --output html -o revision.html
+      sdofreport compare old_site new_site --format html -o revision.html
     """
     from sdofreport.archive.compare import (
         compare_paths,
@@ -97,6 +88,8 @@ def compare_command(old, new, output_format, output_file):
         comparison_text,
     )
 
+    output_format, output = resolve_format(COMPARE_FORMATS, "text", output_format, output,
+                                           output_file)
     document, old_run, new_run = compare_paths(old, new)
     if output_format == "json":
         text = comparison_json(document)
@@ -104,11 +97,7 @@ def compare_command(old, new, output_format, output_file):
         text = comparison_html(document, old_run.results, new_run.results)
     else:
         text = comparison_text(document)
-    if output_file is None:
-        click.echo(text, nl=False)
-    else:
-        _write_text_atomically(text, Path(output_file))
-        click.echo(f"Wrote {output_file}", err=True)
+    emit(text, output)
 
 
 @click.command("pack")

@@ -233,6 +233,7 @@ def recompute_results(files: dict[str, bytes], manifest: dict, stored_date: str 
     """
     from sdofreport.engine import run_project
     from sdofreport.project import load_project
+    from sdofreport.project.quantities import without_memo
     from sdofreport.results_json import results_document
 
     inputs = {path: data for path, data in files.items() if path.startswith("inputs/")}
@@ -247,7 +248,7 @@ def recompute_results(files: dict[str, bytes], manifest: dict, stored_date: str 
             target = Path(folder, *path.split("/")[1:])
             target.parent.mkdir(parents=True, exist_ok=True)
             target.write_bytes(data)
-        with _source_date(stored_date):
+        with _source_date(stored_date), without_memo():
             project = load_project(Path(folder, *project_file.split("/")[1:]))
         results = run_project(project, jobs=jobs, use_cache=False)
         document = results_document(results)

@@ -2,9 +2,12 @@
 
 Numba caches compiled machine code next to the source file by default. An installed
 package folder is often read-only (and in CI so is HOME), and then cached functions fail
-at import. Unless the user has chosen ``NUMBA_CACHE_DIR``, we point it at a writable
-per-user cache folder, falling back to the system temporary folder. This must happen
-before numba is imported, which is why every kernel module gets numba through here.
+at import. Unless the user has chosen ``NUMBA_CACHE_DIR``, we point it at a safe,
+writable per-user cache folder (:func:`sdofreport._cachedir.user_cache_dir`). Numba's
+cache index files are pickles, loaded back when a kernel is compiled, so a folder that
+another user could write (also one the user chose) is not used: kernels are then
+compiled without a disk cache, and a warning says so. This must happen before numba is
+imported, which is why every kernel module gets numba through here.
 
 Importing numba costs about 0.3 s, and a build whose results all come from the cache
 runs no kernel. So :func:`njit` returns a stand-in that records the function and its
@@ -20,10 +23,24 @@ import os
 import sys
 from typing import Any, Callable
 
-from sdofreport._cachedir import user_cache_dir
+from sdofreport._cachedir import private_folder, report_unusable, user_cache_dir
 
-if not os.environ.get("NUMBA_CACHE_DIR"):
-    os.environ["NUMBA_CACHE_DIR"] = user_cache_dir("numba")
+
+def _choose_cache_folder() -> bool:
+    """Point ``NUMBA_CACHE_DIR`` at a safe folder; False when there is none (then the
+    kernels are compiled without numba's disk cache)."""
+    chosen = os.environ.get("NUMBA_CACHE_DIR")
+    if chosen:
+        folder, reason = private_folder(chosen)
+        if folder is not None:
+            return True
+        report_unusable("numba cache (NUMBA_CACHE_DIR)", reason)
+        return False
+    folder = user_cache_dir("numba")
+    if folder is None:
+        return False
+    os.environ["NUMBA_CACHE_DIR"] = folder
+    return True
 
 
 def _wide_vectors() -> None:
@@ -54,6 +71,9 @@ def _wide_vectors() -> None:
 JIT_OPTIONS = {"cache": True, "fastmath": False, "nogil": True}
 
 _NUMBA: Any = None  # the numba module, once loaded
+#: False when no safe folder was found for numba's cache (chosen now: numba reads
+#: NUMBA_CACHE_DIR when it is imported, and something may import it before a kernel runs).
+_DISK_CACHE = _choose_cache_folder()
 _PENDING: list[_Kernel] = []  # stand-ins made before numba was loaded
 
 
@@ -79,12 +99,17 @@ class _Kernel:
         return f"<compiled kernel {self.py_func.__module__}.{self.py_func.__qualname__}>"
 
 
+def _with_cache_choice(options: dict) -> dict:
+    """``options`` without numba's disk cache when no safe folder was found for it."""
+    return options if _DISK_CACHE else {**options, "cache": False}
+
+
 def njit(function: Callable | None = None, **options):
     """``numba.njit`` with the same arguments, compiled when a kernel first runs."""
 
     def decorate(py_func: Callable):
         if _NUMBA is not None:
-            return _NUMBA.njit(**options)(py_func)
+            return _NUMBA.njit(**_with_cache_choice(options))(py_func)
         kernel = _Kernel(py_func, options)
         _PENDING.append(kernel)
         return kernel
@@ -105,7 +130,7 @@ def load_numba():
     import numba
 
     for kernel in _PENDING:
-        kernel.dispatcher = numba.njit(**kernel.options)(kernel.py_func)
+        kernel.dispatcher = numba.njit(**_with_cache_choice(kernel.options))(kernel.py_func)
     for name, module in list(sys.modules.items()):
         if name == "sdofreport" or name.startswith("sdofreport."):
             for attribute, value in list(vars(module).items()):

@@ -69,14 +69,36 @@ class Derived:
 
 
 # ----------------------------------------------------------------------- formatting
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def _decimal(x: float, digits: int) -> str:
+    """
+    ``x`` to ``digits`` significant figures without trailing zeros, in plain decimals
+    from 10⁻⁴ up to (not including) 10⁶ and as ``m × 10ⁿ`` outside that range: the
+    pages' one number style, never an ``e`` exponent.
+    """
+    if x == 0 or not math.isfinite(x):
+        return f"{x:g}"
+    exponent = int(math.floor(math.log10(abs(x))))
+    if -4 <= exponent < 6:
+        text = f"{x:.{max(0, digits - 1 - exponent)}f}"
+        return text.rstrip("0").rstrip(".") if "." in text else text
+    mantissa = x / 10.0 ** exponent
+    if round(abs(mantissa), digits - 1) >= 10.0:  # 9.9999 rounds up to 10
+        mantissa, exponent = mantissa / 10.0, exponent + 1
+    text = f"{mantissa:.{digits - 1}f}".rstrip("0").rstrip(".")
+    return f"{text} × 10{str(exponent).translate(_SUPERSCRIPT)}"
+
+
 def _v(x: float) -> str:
     """An input value as given (up to 6 significant figures)."""
-    return f"{x:.6g}"
+    return _decimal(x, 6)
 
 
 def _r(x: float) -> str:
-    """A computed value (4 significant figures, scientific when large or small)."""
-    return f"{x:.4g}"
+    """A computed value (4 significant figures)."""
+    return _decimal(x, 4)
 
 
 # --------------------------------------------------------------------------- checks
@@ -253,7 +275,8 @@ def _reduce(node, path: str, lines: list[str], parent: str | None) -> float:
     else:
         flexibility = math.fsum(1.0 / p for p in parts)
         k = 1.0 / flexibility
-        terms = " + ".join(f"1/{_r(p)}" for p in parts)
+        terms = " + ".join(f"1/({_r(p)})" if " × " in _r(p) else f"1/{_r(p)}"
+                           for p in parts)
         lines.append(f"{path}: series 1/k = Σ1/kᵢ = {terms} → k = {_r(k)} N/m")
     return k
 

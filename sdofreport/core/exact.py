@@ -140,6 +140,45 @@ def _check_oscillators(natural_periods, damping_ratios, *, allow_zero_period=Tru
 
 # --------------------------------------------------------------- coefficient algebra
 @njit(inline="always", **JIT_OPTIONS)
+def _phi_series(theta, r, zeta, terms, eps):
+    """
+    φ0 = Σ X^k/k! (all four entries) and the second columns of φ1 = Σ X^k/(k+1)! and
+    φ2 = Σ X^k/(k+2)!, summed term by term, for ``X = θ [[0, 1], [−r, −2ζ]]`` (scaled
+    state; ``r`` the stiffness over the one that sets θ, 1 for a plain oscillator).
+    At most ``terms`` terms; stops early once the entries of a term X^k/k! sum below
+    ``eps`` in size (0: never). Returns ``(φ0_00, φ0_01, φ0_10, φ0_11, φ1_01, φ1_11,
+    φ2_01, φ2_11)``.
+    """
+    x01 = theta
+    x10 = -r * theta
+    x11 = -2.0 * zeta * theta
+    t00, t01, t10, t11 = 1.0, 0.0, 0.0, 1.0  # X^k / k!
+    a00, a01, a10, a11 = 1.0, 0.0, 0.0, 1.0
+    b01, b11 = 0.0, 1.0
+    c01, c11 = 0.0, 0.5
+    for k in range(1, terms):
+        # term @ X with X = [[0, x01], [x10, x11]], then / k
+        n00 = (t01 * x10) / k
+        n01 = (t00 * x01 + t01 * x11) / k
+        n10 = (t11 * x10) / k
+        n11 = (t10 * x01 + t11 * x11) / k
+        t00, t01, t10, t11 = n00, n01, n10, n11
+        a00 += t00
+        a01 += t01
+        a10 += t10
+        a11 += t11
+        f1 = 1.0 / (k + 1)
+        b01 += t01 * f1
+        b11 += t11 * f1
+        f2 = 1.0 / ((k + 1) * (k + 2))
+        c01 += t01 * f2
+        c11 += t11 * f2
+        if abs(t00) + abs(t01) + abs(t10) + abs(t11) < eps:
+            break
+    return a00, a01, a10, a11, b01, b11, c01, c11
+
+
+@njit(inline="always", **JIT_OPTIONS)
 def _phi_one(theta, zeta, terms, series_limit):
     """
     φ0 = e^X (all four entries) and the second columns of φ1 and φ2, for one oscillator,
@@ -153,31 +192,7 @@ def _phi_one(theta, zeta, terms, series_limit):
     columns of φ1 and φ2 enter the recurrence.
     """
     if theta <= series_limit:
-        x01 = theta
-        x10 = -theta
-        x11 = -2.0 * zeta * theta
-        t00, t01, t10, t11 = 1.0, 0.0, 0.0, 1.0  # X^k / k!
-        a00, a01, a10, a11 = 1.0, 0.0, 0.0, 1.0
-        b01, b11 = 0.0, 1.0
-        c01, c11 = 0.0, 0.5
-        for k in range(1, terms):
-            # term @ X with X = [[0, x01], [x10, x11]], then / k
-            n00 = (t01 * x10) / k
-            n01 = (t00 * x01 + t01 * x11) / k
-            n10 = (t11 * x10) / k
-            n11 = (t10 * x01 + t11 * x11) / k
-            t00, t01, t10, t11 = n00, n01, n10, n11
-            a00 += t00
-            a01 += t01
-            a10 += t10
-            a11 += t11
-            f1 = 1.0 / (k + 1)
-            b01 += t01 * f1
-            b11 += t11 * f1
-            f2 = 1.0 / ((k + 1) * (k + 2))
-            c01 += t01 * f2
-            c11 += t11 * f2
-        return a00, a01, a10, a11, b01, b11, c01, c11
+        return _phi_series(theta, 1.0, zeta, terms, 0.0)
     thd = theta * math.sqrt(1.0 - zeta * zeta)
     decay = math.exp(-zeta * theta)
     c = math.cos(thd)

@@ -2,33 +2,44 @@
 Inelastic response spectra of bilinear SDOF systems: constant strength and constant ductility.
 
 Every system is worked per unit mass with initial period T, damping ratio ζ on the
-initial stiffness, and bilinear kinematic hardening (ratio α), integrated by
-:mod:`sdofreport.core.nonlinear` (Newmark average acceleration with Newton–Raphson).
+initial stiffness, and bilinear kinematic hardening (ratio α), integrated exactly between
+yield events by :mod:`sdofreport.core.bilinear_exact` (Nigam–Jennings recurrence on each
+linear branch, events and peaks placed on the exact solution).
 
 Strength is normalised by the elastic force ``Fe = k · SD`` of the same system kept
-linear (same integrator, same sub-steps): ``η = Fy/Fe`` (the normalised yield strength of
-[1]_ §7.5) and the strength reduction factor ``R = Fe/Fy = 1/η``. Also given:
-``Fy/m`` [m/s²] and ``Fy/(m·PGA)`` [-].
+linear (same kernel, which is then the exact linear recurrence with exact peaks):
+``η = Fy/Fe`` (the normalised yield strength of [1]_ §7.5) and the strength reduction
+factor ``R = Fe/Fy = 1/η``. Also given: ``Fy/m`` [m/s²] and ``Fy/(m·PGA)`` [-].
 
 Integration steps: each record step is split into the smallest power of two of sub-steps
 that gives ``h <= T / steps_per_period`` (ground acceleration linear in between), with
-:data:`DEFAULT_STEPS_PER_PERIOD` = 20 — our choice (no source): the Newmark
-average-acceleration period error is then ``(πh/T)²/3 ≈ 0.8 %`` ([2]_, elongation
-``x/arctan x`` with ``x = πh/T``).
+:data:`DEFAULT_STEPS_PER_PERIOD` = 8 (at least
+:data:`~sdofreport.core.bilinear_exact.MIN_STEPS_PER_PERIOD` = 4) — our choice (no
+source). As integration is exact between events, the setting only bounds the step in
+which yield, unloading and peaks are looked for (one velocity reversal per step is
+assumed); the elastic force equals the exact elastic spectrum to round-off (measured
+3e-9 relative, ``benchmarks/inelastic_accuracy.py``).
 
 Constant ductility: the ductility reached, ``μ(η)``, is not monotonic in η, so a target
-can be met by several strengths (well known, e.g. [1]_ §7.5). Common practice takes the
-largest strength that achieves the target; we scan η downward from 1 by the factor
-:data:`SCAN_RATIO` until the target is reached, then bisect between the last two scan
-points to ``strength_tolerance`` (relative). A crossing of the target narrower than one
-scan interval above that bracket can be missed. Targets not reached down to
-``η =`` :data:`SCAN_MIN_STRENGTH` give NaN.
+can be met by several strengths (well known, e.g. [1]_ §7.5); the definition takes the
+largest strength whose ductility equals the target. We scan η downward from 1 (where
+μ = 1) by the factor :data:`SCAN_RATIO` until the largest target is reached. Each
+target's first scan point reaching it closes the highest bracket ``[η_i, η_{i−1}]``
+with ``μ(η_i) >= target > μ(η_{i−1})``, narrowed by bisection to ``strength_tolerance``
+(relative) keeping that order; since μ(η) is continuous, every root below ``η_i`` is
+smaller than one in the bracket. A window narrower than the scan step where μ exceeds the
+target shows as a local maximum of the scanned μ close below the target: wherever one is
+above :data:`WINDOW_FRACTION` of the next target, a golden-section search for the
+largest μ between the scan points around it looks for a point reaching the target, and a
+window found is bisected the same way. A window next to no such local maximum can still
+be missed. Targets not reached down to ``η =`` :data:`SCAN_MIN_STRENGTH` give NaN.
 
 References
 ----------
 .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson, 2017.
-.. [2] N. M. Newmark, "A method of computation for structural dynamics," J. Eng. Mech.
-   Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
+.. [2] N. C. Nigam and P. C. Jennings, "Calculation of response spectra from
+   strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
+   pp. 909-922, 1969.
 .. [3] A. S. Veletsos and N. M. Newmark, "Effect of inelastic behavior on the response of
    simple systems to earthquake motions," in Proc. 2nd World Conf. Earthq. Eng., Tokyo,
    1960, vol. 2, pp. 895-912.
@@ -44,17 +55,17 @@ from dataclasses import dataclass
 import numpy as np
 
 from sdofreport.core._jit import JIT_OPTIONS, njit
+from sdofreport.core.bilinear_exact import (
+    MIN_STEPS_PER_PERIOD,
+    _bilinear_peak,
+    _branch_coefficients,
+)
 from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
 from sdofreport.core.nonlinear import (
-    DEFAULT_MAX_HALVINGS,
-    DEFAULT_MAX_ITERATIONS,
-    DEFAULT_TOLERANCE,
     _check_damping,
-    _check_solver,
     _check_workers,
     _for_each_period,
     _number,
-    _peak_displacement,
 )
 from sdofreport.core.spectra import substep_counts
 
@@ -69,10 +80,13 @@ __all__ = [
 ]
 
 #: Minimum integration steps per initial period (module docstring). Our choice.
-DEFAULT_STEPS_PER_PERIOD = 20.0
-#: Factor between successive normalised strengths η in the downward scan. Our choice: a
-#: 10 % step keeps the scan short and rarely steps over a second crossing.
-SCAN_RATIO = 0.9
+DEFAULT_STEPS_PER_PERIOD = 8.0
+#: Factor between successive normalised strengths η in the downward scan. Our choice, by
+#: measurement (``benchmarks/inelastic_accuracy.py``, docs/methods.md).
+SCAN_RATIO = 0.95
+#: A local maximum of the scanned ductility above this fraction of a target is searched
+#: (golden section) for a narrow window reaching the target. Our choice, by measurement.
+WINDOW_FRACTION = 0.9
 #: Smallest normalised strength η = Fy/Fe scanned (R = 100). Our choice.
 SCAN_MIN_STRENGTH = 0.01
 
@@ -100,7 +114,7 @@ class ConstantStrengthSpectrum:
     elastic_force_m_s2: np.ndarray
     #: peak ground acceleration [m/s²]
     pga_m_s2: float
-    #: True where every integration step converged, shape (nR, nT)
+    #: True where every yield and unloading event was placed to tolerance, (nR, nT)
     converged: np.ndarray
 
 
@@ -138,31 +152,82 @@ class ConstantDuctilitySpectrum:
 
 # ------------------------------------------------------------------------ kernels
 @njit(**JIT_OPTIONS)
-def _strength_period(ag, dt, n_sub, c, k, alpha, r_factors, tol, max_iter, max_halv,
-                     mu_out, ok_out):
+def _strength_period(ag, dt, n_sub, w, zeta, alpha, r_factors, mu_out, ok_out):
     """Elastic SD [m] of one period, then the ductility for each R (fills the outputs)."""
-    sd, _ = _peak_displacement(ag, dt, n_sub, c, k, np.inf, alpha, np.inf, tol, max_iter,
-                               max_halv)
-    fe = k * sd
+    ce, cp = _branch_coefficients(dt / n_sub, w, zeta, alpha)
+    sd, _ = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, np.inf, np.inf, ce, cp)
     for i in range(r_factors.size):
-        fy = fe / r_factors[i]
-        peak, ok = _peak_displacement(ag, dt, n_sub, c, k, fy, alpha, np.inf, tol, max_iter,
-                                      max_halv)
-        mu_out[i] = peak / (fy / k)
+        uy = sd / r_factors[i]
+        peak, ok = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, np.inf, ce, cp)
+        mu_out[i] = peak / uy
         ok_out[i] = ok
     return sd
 
 
 @njit(**JIT_OPTIONS)
-def _ductility_period(ag, dt, n_sub, c, k, alpha, targets, ratio, eta_min, rel_tol, tol,
-                      max_iter, max_halv, eta_out, mu_out):
+def _ductility_at(eta, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp):
+    """Ductility at η = Fy/Fe; the run stops once it reaches ``stop`` (ductility)."""
+    uy = eta * sd
+    peak, _ = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, stop * uy, ce, cp)
+    return peak / uy
+
+
+@njit(**JIT_OPTIONS)
+def _bisect(target, lo, hi, rel_tol, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp):
+    """Narrow μ(lo) >= target > μ(hi) to ``rel_tol``; returns (lo, μ(lo))."""
+    while hi - lo > rel_tol * lo:
+        mid = 0.5 * (lo + hi)
+        if _ductility_at(mid, target, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp) >= target:
+            lo = mid
+        else:
+            hi = mid
+    return lo, _ductility_at(lo, np.inf, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+
+
+@njit(**JIT_OPTIONS)
+def _window_peak(lo, hi, target, stop, rel_tol, ag, dt, n_sub, w, zeta, alpha, sd, ce,
+                 cp):
     """
-    Elastic SD [m] of one period; fills ``eta_out`` (largest Fy/Fe reaching each target,
-    ``targets`` sorted ascending) and ``mu_out`` (ductility reached there).
+    Golden-section search for the largest μ on (lo, hi), ending early at a point whose
+    ductility reaches ``target``; returns (η, μ(η)) of the best point seen.
     """
-    sd, _ = _peak_displacement(ag, dt, n_sub, c, k, np.inf, alpha, np.inf, tol, max_iter,
-                               max_halv)
-    fe = k * sd
+    g = 0.3819660112501051  # (3 − √5)/2
+    x1 = lo + g * (hi - lo)
+    x2 = hi - g * (hi - lo)
+    f1 = _ductility_at(x1, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+    if f1 >= target:
+        return x1, f1
+    f2 = _ductility_at(x2, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+    while f2 < target and hi - lo > rel_tol * lo:
+        if f1 > f2:
+            hi = x2
+            x2 = x1
+            f2 = f1
+            x1 = lo + g * (hi - lo)
+            f1 = _ductility_at(x1, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+            if f1 >= target:
+                return x1, f1
+        else:
+            lo = x1
+            x1 = x2
+            f1 = f2
+            x2 = hi - g * (hi - lo)
+            f2 = _ductility_at(x2, stop, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+    if f1 > f2:
+        return x1, f1
+    return x2, f2
+
+
+@njit(**JIT_OPTIONS)
+def _ductility_period(ag, dt, n_sub, w, zeta, alpha, targets, ratio, eta_min, rel_tol,
+                      near, eta_out, mu_out):
+    """
+    Elastic SD [m] of one period; fills ``eta_out`` (largest η = Fy/Fe whose ductility
+    equals each target, ``targets`` sorted ascending) and ``mu_out`` (ductility there).
+    The search is described in the module docstring.
+    """
+    ce, cp = _branch_coefficients(dt / n_sub, w, zeta, alpha)
+    sd, _ = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, np.inf, np.inf, ce, cp)
     nt = targets.size
     t = 0
     # Fy = Fe keeps the system elastic: it just reaches yield, μ = 1.
@@ -170,44 +235,44 @@ def _ductility_period(ag, dt, n_sub, c, k, alpha, targets, ratio, eta_min, rel_t
         eta_out[t] = 1.0
         mu_out[t] = 1.0
         t += 1
-    if fe <= 0.0:
+    if not sd > 0.0:
         for j in range(t, nt):
             eta_out[j] = np.nan
             mu_out[j] = np.nan
         return sd
     mu_top = targets[nt - 1]
-    eta_hi = 1.0
+    # The last three scan points (η, μ), newest first; η = 1 gives μ = 1.
+    eta_1 = 1.0
+    mu_1 = 1.0
+    eta_2 = 1.0
+    mu_2 = 1.0
+    i = 0
     while t < nt:
-        eta = eta_hi * ratio
+        i += 1
+        eta = ratio ** i
         if eta < eta_min:
             for j in range(t, nt):
                 eta_out[j] = np.nan
                 mu_out[j] = np.nan
             break
-        uy = eta * fe / k
-        peak, _ = _peak_displacement(ag, dt, n_sub, c, k, eta * fe, alpha, mu_top * uy,
-                                     tol, max_iter, max_halv)
-        mu = peak / uy
+        mu = _ductility_at(eta, mu_top, ag, dt, n_sub, w, zeta, alpha, sd, ce, cp)
+        if mu < targets[t] and mu_1 >= near * targets[t] and mu_1 > mu_2 and mu_1 >= mu:
+            # A local maximum of the scanned μ close below the target: a narrow window
+            # where μ exceeds the target may lie between the scan points around it.
+            e_w, m_w = _window_peak(eta, eta_2, targets[t], mu_top, rel_tol, ag, dt,
+                                    n_sub, w, zeta, alpha, sd, ce, cp)
+            while t < nt and m_w >= targets[t]:
+                eta_out[t], mu_out[t] = _bisect(targets[t], e_w, eta_2, rel_tol, ag, dt,
+                                                n_sub, w, zeta, alpha, sd, ce, cp)
+                t += 1
         while t < nt and mu >= targets[t]:
-            # Bisection on η in (lo, hi): μ(lo) >= target > μ(hi).
-            lo = eta
-            hi = eta_hi
-            while hi - lo > rel_tol * lo:
-                mid = 0.5 * (lo + hi)
-                uy_mid = mid * fe / k
-                p_mid, _ = _peak_displacement(ag, dt, n_sub, c, k, mid * fe, alpha,
-                                              targets[t] * uy_mid, tol, max_iter, max_halv)
-                if p_mid / uy_mid >= targets[t]:
-                    lo = mid
-                else:
-                    hi = mid
-            uy_lo = lo * fe / k
-            p_lo, _ = _peak_displacement(ag, dt, n_sub, c, k, lo * fe, alpha, np.inf, tol,
-                                         max_iter, max_halv)
-            eta_out[t] = lo
-            mu_out[t] = p_lo / uy_lo
+            eta_out[t], mu_out[t] = _bisect(targets[t], eta, eta_1, rel_tol, ag, dt, n_sub,
+                                            w, zeta, alpha, sd, ce, cp)
             t += 1
-        eta_hi = eta
+        eta_2 = eta_1
+        mu_2 = mu_1
+        eta_1 = eta
+        mu_1 = mu
     return sd
 
 
@@ -232,14 +297,13 @@ def _check_common(ground_acceleration, time_step, periods, damping, alpha,
     if not (0.0 <= a < 1.0):
         raise ValueError(f"alpha must be in [0, 1) [-]; got {alpha!r}")
     spp = _number(steps_per_period, "steps_per_period", "-")
-    if not (math.isfinite(spp) and spp >= 0.0):
+    if not (math.isfinite(spp) and spp >= MIN_STEPS_PER_PERIOD):
         raise ValueError(
-            f"steps_per_period must be finite and >= 0 [-] (0 turns sub-steps off); "
+            f"steps_per_period must be finite and >= {MIN_STEPS_PER_PERIOD:g} [-]; "
             f"got {steps_per_period!r}"
         )
     n_sub = substep_counts(t, dt, spp)
-    w = 2.0 * np.pi / t
-    return ag, dt, t, zeta, a, n_sub, w * w, 2.0 * zeta * w
+    return ag, dt, t, zeta, a, n_sub, 2.0 * np.pi / t
 
 
 def _check_factors(values, name: str, minimum: float, strict: bool) -> np.ndarray:
@@ -262,9 +326,6 @@ def _check_factors(values, name: str, minimum: float, strict: bool) -> np.ndarra
 def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
                                strength_reduction_factors, alpha=0.0, *,
                                steps_per_period=DEFAULT_STEPS_PER_PERIOD,
-                               tolerance=DEFAULT_TOLERANCE,
-                               max_iterations=DEFAULT_MAX_ITERATIONS,
-                               max_halvings=DEFAULT_MAX_HALVINGS,
                                workers=1) -> ConstantStrengthSpectrum:
     """
     Ductility demand of bilinear systems with yield strength ``Fy = Fe / R``.
@@ -284,10 +345,7 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
     alpha : float, optional
         Post-yield stiffness ratio, 0 <= α < 1. [-]
     steps_per_period : float, optional
-        Minimum integration steps per initial period (module docstring). [-]
-    tolerance, max_iterations, max_halvings : optional
-        Newton–Raphson settings as in :func:`sdofreport.core.nonlinear.nonlinear_response`.
-        [-]
+        Fewest integration steps per initial period, >= 4 (module docstring). [-]
     workers : int or None, optional
         Threads running periods side by side (None: every available core). [-]
 
@@ -300,21 +358,19 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
     .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
        2017, sec. 7.4.
     """
-    ag, dt, t, zeta, a, n_sub, k, c = _check_common(ground_acceleration, time_step, periods,
-                                                    damping, alpha, steps_per_period)
+    ag, dt, t, zeta, a, n_sub, w = _check_common(ground_acceleration, time_step, periods,
+                                                 damping, alpha, steps_per_period)
     r = _check_factors(strength_reduction_factors, "strength_reduction_factors", 0.0, True)
-    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
     n_workers = _check_workers(workers)
     mu = np.empty((t.size, r.size))
     ok = np.empty((t.size, r.size))
     sd = np.empty(t.size)
 
     def work(j):
-        sd[j] = _strength_period(ag, dt, n_sub[j], c[j], k[j], a, r, tol, max_iter,
-                                 max_halv, mu[j], ok[j])
+        sd[j] = _strength_period(ag, dt, n_sub[j], w[j], zeta, a, r, mu[j], ok[j])
 
     _for_each_period(t.size, n_workers, work)
-    fe = k * sd
+    fe = w * w * sd
     return ConstantStrengthSpectrum(
         periods_s=t, damping=zeta, hardening_ratio=a, strength_reduction_factors=r,
         ductility=mu.T.copy(), yield_strength_m_s2=fe[None, :] / r[:, None],
@@ -326,9 +382,7 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
 def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping,
                                 target_ductilities, alpha=0.0, *,
                                 steps_per_period=DEFAULT_STEPS_PER_PERIOD,
-                                strength_tolerance=1e-3, tolerance=DEFAULT_TOLERANCE,
-                                max_iterations=DEFAULT_MAX_ITERATIONS,
-                                max_halvings=DEFAULT_MAX_HALVINGS,
+                                strength_tolerance=1e-3, scan_ratio=SCAN_RATIO,
                                 workers=1) -> ConstantDuctilitySpectrum:
     """
     Largest yield strength that holds the ductility demand to each target.
@@ -348,12 +402,9 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
     alpha : float, optional
         Post-yield stiffness ratio, 0 <= α < 1. [-]
     steps_per_period : float, optional
-        Minimum integration steps per initial period (module docstring). [-]
+        Fewest integration steps per initial period, >= 4 (module docstring). [-]
     strength_tolerance : float, optional
         Relative width at which the bisection on η stops, in (0, 0.1]. [-]
-    tolerance, max_iterations, max_halvings : optional
-        Newton–Raphson settings as in :func:`sdofreport.core.nonlinear.nonlinear_response`.
-        [-]
     workers : int or None, optional
         Threads running periods side by side (None: every available core). [-]
 
@@ -371,13 +422,15 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
        response of simple systems to earthquake motions," in Proc. 2nd World Conf.
        Earthq. Eng., Tokyo, 1960, vol. 2, pp. 895-912.
     """
-    ag, dt, t, zeta, a, n_sub, k, c = _check_common(ground_acceleration, time_step, periods,
-                                                    damping, alpha, steps_per_period)
+    ag, dt, t, zeta, a, n_sub, w = _check_common(ground_acceleration, time_step, periods,
+                                                 damping, alpha, steps_per_period)
     mu_t = _check_factors(target_ductilities, "target_ductilities", 1.0, False)
     st = _number(strength_tolerance, "strength_tolerance", "-")
     if not (0.0 < st <= 0.1):
         raise ValueError(f"strength_tolerance must be in (0, 0.1] [-]; got {strength_tolerance!r}")
-    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
+    ratio = _number(scan_ratio, "scan_ratio", "-")
+    if not (0.5 <= ratio < 1.0):
+        raise ValueError(f"scan_ratio must be in [0.5, 1) [-]; got {scan_ratio!r}")
     n_workers = _check_workers(workers)
     order = np.argsort(mu_t, kind="stable")
     sorted_targets = np.ascontiguousarray(mu_t[order])
@@ -386,16 +439,16 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
     sd = np.empty(t.size)
 
     def work(j):
-        sd[j] = _ductility_period(ag, dt, n_sub[j], c[j], k[j], a, sorted_targets,
-                                  SCAN_RATIO, SCAN_MIN_STRENGTH, st, tol, max_iter,
-                                  max_halv, eta[j], got[j])
+        sd[j] = _ductility_period(ag, dt, n_sub[j], w[j], zeta, a, sorted_targets,
+                                  ratio, SCAN_MIN_STRENGTH, st, WINDOW_FRACTION, eta[j],
+                                  got[j])
 
     _for_each_period(t.size, n_workers, work)
     back = np.empty_like(order)
     back[order] = np.arange(order.size)
     eta = eta[:, back].T.copy()
     got = got[:, back].T.copy()
-    fe = k * sd
+    fe = w * w * sd
     pga = float(np.max(np.abs(ag)))
     fy = eta * fe[None, :]
     with np.errstate(divide="ignore", invalid="ignore"):

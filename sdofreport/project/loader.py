@@ -31,6 +31,7 @@ from sdofreport.project.model import (
     Limits,
     ProcessingSettings,
     Project,
+    Revision,
     ProjectInfo,
     RecordSpec,
     SystemSpec,
@@ -283,11 +284,68 @@ def _read_info(table, project_path: Path, problems: _Problems) -> ProjectInfo:
         except ValueError:
             problems.add("SOURCE_DATE_EPOCH", f"expected whole seconds since 1970, found "
                          f"{os.environ['SOURCE_DATE_EPOCH']!r}")
+    for key in ("prepared_date", "checked_date", "approved_date"):
+        values[key] = _iso_date(values[key], f"project.{key}", problems)
     return ProjectInfo(
         title=values["title"] or "", reference=values["reference"] or "",
         revision=values["revision"] or "", prepared_by=values["prepared_by"] or "",
         checked_by=values["checked_by"], date=date, notes_path=notes_path,
-        notes_file=values["notes"], display_units=values["display_units"] or "SI")
+        notes_file=values["notes"], display_units=values["display_units"] or "SI",
+        prepared_date=values["prepared_date"], checked_date=values["checked_date"],
+        approved_by=values["approved_by"], approved_date=values["approved_date"],
+        revisions=_read_revisions(values["revisions"], problems))
+
+
+def _iso_date(value: str | None, where: str, problems: _Problems) -> str | None:
+    """A calendar date written YYYY-MM-DD, or a problem naming ``where``."""
+    if value is None:
+        return None
+    try:
+        return datetime.strptime(value, "%Y-%m-%d").strftime("%Y-%m-%d")
+    except ValueError:
+        problems.add(where, f"expected a date written YYYY-MM-DD, found {value!r}")
+        return None
+
+
+#: Keys of one ``[[project.revisions]]`` table.
+REVISION_KEYS = ("revision", "date", "description", "by")
+
+
+def _read_revisions(value, problems: _Problems) -> tuple[Revision, ...]:
+    """The ``[[project.revisions]]`` tables, each checked; every problem collected."""
+    if value is None:
+        return ()
+    if not isinstance(value, list):
+        problems.add("project.revisions", f"expected [[project.revisions]] tables, found "
+                     f"{value!r}")
+        return ()
+    rows = []
+    for index, table in enumerate(value, start=1):
+        where = f"project.revisions[{index}]"
+        if not isinstance(table, dict):
+            problems.add(where, f"expected a table with {', '.join(REVISION_KEYS)}, found "
+                         f"{table!r}")
+            continue
+        for key in table:
+            if key not in REVISION_KEYS:
+                problems.add(f"{where}.{key}", f"unknown key"
+                             f"{_did_you_mean(key, REVISION_KEYS)}")
+        fields = {}
+        for key in REVISION_KEYS:
+            text = table.get(key)
+            if text is None:
+                if key == "revision":
+                    problems.add(f"{where}.revision", "missing; each revision needs its "
+                                 "mark (example: revision = \"A\")")
+                continue
+            if not isinstance(text, str) or not text.strip():
+                problems.add(f"{where}.{key}", f"expected non-empty text, found {text!r}")
+                continue
+            fields[key] = text.strip()
+        fields["date"] = _iso_date(fields.get("date"), f"{where}.date", problems)
+        if "revision" in fields:
+            rows.append(Revision(**fields))
+    return tuple(rows)
 
 
 def _read_id(table: dict, where: str, seen: dict, problems: _Problems) -> str | None:
@@ -715,9 +773,16 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
     _check_longest_period(periods, f"{where}.periods", problems)
     damping = _read_value(table, spec["damping"], where, problems)
     alpha = _read_value(table, spec["post_yield_ratio"], where, problems)
-    if None in (ductility, reduction, damping, alpha):
+    steps = _read_value(table, spec["steps_per_period"], where, problems)
+    from sdofreport.core.bilinear_exact import MIN_STEPS_PER_PERIOD
+
+    if steps is not None and steps < MIN_STEPS_PER_PERIOD:
+        problems.add(f"{where}.steps_per_period", f"expected a number of at least "
+                     f"{MIN_STEPS_PER_PERIOD:g}, found {steps:g}")
+        steps = None
+    if None in (ductility, reduction, damping, alpha, steps):
         return None
-    return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha)
+    return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha, steps)
 
 
 def _without_bom(text: str) -> str:

@@ -22,6 +22,16 @@ class ProcessingSettings:
 
 
 @dataclass(frozen=True)
+class Revision:
+    """One row of ``[[project.revisions]]``: the history of the document's issues."""
+
+    revision: str
+    date: str | None = None
+    description: str | None = None
+    by: str | None = None
+
+
+@dataclass(frozen=True)
 class ProjectInfo:
     title: str
     reference: str
@@ -32,6 +42,11 @@ class ProjectInfo:
     notes_path: Path | None = None
     notes_file: str | None = None  # as written in the project file
     display_units: str = "SI"
+    prepared_date: str | None = None
+    checked_date: str | None = None
+    approved_by: str | None = None
+    approved_date: str | None = None
+    revisions: tuple[Revision, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -105,6 +120,8 @@ class InelasticSpectraSpec:
     periods_s: tuple[float, ...] = ()
     damping: float = 0.05
     post_yield_ratio: float = 0.0
+    #: fewest integration steps per initial period (>= 4) [-]
+    steps_per_period: float = 8.0
 
 
 @dataclass(frozen=True)

@@ -8,17 +8,25 @@ Importing pint and building its registry costs about half a second, more than th
 of reading a project; so every string pint has converted is remembered in a small
 per-user file (:func:`save_memo`), keyed by the versions of pint and of this package, and
 a project whose strings were all seen before is read without importing pint. Values in
-the memo are pint's own results, so they are the same either way.
+the memo are pint's own results, so they are the same either way. The file carries the
+SHA-256 of its entries: a damaged memo is discarded (and reported), never used. It lives
+only in a folder no other user can write (:mod:`sdofreport._cachedir`), and builds
+without a cache do not use it (:func:`without_memo`).
 """
 
 from __future__ import annotations
 
+import contextlib
 import functools
+import hashlib
 import json
+import logging
 import math
 import os
 import re
 import tempfile
+
+log = logging.getLogger("sdofreport.project")
 
 #: Dimensions a project value may have: name -> (pint dimensionality text, SI unit).
 DIMENSIONS: dict[str, tuple[str, str]] = {
@@ -43,8 +51,11 @@ def _registry():
 
     from sdofreport._cachedir import user_cache_dir
 
-    try:  # pint's parsed-definitions cache makes start-up about ten times faster
-        return pint.UnitRegistry(cache_folder=user_cache_dir("pint"))
+    # pint's parsed-definitions cache makes start-up about ten times faster; it holds
+    # pickles, so only a folder no other user can write is used (None: no cache).
+    folder = user_cache_dir("pint") if _MEMO_ENABLED else None
+    try:
+        return pint.UnitRegistry(cache_folder=folder)
     except Exception:  # an unusable cache folder must never stop a build
         return pint.UnitRegistry()
 
@@ -53,29 +64,74 @@ def _registry():
 #: and the entries this process added since it last saved.
 _MEMO: dict[str, float] | None = None
 _MEMO_NEW: dict[str, float] = {}
+#: False while the memo is switched off (:func:`without_memo`).
+_MEMO_ENABLED = True
+#: Version of the memo file's layout.
+MEMO_FORMAT = 2
+
+
+@contextlib.contextmanager
+def without_memo():
+    """Convert every string with pint, neither reading nor writing the memo (nor pint's
+    own cache): for builds without a cache and re-runs that must recompute."""
+    global _MEMO_ENABLED, _MEMO
+    saved = _MEMO_ENABLED, _MEMO
+    _MEMO_ENABLED, _MEMO = False, {}
+    try:
+        yield
+    finally:
+        _MEMO_ENABLED, _MEMO = saved
+        _MEMO_NEW.clear()
 
 
 @functools.lru_cache(maxsize=1)
-def _memo_path() -> str:
+def _memo_path() -> str | None:
     from importlib.metadata import version
 
     from sdofreport import __version__
     from sdofreport._cachedir import user_cache_dir
 
-    return os.path.join(user_cache_dir("pint"),
-                        f"quantities-{version('pint')}-{__version__}.json")
+    folder = user_cache_dir("pint")
+    if folder is None:
+        return None
+    return os.path.join(folder, f"quantities-{version('pint')}-{__version__}.json")
+
+
+def _entries_digest(entries: dict) -> str:
+    text = json.dumps(entries, sort_keys=True, separators=(",", ":"))
+    return hashlib.sha256(f"{MEMO_FORMAT}|{text}".encode()).hexdigest()
 
 
 def _read_memo() -> dict[str, float]:
-    """The memo file's entries; an absent or damaged file reads as empty."""
-    try:
-        with open(_memo_path(), encoding="utf-8") as handle:
-            loaded = json.load(handle)
-        return {key: float(value) for key, value in loaded.items()
-                if isinstance(key, str) and isinstance(value, float)
-                and math.isfinite(value)}
-    except (OSError, ValueError, AttributeError):
+    """The memo file's entries; an absent file reads as empty, and so does a damaged one
+    (its SHA-256 does not match, or it is not the current layout), which is reported."""
+    path = _memo_path()
+    if path is None:
         return {}
+    try:
+        with open(path, encoding="utf-8") as handle:
+            loaded = json.load(handle)
+    except FileNotFoundError:
+        return {}
+    except (OSError, ValueError) as exc:
+        return _discard(path, f"unreadable ({type(exc).__name__})")
+    if not isinstance(loaded, dict) or loaded.get("format") != MEMO_FORMAT or \
+            not isinstance(loaded.get("entries"), dict):
+        return _discard(path, "not the current layout")
+    entries = loaded["entries"]
+    if loaded.get("sha256") != _entries_digest(entries):
+        return _discard(path, "checksum mismatch")
+    if not all(isinstance(key, str) and type(value) is float and math.isfinite(value)
+               for key, value in entries.items()):
+        return _discard(path, "an entry is not a finite number")
+    return entries
+
+
+def _discard(path: str, reason: str) -> dict:
+    log.warning("unit memo %s discarded (%s); converting the strings afresh", path, reason)
+    with contextlib.suppress(OSError):
+        os.remove(path)
+    return {}
 
 
 def _memo() -> dict[str, float]:
@@ -88,15 +144,17 @@ def _memo() -> dict[str, float]:
 def save_memo() -> None:
     """Add the strings converted since the last save to the memo file, merged with what
     other processes stored meanwhile (atomic replace; failures ignored)."""
-    if not _MEMO_NEW:
+    if not _MEMO_NEW or not _MEMO_ENABLED or _memo_path() is None:
+        _MEMO_NEW.clear()
         return
     merged = {**_read_memo(), **_MEMO_NEW}
     _MEMO_NEW.clear()
+    document = {"format": MEMO_FORMAT, "sha256": _entries_digest(merged), "entries": merged}
     try:
         folder = os.path.dirname(_memo_path())
         fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
         with os.fdopen(fd, "w", encoding="utf-8") as handle:
-            json.dump(merged, handle, sort_keys=True)
+            json.dump(document, handle, sort_keys=True)
         os.replace(tmp, _memo_path())
     except OSError:  # a read-only cache must never stop a build
         pass
@@ -157,7 +215,9 @@ def parse_quantity(value: object, dimension: str) -> float:
     if remembered is not None:
         return remembered
     number = _convert(text, value, dimension)
-    _memo()[key] = _MEMO_NEW[key] = number
+    _memo()[key] = number
+    if _MEMO_ENABLED:
+        _MEMO_NEW[key] = number
     return number
 
 

@@ -101,11 +101,26 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("revision", "text", "Revision of this run.", required=True, example='"B"'),
         KeySpec("prepared_by", "text", "Who prepared the run.", required=True,
                 example='"A. Engineer"'),
+        KeySpec("prepared_date", "text", "Date (YYYY-MM-DD) the run was prepared, for "
+                "the sign-off block (optional).", example='"2026-11-28"'),
         KeySpec("checked_by", "text", "Who checked it (optional).", example='"B. Checker"'),
+        KeySpec("checked_date", "text", "Date (YYYY-MM-DD) it was checked (optional).",
+                example='"2026-11-29"'),
+        KeySpec("approved_by", "text", "Who approved the document for issue (optional). "
+                "This signs off the document, not the structure: the verdicts stay "
+                "checks of stated limits.", example='"C. Approver"'),
+        KeySpec("approved_date", "text", "Date (YYYY-MM-DD) of that approval (optional).",
+                example='"2026-11-30"'),
         KeySpec("date", "text", "Date printed on the pages (optional; otherwise taken "
                 "from SOURCE_DATE_EPOCH, else omitted).", example='"2026-11-30"'),
         KeySpec("notes", "path", "Markdown file rendered on the summary page, relative "
                 "to the project file (optional).", example='"notes.md"'),
+        KeySpec("revisions", "list", "Revision history, one `[[project.revisions]]` "
+                "table per issue with `revision`, `date` (YYYY-MM-DD), `description` and "
+                "`by` (all text; revision required); shown on the summary page and in the "
+                "review packet, oldest first (optional).",
+                example='[{ revision = "A", date = "2026-11-02", description = "First '
+                        'issue", by = "A. Engineer" }]'),
         KeySpec("display_units", "choice", "Units shown on the pages: SI (mm, kN, m/s², "
                 "g) or US customary (in, kip, in/s², g). results.json stays SI.",
                 default="SI", choices=DISPLAY_UNITS, example='"SI"'),
@@ -192,6 +207,11 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("damping", "ratio", "Damping ratio.", default=0.05, example="0.05"),
         KeySpec("post_yield_ratio", "ratio", "Post-yield stiffness ratio α.",
                 default=0.0, example="0.0"),
+        KeySpec("steps_per_period", "number", "Fewest integration steps per initial "
+                "period, at least 4. The bilinear system is integrated exactly between "
+                "yield events, so this only bounds the step in which events and peaks are "
+                "looked for; the elastic force matches the exact elastic spectrum to "
+                "round-off at any setting.", default=8.0, example="8"),
     ),
     "records[]": _keys(
         KeySpec("id", "text", "Unique short name of the record; it names files, so letters, "

@@ -456,8 +456,12 @@ def _from_time_column(times, values, numbers, history, path, dt_given):
                     f"{100 * TIME_STEP_TOLERANCE:g} % is allowed (the record must be equally "
                     "spaced)")
     _check_agreement(path, dt_given, dt, "time column")
+    largest = 100 * float(np.max(deviation))
+    # Below 0.0001 % the deviation is rounding in the file's time column; the pages'
+    # rule for tiny values (sdofreport.site.display.number) says so without an exponent.
+    largest_text = "< 0.0001" if largest < 1e-4 else f"{largest:.2g}"
     history.append(f"time step {dt:g} s from the time column (largest step deviation "
-                   f"{100 * float(np.max(deviation)):.2g} %)")
+                   f"{largest_text} %)")
     if time[0] != 0.0:
         history.append(f"time column starts at {time[0]:g} s; samples re-timed to start "
                        "at 0 s")

@@ -19,6 +19,7 @@ from sdofreport.errors import BuildError
 from sdofreport.project.ids import SAFE_ID, SAFE_ID_TEXT
 from sdofreport.site.display import CHECK_LABELS, Display, number
 from sdofreport.site.notes import render_notes
+from sdofreport.results_json import signoff_block
 
 CAUTION_SHORT = ("These results support, but never replace, the judgement of a licensed "
                  "engineer. The governing local code and the authority having jurisdiction "
@@ -256,7 +257,7 @@ class SiteContext:
                    "figures": {"checks": figure}, "systems": systems,
                    "records": self._record_rows(), "notes_html": notes_html,
                    "dependencies": dependency_versions(), "input_hashes": input_hashes,
-                   "settings": settings}
+                   "settings": settings, **signoff_block(self.project.info)}
         return Page("index.html", "summary.html", context)
 
     def record_page(self, item) -> Page:
@@ -431,6 +432,7 @@ class SiteContext:
         return {"r_figure": r_figure, "mu_figure": mu_figure,
                 "damping": f"{100 * spec.damping:g} %",
                 "alpha": number(spec.post_yield_ratio),
+                "steps": f"{spec.steps_per_period:g}",
                 "ductility": ", ".join(f"{m:g}" for m in spec.ductility),
                 "reduction": ", ".join(f"{r:g}" for r in spec.strength_reduction)}
 

@@ -52,17 +52,31 @@ CHECK_LABELS = {"displacement": "Peak displacement", "drift_ratio": "Peak drift 
                 "Residual displacement", "bearing_displacement": "Bearing displacement"}
 
 
+#: The smallest magnitude the pages write as a number; anything smaller (but not zero)
+#: is written "< 0.0001" (or "> −0.0001"), in whatever unit the value is shown.
+TINY = 1e-4
+
+
 def number(value: float | None, digits: int = 4) -> str:
-    """A value to ``digits`` significant figures, without exponent for 1e-4..1e6."""
+    """
+    A value as every page writes numbers: ``digits`` significant figures in plain
+    decimal notation, never an exponent.
+
+    The one rule for small values: a magnitude below :data:`TINY` (0.0001 in the unit
+    shown) is written ``"< 0.0001"`` (``"> −0.0001"`` when negative); zero is ``"0"``.
+    From 10⁶ up, whole numbers with thin-space thousands separators.
+    """
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return "–"
     if value == 0:
         return "0"
     magnitude = abs(value)
-    if 1e-4 <= magnitude < 1e6:
+    if magnitude < TINY:
+        return f"< {TINY:.4f}" if value > 0 else f"> −{TINY:.4f}"
+    if magnitude < 1e6:
         decimals = max(0, digits - 1 - int(math.floor(math.log10(magnitude))))
         return f"{value:.{decimals}f}"
-    return f"{value:.{digits - 1}e}"
+    return f"{value:,.0f}".replace(",", "\u2009")
 
 
 class Display:

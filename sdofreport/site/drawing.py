@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 
 from sdofreport import __version__
-from sdofreport.executors import fork_context
+from sdofreport.executors import fork_context, local_pool
 from sdofreport.site.context import FigureSpec
 from sdofreport.site.tree import write_file
 
@@ -56,11 +56,13 @@ def _feed(digest, value) -> None:
 
 
 def figure_key(spec: FigureSpec) -> str:
-    """Content hash of a figure: function, arguments and the versions that draw it."""
+    """Content hash of a figure: function, arguments, the versions that draw it and the
+    cache format and source fingerprint (:func:`sdofreport.cache.code_fingerprint`)."""
+    from sdofreport.cache import CACHE_FORMAT, code_fingerprint
     from sdofreport.site.figures import matplotlib_version
 
-    digest = hashlib.sha256(f"figure|{__version__}|{matplotlib_version()}|"
-                            f"{spec.function}".encode())
+    digest = hashlib.sha256(f"figure|{__version__}|{matplotlib_version()}|{CACHE_FORMAT}|"
+                            f"{code_fingerprint()}|{spec.function}".encode())
     _feed(digest, spec.kwargs)
     return digest.hexdigest()
 
@@ -143,7 +145,6 @@ class FigureWriter:
 
     def _start(self, jobs: int) -> None:
         import multiprocessing
-        from concurrent.futures import ProcessPoolExecutor
 
         from sdofreport.site import figures  # noqa: F401  (imported once, inherited)
 
@@ -153,7 +154,7 @@ class FigureWriter:
         ordered = [specs[i] for i in self._order]
         fork = fork_context()
         context = fork or multiprocessing.get_context()
-        self._pool = ProcessPoolExecutor(max_workers=jobs, mp_context=context)
+        self._pool = local_pool(jobs, context)
         if fork is not None:
             self._counter = context.Value("q", 0)
             _INHERITED[self._number] = (ordered, self.folder, self.cache, self._counter)

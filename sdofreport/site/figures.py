@@ -37,6 +37,7 @@ import re
 import numpy as np
 from cycler import cycler  # a matplotlib dependency, light to import
 
+from sdofreport.site.symbols import plain_symbols, wrap_label
 from sdofreport.site.svg_panels import (
     AxesSpec,
     Band,
@@ -361,7 +362,8 @@ def _legend_width_in(labels, width=_text_width_pt):
     if not labels:
         return 0.0
     size = FIGURE_RC["legend.fontsize"]
-    widest = max(width(label, size) for label in labels)
+    widest = max(width(plain_symbols(line), size) for label in labels
+                 for line in str(label).split("\n"))
     # handle 2.0 em + handle pad 0.8 em + border pads 2 × 0.4 em + anchor gap, per the
     # matplotlib legend defaults; plus 16 pt for the frame and slack so nothing is cut.
     return (widest + size * (2.0 + 0.8 + 0.8) + 16.0) / 72.0
@@ -411,11 +413,11 @@ def _render(draw, **layout):
 def _legend_outside(fig, ax, handles):
     """
     Legend to the right of the axes, outside the data; the right margin is widened to fit.
-    Labels longer than ``_MAX_LABEL_CHARS`` are shortened with an ellipsis.
+    Labels longer than ``_MAX_LABEL_CHARS`` wrap onto more lines.
     """
     if not handles:
         return None
-    labels = [_shorten(h.get_label()) for h in handles]
+    labels = [wrap_label(h.get_label(), _MAX_LABEL_CHARS) for h in handles]
     right_in = max(0.2, _legend_width_in(labels))
     fig.subplots_adjust(right=1.0 - right_in / FIGURE_WIDTH_IN)
     return ax.legend(handles, labels, loc="upper left", bbox_to_anchor=(1.0, 1.0),
@@ -594,7 +596,8 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
     if design_xy is not None:
         lines.append(Curve(design_xy[0], design_xy[1], _DESIGN_COLOUR, 1.6, dash="9.6,4.8"))
         handles.append(LegendEntry(design_xy[2], _DESIGN_COLOUR, 1.6, dash="9.6,4.8"))
-    handles = [LegendEntry(**{**entry.__dict__, "label": _shorten(entry.label)})
+    handles = [LegendEntry(**{**entry.__dict__, "label": wrap_label(entry.label,
+                                                                    _MAX_LABEL_CHARS)})
                for entry in handles]
     xlim = (float(np.nanmin(x)), float(np.nanmax(x))) if x.size else (
         (0.1, 10.0) if logx else (0.0, 1.0))

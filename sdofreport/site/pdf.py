@@ -58,7 +58,7 @@ BROWSER_FLAGS = (
 CHROMIUM_NAMES = ("chromium", "chromium-browser", "google-chrome", "google-chrome-stable")
 
 INSTALL_HINT = ("Install Chromium and its driver (Debian/Ubuntu: apt-get install chromium "
-                "chromium-driver) and the Python package selenium (pip install "
+                "chromium-driver) and the Python packages selenium and pypdf (pip install "
                 "'sdofreport[pdf]'), then run the command again.")
 
 #: A4 [in] and margins [in]; the bottom margin holds the three-line caution footer.
@@ -104,6 +104,17 @@ def check_printing(chromium: str | os.PathLike | None = None,
     """Raise ``BuildError`` (with the install hint) unless :func:`write_pdf` can run."""
     find_browser(chromium, chromedriver)
     _selenium()
+    _pypdf()
+
+
+def _pypdf():
+    try:
+        import pypdf
+    except ImportError:
+        raise BuildError(f"PDF: the Python package pypdf is not installed; the packet's "
+                         f"contents read their page numbers through it. "
+                         f"{INSTALL_HINT}") from None
+    return pypdf
 
 
 def _selenium():
@@ -233,8 +244,33 @@ def _project(site_dir: Path) -> dict:
     return json.loads((site_dir / MANIFEST_NAME).read_text("utf-8"))
 
 
-def packet_html(site_dir: str | os.PathLike) -> str:
-    """The printable HTML document of the whole site (its ``<base>`` is the site)."""
+#: Shown in the contents' page column on the first print, which only measures where each
+#: section starts; as wide as any real page number up to 999 in tabular figures.
+PAGE_PLACEHOLDER = "888"
+
+
+def _signoff(site_dir: Path, info: dict) -> dict:
+    """``signoff`` and ``revisions`` of the site's results.json (older sites: people only)."""
+    try:
+        project = json.loads((site_dir / "data" / "results.json").read_text("utf-8"))
+        project = project.get("project", {})
+    except (OSError, ValueError, AttributeError):
+        project = {}
+    signoff = project.get("signoff") or {
+        "prepared": {"by": info.get("prepared_by") or project.get("prepared_by"),
+                     "date": None},
+        "checked": {"by": project.get("checked_by"), "date": None}, "approved": None}
+    return {"signoff": signoff, "revisions": project.get("revisions") or []}
+
+
+def packet_html(site_dir: str | os.PathLike, page_numbers: dict[str, int] | None = None
+                ) -> str:
+    """
+    The printable HTML document of the whole site (its ``<base>`` is the site).
+
+    ``page_numbers`` (site path → PDF page where its section starts) fills the
+    contents' page column; without it the column holds :data:`PAGE_PLACEHOLDER`.
+    """
     import jinja2
 
     from sdofreport.site.render import template_dir
@@ -247,8 +283,9 @@ def packet_html(site_dir: str | os.PathLike) -> str:
     for page in pages:
         text = (site_dir / page).read_text("utf-8")
         title = re.search(r"<title>(.*?)</title>", text, re.S)
+        page_number = PAGE_PLACEHOLDER if page_numbers is None else page_numbers[page]
         sections.append({
-            "path": page, "anchor": anchors[page],
+            "path": page, "anchor": anchors[page], "page": page_number,
             "title": Markup(title.group(1).split(" · ")[0]) if title else page,
             "main": Markup(_rebase(_main_of(text, page), page, anchors))})
     info = manifest.get("project", {})
@@ -262,7 +299,29 @@ def packet_html(site_dir: str | os.PathLike) -> str:
                  "revision": info.get("revision", ""), "date": info.get("date"),
                  "file": info.get("file", "")},
         cautions={"short": CAUTION_SHORT, "full": CAUTION_FULL},
-        fingerprint=manifest.get("fingerprint", ""), sections=sections)
+        fingerprint=manifest.get("fingerprint", ""), sections=sections,
+        **_signoff(site_dir, info))
+
+
+def section_pages(pdf: bytes, site_dir: str | os.PathLike) -> dict[str, int]:
+    """
+    Site path → page (from 1) on which its packet section starts, read from the named
+    destinations Chromium writes for the anchors the contents links to.
+    """
+    import io
+
+    pypdf = _pypdf()
+    reader = pypdf.PdfReader(io.BytesIO(pdf))
+    destinations = reader.named_destinations
+    pages = packet_pages(Path(site_dir).resolve())
+    found = {}
+    for index, page in enumerate(pages, start=1):
+        destination = destinations.get(f"/packet-{index:03d}")
+        if destination is None:
+            raise BuildError(f"PDF: the printed packet has no destination for {page}; "
+                             f"the contents cannot be numbered.")
+        found[page] = reader.get_destination_page_number(destination) + 1
+    return found
 
 
 def _header_footer(manifest: dict) -> tuple[str, str]:
@@ -353,6 +412,23 @@ def pdf_target(option: str, site_dir: str | os.PathLike) -> Path:
     return Path(option)
 
 
+def _print_once(driver, source: Path, site_dir: Path, header: str, footer: str) -> bytes:
+    """Load the packet document ``source`` and print it through Chromium: PDF bytes."""
+    driver.get(source.as_uri())
+    broken = driver.execute_script(
+        "return Array.from(document.images).filter(i => !(i.complete && "
+        "i.naturalWidth > 0)).map(i => i.getAttribute('src'));")
+    if broken:
+        raise BuildError(f"PDF: {len(broken)} figure(s) of {site_dir} could not be loaded "
+                         f"for printing, e.g. {broken[0]}; rebuild the site.")
+    printed = driver.execute_cdp_cmd("Page.printToPDF", {
+        "landscape": False, "displayHeaderFooter": True, "printBackground": True,
+        "headerTemplate": header, "footerTemplate": footer,
+        "paperWidth": PAPER_IN[0], "paperHeight": PAPER_IN[1], **MARGINS_IN,
+        "preferCSSPageSize": False, "generateDocumentOutline": True})
+    return base64.b64decode(printed["data"])
+
+
 def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=None,
               timeout_s: float = 120.0) -> int:
     """
@@ -379,29 +455,28 @@ def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=N
     site_dir = Path(site_dir).resolve()
     output_pdf = Path(output_pdf)
     manifest = _project(site_dir)
-    document = packet_html(site_dir)
     header, footer = _header_footer(manifest)
     with tempfile.TemporaryDirectory(prefix="sdofreport-print-") as folder:
         source = Path(folder) / "packet.html"
-        source.write_text(document, encoding="utf-8")
         with headless_chrome(chromium, chromedriver) as driver:
             driver.set_page_load_timeout(timeout_s)
             driver.set_script_timeout(timeout_s)
-            driver.get(source.as_uri())
-            broken = driver.execute_script(
-                "return Array.from(document.images).filter(i => !(i.complete && "
-                "i.naturalWidth > 0)).map(i => i.getAttribute('src'));")
-            if broken:
-                raise BuildError(f"PDF: {len(broken)} figure(s) of {site_dir} could not "
-                                 f"be loaded for printing, e.g. {broken[0]}; rebuild the "
-                                 f"site.")
-            printed = driver.execute_cdp_cmd("Page.printToPDF", {
-                "landscape": False, "displayHeaderFooter": True, "printBackground": True,
-                "headerTemplate": header, "footerTemplate": footer,
-                "paperWidth": PAPER_IN[0], "paperHeight": PAPER_IN[1], **MARGINS_IN,
-                "preferCSSPageSize": False, "generateDocumentOutline": True})
-    pdf = _renumber_node_ids(_stamp_dates(base64.b64decode(printed["data"]),
-                                          _fixed_date(manifest)))
+            # First print with placeholder page numbers to learn where each section
+            # starts, then print with those numbers; the placeholder is as wide as
+            # the numbers, so the layout (and so the numbers) holds. A further print
+            # follows only if they moved all the same.
+            numbers = None
+            for _ in range(3):
+                source.write_text(packet_html(site_dir, numbers), encoding="utf-8")
+                raw = _print_once(driver, source, site_dir, header, footer)
+                found = section_pages(raw, site_dir)
+                if found == numbers:
+                    break
+                numbers = found
+            else:
+                log.warning("the contents' page numbers of %s did not settle after "
+                            "three prints", output_pdf)
+    pdf = _renumber_node_ids(_stamp_dates(raw, _fixed_date(manifest)))
     output_pdf.resolve().parent.mkdir(parents=True, exist_ok=True)
     handle, partial = tempfile.mkstemp(prefix=f".{output_pdf.name}.", suffix=".part",
                                        dir=output_pdf.resolve().parent)

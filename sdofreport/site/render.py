@@ -26,6 +26,8 @@ from sdofreport.jsontext import json_text as _json_text
 from sdofreport.results_json import peaks_csv, results_document, spectra_csv
 from sdofreport.site.context import SiteContext, dependency_versions, record_figures
 from sdofreport.site.drawing import FigureWriter
+from sdofreport.site.spreadsheet import results_workbook
+from sdofreport.site.symbols import html_symbols
 from sdofreport.site.tree import RETIRED_PREFIX, STAGING_PREFIX, StagedTree
 
 log = logging.getLogger("sdofreport.site")
@@ -47,10 +49,12 @@ def template_dir() -> Path:
 
 
 def _environment() -> jinja2.Environment:
-    return jinja2.Environment(
+    env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(str(template_dir())),
         autoescape=True, undefined=jinja2.StrictUndefined,
         trim_blocks=False, lstrip_blocks=False, keep_trailing_newline=True)
+    env.filters["symbols"] = html_symbols
+    return env
 
 
 def _input_files(results: Results) -> dict[str, Path]:
@@ -153,6 +157,7 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
             put(path, data)
         put("data/spectra.csv", spectra_csv(results).encode("utf-8"))
         put("data/peaks.csv", peaks_csv(results).encode("utf-8"))
+        put("data/results.xlsx", results_workbook(document))
         if early is not None:
             hashes.update(early.result())
         hashes.update(figures.result())
@@ -212,7 +217,13 @@ def recover_site(output: str | os.PathLike) -> None:
     if output.exists():
         return
     parent = output.resolve().parent
+    uid = os.getuid() if hasattr(os, "getuid") else None
     for candidate in sorted(parent.glob(f".{output.name}{RETIRED_PREFIX}*/site")):
+        # Only what this user's own build left aside: in a folder others may write, a
+        # planted "previous site" must not become the site.
+        if candidate.is_symlink() or (uid is not None and (
+                candidate.lstat().st_uid != uid or candidate.parent.lstat().st_uid != uid)):
+            continue
         if is_site(candidate):
             os.replace(candidate, output)
             log.warning("restored the previous site from %s (an earlier build was "
@@ -238,6 +249,11 @@ def prepare_output(output: str | os.PathLike) -> Path:
     recover_site(output)
     if output.exists() and not output.is_dir():
         raise BuildError(f"{output}: exists and is not a folder; choose another -o.")
+    owner = output.stat().st_uid if output.exists() and hasattr(os, "getuid") else None
+    if owner is not None and owner != os.getuid() and os.getuid() != 0:
+        raise BuildError(f"{output}: the folder belongs to another user (uid {owner}); a "
+                         f"build replaces the whole folder, which only its owner may do. "
+                         f"Ask them to remove it, or choose another -o.")
     if output.is_dir() and any(output.iterdir()) and not is_site(output):
         raise BuildError(f"{output}: the folder is not empty and is not a site built by "
                          f"sdofreport (no {MANIFEST_NAME} of ours); refusing to replace "

@@ -23,6 +23,7 @@ from xml.sax.saxutils import escape
 
 import numpy as np
 
+from sdofreport.site.symbols import split_symbols
 from sdofreport.site.ticks import nice_ticks
 
 __all__ = ["AxesSpec", "Band", "Curve", "LegendEntry", "PanelLayout", "PanelStyle", "Span",
@@ -120,7 +121,15 @@ def _text(x, y, text, size, *, anchor="start", baseline="auto", rotate=None,
     base = "" if baseline == "auto" else f' dominant-baseline="{baseline}"'
     return (f'<text x="{_num(x)}" y="{_num(y)}" font-size="{size:g}" '
             f'text-anchor="{anchor}"{base} fill="{colour}"{transform}>'
-            f"{escape(text)}</text>")
+            f"{_with_subscripts(text, size)}</text>")
+
+
+def _with_subscripts(text, size) -> str:
+    """Escaped text; the subscripts of :data:`sdofreport.site.symbols.SYMBOLS` lowered
+    and at 70 % size, as on the pages."""
+    return "".join(
+        f'<tspan baseline-shift="sub" font-size="{0.7 * size:g}">{escape(piece)}</tspan>'
+        if sub else escape(piece) for piece, sub in split_symbols(str(text)))
 
 
 def _svg_open(w: float, h: float, defs: str = "") -> list[str]:
@@ -507,19 +516,24 @@ def axes_svg(spec: AxesSpec, layout: PanelLayout, style: PanelStyle, *, text_wid
 
 
 def _legend(entries, left: float, top: float, width: float, style: PanelStyle) -> str:
-    """A framed legend whose top-left corner is at (left, top). [pt]"""
+    """A framed legend whose top-left corner is at (left, top); a label may hold line
+    breaks, and its later lines follow under the first at a tighter line spacing. [pt]"""
     size = style.tick_size  # legend.fontsize = tick label size in FIGURE_RC
     pad = 0.4 * size
     row = 1.5 * size
+    line = 1.2 * size
     handle = 2.0 * size
-    height = 2 * pad + row * len(entries) - 0.5 * size
+    extra = sum(str(entry.label).count("\n") for entry in entries)
+    height = 2 * pad + row * len(entries) + line * extra - 0.5 * size
     box_w = width - 0.2 * 72.0
     out = [f'<g class="legend"><rect x="{_num(left + 0.1 * 72.0)}" y="{_num(top)}" '
            f'width="{_num(box_w)}" height="{_num(height)}" fill="#ffffff" '
            f'fill-opacity="0.85" stroke="#bbbbbb" stroke-width="0.8"/>\n']
     x = left + 0.1 * 72.0 + pad
-    for i, entry in enumerate(entries):
-        cy = top + pad + i * row + 0.5 * size
+    cy = top + pad + 0.5 * size - row
+    for entry in entries:
+        lines = str(entry.label).split("\n")
+        cy += row
         if entry.patch:
             out.append(f'<rect x="{_num(x)}" y="{_num(cy - 0.35 * size)}" '
                        f'width="{_num(handle)}" height="{_num(0.7 * size)}" '
@@ -531,7 +545,9 @@ def _legend(entries, left: float, top: float, width: float, style: PanelStyle) -
             out.append(f'<path d="M{_num(x)} {_num(cy)}h{_num(handle)}" stroke='
                        f'"{entry.colour}" stroke-width="{entry.width:g}"{opacity}{dash} '
                        f'fill="none"/>\n')
-        out.append(_text(x + handle + 0.8 * size, cy, entry.label, size,
-                         baseline="central") + "\n")
+        for number, text in enumerate(lines):
+            out.append(_text(x + handle + 0.8 * size, cy + number * line, text, size,
+                             baseline="central") + "\n")
+        cy += line * (len(lines) - 1)
     out.append("</g>\n")
     return "".join(out)

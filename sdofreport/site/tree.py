@@ -24,6 +24,7 @@ FILE_MODE = 0o644
 
 STAGING_PREFIX = ".building-"
 RETIRED_PREFIX = ".previous-"
+LOCK_SUFFIX = ".lock"
 
 
 def _exchange(a: Path, b: Path) -> bool:
@@ -143,7 +144,11 @@ class StagedTree:
         shutil.rmtree(self.folder, ignore_errors=True)
 
     def commit(self) -> Path:
-        """Swap the finished tree in for ``output`` and return ``output``."""
+        """
+        Swap the finished tree in for ``output`` and return ``output``. When the swap
+        fails (the old tree cannot be moved, say), the old tree stays in place, nothing
+        is left beside it and :class:`~sdofreport.errors.BuildError` says why.
+        """
         self.folder.chmod(FOLDER_MODE)
         output = self.output
         try:
@@ -151,23 +156,142 @@ class StagedTree:
                 if _exchange(self.folder, output):
                     shutil.rmtree(self.folder, ignore_errors=True)  # now the old tree
                 else:
-                    retired = Path(tempfile.mkdtemp(
-                        prefix=f".{output.name}{RETIRED_PREFIX}", dir=self.parent))
-                    os.replace(output, retired / "site")
-                    os.replace(self.folder, output)
-                    shutil.rmtree(retired, ignore_errors=True)
+                    self._replace_by_renames(output)
             else:
                 os.replace(self.folder, output)
+        except OSError as exc:
+            self.discard()
+            raise BuildError(f"{output}: the new site could not take the place of the old "
+                             f"one ({exc.strerror or exc}); the old site is unchanged. "
+                             f"Check that you may rename it (its owner and the "
+                             f"permissions of {self.parent}), or choose another -o.") \
+                from None
         except BaseException:
             self.discard()
             raise
         self._open = False
         return output
 
+    def _replace_by_renames(self, output: Path) -> None:
+        """The swap without renameat2: the old tree aside, the new one in, the old one
+        removed; on a failure, the old tree is put back and nothing is left aside."""
+        retired = Path(tempfile.mkdtemp(prefix=f".{output.name}{RETIRED_PREFIX}",
+                                        dir=self.parent))
+        try:
+            os.replace(output, retired / "site")
+        except OSError:
+            shutil.rmtree(retired, ignore_errors=True)
+            raise
+        try:
+            os.replace(self.folder, output)
+        except OSError:
+            os.replace(retired / "site", output)
+            shutil.rmtree(retired, ignore_errors=True)
+            raise
+        shutil.rmtree(retired, ignore_errors=True)
+
+
+class OutputLock:
+    """
+    The right to build into ``output``: an exclusive ``fcntl.flock`` on the file
+    ``.<name>.lock`` beside it, held from the first look at the folder to the swap.
+
+    A second build (or register) into the same folder meanwhile is refused with a
+    :class:`~sdofreport.errors.BuildError` naming the process that holds the lock (it
+    would otherwise tidy away the first build's staging folder). The kernel releases the
+    lock when its holder dies, so a killed build never blocks the next one. The lock
+    file is removed on release; on systems without ``fcntl`` there is no lock.
+    """
+
+    def __init__(self, output: str | os.PathLike) -> None:
+        output = Path(os.path.abspath(output))
+        # The real parent: two spellings of one folder (through a linked parent, say)
+        # must meet at one lock, as their staging folders meet in one parent.
+        self.path = Path(os.path.realpath(output.parent)) / f".{output.name}{LOCK_SUFFIX}"
+        self.output = output
+        self._descriptor: int | None = None
+
+    def __enter__(self) -> OutputLock:
+        self.acquire()
+        return self
+
+    def __exit__(self, kind, value, traceback) -> None:
+        self.release()
+
+    def acquire(self) -> None:
+        try:
+            import fcntl
+        except ImportError:  # not POSIX: no lock
+            return
+        flags = os.O_RDWR | os.O_CREAT | getattr(os, "O_NOFOLLOW", 0) | \
+            getattr(os, "O_CLOEXEC", 0)
+        while True:
+            try:
+                self.path.parent.mkdir(parents=True, exist_ok=True)
+                descriptor = os.open(self.path, flags, 0o644)
+            except OSError as exc:
+                raise BuildError(f"{self.output}: cannot create the lock file {self.path} "
+                                 f"({exc.strerror or exc}) that keeps two builds from "
+                                 f"writing one site at once; check that you may write "
+                                 f"{self.path.parent}, or choose another -o.") from None
+            try:
+                fcntl.flock(descriptor, fcntl.LOCK_EX | fcntl.LOCK_NB)
+            except OSError:
+                holder = os.pread(descriptor, 32, 0).decode("ascii", "replace").strip()
+                os.close(descriptor)
+                who = f"process {holder}" if holder.isdigit() else "another process"
+                raise BuildError(f"{self.output}: another sdofreport run ({who}) is "
+                                 f"writing this folder now (lock {self.path}); wait until "
+                                 f"it has finished, or write into another folder with -o.") \
+                    from None
+            try:  # the file locked must still be the one at the path (not removed by
+                # a build finishing meanwhile), else try again with the new one
+                same = os.path.samestat(os.fstat(descriptor), os.stat(self.path))
+            except FileNotFoundError:
+                same = False
+            if same:
+                break
+            os.close(descriptor)
+        os.ftruncate(descriptor, 0)
+        os.pwrite(descriptor, f"{os.getpid()}\n".encode("ascii"), 0)
+        self._descriptor = descriptor
+
+    def release(self) -> None:
+        if self._descriptor is None:
+            return
+        try:
+            os.unlink(self.path)  # while still held: nobody can have it meanwhile
+        except OSError:
+            pass
+        os.close(self._descriptor)
+        self._descriptor = None
+
+
+def output_folder(output: str | os.PathLike) -> Path:
+    """
+    ``output`` as an absolute path, once it is known to be a folder a build may replace:
+    not a symbolic link (the swap would replace the link, not the folder it points to)
+    and not the current folder or one above it (``-o .``: the swap would pull the folder
+    away from under the shell that is in it). Raises :class:`BuildError` otherwise.
+    """
+    path = Path(os.path.abspath(output))
+    if path.is_symlink():
+        raise BuildError(f"{output}: is a symbolic link (to {os.readlink(path)}); a build "
+                         f"replaces the folder it is given, so give the folder itself, "
+                         f"for example -o {path.resolve()}")
+    real, here = path.resolve(), Path.cwd().resolve()
+    if real == here or real in here.parents:
+        which = "the current folder" if real == here else "a folder above the current one"
+        raise BuildError(f"{output}: is {which}; a build replaces the whole folder it is "
+                         f"given, so give a folder of its own, for example -o _site")
+    return path
+
 
 def write_tree(files: dict[str, bytes], output: str | os.PathLike) -> Path:
-    """Write ``files`` (relative path → bytes) as a tree that replaces ``output``."""
-    with StagedTree(output) as tree:
+    """Write ``files`` (relative path → bytes) as a tree that replaces ``output``
+    (checked by :func:`output_folder`, locked by :class:`OutputLock`)."""
+    output = output_folder(output)
+    with OutputLock(output), StagedTree(output) as tree:
         for path, data in sorted(files.items()):
             tree.write(path, data)
         return tree.commit()

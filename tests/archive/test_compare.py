@@ -68,7 +68,7 @@ def test_added_system_and_its_checks(comparison):
 
 def test_file_hashes_are_compared_when_both_sides_are_sites(group, sites):
     result = CliRunner().invoke(group, ["compare", str(sites["rev0"]), str(sites["rev1"]),
-                                        "--output", "json"])
+                                        "--format", "json"])
     assert result.exit_code == 0, result.output
     document = json.loads(result.output)
     # The record files are the same bytes in both projects: no file hash change.
@@ -113,7 +113,7 @@ class _Refs(HTMLParser):
 def test_html_output_is_self_contained_and_cautioned(group, sites, tmp_path):
     out = tmp_path / "compare.html"
     result = CliRunner().invoke(group, ["compare", str(sites["rev0"]), str(sites["rev1"]),
-                                        "--output", "html", "-o", str(out)])
+                                        "--format", "html", "-o", str(out)])
     assert result.exit_code == 0, result.output
     page = out.read_text("utf-8")
     assert html.escape(CAUTION_SHORT, quote=False) in page
@@ -159,3 +159,32 @@ def test_bad_inputs_exit_2(group, sites, tmp_path, content, expected):
 def test_missing_path_exits_2(group, sites, tmp_path):
     result = CliRunner().invoke(group, ["compare", str(tmp_path / "nope"), str(sites["rev0"])])
     assert result.exit_code == 2 and "not found" in result.output
+
+
+def test_old_spellings_still_work_with_a_deprecation(group, sites, tmp_path):
+    """'--output html -o FILE' and '--output-file FILE' of the earlier release give the
+    same page as '--format html -o FILE', each with a deprecation message."""
+    pages = {}
+    for name, args in {"new": ["--format", "html", "-o"],
+                       "old": ["--output", "html", "-o"],
+                       "older": ["--output", "html", "--output-file"]}.items():
+        out = tmp_path / f"{name}.html"
+        result = CliRunner().invoke(group, ["compare", str(sites["rev0"]),
+                                            str(sites["rev1"]), *args, str(out)])
+        assert result.exit_code == 0, result.output
+        assert ("Deprecated" in result.stderr) == (name != "new")
+        pages[name] = out.read_bytes()
+    assert pages["old"] == pages["new"] == pages["older"]
+
+
+def test_verify_format_and_output_file(group, sites, tmp_path):
+    """verify: '--format json' is the report format and '-o' a file; the earlier
+    '--output json' still works with a deprecation message."""
+    out = tmp_path / "report.json"
+    new = CliRunner().invoke(group, ["verify", str(sites["rev0"]), "--format", "json",
+                                     "-o", str(out)])
+    assert new.exit_code == 0, new.output
+    report = json.loads(out.read_text("utf-8"))
+    old = CliRunner().invoke(group, ["verify", str(sites["rev0"]), "--output", "json"])
+    assert old.exit_code == 0 and json.loads(old.stdout) == report
+    assert "Deprecated" in old.stderr

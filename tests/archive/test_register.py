@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import re
 import shutil
 from html.parser import HTMLParser
 from pathlib import Path
@@ -141,6 +142,20 @@ def test_output_inside_the_scanned_folder_is_not_registered(group, artifacts):
     _register(group, artifacts, output)
     rows = json.loads((output / "register.json").read_text())["runs"]
     assert len(rows) == 3
+
+
+def test_register_has_the_site_header_and_breakable_file_names(group, artifacts, tmp_path):
+    """The register page keeps the site's header element and column (base.html's
+    <header class="masthead">) and lets long file names wrap after / _ . - (a <wbr>
+    after each; HTML Living Standard, the wbr element)."""
+    output = tmp_path / "register"
+    _register(group, artifacts, output)
+    page = (output / "index.html").read_text("utf-8")
+    assert '<header class="masthead">' in page and 'class="masthead-id"' in page
+    assert "Register of archived runs" in page
+    names = re.findall(r'<code class="file-name">(.*?)</code>', page)
+    assert "job2/<wbr>_<wbr>site" in names
+    assert all("<wbr>" in name for name in names)
 
 
 def _forge(site: Path, path: str, text_from, text_to) -> None:

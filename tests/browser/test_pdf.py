@@ -60,6 +60,48 @@ def test_pdf_has_every_page_the_title_the_systems_and_the_caution(example_site, 
     print(f"review packet: {copy} ({count} pages)")
 
 
+def test_contents_page_numbers_are_where_each_section_starts(example_site, packet,
+                                                           artifacts):
+    """The printed contents give, for every site page, the PDF page on which the text
+    of its section ("Site page <path>") first appears, read back independently with
+    pypdf's text extraction; the first pages are kept as PNG artifacts when pdftoppm
+    (poppler) is installed."""
+    import re
+    import shutil
+    import subprocess
+
+    _, output, reader = packet
+    texts = [_words(page.extract_text()) for page in reader.pages]
+    first = {}
+    for number, text in enumerate(texts, start=1):
+        for path in re.findall(r"Site page (\S+\.html)", text):
+            first.setdefault(path, number)
+    pages = packet_pages(example_site)
+    assert set(first) == set(pages)
+    contents = " ".join(texts[:3])
+    for index, path in enumerate(pages, start=1):
+        # A contents row reads "<no.> <title> <path> <page>".
+        row = re.search(rf"(?:^| ){index} .*?{re.escape(path)} (\d+)", contents)
+        assert row, f"no contents row for {path}"
+        assert int(row.group(1)) == first[path], (path, row.group(1), first[path])
+    if shutil.which("pdftoppm"):
+        subprocess.run(["pdftoppm", "-r", "60", "-f", "1", "-l", "4", "-png",
+                        str(output), str(artifacts / "packet-page")], check=True)
+
+
+def test_packet_has_the_signoff_block_and_revision_history(packet):
+    """The example names who prepared and checked it with dates, leaves the approval
+    open, and has one revision (its project file, site_examples/...)."""
+    _, _, reader = packet
+    cover = " ".join(_words(page.extract_text()) for page in reader.pages[:3])
+    assert "Sign-off" in cover
+    assert "Prepared R. Okonjo (example) 2026-11-27" in cover
+    assert "Checked M. Lindqvist (example) 2026-11-29" in cover
+    assert "Approved for issue not stated not stated" in cover
+    assert "Revision history" in cover
+    assert "A 2026-11-30 First issue for review (invented example)" in cover
+
+
 def test_pdf_packet_order_is_summary_suite_records_systems(example_site):
     pages = packet_pages(example_site)
     assert pages[:2] == ["index.html", "suite.html"]

@@ -24,7 +24,8 @@ from .conftest import invoke, read_site
 def test_new_then_build_succeeds(starter_site):
     project, site = starter_site
     assert sorted(p.relative_to(project).as_posix() for p in project.rglob("*")
-                  if p.is_file()) == ["notes.md", "records/README.md", "records/mby01.csv",
+                  if p.is_file()) == [".gitignore", "notes.md", "records/README.md",
+                                      "records/mby01.csv",
                                       "records/mby02.csv", "records/mby03.csv",
                                       "sdofreport.toml"]
     results, manifest = read_site(site)
@@ -49,6 +50,23 @@ def test_starter_builds_strict_and_packs(starter_site, command_group, tmp_path):
     assert archive.endswith(".zip") and "MBY-0001_revA_" in archive
     verified = invoke(command_group, "verify", archive)
     assert verified.exit_code == 0, verified.output
+
+
+def test_starter_gitignore_covers_the_site_and_the_packet(starter_site):
+    """The default site folder and the default --pdf file (sdofreport.site.pdf) of a
+    build in the starter folder are both ignored by git (fnmatch, as git's patterns)."""
+    import fnmatch
+
+    from sdofreport.site.pdf import default_pdf_path
+
+    project, _ = starter_site
+    patterns = [line for line in (project / ".gitignore").read_text("utf-8").splitlines()
+                if line and not line.startswith("#")]
+    site = project / "_site"
+    pdf = default_pdf_path(site)
+    assert pdf.parent == project.resolve()
+    assert any(fnmatch.fnmatch(pdf.name, p) for p in patterns)
+    assert any(p.rstrip("/") == site.name for p in patterns)
 
 
 def test_starter_systems_follow_their_inputs(starter_site):

@@ -199,6 +199,8 @@ def test_rich_project_validates_and_covers_optional_blocks(rich_site):
     models = {s["id"]: s["model"] for s in results["systems"]}
     assert models == {"s1": "linear", "pier": "bilinear", "iso": "sliding-pendulum"}
     assert results["scaling"]["rule"] == "asce7-16" and results["scaling"]["criteria"]
+    # Definition: docs/project-file.md gives 8 as the default steps_per_period.
+    assert results["inelastic_spectra"]["steps_per_period"] == 8.0
 
 
 # ------------------------------------------------- the schemas reject bad documents

@@ -53,7 +53,7 @@ RECORD_CASES = [
     ("decimal_commas.csv", [], {}, ["line 2", "decimal commas are not supported"]),
     ("empty.txt", [], {}, ["is empty"]),
     ("blank_lines.txt", [], {}, ["is empty"]),
-    ("header_only.csv", ["--format", "two-column"], {"format": "two-column"},
+    ("header_only.csv", ["--layout", "two-column"], {"format": "two-column"},
      ["has no data lines"]),
     ("too_few_points.csv", [], {}, ["has 10 acceleration values; at least 16"]),
     ("time_goes_back.csv", [], {}, ["line 9", "is not greater than the time 0.06 s on line 8"]),
@@ -65,7 +65,7 @@ RECORD_CASES = [
     ("header_unreadable.txt", [], {}, ["line 2", "values could not be read"]),
     ("npts_huge.txt", [], {}, ["line 2", "states NPTS=999999999999 but 20 values"]),
     ("words_in_values.txt", ["--dt", "0.01"], {"dt": 0.01}, ["line 3", "'abc' is not a number"]),
-    ("values_without_dt.txt", ["--format", "values"], {"format": "values"},
+    ("values_without_dt.txt", ["--layout", "values"], {"format": "values"},
      ["no time step", "dt"]),
     # Issue 15 part 7: absurd amplitude, a byte-order mark alone, numbers in quotes.
     ("absurd_1e200g.csv", [], {}, ["line 7", "1e+200 g is beyond any ground motion"]),

@@ -149,3 +149,72 @@ def test_figures_are_deterministic_svg(built):
         text = svg.read_text()
         assert text.lstrip().startswith("<?xml") and "<svg" in text
         assert "dc:date" not in text
+
+
+def test_spreadsheet_matches_results_json(built):
+    """data/results.xlsx opens with openpyxl (an independent reader of the format) and
+    every check, peak and scale factor in it equals the one in data/results.json, to the
+    16 significant digits the workbook keeps (Excel itself keeps 15)."""
+    import io
+
+    import openpyxl
+
+    site = built[0]
+    document = json.loads((site / "data" / "results.json").read_text("utf-8"))
+    data = (site / "data" / "results.xlsx").read_bytes()
+    assert data == (built[1] / "data" / "results.xlsx").read_bytes()  # deterministic
+    manifest = json.loads((site / "manifest.json").read_text("utf-8"))
+    assert manifest["files"]["data/results.xlsx"] == hashlib.sha256(data).hexdigest()
+    book = openpyxl.load_workbook(io.BytesIO(data), read_only=True)
+    assert book.sheetnames == ["checks", "peaks", "spectra", "scaling"]
+    checks = list(book["checks"].iter_rows(values_only=True))
+    expected = [(s["id"], c["quantity"], c["demand"], c["limit"], c["verdict"])
+                for s in document["systems"] for c in s["checks"]]
+    header = checks[0]
+    got = [(row[0], row[header.index("quantity")], row[header.index("demand")],
+            row[header.index("limit")], row[header.index("verdict")]) for row in checks[1:]]
+    assert expected and [g[:2] + g[4:] for g in got] == [e[:2] + e[4:] for e in expected]
+    assert [v for g in got for v in g[2:4]] == pytest.approx(
+        [v for e in expected for v in e[2:4]], rel=1e-15)
+    peaks = list(book["peaks"].iter_rows(values_only=True))
+    column = peaks[0].index("peak_displacement_m")
+    assert [row[column] for row in peaks[1:]] == pytest.approx([
+        r["peak_displacement_m"] for s in document["systems"] for r in s["responses"]],
+        rel=1e-15)
+    spectra = list(book["spectra"].iter_rows(values_only=True))
+    periods = document["spectra"]["periods_s"]
+    assert len(spectra) - 1 == (len(document["records"]) * len(periods)
+                                * len(document["spectra"]["damping"]))
+    first = document["records"][0]["id"]
+    assert [row[4] for row in spectra[1:len(periods) + 1]] == pytest.approx(
+        document["spectra"][first]["psa_g"][0], rel=1e-15)
+    factors = {row[1]: row[2] for row in book["scaling"].iter_rows(values_only=True)
+               if row[0] == "record factor"}
+    assert factors == pytest.approx(
+        {r["id"]: r["factor"] for r in document["scaling"]["records"]}, rel=1e-15)
+
+
+def test_no_page_writes_a_number_with_an_exponent(built):
+    """One number style on every page (sdofreport.site.display.number): no value in
+    exponent notation such as 4.753e-06 anywhere in the pages' text."""
+    pattern = re.compile(r"\b\d+(?:\.\d+)?[eE][-+]?\d+\b")
+    for page in sorted(built[0].rglob("*.html")):
+        if "inputs" in page.relative_to(built[0]).parts:
+            continue
+        text = " ".join(_parse(page).text)
+        assert not pattern.findall(text), (page.name, pattern.findall(text)[:5])
+
+
+def test_symbols_render_as_subscripts_on_the_pages(built):
+    """No listed symbol (sdofreport.site.symbols.SYMBOLS) is left in its raw
+    underscore form in any page's text; the suite page writes S_DS as S<sub>DS</sub>."""
+    from sdofreport.site.symbols import SYMBOLS
+
+    site = built[0]
+    assert "S<sub>DS</sub>" in (site / "suite.html").read_text("utf-8")
+    for page in sorted(site.rglob("*.html")):
+        if "inputs" in page.relative_to(site).parts:
+            continue
+        text = " ".join(_parse(page).text)
+        raw = [s for s in SYMBOLS if re.search(rf"(?<![\w/]){re.escape(s)}(?!\w)", text)]
+        assert not raw, (page.name, raw)

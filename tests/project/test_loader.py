@@ -183,3 +183,37 @@ def test_base_shear_needs_mass(project_factory):
     with pytest.raises(ProjectError, match=r"systems\[1\]\.limits\.base_shear: a "
                                            r"base-shear limit needs the system's mass"):
         load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + system))
+
+
+def test_signoff_and_revisions_are_read(project_factory):
+    """[project] sign-off keys and [[project.revisions]] tables reach the model in
+    the order written (our own interface; dates by ISO 8601 calendar-date form)."""
+    head = PROJECT_HEAD + ('prepared_date = "2026-01-05"\nchecked_by = "C"\n'
+                           'checked_date = "2026-01-06"\napproved_by = "D"\n'
+                           'approved_date = "2026-01-07"\n')
+    revisions = ('\n[[project.revisions]]\nrevision = "A"\ndate = "2026-01-02"\n'
+                 'description = "first"\nby = "E"\n\n[[project.revisions]]\n'
+                 'revision = "B"\n')
+    info = load_project(project_factory(head + revisions + "\n" + TWO_RECORDS + "\n"
+                                        + ONE_SYSTEM)).info
+    assert (info.prepared_date, info.checked_date) == ("2026-01-05", "2026-01-06")
+    assert (info.approved_by, info.approved_date) == ("D", "2026-01-07")
+    assert [(r.revision, r.date, r.description, r.by) for r in info.revisions] == [
+        ("A", "2026-01-02", "first", "E"), ("B", None, None, None)]
+
+
+def test_bad_signoff_and_revisions_are_each_named(project_factory):
+    head = PROJECT_HEAD + 'approved_date = "30/11/2026"\n'
+    revisions = ('\n[[project.revisions]]\ndate = "2026-13-01"\nauthor = "X"\n'
+                 '\n[[project.revisions]]\nrevision = 3\n')
+    with pytest.raises(ProjectError) as caught:
+        load_project(project_factory(head + revisions + "\n" + TWO_RECORDS + "\n"
+                                     + ONE_SYSTEM))
+    message = str(caught.value)
+    assert "project.approved_date: expected a date written YYYY-MM-DD, found " \
+           "'30/11/2026'" in message
+    assert "project.revisions[1].revision: missing" in message
+    assert "project.revisions[1].date: expected a date written YYYY-MM-DD" in message
+    assert "project.revisions[1].author: unknown key; did you mean 'by'?" in message or \
+        "project.revisions[1].author: unknown key" in message
+    assert "project.revisions[2].revision: expected non-empty text, found 3" in message

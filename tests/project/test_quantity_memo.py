@@ -36,7 +36,7 @@ def test_remembered_values_equal_pints_own(fresh_memo):
     ureg = quantities._registry()
     first = [quantities.parse_quantity(text, dimension) for text, dimension in CASES]
     quantities.save_memo()
-    stored = json.loads(fresh_memo.read_text("utf-8"))
+    stored = json.loads(fresh_memo.read_text("utf-8"))["entries"]
     assert len(stored) == len(CASES)
     quantities._MEMO = None  # read back from the file
     second = [quantities.parse_quantity(text, dimension) for text, dimension in CASES]
@@ -60,9 +60,43 @@ def test_a_damaged_memo_is_ignored(fresh_memo):
 def test_saving_keeps_what_another_process_stored(fresh_memo):
     assert quantities.parse_quantity("18 ft", "length") == pytest.approx(18 * 0.3048)
     # Another process stored an entry after this one read the (empty) memo.
-    fresh_memo.write_text(json.dumps({"mass|120 t": 120000.0}), "utf-8")
+    _write_memo(fresh_memo, {"mass|120 t": 120000.0})
     quantities.save_memo()
-    assert set(json.loads(fresh_memo.read_text("utf-8"))) == {"mass|120 t", "length|18 ft"}
+    stored = json.loads(fresh_memo.read_text("utf-8"))["entries"]
+    assert set(stored) == {"mass|120 t", "length|18 ft"}
+
+
+def _write_memo(path, entries: dict) -> None:
+    """A memo file in the current layout, its checksum right."""
+    path.write_text(json.dumps({"format": quantities.MEMO_FORMAT, "entries": entries,
+                                "sha256": quantities._entries_digest(entries)}), "utf-8")
+
+
+def test_a_flipped_digit_in_the_memo_is_discarded(fresh_memo, caplog):
+    # Reproduction: a damaged memo turned "100 t" into 900 t.
+    assert quantities.parse_quantity("100 t", "mass") == 100_000.0
+    quantities.save_memo()
+    text = fresh_memo.read_text("utf-8")
+    assert "100000.0" in text
+    fresh_memo.write_text(text.replace("100000.0", "900000.0"), "utf-8")
+    quantities._MEMO = None
+    with caplog.at_level("WARNING", logger="sdofreport.project"):
+        # Definition (NIST SP 811 App. B): 1 t = 1000 kg.
+        assert quantities.parse_quantity("100 t", "mass") == 100_000.0
+    assert "checksum mismatch" in caplog.text and not fresh_memo.exists()
+
+
+def test_without_memo_converts_afresh_and_stores_nothing(fresh_memo):
+    # Reproduction: --no-cache still used the memo. Here the memo lies with a valid
+    # checksum; a build without a cache must not even read it.
+    _write_memo(fresh_memo, {"mass|100 t": 900_000.0})
+    quantities._MEMO = None
+    with quantities.without_memo():
+        # Definition (NIST SP 811 App. B): 1 t = 1000 kg.
+        assert quantities.parse_quantity("100 t", "mass") == 100_000.0
+        assert quantities.parse_quantity("18 ft", "length") == pytest.approx(18 * 0.3048)
+        quantities.save_memo()
+    assert json.loads(fresh_memo.read_text("utf-8"))["entries"] == {"mass|100 t": 900_000.0}
 
 
 def test_bad_strings_are_not_remembered(fresh_memo):

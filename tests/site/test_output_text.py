@@ -363,3 +363,27 @@ def test_example_results_document_text_matches_stdlib_json(example_results):
 def test_example_spectra_csv_matches_stdlib_csv_writer(example_results):
     # Reference: stdlib csv.writer over value-by-value rows.
     assert spectra_csv(example_results) == reference_spectra_csv(example_results)
+
+
+def test_one_number_style_with_a_stated_rule_for_tiny_values():
+    """sdofreport.site.display.number: plain decimals to 4 significant figures, never
+    an exponent; the stated rule for magnitudes below 0.0001 (our own rule, common
+    practice for report tables, no source)."""
+    import numpy as np
+
+    from sdofreport.site.display import TINY, number
+
+    assert number(21.74) == "21.74"
+    assert number(4.753e-06) == "< 0.0001"
+    assert number(-4.753e-06) == "> −0.0001"
+    assert number(TINY) == "0.0001000"
+    assert number(0.0) == "0"
+    assert number(1234567.8) == "1\u2009234\u2009568"
+    for value in np.geomspace(1e-12, 1e12, 97):
+        for signed in (value, -value):
+            text = number(float(signed))
+            assert "e" not in text.lower(), text
+            if abs(signed) >= TINY:
+                # Read back, the text is the value to 4 significant figures.
+                back = float(text.replace("\u2009", ""))
+                assert back == pytest.approx(signed, rel=5e-4), text
