@@ -173,7 +173,8 @@ def spectrum_command(file, file_format, units, dt_s, damping, periods_text, meth
               help="Worker processes (default: the number of cores).")
 @click.option("--quiet", "-q", is_flag=True, help="No progress bar or summary line.")
 @click.option("--strict", is_flag=True,
-              help="Exit with status 3 when any check exceeds its limit.")
+              help="Exit with status 3 when any check exceeds its limit or the record "
+                   "suite does not comply with its standard's scaling criteria.")
 @click.option("--cache-dir", type=click.Path(file_okay=False, path_type=str), default=None,
               help="Result cache folder (default: a per-user cache folder).")
 @click.option("--no-cache", is_flag=True, help="Recompute everything; store nothing.")
@@ -250,9 +251,21 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
                    err=True)
         click.echo("Verdicts are checks of the stated limits, not an approval; results "
                    "support but never replace a licensed engineer's judgement.", err=True)
-    if strict and exceeding:
+    scaling = results.scaling
+    noncompliant = scaling is not None and scaling.complies is False
+    if noncompliant and not quiet:
+        click.echo(f"The record suite does not comply with {scaling.standard or 'its rule'}"
+                   f": " + "; ".join(f"{c.name} {c.achieved:g}, required {c.comparison} "
+                                     f"{c.required:g}" for c in scaling.failed) + ".",
+                   err=True)
+    if strict and (exceeding or noncompliant):
         if not quiet:
-            click.echo(f"--strict: {exceeding} check(s) exceed the stated limit.", err=True)
+            reasons = []
+            if exceeding:
+                reasons.append(f"{exceeding} check(s) exceed the stated limit")
+            if noncompliant:
+                reasons.append("the record suite does not comply")
+            click.echo(f"--strict: {'; '.join(reasons)}.", err=True)
         sys.exit(3)
 
 

@@ -37,7 +37,8 @@ from sdofreport.executors import execute, fork_context, local_pool
 from sdofreport.jobs import record_products, run_job
 from sdofreport.project.model import Project, RecordSpec, SystemSpec
 from sdofreport.records import Record, process_record, read_record
-from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling
+from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling, \
+    scaling_damping
 
 log = logging.getLogger("sdofreport.engine")
 
@@ -112,6 +113,8 @@ class Check:
     statistic: str  # mean | max
     ratio: float
     verdict: str  # VERDICT_WITHIN | VERDICT_EXCEEDS
+    #: True when the statistic is of absolute values (|residual displacement|, ...)
+    absolute: bool = False
 
 
 @dataclass
@@ -376,6 +379,10 @@ CHECK_ATTRIBUTES = {
 }
 
 
+#: Check quantities whose per-record value carries a sign: their statistic is of |value|.
+SIGNED_QUANTITIES = ("residual_displacement",)
+
+
 def _statistic(values: list[float], statistic: str) -> float:
     return float(np.mean(values)) if statistic == "mean" else float(np.max(values))
 
@@ -386,13 +393,15 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
         for quantity, limit in system.limits.items():
             peaks = [getattr(responses[(system.id, r.id)], CHECK_ATTRIBUTES[quantity])
                      for r in project.records]
-            peaks = [abs(p) for p in peaks if p is not None]
+            peaks = [p for p in peaks if p is not None]
             if not peaks:
                 continue
-            demand = _statistic(peaks, statistic)
+            absolute = quantity in SIGNED_QUANTITIES or any(p < 0 for p in peaks)
+            demand = _statistic([abs(p) for p in peaks], statistic)
             ratio = demand / limit
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
-                                VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS))
+                                VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS,
+                                absolute))
     return checks
 
 
@@ -495,21 +504,27 @@ def run_project(project: Project, *, jobs: int | None = None,
                                             "dask_local": dask_local,
                                             "min_pool_seconds": MIN_POOL_SECONDS})
     by_id = {r.id: r for r in records}
+    # Scaling reads spectra at the target's own damping, listed in [analysis] damping
+    # or not; the records' results keep only the listed ratios.
+    target_damping = scaling_damping(project)
+    damping = tuple(sorted(set(analysis.damping) | ({target_damping} if target_damping
+                                                    is not None else set())))
+    pair_damping = target_damping if target_damping is not None else SCALING_DAMPING
 
     # Phase 1: spectra of every record (as given) and RotD spectra of every pair.
     plan = []
     for record in records:
-        args = _record_args(record, analysis)
+        args = _record_args(record, analysis, damping)
         key = cache_key({**base, "job": "record", "sha": _array_hash(args[0]),
                             "dt": record.dt_s, "periods": list(analysis.periods_s),
-                            "damping": list(analysis.damping)})
+                            "damping": list(damping)})
         plan.append((f"record {record.id} (spectra)", "record", args, key))
     for name, (h1, h2) in pairs.items():
         a1, a2 = by_id[h1].acceleration_m_s2, by_id[h2].acceleration_m_s2
-        args = (a1, a2, by_id[h1].dt_s, analysis.periods_s, SCALING_DAMPING, analysis.method)
+        args = (a1, a2, by_id[h1].dt_s, analysis.periods_s, pair_damping, analysis.method)
         key = cache_key({**base, "job": "pair", "sha1": _array_hash(a1),
                             "sha2": _array_hash(a2), "dt": by_id[h1].dt_s,
-                            "periods": list(analysis.periods_s), "damping": SCALING_DAMPING})
+                            "periods": list(analysis.periods_s), "damping": pair_damping})
         plan.append((f"pair {name} (RotD)", "pair", args, key))
     first = phase.run(plan)
     record_outputs = first[:len(records)]
@@ -521,6 +536,9 @@ def run_project(project: Project, *, jobs: int | None = None,
                               {name: o["rotd"] for name, o in pair_outputs.items()})
     record_results, scaled = [], {}
     for record, spec, output in zip(records, project.records, record_outputs):
+        if damping != tuple(analysis.damping):
+            output = {**output, "spectrum": _spectrum_at(output["spectrum"],
+                                                         analysis.damping)}
         factor = scaling.factors.get(record.id, 1.0)
         if factor != 1.0:
             record = _with_acceleration(record, np.asarray(record.acceleration_m_s2) * factor,
@@ -578,10 +596,19 @@ def run_project(project: Project, *, jobs: int | None = None,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses)
 
 
-def _record_args(record: Record, analysis) -> tuple:
+def _record_args(record: Record, analysis, damping=None) -> tuple:
     """Arguments of a record job (see sdofreport.jobs), for the plan and the warm-up."""
-    return (record.acceleration_m_s2, record.dt_s, analysis.periods_s, analysis.damping,
-            analysis.method)
+    return (record.acceleration_m_s2, record.dt_s, analysis.periods_s,
+            analysis.damping if damping is None else damping, analysis.method)
+
+
+def _spectrum_at(spectrum: ResponseSpectrum, damping) -> ResponseSpectrum:
+    """The rows of ``spectrum`` at the listed damping ratios (each one is computed)."""
+    rows = [int(np.flatnonzero(np.abs(np.asarray(spectrum.damping) - z) <= 1e-12)[0])
+            for z in damping]
+    names = ("sd_m", "sv_m_s", "psv_m_s", "psa_m_s2", "sa_m_s2")
+    return dataclasses.replace(spectrum, damping=np.asarray(spectrum.damping)[rows],
+                               **{n: np.asarray(getattr(spectrum, n))[rows] for n in names})
 
 
 # ---------------------------------------------------------------------------------------

@@ -112,7 +112,7 @@ def results_document(results: Results) -> dict:
             responses.append(entry)
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
-                   "ratio": c.ratio, "verdict": c.verdict}
+                   "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute}
                   for c in results.checks if c.system_id == system.id]
         systems.append({
             "id": system.id, "name": system.name, "mass_kg": system.mass_kg,
@@ -151,6 +151,13 @@ def suite_blocks(results: Results) -> dict:
                         for c in scaling.result.criteria]
         blocks["scaling"] = {
             "rule": scaling.rule,
+            "complies": scaling.complies,
+            "standard": scaling.standard,
+            "target_level": scaling.target_level,
+            "target_damping": scaling.target_damping,
+            "motions_counted": scaling.motions_counted,
+            "period_range_option": scaling.period_range_option,
+            "cautions": list(scaling.cautions),
             "period_range_s": list(scaling.period_range_s) if scaling.period_range_s
             else None,
             "records": [{"id": r.id, "factor": scaling.factors.get(r.id, 1.0)}

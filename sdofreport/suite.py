@@ -1,10 +1,10 @@
-"""The record suite against the design spectrum: target, period range and scale factors.
+"""The record suite against the target spectrum: target, period range and scale factors.
 
-Pure bookkeeping around :mod:`sdofreport.core.scaling`: it chooses the spectra each
-rule reads (pairs' RotD100 for ASCE/SEI 7-16 §16.2, 5 %-damped component spectra for
-EN 1998-1 §3.2.3.1.2 and for the log fit), the period range, and maps factors back to
-records. An unpaired record counts as its own motion under the ASCE rule (its 5 % PSA
-stands in for RotD100), which the page says.
+Pure bookkeeping around :mod:`sdofreport.codes` (which edition's rules apply) and
+:mod:`sdofreport.core.scaling` (the numerics): it chooses the spectra each rule reads
+(pairs' RotD100 and 5 %-damped component spectra at the target's damping), the period
+range, counts motions as the edition does and maps factors back to records. An unpaired
+record counts as its own motion (its PSA stands in for RotD100), which the page says.
 """
 
 from __future__ import annotations
@@ -13,12 +13,13 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from sdofreport import codes
 from sdofreport.core import scaling as core_scaling
-from sdofreport.core.design_spectra import en1998_1_parameters
+from sdofreport.core.design_spectra import design_spectrum, en1998_1_parameters
 from sdofreport.core.units import G
 
-#: Damping ratio of the spectra that scaling rules read (ASCE/SEI 7-16 §16.2.3 and
-#: EN 1998-1 §3.2.3.1.2 both use 5 % damping).
+#: Damping ratio of the spectra that rules naming no edition ("fit") read, and of the
+#: pairs' RotD spectra: 5 %, the target damping of every edition in sdofreport.codes.
 SCALING_DAMPING = 0.05
 
 
@@ -30,17 +31,62 @@ class SuiteScaling:
     result: object | None = None  # core ScalingResult, None for rule "none"
     motions: list[tuple[str, list[str]]] = field(default_factory=list)  # (name, record ids)
     notes: list[str] = field(default_factory=list)
+    #: edition and chapter, as text; None for rules naming no standard
+    standard: str | None = None
+    #: "mce_r", "design", or None where the edition has no such choice
+    target_level: str | None = None
+    #: damping ratio of the target and of the spectra scaled [-]
+    target_damping: float = SCALING_DAMPING
+    #: ground motions as the edition counts them (a pair is one)
+    motions_counted: int = 0
+    #: named period-range option, or None when the range was typed
+    period_range_option: str | None = None
+    #: the period-range option in words
+    period_range_text: str = ""
+    #: cautions the suite page and the summary carry (not the chapter's target, ...)
+    cautions: list[str] = field(default_factory=list)
+    #: criterion spectra, scaled: (names, [g] shape (n, nT)) and the target [g] (nT,)
+    criterion_names: list[str] = field(default_factory=list)
+    criterion_spectra_g: np.ndarray | None = None
+    criterion_label: str = ""
+    target_sa_g: np.ndarray | None = None
+    #: required ratio of the suite mean to the target (0.9 for both editions)
+    required_ratio: float | None = None
+    #: memory note of the edition (clauses and values written down from memory)
+    memory_note: str = ""
+
+    @property
+    def complies(self) -> bool | None:
+        """True when every error criterion passed; None when nothing was checked."""
+        if self.result is None:
+            return None
+        return bool(self.result.passed)
+
+    @property
+    def failed(self) -> list:
+        """Error criteria that did not pass."""
+        if self.result is None:
+            return []
+        return [c for c in self.result.criteria if not c.passed and c.severity == "error"]
 
 
-def period_range(project) -> tuple[float, float]:
-    """The scaling period range: explicit, from the governing period, or every system's."""
+def period_range(project) -> tuple[tuple[float, float], str | None, str]:
+    """The scaling period range [s], its option name (None when typed) and the option in
+    words, from ``[scaling] period_range`` and the edition's options."""
     spec = project.scaling
     if spec.period_range_s:
-        return spec.period_range_s
-    if spec.period_s:
-        return (0.2 * spec.period_s, 2.0 * spec.period_s)
-    periods = [s.period_s for s in project.systems]
-    return (0.2 * min(periods), 2.0 * max(periods))
+        low, high = spec.period_range_s
+        return spec.period_range_s, None, f"as given, {low:g} s to {high:g} s"
+    name = spec.period_range_option or ("governing-period" if spec.period_s else
+                                        "every-system")
+    option = codes.period_range_option(spec.rule, name)
+    if option.needs_period:
+        low = high = spec.period_s
+    else:
+        periods = [s.period_s for s in project.systems]
+        low, high = min(periods), max(periods)
+    return ((option.lower_factor * low, option.upper_factor * high), option.name,
+            option.description)
 
 
 def motions(project) -> list[tuple[str, list[str]]]:
@@ -59,8 +105,41 @@ def motions(project) -> list[tuple[str, list[str]]]:
     return result
 
 
-def _damping_index(damping) -> int:
-    return int(np.argmin(np.abs(np.asarray(damping) - SCALING_DAMPING)))
+def damping_index(damping, target: float = SCALING_DAMPING) -> int:
+    """Index of ``target`` in ``damping`` (exact), or ValueError."""
+    values = np.asarray(damping, dtype=float)
+    found = np.flatnonzero(np.abs(values - target) <= 1e-12)
+    if not found.size:
+        raise ValueError(f"no spectrum at the target damping {target:g} among "
+                         f"{values.tolist()!r}")
+    return int(found[0])
+
+
+def scaling_damping(project) -> float | None:
+    """Damping ratio of the spectra suite scaling reads, or None when nothing is scaled."""
+    rule = project.scaling.rule
+    if rule == "none" or project.design_spectrum is None:
+        return None
+    edition = codes.edition(rule)
+    return edition.target_damping if edition else SCALING_DAMPING
+
+
+def _target(project, edition, periods):
+    """(target Sa [g], level, cautions, notes) of the edition from the design spectrum."""
+    design = project.design_spectrum
+    level, cautions, notes = None, [], []
+    if edition is not None and edition.target_levels and "level" in design.parameters:
+        level = design.parameters.get("level", edition.target_levels[0])
+        level = "mce_r" if level == "mce" else level
+        if level != edition.target_levels[0]:
+            cautions.append(edition.level_caution)
+    elif edition is not None and edition.target_levels:
+        notes.append(f"the {design.kind} spectrum is taken as the target as given (no "
+                     f"level is applied to it)")
+    parameters = dict(design.parameters)
+    if "damping" in parameters and edition is not None:
+        parameters["damping"] = edition.target_damping  # the target at its own damping
+    return design_spectrum(design.kind, **parameters).sa_g(periods), level, cautions, notes
 
 
 def compute_scaling(project, spectra: dict, pairs: dict) -> SuiteScaling:
@@ -72,49 +151,61 @@ def compute_scaling(project, spectra: dict, pairs: dict) -> SuiteScaling:
     project : Project
     spectra : dict
         Record id -> :class:`~sdofreport.core.spectra.ResponseSpectrum` (records at their
-        given ``scale``).
+        given ``scale``), holding the target damping (:func:`scaling_damping`).
     pairs : dict
-        Pair name -> :class:`~sdofreport.core.rotd.RotDSpectrum`.
+        Pair name -> :class:`~sdofreport.core.rotd.RotDSpectrum` at that damping.
     """
     spec = project.scaling
     ids = [r.id for r in project.records]
+    groups = motions(project)
     if spec.rule == "none" or project.design_spectrum is None:
-        return SuiteScaling("none", {i: 1.0 for i in ids}, None)
+        return SuiteScaling("none", {i: 1.0 for i in ids}, None, motions=groups,
+                            motions_counted=len(groups))
+    edition = codes.edition(spec.rule)
+    zeta = scaling_damping(project)
     first = spectra[ids[0]]
     periods = np.asarray(first.periods_s)
-    z = _damping_index(first.damping)
-    notes = []
-    if abs(first.damping[z] - SCALING_DAMPING) > 1e-12:
-        notes.append(f"no 5 % damped spectrum was requested; scaling used "
-                     f"{100 * first.damping[z]:g} % damping")
-    target = project.design_spectrum.spectrum().sa_g(periods)
-    trange = period_range(project)
-    psa = {i: np.asarray(spectra[i].psa_m_s2[z]) / G for i in ids}
-    groups = motions(project)
-    if spec.rule == "asce7-16":
-        rows = []
-        for name, members in groups:
-            if len(members) == 2:
-                rows.append(np.asarray(pairs[name].rotd100_psa_g))
-            else:
-                rows.append(psa[members[0]])
-        result = core_scaling.scale_asce7_16(periods, np.array(rows), target, trange)
-        per_motion = result.factors
-    elif spec.rule == "en1998-1":
-        parameters = en1998_1_parameters(**project.design_spectrum.parameters)
+    z = damping_index(first.damping, zeta)
+    target, level, cautions, notes = _target(project, edition, periods)
+    trange, option, option_text = period_range(project)
+    psa = np.array([np.asarray(spectra[i].psa_m_s2[z]) / G for i in ids])
+    motion_rows = []
+    for name, members in groups:
+        motion_rows.append(np.asarray(pairs[name].rotd100_psa_g) if len(members) == 2
+                           else psa[ids.index(members[0])])
+    motion_rows = np.array(motion_rows)
+    if edition is None:  # fit
+        result = core_scaling.scale_fit(periods, psa, target, trange,
+                                        suite_factor=spec.suite_factor)
+        per_group = [(i, [i]) for i in ids]
+        names, stack, label = ids, psa * result.factors[:, None], "PSA"
+        required = None
+    else:
+        zero = None
+        if project.design_spectrum.kind == "en1998-1":
+            zero = en1998_1_parameters(**project.design_spectrum.parameters).ag_s_g
         pga = np.array([float(spectra[i].pga_m_s2) / G for i in ids])
-        result = core_scaling.scale_en1998_1(periods, np.array([psa[i] for i in ids]),
-                                             target, trange, parameters.ag_s_g, pga)
-        groups = [(i, [i]) for i in ids]
-        per_motion = result.factors
-    else:  # fit
-        result = core_scaling.scale_fit(periods, np.array([psa[i] for i in ids]), target,
-                                        trange, suite_factor=spec.suite_factor)
-        groups = [(i, [i]) for i in ids]
-        per_motion = result.factors
+        inputs = codes.ScalingInputs(periods, motion_rows, psa, pga, target, trange,
+                                     len(groups), zero)
+        result = edition.scale(inputs)
+        if edition.factor_per == "motion":
+            per_group = groups
+            names = [name for name, _ in groups]
+            stack, label = motion_rows * result.factors[:, None], "RotD100"
+        else:
+            per_group = [(i, [i]) for i in ids]
+            names, stack, label = ids, psa * result.factors[:, None], "PSA"
+        required = edition.required_ratio
+        if edition.spectrum_limit_s is not None and trange[1] > edition.spectrum_limit_s:
+            cautions.append(edition.spectrum_limit_caution)
     factors = {}
-    for (name, members), factor in zip(groups, per_motion):
+    for (name, members), factor in zip(per_group, result.factors):
         for member in members:
             factors[member] = float(factor)
-    return SuiteScaling(spec.rule, factors, (float(trange[0]), float(trange[1])), result,
-                        groups, notes)
+    return SuiteScaling(
+        spec.rule, factors, (float(trange[0]), float(trange[1])), result, groups, notes,
+        standard=edition.standard if edition else None, target_level=level,
+        target_damping=zeta, motions_counted=len(groups), period_range_option=option,
+        period_range_text=option_text, cautions=cautions, criterion_names=list(names),
+        criterion_spectra_g=stack, criterion_label=label, target_sa_g=target,
+        required_ratio=required, memory_note=edition.memory_note if edition else "")

@@ -47,7 +47,8 @@ def test_statistic_and_verdicts(project_factory, valid_project_text, tmp_path):
     results = run_project(project, jobs=1, cache_dir=tmp_path / "cache")
     peaks = [results.response("s1", r.id).peak_displacement_m for r in project.records]
     (check,) = results.checks
-    # ASCE/SEI 7-10 §16.1.4: fewer than 7 motions -> maximum response.
+    # From memory: EN 1998-1:2004 §4.3.3.4.3(3), the rule used when no scaling rule
+    # names a standard: fewer than 7 motions -> maximum response.
     assert check.statistic == "max"
     assert check.demand == max(peaks)
     assert check.ratio == pytest.approx(max(peaks) / 0.050)

@@ -50,13 +50,14 @@ DESIGN_SPECTRUM_KINDS = ("asce7-16", "en1998-1", "table")
 DESIGN_SPECTRUM_PARAMETERS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "asce7-16": (("sds_g", "sd1_g", "tl_s"), ("level",)),
     "en1998-1": (("agr_g", "importance_factor", "ground_type", "spectrum_type"),
-                 ("damping",)),
+                 ("damping", "soil_factor", "tb_s", "tc_s", "td_s")),
     "table": (("table_periods_s", "table_sa_g"), ()),
 }
 
 #: Spectrum levels of ASCE/SEI 7-16: the design spectrum (§11.4.6) and the MCE_R
-#: spectrum, 1.5 times the design spectrum (§11.4.7).
-ASCE7_16_LEVELS = {"design": 1.0, "mce": 1.5}
+#: spectrum, 1.5 times the design spectrum (§11.4.7); "mce" is the older spelling of
+#: "mce_r", kept for existing project files.
+ASCE7_16_LEVELS = {"mce_r": 1.5, "design": 1.0, "mce": 1.5}
 
 #: Ground types of EN 1998-1 Tables 3.2 and 3.3 (S1 and S2 need special studies).
 EN1998_1_GROUND_TYPES = ("A", "B", "C", "D", "E")
@@ -98,7 +99,7 @@ def asce7_16_spectrum(periods_s, sds_g, sd1_g, tl_s, level="design") -> np.ndarr
     With ``T0 = 0.2 SD1/SDS`` and ``TS = SD1/SDS`` [1]_:
     ``Sa = SDS (0.4 + 0.6 T/T0)`` for ``T < T0`` (so ``Sa(0) = 0.4 SDS``); ``SDS`` for
     ``T0 <= T <= TS``; ``SD1/T`` for ``TS < T <= TL``; ``SD1 TL / T²`` for ``T > TL``.
-    ``level="mce"`` multiplies by 1.5 (§11.4.7). Site-specific procedures (§11.4.8,
+    ``level="mce_r"`` (or ``"mce"``) multiplies by 1.5 (§11.4.7). Site-specific procedures (§11.4.8,
     Chapter 21) are outside this function.
 
     Parameters
@@ -111,7 +112,7 @@ def asce7_16_spectrum(periods_s, sds_g, sd1_g, tl_s, level="design") -> np.ndarr
         Design spectral acceleration at 1 s S_D1, > 0. [g]
     tl_s : float
         Long-period transition period T_L, >= T_S = S_D1/S_DS. [s]
-    level : {"design", "mce"}
+    level : {"design", "mce_r", "mce"}
         Design spectrum or MCE_R spectrum; see :data:`ASCE7_16_LEVELS`. [-]
 
     Returns
@@ -174,7 +175,8 @@ class EN1998Parameters:
 
 
 def en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type,
-                        damping=0.05) -> EN1998Parameters:
+                        damping=0.05, soil_factor=None, tb_s=None, tc_s=None,
+                        td_s=None) -> EN1998Parameters:
     """
     Parameters of the EN 1998-1 horizontal elastic response spectrum.
 
@@ -194,6 +196,9 @@ def en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type,
         Spectrum type of §3.2.2.2(2). [-]
     damping : float, optional
         Viscous damping ratio ξ as a fraction (0.05 = 5 %), 0 <= ξ < 1. [-]
+    soil_factor, tb_s, tc_s, td_s : float, optional
+        National-Annex values of S [-], T_B, T_C and T_D [s] replacing the recommended
+        ones of the tables (each > 0, T_B < T_C < T_D). [-], [s]
 
     Returns
     -------
@@ -223,13 +228,24 @@ def en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type,
             f"damping must be a ratio in [0, 1) (0.05 for 5 %) [-]; got {damping!r}"
         )
     soil, tb, tc, td = EN1998_1_TABLES[int(spectrum_type)][key]
+    given = {"soil_factor": soil_factor, "tb_s": tb_s, "tc_s": tc_s, "td_s": td_s}
+    for name, value in given.items():
+        if value is not None:
+            unit = "-" if name == "soil_factor" else "s"
+            given[name] = _positive(value, name, unit)
+    soil = given["soil_factor"] or soil
+    tb, tc, td = given["tb_s"] or tb, given["tc_s"] or tc, given["td_s"] or td
+    if not tb < tc < td:
+        raise ValueError(f"tb_s < tc_s < td_s must hold [s]; got T_B {tb!r}, T_C {tc!r}, "
+                         f"T_D {td!r}")
     eta = max(math.sqrt(10.0 / (5.0 + 100.0 * xi)), _ETA_MIN)  # Eq. (3.6)
     return EN1998Parameters(ag_g=agr * gamma_i, soil_factor=soil, tb_s=tb, tc_s=tc,
                             td_s=td, eta=eta)
 
 
 def en1998_1_spectrum(periods_s, agr_g, importance_factor, ground_type, spectrum_type,
-                      damping=0.05) -> np.ndarray:
+                      damping=0.05, soil_factor=None, tb_s=None, tc_s=None,
+                      td_s=None) -> np.ndarray:
     """
     Horizontal elastic response spectrum S_e(T) of EN 1998-1:2004 §3.2.2.2.
 
@@ -244,6 +260,8 @@ def en1998_1_spectrum(periods_s, agr_g, importance_factor, ground_type, spectrum
         Natural periods, >= 0, any shape. [s]
     agr_g, importance_factor, ground_type, spectrum_type, damping
         As in :func:`en1998_1_parameters`.
+    soil_factor, tb_s, tc_s, td_s : float, optional
+        National-Annex values, as in :func:`en1998_1_parameters`. [-], [s]
 
     Returns
     -------
@@ -255,7 +273,8 @@ def en1998_1_spectrum(periods_s, agr_g, importance_factor, ground_type, spectrum
     .. [1] CEN, EN 1998-1:2004, Eurocode 8 Part 1, §3.2.2.2, Eqs. (3.2)-(3.6).
     """
     t = _as_periods(periods_s)
-    p = en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type, damping)
+    p = en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type, damping,
+                            soil_factor, tb_s, tc_s, td_s)
     plateau = p.ag_g * p.soil_factor * 2.5 * p.eta
     safe_t = np.where(t > 0.0, t, 1.0)
     return np.select(

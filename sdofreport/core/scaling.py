@@ -3,7 +3,7 @@ Amplitude scaling of ground-motion suites to a target spectrum, with code checks
 
 Three rules (:data:`SCALING_RULES`):
 
-* ``"asce7-16"`` — ASCE/SEI 7-16 §16.2.3 [1]_: one factor per pair of horizontal
+* ``"asce7-16"`` — ASCE/SEI 7-16 §16.2.3.2 [1]_ (clause numbers from memory): one factor per pair of horizontal
   components; the average of the scaled maximum-direction (RotD100) spectra must not fall
   below 90 % of the target anywhere in the period range. How the per-pair factors are
   chosen is left to the engineer; we follow common practice (no source): each pair is
@@ -46,6 +46,7 @@ __all__ = [
     "period_range_asce7_16",
     "period_range_en1998_1",
     "flag_factors",
+    "meets",
     "scale_fit",
     "scale_asce7_16",
     "scale_en1998_1",
@@ -125,7 +126,7 @@ class ScalingResult:
 # ---------------------------------------------------------------------- period ranges
 def period_range_asce7_16(period_s) -> tuple[float, float]:
     """
-    Period range of ASCE/SEI 7-16 §16.2.1 for a first-mode period T: (0.2 T, 2 T).
+    Period range of ASCE/SEI 7-16 §16.2.3.1 (from memory) for a first-mode period T: (0.2 T, 2 T).
 
     The standard sets the upper bound at no less than 2T and the lower bound at no more
     than 0.2T (lower still if needed to cover 90 % mass participation); this returns the
@@ -143,7 +144,7 @@ def period_range_asce7_16(period_s) -> tuple[float, float]:
 
     References
     ----------
-    .. [1] ASCE/SEI 7-16, §16.2.1.
+    .. [1] ASCE/SEI 7-16, §16.2.3.1 (clause number from memory).
     """
     t = _positive(period_s, "period_s", "s")
     return (0.2 * t, 2.0 * t)
@@ -286,8 +287,12 @@ def _fit_factors(t_range, sa_range, target_range):
     return np.exp(np.mean(np.log(target_range)[None, :] - np.log(sa_range), axis=1))
 
 
-def _meets(achieved, required):
+def meets(achieved, required) -> bool:
+    """True when ``achieved >= required`` allowing :data:`ROUND_OFF` (relative)."""
     return bool(achieved >= required * (1.0 - ROUND_OFF))
+
+
+_meets = meets
 
 
 # ----------------------------------------------------------------------------- rules
@@ -348,12 +353,12 @@ def scale_asce7_16(periods, rotd100_psa_g_per_pair, target_sa_g, period_range_s,
     (``pair_fit=True``), the given ``record_factors``, or 1. Step 2: one suite factor
     ``s = 0.90 / min_T(mean_i(f_i RotD100_i) / target)`` so the suite mean of the scaled
     RotD100 spectra is at least 90 % of the target at every check period and exactly
-    90 % at one (§16.2.3.1, the mean being linear in ``s``).
+    90 % at one (§16.2.3.2, the mean being linear in ``s``).
 
     Criteria: "suite mean RotD100 / target, minimum over the period range" >= 0.90
-    (error); "number of ground motions" >= 11 (§16.2.2; a warning here, as fewer
-    motions may be a deliberate preliminary study); factors outside
-    :data:`FACTOR_LIMITS` (warning, common practice).
+    (error, §16.2.3.2); "number of ground motions" >= 11 (error, §16.2.2: a suite of
+    fewer motions does not comply); factors outside :data:`FACTOR_LIMITS` (warning,
+    common practice). Clause numbers from memory (see :mod:`sdofreport.codes.asce7_16`).
 
     Parameters
     ----------
@@ -379,7 +384,7 @@ def scale_asce7_16(periods, rotd100_psa_g_per_pair, target_sa_g, period_range_s,
     References
     ----------
     .. [1] ASCE/SEI 7-16, *Minimum Design Loads and Associated Criteria for Buildings
-       and Other Structures*. Reston, VA, USA: ASCE, 2017, §16.2.2, §16.2.3.1.
+       and Other Structures*. Reston, VA, USA: ASCE, 2017, §16.2.2, §16.2.3.2 (clause numbers from memory).
     """
     t, sa, target, (lo, hi) = _check_suite(periods, rotd100_psa_g_per_pair, target_sa_g,
                                            period_range_s, "rotd100_psa_g_per_pair")
@@ -393,7 +398,7 @@ def scale_asce7_16(periods, rotd100_psa_g_per_pair, target_sa_g, period_range_s,
         record = _fit_factors(tr, sa_r, target_r)
     else:
         record = np.ones(n)
-    # §16.2.3.1: mean of scaled RotD100 >= 0.9 target; the mean is linear in the suite
+    # §16.2.3.2: mean of scaled RotD100 >= 0.9 target; the mean is linear in the suite
     # factor, so the factor that touches 0.9 at the lowest point is 0.9 / min ratio.
     ratio0 = np.mean(record[:, None] * sa_r, axis=0) / target_r
     suite = 0.9 / float(ratio0.min())
@@ -403,9 +408,9 @@ def scale_asce7_16(periods, rotd100_psa_g_per_pair, target_sa_g, period_range_s,
     criteria = [
         Criterion("suite mean RotD100 / target, minimum over the period range", 0.90,
                   float(ratio.min()), _meets(float(ratio.min()), 0.90), "error",
-                  "ASCE/SEI 7-16 §16.2.3.1"),
-        Criterion("number of ground motions", 11.0, float(n), n >= 11, "warning",
-                  "ASCE/SEI 7-16 §16.2.2"),
+                  "ASCE/SEI 7-16 §16.2.3.2 (clause number from memory)"),
+        Criterion("number of ground motions", 11.0, float(n), n >= 11, "error",
+                  "ASCE/SEI 7-16 §16.2.2 (clause number from memory)"),
         factor_crit,
     ]
     return ScalingResult(

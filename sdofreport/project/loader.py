@@ -20,6 +20,7 @@ from pathlib import Path
 
 import numpy as np
 
+from sdofreport import codes
 from sdofreport.core.units import normalise_acceleration_unit
 from sdofreport.errors import ProjectError
 from sdofreport.project.model import (
@@ -664,6 +665,8 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
     count = len(problems.items)
     for key, name in mapping.items():
         if key not in table:
+            if key in _OPTIONAL_DESIGN_KEYS:
+                continue
             if spec[key].default is None:
                 problems.add(f"{where}.{key}", f"missing; kind {kind!r} needs it "
                              f"({spec[key].description})")
@@ -683,6 +686,8 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
             value = _read_value(table, spec[key], where, problems)
             if value is None:
                 continue
+        if key == "level" and value == "mce":
+            value = "mce_r"  # the older spelling
         values[key] = value
         parameters[name] = value
     if len(problems.items) > count:
@@ -690,9 +695,37 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
     try:
         DesignSpectrumSpec(kind, values, parameters).spectrum()
     except ValueError as exc:
-        problems.add(where, str(exc))
+        message = str(exc)
+        for key, name in mapping.items():  # the file's key names, not the core's
+            if name != key:
+                message = re.sub(rf"\b{re.escape(name)}\b", key, message)
+        problems.add(where, message)
         return None
     return DesignSpectrumSpec(kind, values, parameters)
+
+
+#: Design-spectrum keys that may be left out without a default (National-Annex values).
+_OPTIONAL_DESIGN_KEYS = ("soil_factor", "tb", "tc", "td")
+
+
+def _scaling_range(table: dict, where: str, rule: str, period, problems: _Problems):
+    """(explicit range or None, option name or None) of ``[scaling] period_range``."""
+    raw = table.get("period_range")
+    if isinstance(raw, str):
+        names = codes.period_range_names(rule)
+        option = codes.period_range_option(rule, raw)
+        if option is None:
+            problems.add(f"{where}.period_range", f"expected one of {', '.join(names)} "
+                         f"or [low, high] in s, found {raw!r}")
+            return None, None
+        if option.needs_period and period is None:
+            problems.add(f"{where}.period_range", f"option {raw!r} needs [scaling] "
+                         f"period, the governing period (example: period = \"0.8 s\")")
+        return None, raw
+    explicit = _period_range(table, where, None, problems)
+    if explicit is not None:
+        return explicit, None
+    return None, "governing-period" if period is not None else "every-system"
 
 
 def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
@@ -707,14 +740,17 @@ def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
     _positive(period, f"{where}.period", "the period", problems, "s")
     suite = _read_value(table, spec["suite_factor"], where, problems)
     _positive(suite, f"{where}.suite_factor", "the suite factor", problems, "")
-    period_range = _period_range(table, where, None, problems)
+    period_range, option = _scaling_range(table, where, rule, period, problems)
     if rule != "none" and not had_design:
         problems.add(f"{where}.rule", f"rule {rule!r} needs a [design_spectrum] section "
                      f"(the target)")
-    if rule == "en1998-1" and design is not None and design.kind != "en1998-1":
-        problems.add(f"{where}.rule", f"rule 'en1998-1' needs kind = \"en1998-1\" in "
-                     f"[design_spectrum] (for a_g·S), found {design.kind!r}")
-    return ScalingSpec(rule, period, period_range, suite if suite else 1.0)
+    edition = codes.edition(rule)
+    if edition is not None and design is not None and \
+            design.kind not in edition.spectrum_kinds:
+        kinds = " or ".join(f'kind = "{k}"' for k in edition.spectrum_kinds)
+        problems.add(f"{where}.rule", f"rule {rule!r} ({edition.standard}) needs {kinds} "
+                     f"in [design_spectrum], found {design.kind!r}")
+    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option)
 
 
 def _number_list(value, where: str, minimum: float, problems: _Problems,

@@ -107,8 +107,10 @@ class DesignSpectrumSpec:
 class ScalingSpec:
     rule: str = "none"
     period_s: float | None = None
-    period_range_s: tuple[float, float] | None = None
+    period_range_s: tuple[float, float] | None = None  # explicit [low, high] [s]
     suite_factor: float = 1.0
+    #: named period-range option (sdofreport.codes), None when explicit
+    period_range_option: str | None = None
 
 
 @dataclass(frozen=True)
@@ -192,8 +194,22 @@ class Project:
         return self.path.parent
 
     @property
+    def motions_counted(self) -> int:
+        """Ground motions as the standards count them: a horizontal pair is one."""
+        pairs = {r.pair for r in self.records if r.pair}
+        return len(pairs) + sum(1 for r in self.records if not r.pair)
+
+    @property
     def statistic_used(self) -> str:
-        """``mean`` or ``max``: ``auto`` resolved by the number of records."""
+        """``mean`` or ``max``: ``auto`` resolved by the governing edition."""
+        return self.statistic_choice[0]
+
+    @property
+    def statistic_choice(self) -> tuple[str, str]:
+        """(``mean`` or ``max``, why), ``auto`` resolved by the governing edition
+        counting motions (:func:`sdofreport.codes.auto_statistic`)."""
         if self.analysis.statistic != "auto":
-            return self.analysis.statistic
-        return "mean" if len(self.records) >= 7 else "max"
+            return self.analysis.statistic, "as set in the project file"
+        from sdofreport.codes import auto_statistic
+
+        return auto_statistic(self.scaling.rule, self.motions_counted)

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from sdofreport.codes import EDITIONS, GENERIC_PERIOD_RANGES
 from sdofreport.core.design_spectra import (
     ASCE7_16_LEVELS,
     DESIGN_SPECTRUM_KINDS,
@@ -19,13 +20,19 @@ from sdofreport.core.spectra import SPECTRUM_METHODS
 from sdofreport.core.units import acceleration_unit_names
 from sdofreport.records import RECORD_FORMATS
 
-#: Ways the suite statistic may be chosen. ``auto``: mean of the records' peaks when 7
-#: or more records are analysed, otherwise the maximum (ASCE/SEI 7-10 §16.1.4,
-#: EN 1998-1 §4.3.3.4.3).
+#: Ways the suite statistic may be chosen. ``auto``: the governing edition's rule
+#: (:func:`sdofreport.codes.auto_statistic`), counting motions, not components.
 STATISTICS = ("auto", "mean", "max")
 
-#: Suite scaling rules: the core rules plus "none" (factors as given).
-SCALING_RULES = ("asce7-16", "en1998-1", "fit", "none")
+#: Suite scaling rules: one per standard edition (sdofreport.codes), "fit" (common
+#: practice) and "none" (factors as given).
+SCALING_RULES = (*EDITIONS, "fit", "none")
+
+#: Named period-range options (every rule offers these; see sdofreport.codes).
+PERIOD_RANGE_OPTIONS = tuple(o.name for o in GENERIC_PERIOD_RANGES)
+
+#: Levels of the ASCE/SEI 7-16 target: MCE_R (the Chapter 16 target) or design.
+ASCE7_16_LEVEL_CHOICES = tuple(ASCE7_16_LEVELS)
 
 #: Components of a horizontal pair.
 COMPONENTS = ("H1", "H2")
@@ -35,7 +42,8 @@ DESIGN_SPECTRUM_KEYS: dict[str, dict[str, str]] = {
     "asce7-16": {"sds": "sds_g", "sd1": "sd1_g", "tl": "tl_s", "level": "level"},
     "en1998-1": {"agr": "agr_g", "importance_factor": "importance_factor",
                  "ground_type": "ground_type", "spectrum_type": "spectrum_type",
-                 "damping": "damping"},
+                 "damping": "damping", "soil_factor": "soil_factor", "tb": "tb_s",
+                 "tc": "tc_s", "td": "td_s"},
     "table": {"periods": "table_periods_s", "sa": "table_sa_g"},
 }
 
@@ -134,10 +142,12 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "in s, or an explicit list.", default={"min": 0.01, "max": 10.0,
                                                         "count": 200},
                 example="{ min = 0.02, max = 5.0, count = 120 }"),
-        KeySpec("statistic", "choice", "Suite statistic of the demands: auto = mean when "
-                "7 or more records, otherwise maximum (ASCE/SEI 7-10 §16.1.4; "
-                "EN 1998-1 §4.3.3.4.3).", default="auto", choices=STATISTICS,
-                example='"auto"'),
+        KeySpec("statistic", "choice", "Suite statistic of the demands: auto = the rule "
+                "of the governing edition, counting motions (a horizontal pair is one): "
+                "asce7-16 the mean (ASCE/SEI 7-16 §16.4); en1998-1 and rules naming no "
+                "standard the mean with 7 or more motions, otherwise the maximum "
+                "(EN 1998-1:2004 §4.3.3.4.3(3)); clause numbers from memory.",
+                default="auto", choices=STATISTICS, example='"auto"'),
     ),
     "processing": _PROCESSING_KEYS,
     "design_spectrum": _keys(
@@ -150,8 +160,11 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 example="0.6"),
         KeySpec("tl", "quantity", "asce7-16: long-period transition period T_L.",
                 dimension="time", example='"8 s"'),
-        KeySpec("level", "choice", "asce7-16: design spectrum or MCE_R (1.5 × design).",
-                default="design", choices=tuple(ASCE7_16_LEVELS), example='"mce"'),
+        KeySpec("level", "choice", "asce7-16: the MCE_R spectrum (1.5 × design, the "
+                "target of ASCE/SEI 7-16 §16.2.1, from memory) or the design spectrum; "
+                "with level = \"design\" the pages caution that the suite is not scaled "
+                "to the chapter's target. \"mce\" is an older spelling of \"mce_r\".",
+                default="mce_r", choices=ASCE7_16_LEVEL_CHOICES, example='"mce_r"'),
         KeySpec("agr", "number", "en1998-1: reference peak ground acceleration a_gR on "
                 "ground type A, in g.", example="0.25"),
         KeySpec("importance_factor", "number", "en1998-1: importance factor γ_I.",
@@ -162,21 +175,33 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 choices=EN1998_1_SPECTRUM_TYPES, example="1"),
         KeySpec("damping", "ratio", "en1998-1: viscous damping ratio for η "
                 "(Eq. 3.6).", default=0.05, example="0.05"),
+        KeySpec("soil_factor", "number", "en1998-1: National-Annex soil factor S "
+                "(default: the recommended value of Table 3.2/3.3, from memory); shown "
+                "as a National-Annex value.", example="1.2"),
+        KeySpec("tb", "quantity", "en1998-1: National-Annex T_B (default: Table 3.2/3.3).",
+                dimension="time", example='"0.15 s"'),
+        KeySpec("tc", "quantity", "en1998-1: National-Annex T_C (default: Table 3.2/3.3).",
+                dimension="time", example='"0.5 s"'),
+        KeySpec("td", "quantity", "en1998-1: National-Annex T_D (default: Table 3.2/3.3).",
+                dimension="time", example='"2 s"'),
         KeySpec("periods", "list", "table: periods of the points, in s.",
                 example="[0.0, 0.2, 1.0, 4.0]"),
         KeySpec("sa", "list", "table: spectral accelerations of the points, in g.",
                 example="[0.4, 1.0, 0.5, 0.1]"),
     ),
     "scaling": _keys(
-        KeySpec("rule", "choice", "Suite scaling rule: asce7-16 (§16.2.3, pairs' RotD100 "
-                "mean ≥ 90 % of the target over 0.2T–2T), en1998-1 (§3.2.3.1.2), fit "
-                "(per-record log least squares, common practice) or none (factors as "
-                "given).", default="none", choices=SCALING_RULES, example='"asce7-16"'),
+        KeySpec("rule", "choice", "Suite scaling rule: " + "; ".join(
+                    f"{e.rule} ({e.standard})" for e in EDITIONS.values()) +
+                "; fit (per-record log least squares, common practice) or none (factors "
+                "as given).", default="none", choices=SCALING_RULES, example='"asce7-16"'),
         KeySpec("period", "quantity", "Governing period T for the period range (default: "
                 "the range covers every system, 0.2 × shortest to 2 × longest).",
                 dimension="time", example='"0.8 s"'),
-        KeySpec("period_range", "list", "Explicit [low, high] period range in s "
-                "(overrides period).", example="[0.1, 2.0]"),
+        KeySpec("period_range", "list", "Period range of the scaling: a named option, "
+                "\"governing-period\" (0.2 T to 2 T of period) or \"every-system\" "
+                "(0.2 × the shortest to 2 × the longest system period), or explicit "
+                "[low, high] in s. Default: governing-period when period is given, "
+                "otherwise every-system.", example='"every-system"'),
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
     ),

@@ -12,7 +12,7 @@ from importlib import metadata
 
 import numpy as np
 
-from sdofreport import __version__
+from sdofreport import __version__, codes
 from sdofreport.core.units import G
 from sdofreport.engine import VERDICT_EXCEEDS, Results
 from sdofreport.errors import BuildError
@@ -54,13 +54,31 @@ def dependency_versions() -> list[tuple[str, str]]:
 
 
 def statistic_reason(results: Results) -> str:
-    chosen = results.project.analysis.statistic
-    count = len(results.records)
-    if chosen == "auto":
-        rule = "7 or more records" if count >= 7 else "fewer than 7 records"
-        return (f"chosen automatically: {rule}, per ASCE/SEI 7-10 §16.1.4 and "
-                f"EN 1998-1 §4.3.3.4.3")
-    return "as set in the project file"
+    """Why the suite statistic is what it is (the governing edition's rule)."""
+    reason = results.project.statistic_choice[1]
+    if results.project.analysis.statistic == "auto":
+        return f"chosen automatically: {reason}"
+    return reason
+
+
+def suite_status(scaling) -> dict | None:
+    """Whether the suite complies with the edition, in plain words, for the summary's
+    first lines and the suite page; None when nothing is scaled."""
+    if scaling is None or scaling.result is None:
+        return None
+    name = scaling.standard or "the scaling rule"
+    failed = scaling.failed
+    reasons = [f"{c.name}: {_criterion_number(c.achieved)}, required {c.comparison} "
+               f"{_criterion_number(c.required)} ({c.source})" for c in failed]
+    if failed:
+        headline = f"The record suite does not comply with {name}."
+    elif scaling.cautions:
+        headline = (f"The record suite meets every scaling criterion of {name} as "
+                    f"configured, but see the caution below.")
+    else:
+        headline = f"The record suite meets every scaling criterion of {name}."
+    return {"complies": not failed, "headline": headline, "reasons": reasons,
+            "cautions": list(scaling.cautions)}
 
 
 @dataclass
@@ -178,7 +196,9 @@ class SiteContext:
             rows.append({
                 "system_id": c.system_id, "system_name": system.name,
                 "system_file": page_name(c.system_id),
-                "label": CHECK_LABELS[c.quantity],
+                "label": CHECK_LABELS[c.quantity] + (
+                    f" ({STATISTIC_TEXT[c.statistic]} of |{CHECK_LABELS[c.quantity].lower()}"
+                    f"| over the records)" if c.absolute else ""),
                 "demand": self.display.check_value(c.quantity, c.demand),
                 "limit": self.display.check_value(c.quantity, c.limit),
                 "ratio": f"{c.ratio:.3f}", "verdict": c.verdict,
@@ -199,10 +219,7 @@ class SiteContext:
             im = item.intensity
             rows.append({"id": item.record.id, "file": item.spec.file,
                          "file_html": page_name(item.record.id),
-                         "scale": number(item.spec.scale),
-                         "suite_factor": number(item.scale_factor),
-                         "total_scale": number(item.spec.scale * item.scale_factor),
-                         "pga": d.show(im.pga_m_s2, "acceleration"),
+                         **_factor_bits(item, d),
                          "pgv": d.show(im.pgv_m_s, "velocity"),
                          "arias": f"{number(im.arias_m_s)} m/s",
                          "d5_95": f"{number(im.d5_95_s)} s",
@@ -211,6 +228,7 @@ class SiteContext:
 
     # -- pages -----------------------------------------------------------------------
     def summary(self) -> Page:
+        status = suite_status(self.results.scaling)
         results = self.results
         checks = sorted(results.checks, key=lambda c: -c.ratio)
         exceeding = sum(c.verdict == VERDICT_EXCEEDS for c in checks)
@@ -257,7 +275,8 @@ class SiteContext:
                    "figures": {"checks": figure}, "systems": systems,
                    "records": self._record_rows(), "notes_html": notes_html,
                    "dependencies": dependency_versions(), "input_hashes": input_hashes,
-                   "settings": settings, **signoff_block(self.project.info)}
+                   "settings": settings, "suite_status": status,
+                   **signoff_block(self.project.info)}
         return Page("index.html", "summary.html", context)
 
     def record_page(self, item) -> Page:
@@ -318,7 +337,7 @@ class SiteContext:
                    "record": {"id": rid, "file": item.spec.file, "format": record.file_format,
                               "sha256": record.sha256, "npts": record.npts,
                               "dt": number(record.dt_s), "duration": number(record.duration_s),
-                              "units": record.units, "scale": number(item.spec.scale),
+                              "units": record.units, **_factor_bits(item, d),
                               "history": list(record.history),
                               "warnings": list(record.warnings)},
                    "intensity": intensity, "figures": figures,
@@ -348,23 +367,20 @@ class SiteContext:
                 design=self._design(periods) if key == "psa" else None,
                 shaded_range=shaded if key == "psa" else None)
         motion_figure, motion_label = None, ""
-        if scaling is not None and scaling.rule == "asce7-16":
-            stack, names = [], []
-            pairs = {p.name: p for p in results.pairs}
-            by_id = {r.record.id: r for r in results.records}
-            for name, members in scaling.motions:
-                if len(members) == 2:
-                    stack.append(np.asarray(pairs[name].rotd.rotd100_psa_g))
-                else:
-                    stack.append(by_id[members[0]].spectrum.psa_m_s2[index] / G)
-                names.append(name)
-            motion_label = "RotD100"
+        if scaling is not None and scaling.criterion_spectra_g is not None:
+            motion_label = scaling.criterion_label
+            curves = _suite_curves(scaling.criterion_names, scaling.criterion_spectra_g)
+            if scaling.required_ratio is not None:
+                curves.append({"label": f"{100 * scaling.required_ratio:g} % of the target",
+                               "values": scaling.required_ratio * scaling.target_sa_g,
+                               "style": "emphasis"})
+            target = (periods, scaling.target_sa_g,
+                      f"target at {100 * scaling.target_damping:g} % damping")
             motion_figure = self._figure(
-                "figures/suite-rotd100.svg", "spectra_figure", periods_s=periods,
-                curves=_suite_curves(names, np.array(stack)),
-                ylabel="RotD100 pseudo-spectral acceleration [g]",
-                highlight_periods=self.system_periods, design=self._design(periods),
-                shaded_range=shaded)
+                "figures/suite-criterion.svg", "spectra_figure", periods_s=periods,
+                curves=curves, ylabel=f"{motion_label} pseudo-spectral acceleration at "
+                                      f"ζ = {100 * scaling.target_damping:g} % [g]",
+                highlight_periods=self.system_periods, design=target, shaded_range=shaded)
         pair_rows = []
         for pair in results.pairs:
             rotd = pair.rotd
@@ -440,9 +456,20 @@ class SiteContext:
         design = self.project.design_spectrum
         if design is None:
             return None
-        return {"label": _design_label(design),
-                "values": [(_DESIGN_KEY_LABELS.get(k, k), v if not isinstance(v, list) else
-                            ", ".join(f"{x:g}" for x in v)) for k, v in design.values.items()]}
+        values = [(_DESIGN_KEY_LABELS.get(k, k), v if not isinstance(v, list) else
+                   ", ".join(f"{x:g}" for x in v)) for k, v in design.values.items()]
+        if design.kind == "en1998-1":
+            from sdofreport.core.design_spectra import en1998_1_parameters
+
+            p = en1998_1_parameters(**design.parameters)
+            for key, label, value in (("soil_factor", "S", p.soil_factor),
+                                      ("tb", "T_B [s]", p.tb_s), ("tc", "T_C [s]", p.tc_s),
+                                      ("td", "T_D [s]", p.td_s)):
+                if key in design.values:
+                    continue  # given: labelled as a National-Annex value above
+                values.append((f"{label} (recommended, Table 3.{design.values['spectrum_type'] + 1}"
+                               f", from memory)", f"{value:g}"))
+        return {"label": _design_label(design), "values": values}
 
     def _scaling_block(self) -> dict | None:
         scaling = self.results.scaling
@@ -454,23 +481,23 @@ class SiteContext:
                 c.required - c.achieved
             criteria.append({
                 "name": c.name, "source": c.source,
-                "required": f"{c.comparison} {number(c.required)}",
-                "achieved": number(c.achieved), "margin": number(round(margin, 9)),
+                "required": f"{c.comparison} {_criterion_number(c.required)}",
+                "achieved": _criterion_number(c.achieved),
+                "margin": _criterion_number(round(margin, 9)),
                 "status": "met" if c.passed else ("warning" if c.severity == "warning"
                                                   else "not met"),
                 "css": "within" if c.passed else ("warning" if c.severity == "warning"
                                                   else "exceeds")})
-        errors = [c for c in scaling.result.criteria if not c.passed and
-                  c.severity == "error"]
+        errors = scaling.failed
         warnings = [c for c in scaling.result.criteria if not c.passed and
                     c.severity == "warning"]
+        status = suite_status(scaling)
+        verdict = status["headline"]
         if errors:
-            verdict = f"{len(errors)} scaling criterion/criteria not met."
+            verdict += (f" {len(errors)} required criteri{'a are' if len(errors) > 1 else 'on is'}"
+                        f" not met.")
         elif warnings:
-            verdict = (f"Every required scaling criterion is met; {len(warnings)} "
-                       f"warning(s) below.")
-        else:
-            verdict = "Every scaling criterion is met."
+            verdict += f" {len(warnings)} warning(s) below."
         flagged = set()
         if getattr(scaling.result, "flagged", None) is not None:
             for (name, members), flag in zip(scaling.motions, scaling.result.flagged):
@@ -479,10 +506,27 @@ class SiteContext:
         factors = [{"id": r.id, "factor": number(scaling.factors.get(r.id, 1.0)),
                     "flag": r.id in flagged} for r in self.project.records]
         low, high = scaling.period_range_s
-        return {"rule": scaling.rule, "rule_text": _RULE_TEXT[scaling.rule],
+        edition = codes.edition(scaling.rule)
+        level = {"mce_r": "MCE_R", "design": "design", None: "—"}[scaling.target_level]
+        facts = [("Standard", scaling.standard or "none (common practice)"),
+                 ("Target level", level),
+                 ("Target damping", f"{100 * scaling.target_damping:g} % (spectra scaled "
+                                    f"at this damping, whatever [analysis] damping lists)"),
+                 ("Motions counted", f"{scaling.motions_counted}" + (
+                     f" ({edition.counting}); at least {edition.minimum_motions} required"
+                     f" ({edition.minimum_clause})" if edition else "")),
+                 ("Period range", f"{number(low)} s to {number(high)} s: "
+                                  f"{scaling.period_range_text}" +
+                  (f" (option \"{scaling.period_range_option}\")"
+                   if scaling.period_range_option else "")),
+                 ("Period-range options", ", ".join(codes.period_range_names(
+                     scaling.rule)) + ", or [low, high] in s")]
+        return {"rule": scaling.rule,
+                "rule_text": edition.rule_text if edition else _FIT_TEXT,
                 "range": f"{number(low)} s to {number(high)} s", "criteria": criteria,
                 "verdict": verdict, "ok": not errors, "factors": factors,
-                "notes": list(scaling.notes)}
+                "notes": list(scaling.notes), "facts": facts,
+                "cautions": list(scaling.cautions), "memory_note": scaling.memory_note}
 
     def _properties(self, system) -> list[dict]:
         d = self.display
@@ -557,8 +601,11 @@ class SiteContext:
                    "shear": d.show(response.peak_base_shear_n, "force"),
                    "accel": d.show(response.peak_total_accel_m_s2, "acceleration")}
             if nonlinear:
+                residual = response.residual_displacement_m
                 row.update({"ductility": number(response.ductility),
-                            "residual": d.show(response.residual_displacement_m, "length")})
+                            "residual": d.show(residual, "length"),
+                            "residual_abs": d.show(abs(residual), "length")
+                            if residual is not None else "–"})
             peaks.append(row)
             panels = [
                 ("Relative displacement", d.convert(1.0, "length") * response.displacement_m,
@@ -603,8 +650,9 @@ class SiteContext:
                    "shear": stat("peak_base_shear_n", "force"),
                    "accel": stat("peak_total_accel_m_s2", "acceleration")}
             if nonlinear:
-                row.update({"ductility": stat("ductility", None),
-                            "residual": stat("residual_displacement_m", "length", True)})
+                row.update({"ductility": stat("ductility", None), "residual": "–",
+                            "residual_abs": stat("residual_displacement_m", "length",
+                                                 True)})
             peaks.append(row)
         periods = results.records[0].spectrum.periods_s
         damping = results.records[0].spectrum.damping
@@ -708,24 +756,33 @@ _DESIGN_KEY_LABELS = {
     "agr": "a_gR [g]", "importance_factor": "γ_I", "ground_type": "ground type",
     "spectrum_type": "spectrum type", "damping": "damping ratio ξ",
     "periods": "periods [s]", "sa": "Sa [g]",
+    "soil_factor": "S (National Annex, as given)", "tb": "T_B [s] (National Annex, as given)",
+    "tc": "T_C [s] (National Annex, as given)", "td": "T_D [s] (National Annex, as given)",
 }
 
-_RULE_TEXT = {
-    "asce7-16": "ASCE/SEI 7-16 §16.2.3: one factor per motion (pairs share one); the mean "
-                "of the scaled RotD100 spectra is at least 90 % of the target over the "
-                "period range, touching 90 % at one period",
-    "en1998-1": "EN 1998-1 §3.2.3.1.2: one suite factor; mean zero-period value at least "
-                "a_g·S and mean 5 % spectrum at least 90 % of the elastic spectrum over "
-                "the period range",
-    "fit": "per-record factor minimising the log misfit to the target over the period "
-           "range (common practice), times the suite factor",
-}
+_FIT_TEXT = ("per-record factor minimising the log misfit to the target over the period "
+             "range (common practice), times the suite factor")
+
+
+def _criterion_number(value: float) -> str:
+    """Counts as whole numbers, everything else with four significant figures."""
+    return f"{value:.0f}" if float(value).is_integer() else number(value)
+
+
+def _factor_bits(item, display) -> dict:
+    """Given, suite and total scale factors and the PGA unscaled and as used."""
+    total = item.spec.scale * item.scale_factor
+    pga = item.intensity.pga_m_s2
+    return {"scale": number(item.spec.scale), "suite_factor": number(item.scale_factor),
+            "total_scale": number(total),
+            "pga": display.show(pga, "acceleration"),
+            "pga_unscaled": display.show(pga / total, "acceleration")}
 
 
 def _design_label(design) -> str:
     values = design.values
     if design.kind == "asce7-16":
-        level = "MCE_R" if values.get("level") == "mce" else "design"
+        level = "MCE_R" if values.get("level") in ("mce", "mce_r") else "design"
         return (f"ASCE/SEI 7-16 {level} spectrum (S_DS {values['sds']:g} g, S_D1 "
                 f"{values['sd1']:g} g, T_L {values['tl']:g} s)")
     if design.kind == "en1998-1":
@@ -735,13 +792,15 @@ def _design_label(design) -> str:
 
 
 def _suite_curves(names: list[str], stack: np.ndarray) -> list[dict]:
-    """Each record's curve, the log-normal band and the suite mean."""
-    mean, low, high = _log_stats(stack)
+    """Each curve, the log-normal band (geometric mean ± 1σ of ln) and the arithmetic
+    suite mean, the statistic the scaling criteria test."""
+    geometric, low, high = _log_stats(stack)
     curves = [{"label": name, "values": stack[i], "style": "record"}
               for i, name in enumerate(names)]
-    curves.append({"label": "mean ± 1σ", "values": mean, "lower": low, "upper": high,
-                   "style": "band"})
-    curves.append({"label": "suite mean", "values": mean, "style": "mean"})
+    curves.append({"label": "log-normal: geometric mean ± 1σ of ln", "values": geometric,
+                   "lower": low, "upper": high, "style": "band"})
+    curves.append({"label": "suite mean (arithmetic)", "values": np.mean(stack, axis=0),
+                   "style": "mean"})
     return curves
 
 

@@ -4,8 +4,9 @@ Run from anywhere:
 
     python site_examples/harbourview_cold_store/make_records.py
 
-Writes twelve horizontal accelerograms into ``records/`` next to this script (six in the
-two-column format, six in the headed format) and ``records/README.md`` describing them.
+Writes twenty-two horizontal accelerograms (eleven pairs) into ``records/`` next to this
+script (twelve in the two-column format, ten in the headed format) and
+``records/README.md`` describing them.
 Every record is Kanai–Tajimi filtered white noise with a fixed seed, so running the
 script again gives the same bytes. The scenario, site, owner and motions are invented;
 none of these records is a recorded earthquake motion.
@@ -68,6 +69,18 @@ MOTIONS: tuple[Motion, ...] = (
     Motion("hcs10", 7310, 26.0, 0.005, 3.5, 0.65, 0.39, "saragoni-hart", "headed"),
     Motion("hcs11", 7311, 34.0, 0.01, 2.2, 0.50, 0.26, "saragoni-hart", "two-column"),
     Motion("hcs12", 7312, 24.0, 0.005, 4.5, 0.45, 0.42, "saragoni-hart", "headed"),
+    # Five more pairs (P7-P11), so the suite has the eleven motions ASCE/SEI 7-16
+    # Chapter 16 asks for; same ranges of parameters, fixed seeds.
+    Motion("hcs13", 7313, 30.0, 0.01, 2.6, 0.55, 0.30, "saragoni-hart", "two-column"),
+    Motion("hcs14", 7314, 30.0, 0.01, 2.9, 0.50, 0.27, "saragoni-hart", "two-column"),
+    Motion("hcs15", 7315, 24.0, 0.005, 3.6, 0.60, 0.38, "trapezoidal", "headed"),
+    Motion("hcs16", 7316, 24.0, 0.005, 3.3, 0.65, 0.34, "trapezoidal", "headed"),
+    Motion("hcs17", 7317, 36.0, 0.01, 1.7, 0.60, 0.23, "saragoni-hart", "two-column"),
+    Motion("hcs18", 7318, 36.0, 0.01, 1.9, 0.45, 0.25, "saragoni-hart", "two-column"),
+    Motion("hcs19", 7319, 22.0, 0.005, 4.6, 0.50, 0.40, "saragoni-hart", "headed"),
+    Motion("hcs20", 7320, 22.0, 0.005, 4.0, 0.55, 0.43, "saragoni-hart", "headed"),
+    Motion("hcs21", 7321, 32.0, 0.01, 2.3, 0.70, 0.29, "trapezoidal", "two-column"),
+    Motion("hcs22", 7322, 32.0, 0.01, 2.1, 0.65, 0.31, "trapezoidal", "two-column"),
 )
 
 SCENARIO = "Harbourview Cold Store (fictional demonstration; not a recorded motion)"
@@ -132,7 +145,8 @@ damping) applied to the zero-padded record [6], corrected by a linear velocity b
 so that the record ends at rest, and scaled to the listed peak ground acceleration. See
 `sdofreport/core/stochastic.py`.
 
-The parameters were chosen by hand so that the twelve records look like a plausible
+The parameters were chosen by hand so that the twenty-two records (eleven horizontal
+pairs) look like a plausible
 horizontal design suite for a stiff-soil site. They have not been matched to any design
 spectrum; amplitude scaling to a target is left to the project file.
 

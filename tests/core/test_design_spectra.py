@@ -63,7 +63,7 @@ def test_asce7_16_continuous_at_corners():
     ({"sds_g": -1.0}, r"sds_g must be a finite number > 0 \[g\]; got -1.0"),
     ({"sd1_g": "x"}, r"sd1_g must be a number > 0 \[g\]; got 'x'"),
     ({"tl_s": 0.3}, r"tl_s must be >= T_S = sd1_g / sds_g = 0.6 \[s\]; got 0.3"),
-    ({"level": "MCE"}, r"level must be one of design, mce \[-\]; got 'MCE'"),
+    ({"level": "MCE"}, r"level must be one of mce_r, design, mce \[-\]; got 'MCE'"),
 ])
 def test_asce7_16_bad_arguments(kwargs, match):
     args = {"sds_g": SDS, "sd1_g": SD1, "tl_s": TL} | kwargs

@@ -136,6 +136,20 @@ def test_results_json_interface(built):
             assert c["ratio"] == pytest.approx(c["demand"] / c["limit"])
 
 
+def test_example_suite_tells_the_truth(built):
+    # From memory: ASCE/SEI 7-16 §16.2.2, at least 11 ground motions, a pair counting
+    # once; the example carries eleven pairs, so its suite complies and the summary
+    # says so in its first lines (issue 14 part 7: with six pairs it claimed compliance).
+    doc = json.loads((built[0] / "data" / "results.json").read_text())
+    scaling = doc["scaling"]
+    assert (scaling["motions_counted"], scaling["complies"]) == (11, True)
+    assert len(doc["records"]) == 22
+    assert (scaling["target_level"], scaling["target_damping"]) == ("mce_r", 0.05)
+    html = (built[0] / "index.html").read_text()
+    assert html.index("meets every scaling criterion of ASCE/SEI 7-16 Chapter 16") < \
+        html.index('id="checks"')
+
+
 def test_summary_sorts_worst_first_and_shows_verdicts(built):
     html = (built[0] / "index.html").read_text()
     ratios = [float(x) for x in re.findall(r'<td class="num">(\d+\.\d{3})</td><td '

@@ -26,7 +26,8 @@ def test_valid_project_loads_in_si(project_factory, valid_project_text):
     assert system.limits.displacement_m == pytest.approx(0.050)
     assert system.height_m == pytest.approx(4.0)
     assert [r.id for r in project.records] == ["r1", "r2"]
-    # ASCE/SEI 7-10 §16.1.4: fewer than 7 records -> the maximum is used.
+    # From memory: EN 1998-1:2004 §4.3.3.4.3(3) (used when no rule names a standard):
+    # fewer than 7 motions -> the maximum is used.
     assert project.statistic_used == "max"
     assert len(project.analysis.periods_s) == 200
 
@@ -61,7 +62,8 @@ def test_statistic_auto_uses_mean_from_seven_records(project_factory):
     records = "".join(f'[[records]]\nid = "x{i}"\nfile = "records/r1.csv"\n\n'
                       for i in range(7))
     project = load_project(project_factory(PROJECT_HEAD + records + ONE_SYSTEM))
-    # ASCE/SEI 7-10 §16.1.4, EN 1998-1 §4.3.3.4.3: mean when 7 or more records.
+    # From memory: EN 1998-1:2004 §4.3.3.4.3(3) (used when no rule names a standard):
+    # the mean with 7 or more motions (unpaired records count one each).
     assert project.statistic_used == "mean"
 
 
