@@ -20,6 +20,7 @@ from __future__ import annotations
 import dataclasses
 import hashlib
 import logging
+import math
 import os
 import time
 from dataclasses import dataclass, field
@@ -35,7 +36,7 @@ from sdofreport.core.units import G
 from sdofreport.errors import RecordError
 from sdofreport.executors import execute, fork_context, local_pool
 from sdofreport.jobs import record_products, run_job
-from sdofreport.project.model import Project, RecordSpec, SystemSpec
+from sdofreport.project.model import Project, RecordSpec, SystemSpec, natural_key
 from sdofreport.records import Record, process_record, read_record
 from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling, \
     scaling_damping
@@ -51,6 +52,9 @@ MIN_POOL_SECONDS = 0.1
 
 VERDICT_WITHIN = "within limit"
 VERDICT_EXCEEDS = "exceeds limit"
+#: Verdict of a check when the system ran away in at least one record (dynamic
+#: instability: the displacement passed the stated bound; see ResponseResult.unstable).
+VERDICT_UNSTABLE = "unstable"
 
 
 @dataclass(frozen=True)
@@ -100,6 +104,12 @@ class ResponseResult:
     energy: dict | None = None  # input_j, kinetic_j, damping_j, strain_j, hysteretic_j, ...
     energy_histories_j: dict | None = None
     convergence: dict | None = None
+    #: True when the displacement ran past ``instability_limit_m`` (histories end there)
+    unstable: bool = False
+    #: bound of the instability test [m]; None when the system has none
+    instability_limit_m: float | None = None
+    #: peak damper force [N]; None without a damper
+    peak_damper_force_n: float | None = None
 
 
 @dataclass(frozen=True)
@@ -112,7 +122,7 @@ class Check:
     demand: float  # SI, the suite statistic of the per-record peaks
     statistic: str  # mean | max
     ratio: float
-    verdict: str  # VERDICT_WITHIN | VERDICT_EXCEEDS
+    verdict: str  # VERDICT_WITHIN | VERDICT_EXCEEDS | VERDICT_UNSTABLE
     #: True when the statistic is of absolute values (|residual displacement|, ...)
     absolute: bool = False
 
@@ -136,7 +146,8 @@ class Results:
 
     @property
     def exceeds(self) -> bool:
-        return any(check.verdict == VERDICT_EXCEEDS for check in self.checks)
+        return any(check.verdict in (VERDICT_EXCEEDS, VERDICT_UNSTABLE)
+                   for check in self.checks)
 
 
 # ---------------------------------------------------------------------------------------
@@ -357,6 +368,11 @@ def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseR
     energy = {"input_j": r.input_j, "kinetic_j": r.kinetic_j, "damping_j": r.damping_j,
               "strain_j": r.strain_j, "hysteretic_j": r.hysteretic_j,
               "imbalance": r.imbalance}
+    model = system.model or {}
+    if model.get("damper") is not None:
+        energy["damper_j"] = r.damper_j
+    if model.get("gravity_stiffness_n_m"):
+        energy["gravity_j"] = r.gravity_j
     return ResponseResult(
         system.id, record_id, u_peak, float(np.max(np.abs(r.velocity_m_s))),
         float(np.max(np.abs(r.total_accel_m_s2))), drift, float(r.peak_force_n),
@@ -367,7 +383,12 @@ def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseR
         energy_histories_j=r.energy_histories_j,
         convergence={"converged": bool(r.converged),
                      "max_iterations_used": int(r.max_iterations_used),
-                     "subdivided_steps": int(r.subdivided_steps)})
+                     "subdivided_steps": int(r.subdivided_steps)},
+        unstable=bool(r.unstable),
+        instability_limit_m=None if math.isinf(r.instability_limit_m)
+        else float(r.instability_limit_m),
+        peak_damper_force_n=float(r.peak_damper_force_n)
+        if model.get("damper") is not None else None)
 
 
 #: Check quantity -> ResponseResult attribute read for its per-record peak.
@@ -399,9 +420,11 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
             absolute = quantity in SIGNED_QUANTITIES or any(p < 0 for p in peaks)
             demand = _statistic([abs(p) for p in peaks], statistic)
             ratio = demand / limit
+            verdict = VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS
+            if any(responses[(system.id, r.id)].unstable for r in project.records):
+                verdict = VERDICT_UNSTABLE  # the demand of a runaway record means nothing
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
-                                VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS,
-                                absolute))
+                                verdict, absolute))
     return checks
 
 
@@ -689,12 +712,13 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
 
 
 def _pairs(project: Project) -> dict[str, tuple[str, str]]:
-    """Pair name -> (H1 record id, H2 record id), in file order."""
+    """Pair name -> (H1 record id, H2 record id), in natural order of the names."""
     pairs: dict[str, dict[str, str]] = {}
     for spec in project.records:
         if spec.pair:
             pairs.setdefault(spec.pair, {})[spec.component] = spec.id
-    return {name: (members["H1"], members["H2"]) for name, members in pairs.items()}
+    return {name: (pairs[name]["H1"], pairs[name]["H2"])
+            for name in sorted(pairs, key=natural_key)}
 
 
 def _scaled_spectrum(spectrum: ResponseSpectrum, factor: float) -> ResponseSpectrum:
@@ -716,4 +740,5 @@ def _scaled_rotd(rotd, factor: float):
 
 __all__ = ["Check", "PairResult", "RecordResult", "ResponseResult", "Results",
            "run_project", "load_records", "default_cache_dir", "ResultCache",
-           "VERDICT_WITHIN", "VERDICT_EXCEEDS", "CHECK_ATTRIBUTES", "G"]
+           "VERDICT_WITHIN", "VERDICT_EXCEEDS", "VERDICT_UNSTABLE", "CHECK_ATTRIBUTES",
+           "G"]

@@ -76,21 +76,31 @@ def _linear_response(acceleration, dt_s, model: dict, method: str) -> dict:
 
 
 def _nonlinear_response(acceleration, dt_s, model: dict) -> dict:
-    from sdofreport.core import nonlinear
+    from sdofreport.core import hysteresis, nonlinear
 
-    if model["model"] == "bilinear":
-        system = nonlinear.bilinear(model["stiffness_n_m"],
-                                    yield_strength_n=model["yield_strength_n"],
-                                    hardening_ratio=model["post_yield_ratio"])
-    else:
+    name = model["model"]
+    mass = model.get("mass_kg")
+    if name == "sliding-pendulum":
         system = nonlinear.sliding_pendulum_model(
             model["weight_n"], model["radius_m"], model["friction"],
             yield_displacement_m=model["slip_displacement_m"])
+        mass = None
+    elif name == "elastic":  # a linear spring with a supplemental damper
+        system = nonlinear.bilinear(model["stiffness_n_m"], yield_strength_n=np.inf)
+    else:
+        system = hysteresis.hysteresis(name, model["stiffness_n_m"],
+                                       model["yield_strength_n"],
+                                       model["post_yield_ratio"],
+                                       **model.get("parameters", {}))
+    spec = model.get("damper")
+    damper = None if spec is None else hysteresis.damper(spec["coefficient"],
+                                                          spec["exponent"])
     substeps = max(1, int(np.ceil(dt_s / (model["period_s"] / 100.0))))
-    mass = model.get("mass_kg") if model["model"] == "bilinear" else None
-    result = nonlinear.nonlinear_response(acceleration, dt_s, system, model["damping"],
-                                          mass_kg=mass, substeps=substeps)
-    return {"model": model["model"], "response": result}
+    result = nonlinear.nonlinear_response(
+        acceleration, dt_s, system, model["damping"], mass_kg=mass, substeps=substeps,
+        gravity_stiffness_n_m=model.get("gravity_stiffness_n_m", 0.0), damper=damper,
+        instability_limit_m=model.get("instability_limit_m"))
+    return {"model": name, "response": result}
 
 
 def response_job(acceleration, dt_s, model: dict, method: str) -> dict:

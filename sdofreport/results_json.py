@@ -108,7 +108,12 @@ def results_document(results: Results) -> dict:
                     "energy": {k: finite_or_none(v) for k, v in response.energy.items()},
                     "energy_units": "J",
                     "convergence": response.convergence,
+                    "unstable": bool(response.unstable),
+                    "instability_limit_m": response.instability_limit_m,
                 })
+                if response.peak_damper_force_n is not None:
+                    entry["peak_damper_force_n"] = finite_or_none(
+                        response.peak_damper_force_n)
             responses.append(entry)
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
@@ -120,6 +125,7 @@ def results_document(results: Results) -> dict:
             "frequency_hz": system.frequency_hz, "damping": system.damping,
             "height_m": system.height_m, "kind": system.kind, "model": system.model_name,
             "derivation": "; ".join(system.derivation),
+            **_mechanics_block(system),
             "responses": responses, "checks": checks,
         })
     document = {"schema": RESULTS_SCHEMA, "generator": f"sdofreport {__version__}",
@@ -128,6 +134,21 @@ def results_document(results: Results) -> dict:
                 "systems": systems}
     document.update(suite_blocks(results))
     return document
+
+
+def _mechanics_block(system) -> dict:
+    """P-Δ, hysteresis parameters and damper of a system (each None when absent)."""
+    model = system.model or {}
+    pdelta = None
+    if system.p_delta is not None:
+        pdelta = {k: v for k, v in system.p_delta.items() if k != "weight_given"}
+    hysteresis = None
+    if "yield_strength_n" in model:
+        hysteresis = {"yield_strength_n": model["yield_strength_n"],
+                      "post_yield_ratio": model["post_yield_ratio"],
+                      **model.get("parameters", {})}
+    return {"p_delta": pdelta, "hysteresis_parameters": hysteresis,
+            "damper": model.get("damper")}
 
 
 def suite_blocks(results: Results) -> dict:

@@ -71,6 +71,7 @@ TYPE_TEXT = {
     "choice": "choice",
     "list": "list",
     "table": "table",
+    "boolean": "true or false",
 }
 
 

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -19,6 +21,16 @@ class ProcessingSettings:
         return {"baseline_order": self.baseline_order,
                 "bandpass_hz": list(self.bandpass_hz) if self.bandpass_hz else None,
                 "filter_order": self.filter_order, "taper_s": self.taper_s}
+
+
+def natural_key(identifier: str) -> tuple:
+    """
+    Sort key that orders ids as people read them: ``P2`` before ``P10``, ``hcs9`` before
+    ``hcs10`` (digit runs compared as numbers, the rest without regard to case).
+    """
+    parts = re.split(r"(\d+)", str(identifier))
+    return tuple(int(part) if index % 2 else part.casefold()
+                 for index, part in enumerate(parts)) + (str(identifier),)
 
 
 @dataclass(frozen=True)
@@ -164,6 +176,9 @@ class SystemSpec:
     kind: str = "lumped"
     model: dict | None = None  # nonlinear model parameters for the engine (SI)
     inputs: dict = field(default_factory=dict)  # the builder's inputs (SI), for display
+    #: P-Δ when on: gravity_load_n, height_m, gravity_stiffness_n_m, stability_coefficient
+    #: θ = W/(k h), period_s (elastic, with P-Δ: T/√(1−θ)), weight_given
+    p_delta: dict | None = None
 
     @property
     def frequency_hz(self) -> float:
@@ -171,7 +186,8 @@ class SystemSpec:
 
     @property
     def model_name(self) -> str:
-        """``linear``, ``bilinear`` or ``sliding-pendulum``."""
+        """``linear``, ``elastic`` (with a damper), a hysteresis model name or
+        ``sliding-pendulum``."""
         return (self.model or {}).get("model", "linear")
 
 

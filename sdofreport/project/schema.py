@@ -16,6 +16,7 @@ from sdofreport.core.design_spectra import (
     EN1998_1_GROUND_TYPES,
     EN1998_1_SPECTRUM_TYPES,
 )
+from sdofreport.core.hysteresis import HYSTERESIS_MODELS
 from sdofreport.core.spectra import SPECTRUM_METHODS
 from sdofreport.core.units import acceleration_unit_names
 from sdofreport.records import RECORD_FORMATS
@@ -51,17 +52,31 @@ DESIGN_SPECTRUM_KEYS: dict[str, dict[str, str]] = {
 SYSTEM_KINDS = ("lumped", "columns", "springs", "static-deflection", "sliding-pendulum",
                 "hanging")
 
+#: Keys of a yielding system with P-Δ and a supplemental damper (lumped, columns, springs).
+_HYSTERETIC_KEYS = ("yield_strength", "yield_displacement", "post_yield_ratio",
+                    "hysteresis", "unloading_exponent", "bouc_wen_exponent",
+                    "bouc_wen_beta", "dissipation_ratio", "deterioration_capacity",
+                    "deterioration_exponent", "p_delta", "gravity_load", "damper")
+
+#: Hysteresis-model parameters and the models each applies to.
+HYSTERESIS_PARAMETER_KEYS: dict[str, tuple[str, ...]] = {
+    "unloading_exponent": ("takeda",),
+    "bouc_wen_exponent": ("bouc-wen",), "bouc_wen_beta": ("bouc-wen",),
+    "dissipation_ratio": ("flag-shaped",),
+    "deterioration_capacity": ("clough", "takeda"),
+    "deterioration_exponent": ("clough", "takeda"),
+}
+
 #: Keys each system kind reads besides id, name, kind, damping, height and limits.
 SYSTEM_KIND_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     # kind: (required, optional)
-    "lumped": ((), ("mass", "stiffness", "period", "yield_strength", "yield_displacement",
-                    "post_yield_ratio")),
+    "lumped": ((), ("mass", "stiffness", "period") + _HYSTERETIC_KEYS),
     "columns": (("count", "elastic_modulus", "second_moment", "height", "end_condition",
-                 "mass"), ("yield_strength", "yield_displacement", "post_yield_ratio")),
-    "springs": (("network", "mass"), ("yield_strength", "yield_displacement",
-                                      "post_yield_ratio")),
+                 "mass"), _HYSTERETIC_KEYS),
+    "springs": (("network", "mass"), _HYSTERETIC_KEYS),
     "static-deflection": (("weight", "deflection"), ()),
-    "sliding-pendulum": (("weight", "radius", "friction"), ("slip_displacement",)),
+    "sliding-pendulum": (("weight", "radius", "friction"), ("slip_displacement",
+                                                            "damper")),
     "hanging": (("mass", "pivot_inertia", "pivot_to_centre"), ()),
 }
 
@@ -75,6 +90,7 @@ class KeySpec:
 
     name: str
     type: str  # text | path | number | integer | ratio | quantity | choice | list | table
+    #            | boolean
     description: str
     required: bool = False
     default: object = None
@@ -312,12 +328,44 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 dimension="inertia", example='"2400 kg*m**2"'),
         KeySpec("pivot_to_centre", "quantity", "hanging: distance from the pivot to the "
                 "centre of mass.", dimension="length", example='"1.5 m"'),
-        KeySpec("yield_strength", "quantity", "Bilinear hysteresis: yield strength F_y "
+        KeySpec("yield_strength", "quantity", "Yielding system: yield strength F_y "
                 "(or give yield_displacement).", dimension="force", example='"300 kN"'),
-        KeySpec("yield_displacement", "quantity", "Bilinear hysteresis: yield "
+        KeySpec("yield_displacement", "quantity", "Yielding system: yield "
                 "displacement u_y.", dimension="length", example='"25 mm"'),
-        KeySpec("post_yield_ratio", "ratio", "Bilinear hysteresis: post-yield stiffness "
+        KeySpec("post_yield_ratio", "ratio", "Yielding system: post-yield stiffness "
                 "ratio α (0 = elastic-perfectly plastic).", default=0.0, example="0.03"),
+        KeySpec("hysteresis", "choice", "Hysteresis model of a yielding system: bilinear "
+                "(kinematic hardening), clough (peak-oriented stiffness degradation, Clough "
+                "& Johnston 1966), takeda (Takeda, Sozen & Nielsen 1970, bilinear "
+                "backbone), bouc-wen (smooth, Wen 1976) or flag-shaped (self-centring, "
+                "Christopoulos et al. 2002). All share k, F_y and α.", default="bilinear",
+                choices=HYSTERESIS_MODELS, example='"takeda"'),
+        KeySpec("unloading_exponent", "number", "takeda: exponent β of the unloading "
+                "stiffness k (u_y/u_max)^β, 0 to 1 (0.4 in Takeda et al. 1970, from "
+                "memory).", default=0.4, example="0.4"),
+        KeySpec("bouc_wen_exponent", "number", "bouc-wen: smoothness exponent n, 1 to 200 "
+                "(large n approaches bilinear).", default=2.0, example="2"),
+        KeySpec("bouc_wen_beta", "number", "bouc-wen: shape parameter β, 0.5 to 1, with A "
+                "= 1 and γ = 1 − β (β = γ = 0.5 is usual).", default=0.5, example="0.5"),
+        KeySpec("dissipation_ratio", "number", "flag-shaped: energy-dissipation ratio β_E, "
+                "0 (nonlinear elastic) to 1 (unloading branch through the origin).",
+                default=1.0, example="0.8"),
+        KeySpec("deterioration_capacity", "number", "clough, takeda: cyclic deterioration "
+                "(Ibarra, Medina & Krawinkler 2005) with the hysteretic energy capacity "
+                "E_t = λ·F_y·u_y; λ > 0 (omit for none). Strength, hardening and unloading "
+                "stiffness scale by 1 − β_i at each zero-force crossing.", example="80"),
+        KeySpec("deterioration_exponent", "number", "clough, takeda: exponent c of "
+                "β_i = (E_i/(E_t − ΣE_j))^c, above 0 and at most 10.", default=1.0,
+                example="1.0"),
+        KeySpec("p_delta", "boolean", "P-Δ: the gravity load W on the height h adds the "
+                "stiffness −W/h to every branch. Default: on when the system has a height, "
+                "a mass and a stiffness (lumped, columns, springs).", example="true"),
+        KeySpec("gravity_load", "quantity", "P-Δ: gravity load W carried on the height "
+                "(default W = m·g).", dimension="force", example='"650 kN"'),
+        KeySpec("damper", "table", "Supplemental viscous damper F = C·|v|^α·sign(v): "
+                "coefficient C (a number in N·(s/m)^α or text with units, e.g. "
+                "\"120 kN*s/m\") and exponent α (0 < α <= 2; 1 is linear).",
+                example='{ coefficient = "40 kN*(s/m)**0.5", exponent = 0.5 }'),
         KeySpec("limits", "table", "Limits checked against the demands.",
                 example="{ displacement = \"40 mm\" }"),
     ),

@@ -219,3 +219,31 @@ def test_bad_signoff_and_revisions_are_each_named(project_factory):
     assert "project.revisions[1].author: unknown key; did you mean 'by'?" in message or \
         "project.revisions[1].author: unknown key" in message
     assert "project.revisions[2].revision: expected non-empty text, found 3" in message
+
+
+def test_ids_are_put_in_natural_order():
+    """natural_key orders ids as people read them (digit runs as numbers): the ordering
+    rule of ISO 14651-style 'natural sort', common practice (no source)."""
+    from sdofreport.project.model import natural_key
+
+    ids = ["P10", "P2", "p1", "P1b", "rec9", "rec10", "rec09x"]
+    assert sorted(ids, key=natural_key) == ["p1", "P1b", "P2", "P10", "rec9", "rec09x",
+                                            "rec10"]
+
+
+def test_records_and_pairs_follow_natural_order(project_factory):
+    """Records listed as r10, r2, r1 in the file come out r1, r2, r10; pairs P10, P2
+    come out P2, P10 (motions and pairs of the suite)."""
+    from sdofreport.engine import _pairs
+    from sdofreport.suite import motions
+
+    text = PROJECT_HEAD + "\n" + "\n".join(
+        f'[[records]]\nid = "{rid}"\nfile = "records/r1.csv"\npair = "{pair}"\n'
+        f'component = "{comp}"\n'
+        for rid, pair, comp in [("r10", "P10", "H1"), ("r2", "P2", "H1"),
+                                ("r1", "P10", "H2"), ("r3", "P2", "H2")]
+    ) + "\n" + ONE_SYSTEM
+    project = load_project(project_factory(text))
+    assert [r.id for r in project.records] == ["r1", "r2", "r3", "r10"]
+    assert [name for name, _ in motions(project)] == ["P2", "P10"]
+    assert list(_pairs(project)) == ["P2", "P10"]
