@@ -288,7 +288,9 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "system's period, or at T = 0 for pga).", example="0.42"),
     ),
     "records[]": _keys(
-        KeySpec("id", "text", "Unique short name of the record.", required=True,
+        KeySpec("id", "text", "Unique short name of the record; it names files, so letters, "
+                "digits, '-', '_' or '.', starting and ending with a letter or digit, "
+                "unique regardless of case.", required=True,
                 example='"rec01"'),
         KeySpec("file", "path", "Record file, relative to the project file.",
                 required=True, example='"records/rec01.txt"'),
@@ -303,7 +305,8 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("processing", "table", "Per-record overrides of [processing].",
                 example="{ baseline_order = 1 }"),
         KeySpec("pair", "text", "Name of the horizontal pair this record belongs to "
-                "(two records share it, one H1 and one H2).", example='"p1"'),
+                "(two records share it, one H1 and one H2); it names a figure file, so "
+                "the same characters as an id.", example='"p1"'),
         KeySpec("component", "choice", "Component of the pair.", choices=COMPONENTS,
                 example='"H1"'),
         KeySpec("amplitude_ok", "boolean", "Acknowledges an amplitude the build would "
@@ -313,7 +316,9 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
     ),
     "records[].processing": _PROCESSING_KEYS,
     "systems[]": _keys(
-        KeySpec("id", "text", "Unique short name of the system.", required=True,
+        KeySpec("id", "text", "Unique short name of the system; it names files, so letters, "
+                "digits, '-', '_' or '.', starting and ending with a letter or digit, "
+                "unique regardless of case.", required=True,
                 example='"frame"'),
         KeySpec("name", "text", "Descriptive name.", required=True,
                 example='"Cold-store portal frame"'),
