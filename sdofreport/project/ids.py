@@ -92,27 +92,3 @@ def id_case_problems(document: dict) -> list[tuple[str, str]]:
                  if isinstance(table, dict) and isinstance(table.get(key), str)]
         problems += case_twins(found)
     return problems
-
-
-_LOCATED = re.compile(r"^(records|systems)\[(\d+)\]\.(id|pair|scale|network)$")
-
-
-def with_lines(items: list[tuple[str, str]], text: str,
-               document: dict) -> list[tuple[str, str]]:
-    """``items`` with ``(line N)`` after each id, pair, scale or network location whose
-    line is found."""
-    located = []
-    for where, message in items:
-        match = _LOCATED.match(where)
-        if match:
-            section, index, key = match.group(1), int(match.group(2)), match.group(3)
-            try:
-                value = document[section][index - 1][key]
-            except (KeyError, IndexError, TypeError):
-                value = None
-            line = line_of(text, key, value if isinstance(value, str) else None,
-                           section, index)
-            if line is not None:
-                where = f"{where} (line {line})"
-        located.append((where, message))
-    return located

@@ -55,8 +55,8 @@ def test_pair_name_that_climbs_out_is_refused_with_key_and_line(project_factory)
     message = info.value.message
     # PROJECT_HEAD is 5 lines; [[records]] 6, id 7, file 8, pair 9; the second table
     # starts on line 12 (blank 11), so its pair is on line 15.
-    assert "records[1].pair (line 9): expected letters, digits" in message
-    assert "records[2].pair (line 15)" in message and "'x/../../victim/evil'" in message
+    assert "line 9, records[r1].pair: expected letters, digits" in message
+    assert "line 15, records[r2].pair" in message and "'x/../../victim/evil'" in message
 
 
 @pytest.mark.parametrize("key", ["record", "system", "pair"])
@@ -69,7 +69,7 @@ def test_every_id_kind_is_checked(project_factory, key, value):
         system = system.replace('id = "s1"', f'id = "{value}"')
     else:
         records = _paired(value)
-    with pytest.raises(ProjectError, match=r"\(line \d+\)"):
+    with pytest.raises(ProjectError, match=r"line \d+, "):
         load_project(project_factory(PROJECT_HEAD + records + system))
 
 
