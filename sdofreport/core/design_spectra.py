@@ -26,6 +26,11 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from sdofreport.core._checks import positive as _positive
+from sdofreport.core.spectra_current import (
+    asce7_22_spectrum,
+    check_multi_period,
+    en1998_1_1_spectrum,
+)
 
 __all__ = [
     "DESIGN_SPECTRUM_KINDS",
@@ -44,13 +49,17 @@ __all__ = [
 ]
 
 #: Every design-spectrum kind accepted by :func:`design_spectrum`.
-DESIGN_SPECTRUM_KINDS = ("asce7-16", "en1998-1", "table")
+DESIGN_SPECTRUM_KINDS = ("asce7-16", "asce7-22", "en1998-1", "en1998-1-1", "table")
 
 #: Parameter names per kind: (required, optional). The validator and its messages read this.
 DESIGN_SPECTRUM_PARAMETERS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "asce7-16": (("sds_g", "sd1_g", "tl_s"), ("level",)),
     "en1998-1": (("agr_g", "importance_factor", "ground_type", "spectrum_type"),
                  ("damping", "soil_factor", "tb_s", "tc_s", "td_s")),
+    "asce7-22": (("site_class",), ("level", "mp_periods_s", "mp_sa_g", "sds_g", "sd1_g",
+                                   "tl_s")),
+    "en1998-1-1": (("s_alpha_rp_g", "s_beta_rp_g", "site_category"),
+                   ("damping", "f_alpha", "f_beta", "chi", "td_s", "plateau_ratio")),
     "table": (("table_periods_s", "table_sa_g"), ()),
 }
 
@@ -382,7 +391,9 @@ class DesignSpectrum:
 
 _FUNCTIONS = {
     "asce7-16": asce7_16_spectrum,
+    "asce7-22": asce7_22_spectrum,
     "en1998-1": en1998_1_spectrum,
+    "en1998-1-1": en1998_1_1_spectrum,
     "table": table_spectrum,
 }
 
@@ -393,12 +404,14 @@ def design_spectrum(kind, **parameters) -> DesignSpectrum:
 
     Parameters
     ----------
-    kind : {"asce7-16", "en1998-1", "table"}
+    kind : {"asce7-16", "asce7-22", "en1998-1", "en1998-1-1", "table"}
         See :data:`DESIGN_SPECTRUM_KINDS`. [-]
     **parameters
         The kind's parameters, named as in :data:`DESIGN_SPECTRUM_PARAMETERS` (the
         arguments of :func:`asce7_16_spectrum`, :func:`en1998_1_spectrum` or
-        :func:`table_spectrum` after ``periods_s``).
+        :func:`table_spectrum`, or of
+        :mod:`sdofreport.core.spectra_current` for ASCE/SEI 7-22 and EN 1998-1-1:2024,
+        after ``periods_s``).
 
     Returns
     -------
@@ -436,6 +449,9 @@ def design_spectrum(kind, **parameters) -> DesignSpectrum:
     if kind == "table":
         tp, sa = _check_table(params["table_periods_s"], params["table_sa_g"])
         params = {"table_periods_s": tp.copy(), "table_sa_g": sa.copy()}
+    if kind == "asce7-22" and params.get("mp_periods_s") is not None:
+        tp, sa = check_multi_period(params["mp_periods_s"], params.get("mp_sa_g"))
+        params.update(mp_periods_s=tp.copy(), mp_sa_g=sa.copy())
     spectrum = DesignSpectrum(kind=kind, parameters=params)
     spectrum.sa_g(0.0)  # runs every value check of the kind's function
     return spectrum

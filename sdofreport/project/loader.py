@@ -41,6 +41,7 @@ from sdofreport.project.quantities import QuantityError, parse_quantity, save_me
 from sdofreport.core.units import G
 from sdofreport.project.schema import (
     DESIGN_SPECTRUM_KEYS,
+    OPTIONAL_DESIGN_KEYS,
     SECTIONS,
     SYSTEM_KIND_KEYS,
     TOP_LEVEL,
@@ -646,7 +647,7 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
     count = len(problems.items)
     for key, name in mapping.items():
         if key not in table:
-            if key in _OPTIONAL_DESIGN_KEYS:
+            if key in OPTIONAL_DESIGN_KEYS.get(kind, ()):
                 continue
             if spec[key].default is None:
                 problems.add(f"{where}.{key}", f"missing; kind {kind!r} needs it "
@@ -683,10 +684,6 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
         problems.add(where, message)
         return None
     return DesignSpectrumSpec(kind, values, parameters)
-
-
-#: Design-spectrum keys that may be left out without a default (National-Annex values).
-_OPTIONAL_DESIGN_KEYS = ("soil_factor", "tb", "tc", "td")
 
 
 def _scaling_range(table: dict, where: str, rule: str, period, problems: _Problems):

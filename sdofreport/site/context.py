@@ -15,6 +15,7 @@ import numpy as np
 from sdofreport import __version__, codes
 from sdofreport.core.units import G
 from sdofreport.engine import VERDICT_EXCEEDS, Results
+from sdofreport.site import design_formulas
 from sdofreport.site.display import CHECK_LABELS, Display, number
 from sdofreport.site.notes import render_notes
 from sdofreport.results_json import signoff_block
@@ -420,7 +421,8 @@ class SiteContext:
         design = self.project.design_spectrum
         if design is None:
             return None
-        values = [(_DESIGN_KEY_LABELS.get(k, k), v if not isinstance(v, list) else
+        labels = {**_DESIGN_KEY_LABELS, **design_formulas.KEY_LABELS}
+        values = [(labels.get(k, k), v if not isinstance(v, list) else
                    ", ".join(f"{x:g}" for x in v)) for k, v in design.values.items()]
         if design.kind == "en1998-1":
             from sdofreport.core.design_spectra import en1998_1_parameters
@@ -433,7 +435,9 @@ class SiteContext:
                     continue  # given: labelled as a National-Annex value above
                 values.append((f"{label} (recommended, Table 3.{design.values['spectrum_type'] + 1}"
                                f", from memory)", f"{value:g}"))
-        return {"label": _design_label(design), "values": values}
+        derived, formula = design_formulas.details(design)
+        return {"label": _design_label(design), "values": values + derived,
+                "formula": formula}
 
     def _scaling_block(self) -> dict | None:
         scaling = self.results.scaling
@@ -745,6 +749,9 @@ def _factor_bits(item, display) -> dict:
 
 def _design_label(design) -> str:
     values = design.values
+    current = design_formulas.label(design)
+    if current is not None:
+        return current
     if design.kind == "asce7-16":
         level = "MCE_R" if values.get("level") in ("mce", "mce_r") else "design"
         return (f"ASCE/SEI 7-16 {level} spectrum (S_DS {values['sds']:g} g, S_D1 "
