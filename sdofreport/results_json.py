@@ -69,6 +69,7 @@ def results_document(results: Results) -> dict:
             "pair": spec.pair, "component": spec.component,
             "units": record.units, "format": record.file_format,
             "processing": list(record.history),
+            "provenance": dict(spec.provenance),
             **intensity_to_dict(item.intensity),
         })
     spectra: dict = {}

@@ -42,6 +42,8 @@ from sdofreport.core.units import G
 from sdofreport.project.schema import (
     DESIGN_SPECTRUM_KEYS,
     OPTIONAL_DESIGN_KEYS,
+    PROVENANCE_KEYS,
+    PROVENANCE_RANGES,
     SECTIONS,
     SYSTEM_KIND_KEYS,
     TOP_LEVEL,
@@ -387,12 +389,36 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         if ("pair" in table) != ("component" in table):
             problems.add(where, "a paired record needs both pair and component "
                          "(H1 or H2)")
+        provenance = _read_provenance(table, where, problems)
         path = _input_file(root, file, f"{where}.file", problems) if file else None
         if record_id and file and path is not None:
             records.append(RecordSpec(record_id, path, file, fmt, units, dt_s,
-                                      scale if scale else 1.0, own, pair, component))
+                                      scale if scale else 1.0, own, pair, component,
+                                      provenance))
     _check_pairs(records, problems)
     return records
+
+
+def _read_provenance(table: dict, where: str, problems: _Problems) -> tuple:
+    """The record's provenance keys that are given, as ((key, value), ...) in
+    :data:`PROVENANCE_KEYS` order; numbers checked against plausible ranges."""
+    spec = SECTIONS["records[]"]
+    found = []
+    for key in PROVENANCE_KEYS:
+        if key not in table:
+            continue
+        value = _read_value(table, spec[key], where, problems)
+        if value is None:
+            continue
+        if key in PROVENANCE_RANGES:
+            low, high, inclusive = PROVENANCE_RANGES[key]
+            if not ((value >= low if inclusive else value > low) and value <= high):
+                relation = ">=" if inclusive else ">"
+                problems.add(f"{where}.{key}", f"expected a number {relation} {low:g} and "
+                             f"<= {high:g}, found {value:g}")
+                continue
+        found.append((key, value))
+    return tuple(found)
 
 
 def _check_pairs(records: list[RecordSpec], problems: _Problems) -> None:

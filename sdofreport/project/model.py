@@ -87,6 +87,9 @@ class RecordSpec:
     processing: ProcessingSettings = field(default_factory=ProcessingSettings)
     pair: str | None = None
     component: str | None = None  # "H1" | "H2"
+    #: provenance keys given in the project file, ((key, value), ...) in the order of
+    #: sdofreport.project.schema.PROVENANCE_KEYS (distance in km, Vs30 in m/s)
+    provenance: tuple[tuple[str, object], ...] = ()
 
 
 @dataclass(frozen=True)

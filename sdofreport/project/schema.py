@@ -38,6 +38,14 @@ PERIOD_RANGE_OPTIONS = tuple(o.name for o in GENERIC_PERIOD_RANGES)
 #: Levels of the ASCE/SEI 7-16 target: MCE_R (the Chapter 16 target) or design.
 ASCE7_16_LEVEL_CHOICES = tuple(ASCE7_16_LEVELS)
 
+#: Provenance keys of ``[[records]]`` in the order shown (all optional).
+PROVENANCE_KEYS = ("event", "station", "magnitude", "distance_km", "vs30_m_s", "mechanism",
+                   "source", "selection_note")
+
+#: Plausible ranges of the numeric provenance keys: (lowest, highest, inclusive low).
+PROVENANCE_RANGES = {"magnitude": (0.0, 10.0, True), "distance_km": (0.0, 20000.0, True),
+                     "vs30_m_s": (0.0, 10000.0, False)}
+
 #: Components of a horizontal pair.
 COMPONENTS = ("H1", "H2")
 
@@ -306,6 +314,24 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "(two records share it, one H1 and one H2).", example='"p1"'),
         KeySpec("component", "choice", "Component of the pair.", choices=COMPONENTS,
                 example='"H1"'),
+        # provenance (all optional; shown on the record and suite pages and in
+        # results.json records[].provenance)
+        KeySpec("event", "text", "Provenance: the earthquake (name, date).",
+                example='"Invented Valley earthquake, 2031-04-02"'),
+        KeySpec("station", "text", "Provenance: the recording station.",
+                example='"Station VLY-03"'),
+        KeySpec("magnitude", "number", "Provenance: moment magnitude M_w (0 to 10).",
+                example="6.7"),
+        KeySpec("distance_km", "number", "Provenance: source-to-site distance in km "
+                "(state the measure, e.g. R_rup, in selection_note).", example="12.5"),
+        KeySpec("vs30_m_s", "number", "Provenance: time-averaged shear-wave velocity of "
+                "the top 30 m at the station, in m/s.", example="360"),
+        KeySpec("mechanism", "text", "Provenance: faulting mechanism.",
+                example='"reverse"'),
+        KeySpec("source", "text", "Provenance: database and record identifier, or DOI.",
+                example='"Example database, record 0042"'),
+        KeySpec("selection_note", "text", "Provenance: why this record was selected.",
+                example='"magnitude and distance near the deaggregation mode"'),
     ),
     "records[].processing": _PROCESSING_KEYS,
     "systems[]": _keys(

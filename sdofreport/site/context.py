@@ -15,7 +15,7 @@ import numpy as np
 from sdofreport import __version__, codes
 from sdofreport.core.units import G
 from sdofreport.engine import VERDICT_EXCEEDS, Results
-from sdofreport.site import design_formulas
+from sdofreport.site import design_formulas, provenance
 from sdofreport.site.display import CHECK_LABELS, Display, number
 from sdofreport.site.notes import render_notes
 from sdofreport.results_json import signoff_block
@@ -304,7 +304,8 @@ class SiteContext:
                               "dt": number(record.dt_s), "duration": number(record.duration_s),
                               "units": record.units, **_factor_bits(item, d),
                               "history": list(record.history),
-                              "warnings": list(record.warnings)},
+                              "warnings": list(record.warnings),
+                              "provenance": provenance.record_rows(item.spec)},
                    "intensity": intensity, "figures": figures,
                    "method": self.project.analysis.method}
         return Page(f"records/{page_name(rid)}", "record.html", context)
@@ -375,7 +376,8 @@ class SiteContext:
                                   f"to {number(periods.max())} s",
                    "method": analysis.method, "design": self._design_block(),
                    "scaling": self._scaling_block(), "motion_figure": motion_figure,
-                   "motion_label": motion_label, "pairs": pair_rows}
+                   "motion_label": motion_label, "pairs": pair_rows,
+                   "provenance": provenance.suite_table(self.project.records)}
         return Page("suite.html", "suite.html", context)
 
     def _inelastic_block(self) -> dict | None:

@@ -22,7 +22,7 @@ SYMBOLS = ("S_DS", "S_D1", "S_MS", "S_M1", "S_S", "S_1", "S_a", "S_d", "S_v", "S
            "μ_fast", "μ_slow",
            # ASCE/SEI 7-22 and EN 1998-1-1:2024 (spectrum_current.py)
            "S_α,RP", "S_β,RP", "S_α", "S_β", "F_α", "F_β", "F_A", "T_β", "T_lower",
-           "T_upper", "S_a,MCE_R")
+           "T_upper", "S_a,MCE_R", "M_w")
 
 _PATTERN = re.compile(r"(?<![\w/])(" + "|".join(
     re.escape(symbol) for symbol in sorted(SYMBOLS, key=len, reverse=True)) + r")(?![\w])")
