@@ -21,6 +21,7 @@ from sdofreport.serialize import (
     spectrum_csv_rows,
 )
 from sdofreport.site.display import CHECK_SI_UNITS
+from sdofreport.suite import usable_period_max_s
 
 RESULTS_SCHEMA = "sdofreport/results@1"
 
@@ -70,6 +71,7 @@ def results_document(results: Results) -> dict:
             "units": record.units, "format": record.file_format,
             "processing": list(record.history),
             "provenance": dict(spec.provenance),
+            "usable_period_max_s": usable_period_max_s(spec),
             **intensity_to_dict(item.intensity),
         })
     spectra: dict = {}

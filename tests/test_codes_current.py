@@ -191,3 +191,102 @@ def test_bad_current_edition_inputs_exit_2(project_factory, section, fragment):
         load_project(project_factory(PROJECT_HEAD + section + _pairs(1) + ONE_SYSTEM))
     assert fragment in info.value.message
     assert info.value.exit_code == 2
+
+
+# ------------------------------------------------------------ record provenance
+PROVENANCE = """\
+event = "Invented Valley earthquake"
+station = "VLY-03"
+magnitude = 6.7
+distance_km = 12.5
+vs30_m_s = 360
+mechanism = "reverse"
+source = "Example database, record 0042"
+selection_note = "near the deaggregation mode"
+"""
+
+
+def _with_provenance(text: str, extra: str = PROVENANCE) -> str:
+    """``extra`` added to the first [[records]] table of ``text``."""
+    head, tail = text.split('component = "H1"\n', 1)
+    return head + 'component = "H1"\n' + extra + tail
+
+
+def test_provenance_round_trip_into_results_json_and_pages(project_factory):
+    # Round trip: the values written in the project file come back unchanged.
+    text = PROJECT_HEAD + TWO + '[scaling]\nrule = "asce7-22"\nperiod = "0.5 s"\n' + \
+        _with_provenance(_pairs(2)) + ONE_SYSTEM
+    results = _run(project_factory, text)
+    doc = results_document(results)
+    assert doc["records"][0]["provenance"] == {
+        "event": "Invented Valley earthquake", "station": "VLY-03", "magnitude": 6.7,
+        "distance_km": 12.5, "vs30_m_s": 360.0, "mechanism": "reverse",
+        "source": "Example database, record 0042",
+        "selection_note": "near the deaggregation mode"}
+    assert doc["records"][1]["provenance"] == {}
+    context = SiteContext(results)
+    rows = dict(context.record_page(results.records[0]).context["record"]["provenance"])
+    assert rows["Magnitude M_w"] == "6.7" and rows["Station"] == "VLY-03"
+    table = context.suite_page().context["provenance"]
+    summary = dict(table["summary"])
+    assert summary["Magnitude M_w"] == "6.7 to 6.7 (1 of 4 records state it)"
+    assert summary["Mechanisms"] == "reverse (1); not stated (3)"
+
+
+@pytest.mark.parametrize("extra, fragment", [
+    ("magnitude = 11\n", "records[1].magnitude: expected a number >= 0 and <= 10, "
+                         "found 11"),
+    ("vs30_m_s = 0\n", "records[1].vs30_m_s: expected a number > 0"),
+    ("station = 3\n", "records[1].station: expected non-empty text, found 3"),
+])
+def test_bad_provenance_exits_2(project_factory, extra, fragment):
+    text = PROJECT_HEAD + TWO + _with_provenance(_pairs(1), extra) + ONE_SYSTEM
+    with pytest.raises(ProjectError) as info:
+        load_project(project_factory(text))
+    assert fragment in info.value.message and info.value.exit_code == 2
+
+
+# ------------------------------------------------------- usable period range
+def test_usable_period_rule():
+    from sdofreport.core.processing import usable_period_max_s
+
+    # Common practice (NGA-West2 database, Ancheta et al. 2014, from memory): the lowest
+    # usable frequency is 1.25 × the high-pass corner, so T_max = 1/(1.25 f_c).
+    assert usable_period_max_s(0.1) == pytest.approx(8.0, rel=1e-15)
+    assert usable_period_max_s(0.5) == pytest.approx(1.6, rel=1e-15)
+    with pytest.raises(ValueError, match="low_cut_hz must be a finite number > 0"):
+        usable_period_max_s(-1.0)
+
+
+def test_ordinates_beyond_the_usable_period_are_left_out_of_scaling(project_factory):
+    # High-pass at 0.5 Hz: usable up to 1/(1.25·0.5) = 1.6 s; the 7-22 range for
+    # T = 1.2 s is 0.24-2.4 s (0.2 T to 2 T, from memory), so it is cut at 1.6 s.
+    body = '[scaling]\nrule = "asce7-22"\nperiod = "1.2 s"\n'
+    processing = "[processing]\nbandpass_hz = [0.5, 25.0]\n"
+    text = PROJECT_HEAD + processing + TWO + body + _pairs(2) + ONE_SYSTEM
+    results = _run(project_factory, text)
+    assert results.scaling.period_range_s == pytest.approx((0.24, 1.6), rel=1e-12)
+    assert any("usable only up to 1.6 s" in c for c in results.scaling.cautions)
+    doc = results_document(results)
+    assert doc["records"][0]["usable_period_max_s"] == pytest.approx(1.6, rel=1e-12)
+    # Boore (2005): the pads are kept, 1.5·4/0.5 = 12 s in total, 6 s at each end.
+    assert any("filtered pads are kept" in line for line in doc["records"][0]["processing"])
+    # The record page says so, and its spectra are dashed beyond 1.6 s.
+    page = SiteContext(results).record_page(results.records[0]).context["record"]
+    assert "up to 1.6 s" in page["usable"] and "left out of scaling" in page["usable"]
+    # The project may override: the full range, with a caution.
+    again = _run(project_factory, text.replace(body, body + 'beyond_usable = "include"\n'),
+                 "include.toml")
+    assert again.scaling.period_range_s == pytest.approx((0.24, 2.4), rel=1e-12)
+    assert any("includes those ordinates" in c for c in again.scaling.cautions)
+
+
+def test_spectrum_beyond_the_usable_period_is_drawn_dashed():
+    from sdofreport.site.figures import spectra_figure
+
+    periods = np.geomspace(0.1, 10.0, 30)
+    curve = {"label": "r", "values": 1.0 / periods, "style": "emphasis"}
+    plain = spectra_figure(periods, [curve], ylabel="PSA [g]")
+    dashed = spectra_figure(periods, [{**curve, "usable_max_s": 2.0}], ylabel="PSA [g]")
+    assert "beyond the usable period" in dashed and "beyond the usable" not in plain
+    assert dashed.count('class="curve"') == plain.count('class="curve"') + 1

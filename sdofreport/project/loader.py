@@ -754,7 +754,8 @@ def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
         kinds = " or ".join(f'kind = "{k}"' for k in edition.spectrum_kinds)
         problems.add(f"{where}.rule", f"rule {rule!r} ({edition.standard}) needs {kinds} "
                      f"in [design_spectrum], found {design.kind!r}")
-    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option)
+    beyond = _read_value(table, spec["beyond_usable"], where, problems) or "exclude"
+    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option, beyond)
 
 
 def _number_list(value, where: str, minimum: float, problems: _Problems,

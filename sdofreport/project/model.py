@@ -114,6 +114,9 @@ class ScalingSpec:
     suite_factor: float = 1.0
     #: named period-range option (sdofreport.codes), None when explicit
     period_range_option: str | None = None
+    #: "exclude": ordinates beyond a record's usable period are left out of scaling;
+    #: "include": the project overrides that
+    beyond_usable: str = "exclude"
 
 
 @dataclass(frozen=True)

@@ -261,6 +261,12 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "otherwise every-system.", example='"every-system"'),
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
+        KeySpec("beyond_usable", "choice", "Spectral ordinates beyond a record's usable "
+                "period, 1/(1.25 × its high-pass corner) (NGA-West2 rule, Ancheta et al. "
+                "2014, from memory; common practice): \"exclude\" cuts the scaling "
+                "period range at the shortest usable period of the suite, with a caution; "
+                "\"include\" keeps them, with a caution.", default="exclude",
+                choices=("exclude", "include"), example='"exclude"'),
     ),
     "synthetic_records": _keys(
         KeySpec("count", "integer", "Number of spectrum-compatible records to make "

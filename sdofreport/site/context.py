@@ -13,10 +13,12 @@ from importlib import metadata
 import numpy as np
 
 from sdofreport import __version__, codes
+from sdofreport.core.processing import pad_length_s
 from sdofreport.core.units import G
 from sdofreport.engine import VERDICT_EXCEEDS, Results
 from sdofreport.site import design_formulas, provenance
 from sdofreport.site.display import CHECK_LABELS, Display, number
+from sdofreport.suite import usable_period_max_s
 from sdofreport.site.notes import render_notes
 from sdofreport.results_json import signoff_block
 
@@ -257,10 +259,12 @@ class SiteContext:
         ]
         spectrum = item.spectrum
         damping_labels = [f"ζ = {100 * z:g} %" for z in spectrum.damping]
-        psa = [{"label": label, "values": spectrum.psa_m_s2[i] / G, "style": "emphasis"}
-               for i, label in enumerate(damping_labels)]
+        usable = usable_period_max_s(item.spec)
+        psa = [{"label": label, "values": spectrum.psa_m_s2[i] / G, "style": "emphasis",
+                "usable_max_s": usable} for i, label in enumerate(damping_labels)]
         sd = [{"label": label, "values": d.convert(1.0, "length") * spectrum.sd_m[i],
-               "style": "emphasis"} for i, label in enumerate(damping_labels)]
+               "style": "emphasis", "usable_max_s": usable}
+              for i, label in enumerate(damping_labels)]
         figures = {
             "histories": self._figure(f"figures/record-{rid}-histories.svg",
                                       "histories_figure", time_s=time, panels=panels),
@@ -305,7 +309,9 @@ class SiteContext:
                               "units": record.units, **_factor_bits(item, d),
                               "history": list(record.history),
                               "warnings": list(record.warnings),
-                              "provenance": provenance.record_rows(item.spec)},
+                              "provenance": provenance.record_rows(item.spec),
+                              "processing": _processing_text(item.spec.processing),
+                              "usable": _usable_text(usable, self.project.scaling)},
                    "intensity": intensity, "figures": figures,
                    "method": self.project.analysis.method}
         return Page(f"records/{page_name(rid)}", "record.html", context)
@@ -326,9 +332,12 @@ class SiteContext:
                  f"Spectral displacement [{d.unit('length')}]")):
             stack = np.array([getattr(r.spectrum, attr)[index] * scale
                               for r in results.records])
+            curves = _suite_curves([r.record.id for r in results.records], stack)
+            for curve, item in zip(curves, results.records):
+                curve["usable_max_s"] = usable_period_max_s(item.spec)
             figures[key] = self._figure(
                 f"figures/suite-{key}.svg", "spectra_figure", periods_s=periods,
-                curves=_suite_curves([r.record.id for r in results.records], stack),
+                curves=curves,
                 ylabel=label, highlight_periods=self.system_periods,
                 design=self._design(periods) if key == "psa" else None,
                 shaded_range=shaded if key == "psa" else None)
@@ -777,13 +786,28 @@ def _suite_curves(names: list[str], stack: np.ndarray) -> list[dict]:
     return curves
 
 
+def _usable_text(usable: float | None, scaling) -> str:
+    """The record's usable period range in words, with the rule and what follows."""
+    if usable is None:
+        return "no high-pass filter: the whole period range is taken as usable"
+    use = ("left out of scaling (the scaling period range is cut there)"
+           if scaling.beyond_usable == "exclude" else
+           "kept in scaling, as the project asks (beyond_usable = \"include\")")
+    return (f"up to {usable:.4g} s = 1/(1.25 × high-pass corner), the NGA-West2 rule "
+            f"(Ancheta et al. 2014, from memory; common practice); spectral ordinates "
+            f"beyond it are drawn dashed and {use}")
+
+
 def _processing_text(settings) -> str:
     parts = []
     if settings.baseline_order is not None:
         parts.append(f"baseline order {settings.baseline_order}")
     if settings.bandpass_hz:
-        parts.append(f"band-pass {settings.bandpass_hz[0]:g}–{settings.bandpass_hz[1]:g} Hz "
-                     f"(order {settings.filter_order})")
+        low, high = settings.bandpass_hz
+        pad = pad_length_s(low, settings.filter_order)
+        parts.append(f"acausal Butterworth band-pass {low:g}–{high:g} Hz (order "
+                     f"{settings.filter_order}, forward and backward), zero pads of "
+                     f"{pad:g} s in total (1.5 n/f_c, Boore 2005), kept after filtering")
     if settings.taper_s:
         parts.append(f"taper {settings.taper_s:g} s")
     return ", ".join(parts) if parts else "none"

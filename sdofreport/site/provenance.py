@@ -11,8 +11,6 @@ from __future__ import annotations
 
 from collections import Counter
 
-from sdofreport.site.display import number
-
 #: Label of each provenance key (the order of sdofreport.project.schema.PROVENANCE_KEYS).
 LABELS = {"event": "Event", "station": "Station", "magnitude": "Magnitude M_w",
           "distance_km": "Distance [km]", "vs30_m_s": "V_s30 [m/s]",
@@ -23,7 +21,8 @@ _NUMERIC = ("magnitude", "distance_km", "vs30_m_s")
 
 
 def _shown(value) -> str:
-    return number(value) if isinstance(value, float) else str(value)
+    """As written: numbers with up to 6 significant figures, text unchanged."""
+    return f"{value:g}" if isinstance(value, float) else str(value)
 
 
 def record_rows(spec) -> list[tuple[str, str]]:
@@ -44,7 +43,7 @@ def suite_table(records) -> dict | None:
     summary = []
     for key in _NUMERIC:
         values = [dict(s.provenance)[key] for s in specs if key in dict(s.provenance)]
-        text = (f"{number(min(values))} to {number(max(values))}" if values else
+        text = (f"{_shown(min(values))} to {_shown(max(values))}" if values else
                 "not stated")
         summary.append((LABELS[key], f"{text} ({len(values)} of {len(specs)} records "
                                      f"state it)"))
