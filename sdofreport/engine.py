@@ -273,12 +273,6 @@ def _check_pair_steps(project: Project, records: list[Record], problems: list[st
             problems.append(f"pair {name!r}: the components have different time steps "
                             f"({members[0].id}: {members[0].dt_s:g} s, {members[1].id}: "
                             f"{members[1].dt_s:g} s); resample one so both match")
-        elif len(members) == 2 and members[0].npts != members[1].npts:
-            problems.append(f"pair {name!r}: the components have different lengths after "
-                            f"processing ({members[0].id}: {members[0].npts} samples, "
-                            f"{members[1].id}: {members[1].npts}); give both the same "
-                            f"band-pass corners (the kept pads depend on the low-cut) and "
-                            f"files of the same length")
 
 
 def _array_hash(acceleration: np.ndarray) -> str:
