@@ -26,8 +26,10 @@ References
 
 from __future__ import annotations
 
-from sdofreport.codes._edition import Edition, ScalingInputs, period_range_options
-from sdofreport.codes.asce7_16 import scale_chapter16
+import dataclasses
+
+from sdofreport.codes import asce7_16
+from sdofreport.codes._edition import ScalingInputs, period_range_options
 
 #: Edition and chapter, as text.
 STANDARD = "ASCE/SEI 7-22 Chapter 16"
@@ -74,11 +76,14 @@ def scale(inputs: ScalingInputs):
     sdofreport.core.scaling.ScalingResult
         Factors per motion; criteria with their clauses.
     """
-    return scale_chapter16(inputs, _AMPLITUDE_CLAUSE, _MINIMUM_CLAUSE, MINIMUM_MOTIONS,
+    return asce7_16.scale_chapter16(inputs, _AMPLITUDE_CLAUSE, _MINIMUM_CLAUSE, MINIMUM_MOTIONS,
                            REQUIRED_RATIO)
 
 
-EDITION = Edition(
+#: As ASCE/SEI 7-16 Chapter 16 (target level and damping, counting, factors per
+#: motion), with this edition's target kinds, clauses and rule text.
+EDITION = dataclasses.replace(
+    asce7_16.EDITION,
     rule="asce7-22",
     standard=STANDARD,
     spectrum_kinds=("asce7-22", "table"),
@@ -90,8 +95,6 @@ EDITION = Edition(
     target_damping_clause="ASCE/SEI 7-22 §11.4 spectra are 5 %-damped (from memory)",
     minimum_motions=MINIMUM_MOTIONS,
     minimum_clause=_MINIMUM_CLAUSE,
-    counting="a horizontal pair (H1, H2) is one motion; an unpaired record is one motion",
-    factor_per="motion",
     required_ratio=REQUIRED_RATIO,
     period_ranges=period_range_options(_RANGE_CLAUSE, "T"),
     auto_statistic=auto_statistic,

@@ -20,7 +20,6 @@ References
 from __future__ import annotations
 
 import difflib
-import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -29,6 +28,7 @@ from sdofreport.core._checks import positive as _positive
 from sdofreport.core.spectra_current import (
     asce7_22_spectrum,
     check_multi_period,
+    damping_correction,
     en1998_1_1_spectrum,
 )
 
@@ -83,8 +83,6 @@ EN1998_1_TABLES: dict[int, dict[str, tuple[float, float, float, float]]] = {
         "D": (1.8, 0.10, 0.30, 1.2), "E": (1.6, 0.05, 0.25, 1.2)},
 }
 
-# Lower limit of the damping correction factor, EN 1998-1 Eq. (3.6).
-_ETA_MIN = 0.55
 
 
 # ---------------------------------------------------------------------------- checks
@@ -228,14 +226,7 @@ def en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type,
         )
     if isinstance(spectrum_type, bool) or spectrum_type not in EN1998_1_SPECTRUM_TYPES:
         raise ValueError(f"spectrum_type must be 1 or 2 [-]; got {spectrum_type!r}")
-    try:
-        xi = float(damping)
-    except (TypeError, ValueError):
-        xi = math.nan
-    if not (0.0 <= xi < 1.0):
-        raise ValueError(
-            f"damping must be a ratio in [0, 1) (0.05 for 5 %) [-]; got {damping!r}"
-        )
+    eta = damping_correction(damping)  # Eq. (3.6)
     soil, tb, tc, td = EN1998_1_TABLES[int(spectrum_type)][key]
     given = {"soil_factor": soil_factor, "tb_s": tb_s, "tc_s": tc_s, "td_s": td_s}
     for name, value in given.items():
@@ -247,7 +238,6 @@ def en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type,
     if not tb < tc < td:
         raise ValueError(f"tb_s < tc_s < td_s must hold [s]; got T_B {tb!r}, T_C {tc!r}, "
                          f"T_D {td!r}")
-    eta = max(math.sqrt(10.0 / (5.0 + 100.0 * xi)), _ETA_MIN)  # Eq. (3.6)
     return EN1998Parameters(ag_g=agr * gamma_i, soil_factor=soil, tb_s=tb, tc_s=tc,
                             td_s=td, eta=eta)
 

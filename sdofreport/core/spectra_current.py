@@ -27,13 +27,15 @@ import numpy as np
 from sdofreport.core._checks import positive as _positive
 
 __all__ = [
-    "ASCE7_22_SITE_CLASSES",
     "ASCE7_22_LEVELS",
+    "ASCE7_22_SITE_CLASSES",
+    "EN1998_1_1_RECOMMENDED",
     "EN1998_1_1_SITE_CATEGORIES",
     "EN1998_1_1_SITE_FACTORS",
-    "EN1998_1_1_RECOMMENDED",
     "EN2024Parameters",
     "asce7_22_spectrum",
+    "check_multi_period",
+    "damping_correction",
     "en1998_1_1_parameters",
     "en1998_1_1_spectrum",
 ]
@@ -67,8 +69,8 @@ EN1998_1_1_SITE_FACTORS: dict[str, tuple[float, float, float, float]] = {
 #: χ in T_B = χ T_C, T_D [s], F_A = plateau / zero-period value, T_β [s].
 EN1998_1_1_RECOMMENDED = {"chi": 0.25, "td_s": 2.0, "plateau_ratio": 2.5, "t_beta_s": 1.0}
 
-# Lower limit of the damping correction η (EN 1998-1-1:2024, as EN 1998-1:2004 Eq. 3.6;
-# from memory).
+# Lower limit of the damping correction η, EN 1998-1:2004 Eq. (3.6) (kept in
+# EN 1998-1-1:2024, from memory).
 _ETA_MIN = 0.55
 
 
@@ -76,6 +78,31 @@ def _periods(periods_s) -> np.ndarray:
     from sdofreport.core.design_spectra import _as_periods
 
     return _as_periods(periods_s)
+
+
+def damping_correction(damping) -> float:
+    """
+    Damping correction factor ``η = √(10/(5+ξ)) >= 0.55``, ξ in percent: EN 1998-1:2004
+    Eq. (3.6), kept in EN 1998-1-1:2024 (from memory).
+
+    Parameters
+    ----------
+    damping : float
+        Viscous damping ratio ξ as a fraction (0.05 = 5 %), 0 <= ξ < 1. [-]
+
+    Returns
+    -------
+    float
+        η. [-]
+    """
+    try:
+        xi = float(damping)
+    except (TypeError, ValueError):
+        xi = math.nan
+    if not 0.0 <= xi < 1.0:
+        raise ValueError(f"damping must be a ratio in [0, 1) (0.05 for 5 %) [-]; got "
+                         f"{damping!r}")
+    return max(math.sqrt(10.0 / (5.0 + 100.0 * xi)), _ETA_MIN)
 
 
 # ------------------------------------------------------------------------ ASCE 7-22
@@ -257,13 +284,7 @@ def en1998_1_1_parameters(s_alpha_rp_g, s_beta_rp_g, site_category, damping=0.05
         raise ValueError(f"site_category must be one of "
                          f"{', '.join(EN1998_1_1_SITE_CATEGORIES)} [-]; got "
                          f"{site_category!r}")
-    try:
-        xi = float(damping)
-    except (TypeError, ValueError):
-        xi = math.nan
-    if not 0.0 <= xi < 1.0:
-        raise ValueError(f"damping must be a ratio in [0, 1) (0.05 for 5 %) [-]; got "
-                         f"{damping!r}")
+    eta = damping_correction(damping)
     a, b, c, d = EN1998_1_1_SITE_FACTORS[key]
     given = []
     if f_alpha is None:
@@ -298,7 +319,6 @@ def en1998_1_1_parameters(s_alpha_rp_g, s_beta_rp_g, site_category, damping=0.05
         raise ValueError(f"td_s must exceed T_C = S_beta T_beta / S_alpha = {tc:.4g} s "
                          f"and chi must be < 1 [s]; got T_B {tb:.4g}, T_C {tc:.4g}, "
                          f"T_D {td:.4g}")
-    eta = max(math.sqrt(10.0 / (5.0 + 100.0 * xi)), _ETA_MIN)
     return EN2024Parameters(sa_rp, sb_rp, fa, fb, s_alpha, s_beta, tb, tc, td, t_beta,
                             values["chi"], values["plateau_ratio"], eta, tuple(given))
 
