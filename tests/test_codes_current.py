@@ -274,6 +274,7 @@ def test_ordinates_beyond_the_usable_period_are_left_out_of_scaling(project_fact
     # The record page says so, and its spectra are dashed beyond 1.6 s.
     page = SiteContext(results).record_page(results.records[0]).context["record"]
     assert "up to 1.6 s" in page["usable"] and "left out of scaling" in page["usable"]
+    assert SiteContext(results).suite_page().context["records"][0]["usable"] == "≤ 1.6 s"
     # The project may override: the full range, with a caution.
     again = _run(project_factory, text.replace(body, body + 'beyond_usable = "include"\n'),
                  "include.toml")

@@ -190,7 +190,8 @@ class SiteContext:
                          "pgv": d.show(im.pgv_m_s, "velocity"),
                          "arias": f"{number(im.arias_m_s)} m/s",
                          "d5_95": f"{number(im.d5_95_s)} s",
-                         "mean_period": f"{number(im.mean_period_s)} s"})
+                         "mean_period": f"{number(im.mean_period_s)} s",
+                         "usable": _usable_short(usable_period_max_s(item.spec))})
         return rows
 
     # -- pages -----------------------------------------------------------------------
@@ -784,6 +785,10 @@ def _suite_curves(names: list[str], stack: np.ndarray) -> list[dict]:
     curves.append({"label": "suite mean (arithmetic)", "values": np.mean(stack, axis=0),
                    "style": "mean"})
     return curves
+
+
+def _usable_short(usable: float | None) -> str:
+    return "all" if usable is None else f"≤ {usable:.4g} s"
 
 
 def _usable_text(usable: float | None, scaling) -> str:
