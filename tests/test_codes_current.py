@@ -98,6 +98,10 @@ def test_site_classes_of_the_edition_are_accepted_and_shown(project_factory):
     # From memory: ASCE/SEI 7-22 §20.2 adds the intermediate classes BC, CD and DE.
     for site_class in ("BC", "CD", "DE", "default"):
         asce7_22_spectrum(1.0, site_class, sds_g=1.0, sd1_g=0.6, tl_s=8.0)
+    # Accepted as text in any case, shown as the standard writes it.
+    lower = load_project(project_factory(PROJECT_HEAD + TWO.replace('"BC"', '" bc"') +
+                                         _pairs(1) + ONE_SYSTEM, "lower.toml"))
+    assert lower.design_spectrum.values["site_class"] == "BC"
     text = PROJECT_HEAD + MULTI + '[scaling]\nrule = "asce7-22"\nperiod = "0.5 s"\n' + \
         _pairs(2) + ONE_SYSTEM
     results = _run(project_factory, text)

@@ -691,6 +691,11 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
                 continue
             value = [float(v) for v in raw]
         else:
+            if key in ("site_class", "site_category") and isinstance(table[key], str):
+                # accepted as text in any case: "cd" is site class CD
+                raw = table[key].strip()
+                table = {**table, key: raw.lower() if raw.lower() == "default" else
+                         raw.upper()}
             value = _read_value(table, spec[key], where, problems)
             if value is None:
                 continue
