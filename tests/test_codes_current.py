@@ -279,11 +279,24 @@ def test_ordinates_beyond_the_usable_period_are_left_out_of_scaling(project_fact
     page = SiteContext(results).record_page(results.records[0]).context["record"]
     assert "up to 1.6 s" in page["usable"] and "left out of scaling" in page["usable"]
     assert SiteContext(results).suite_page().context["records"][0]["usable"] == "≤ 1.6 s"
+    # The system (T = 0.5 s) lies inside the usable range: no caution on the page.
+    assert page["beyond_usable"] == []
     # The project may override: the full range, with a caution.
     again = _run(project_factory, text.replace(body, body + 'beyond_usable = "include"\n'),
                  "include.toml")
     assert again.scaling.period_range_s == pytest.approx((0.24, 2.4), rel=1e-12)
     assert any("includes those ordinates" in c for c in again.scaling.cautions)
+
+
+def test_record_page_names_systems_beyond_the_usable_period(project_factory):
+    # High-pass 0.5 Hz: usable up to 1.6 s (1/(1.25 f_c), from memory); a 2 s system
+    # lies beyond it.
+    long = ONE_SYSTEM.replace('"0.5 s"', '"2 s"')
+    text = PROJECT_HEAD + "[processing]\nbandpass_hz = [0.5, 25.0]\n" + \
+        '[[records]]\nid = "r1"\nfile = "records/r1.csv"\n' + long
+    results = _run(project_factory, text)
+    page = SiteContext(results).record_page(results.records[0]).context["record"]
+    assert page["beyond_usable"] == ["System one (s1, T = 2 s)"]
 
 
 def test_spectrum_beyond_the_usable_period_is_drawn_dashed():

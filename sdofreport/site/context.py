@@ -312,7 +312,11 @@ class SiteContext:
                               "warnings": list(record.warnings),
                               "provenance": provenance.record_rows(item.spec),
                               "processing": _processing_text(item.spec.processing),
-                              "usable": _usable_text(usable, self.project.scaling)},
+                              "usable": _usable_text(usable, self.project.scaling),
+                              "beyond_usable": [
+                                  f"{system.name} ({system.id}, T = {system.period_s:.4g} s)"
+                                  for system in self.project.systems
+                                  if usable is not None and system.period_s > usable]},
                    "intensity": intensity, "figures": figures,
                    "method": self.project.analysis.method}
         return Page(f"records/{page_name(rid)}", "record.html", context)
