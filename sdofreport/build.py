@@ -13,8 +13,10 @@ from pathlib import Path
 from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir, run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
+from sdofreport.jsontext import json_text
 from sdofreport.project.quantities import without_memo
-from sdofreport.site.render import gather_site, prepare_output, recover_site, start_record_figures
+from sdofreport.site.render import (COMPARE_TO_INPUT, gather_site, prepare_output,
+                                    recover_site, start_record_figures)
 from sdofreport.site.tree import OutputLock, StagedTree, output_folder
 
 log = logging.getLogger("sdofreport.build")
@@ -59,6 +61,10 @@ def build_site(project_file: str | os.PathLike, output: str | os.PathLike, *,
     Validate the project, compute every result, render every page into a staged tree,
     then swap it in for ``output``.
 
+    With ``compare_to``, the earlier run's results are kept as an input
+    (:data:`~sdofreport.site.render.COMPARE_TO_INPUT`), so ``verify --rerun`` can rebuild
+    the revision page too.
+
     Raises :class:`~sdofreport.errors.SdofreportError` subclasses for bad input; in that
     case nothing is written and any previous site at ``output`` is left intact. Only one
     build at a time writes into one folder (:class:`~sdofreport.site.tree.OutputLock`);
@@ -94,8 +100,11 @@ def _build_locked(project_file, output: Path, started: float, *, jobs, cache_dir
         if use_cache:
             cache_dir, figure_cache = folder, ResultCache(folder / "figures")
     extra = None
+    kept_inputs = {}
     if old is not None:
         from sdofreport.archive.compare import revision_page
+
+        kept_inputs[COMPARE_TO_INPUT] = json_text(old).encode("utf-8")
 
         def extra(document, fingerprint):
             return revision_page(old, document, fingerprint=fingerprint)
@@ -119,7 +128,8 @@ def _build_locked(project_file, output: Path, started: float, *, jobs, cache_dir
                               records_ready=records_ready if workers > 1 else None)
         render_started = time.perf_counter()
         count = gather_site(results, tree(), jobs=workers, figure_cache=figure_cache,
-                            extra_pages=extra, early=early[0] if early else None)
+                            extra_pages=extra, extra_inputs=kept_inputs,
+                            early=early[0] if early else None)
         write_started = time.perf_counter()
         path = tree().commit()
     finished = time.perf_counter()

@@ -4,12 +4,15 @@
   amplitude and response spectra of one record;
 * :func:`pair_job` — RotD50/RotD100, geometric-mean and SRSS spectra of a horizontal pair
   (Boore 2010);
-* :func:`responses_job` — the response histories of every system to one record.
+* :func:`responses_job` — the response histories of every system to one record;
+* :func:`stripe_job` — one stripe of a multiple-stripe fragility analysis (peaks only).
 
 They are top-level functions so a process pool or a Dask cluster can pickle them.
 """
 
 from __future__ import annotations
+
+import dataclasses
 
 import numpy as np
 
@@ -76,21 +79,31 @@ def _linear_response(acceleration, dt_s, model: dict, method: str) -> dict:
 
 
 def _nonlinear_response(acceleration, dt_s, model: dict) -> dict:
-    from sdofreport.core import nonlinear
+    from sdofreport.core import hysteresis, nonlinear
 
-    if model["model"] == "bilinear":
-        system = nonlinear.bilinear(model["stiffness_n_m"],
-                                    yield_strength_n=model["yield_strength_n"],
-                                    hardening_ratio=model["post_yield_ratio"])
-    else:
+    name = model["model"]
+    mass = model.get("mass_kg")
+    if name == "sliding-pendulum":
         system = nonlinear.sliding_pendulum_model(
             model["weight_n"], model["radius_m"], model["friction"],
             yield_displacement_m=model["slip_displacement_m"])
+        mass = None
+    elif name == "elastic":  # a linear spring with a supplemental damper
+        system = nonlinear.bilinear(model["stiffness_n_m"], yield_strength_n=np.inf)
+    else:
+        system = hysteresis.hysteresis(name, model["stiffness_n_m"],
+                                       model["yield_strength_n"],
+                                       model["post_yield_ratio"],
+                                       **model.get("parameters", {}))
+    spec = model.get("damper")
+    damper = None if spec is None else hysteresis.damper(spec["coefficient"],
+                                                          spec["exponent"])
     substeps = max(1, int(np.ceil(dt_s / (model["period_s"] / 100.0))))
-    mass = model.get("mass_kg") if model["model"] == "bilinear" else None
-    result = nonlinear.nonlinear_response(acceleration, dt_s, system, model["damping"],
-                                          mass_kg=mass, substeps=substeps)
-    return {"model": model["model"], "response": result}
+    result = nonlinear.nonlinear_response(
+        acceleration, dt_s, system, model["damping"], mass_kg=mass, substeps=substeps,
+        gravity_stiffness_n_m=model.get("gravity_stiffness_n_m", 0.0), damper=damper,
+        instability_limit_m=model.get("instability_limit_m"))
+    return {"model": name, "response": result}
 
 
 def response_job(acceleration, dt_s, model: dict, method: str) -> dict:
@@ -153,8 +166,56 @@ def responses_job(acceleration, dt_s, models: list, method: str) -> list:
     return outputs
 
 
+def stripe_intensity(acceleration, dt_s, model: dict, measure: str, method: str) -> float:
+    """A record's intensity measure for the fragility stripes [m/s²]: ``sa``, the
+    pseudo-spectral acceleration ω²·SD at the system's period and damping, or ``pga``."""
+    if measure == "pga":
+        return float(np.max(np.abs(acceleration)))
+    spectrum = response_spectrum(acceleration, dt_s, np.array([model["period_s"]]),
+                                 np.array([model["damping"]]), method=method)
+    return float(spectrum.psa_m_s2[0, 0])
+
+
+def _peaks_only(raw: dict) -> dict:
+    """A response job's output with its histories reduced to what the peaks need (the
+    stripes keep hundreds of runs: only their peaks are cached)."""
+    empty = np.zeros(0)
+    if raw["model"] == "linear":
+        return {**raw, "displacement_m": empty, "total_accel_m_s2": empty}
+    r = raw["response"]
+    return {**raw, "response": dataclasses.replace(
+        r, time_s=empty, displacement_m=empty, force_n=empty, energy_histories_j={},
+        velocity_m_s=np.array([np.max(np.abs(r.velocity_m_s), initial=0.0)]),
+        total_accel_m_s2=np.array([np.max(np.abs(r.total_accel_m_s2), initial=0.0)]))}
+
+
+def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
+               level_m_s2: float) -> dict:
+    """
+    One stripe of a multiple-stripe analysis: every record scaled so its intensity
+    measure (:func:`stripe_intensity`) equals ``level_m_s2``, and the system's response
+    to each (peaks only), in record order.
+    """
+    intensities, factors, runs = [], [], []
+    for acceleration, dt_s in zip(accelerations, dts):
+        im = stripe_intensity(acceleration, dt_s, model, measure, method)
+        if not im > 0:
+            raise ValueError(f"system {model.get('system_id')}: a record has no "
+                             f"{measure} ({im!r} m/s²) and cannot be scaled to a level")
+        factor = level_m_s2 / im
+        try:
+            raw = response_job(np.asarray(acceleration) * factor, dt_s, model, method)
+        except ValueError as exc:
+            raise ValueError(f"system {model.get('system_id')}: {exc}") from None
+        intensities.append(im)
+        factors.append(factor)
+        runs.append(_peaks_only(raw))
+    return {"intensity_m_s2": np.array(intensities), "factors": np.array(factors),
+            "runs": runs}
+
+
 JOBS = {"record": record_job, "pair": pair_job, "responses": responses_job,
-        "inelastic": inelastic_job}
+        "inelastic": inelastic_job, "stripe": stripe_job}
 
 
 def run_job(kind: str, args: tuple) -> dict:

@@ -10,6 +10,7 @@ import csv
 import io
 
 from sdofreport import __version__
+from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import Results
 from sdofreport.serialize import (
@@ -111,11 +112,19 @@ def results_document(results: Results) -> dict:
                     "energy": {k: finite_or_none(v) for k, v in response.energy.items()},
                     "energy_units": "J",
                     "convergence": response.convergence,
+                    "unstable": bool(response.unstable),
+                    "instability_limit_m": response.instability_limit_m,
                 })
+                if response.peak_damper_force_n is not None:
+                    entry["peak_damper_force_n"] = finite_or_none(
+                        response.peak_damper_force_n)
             responses.append(entry)
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
-                   "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute}
+                   "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute,
+                   "basis": system.limits.basis_of(c.quantity),
+                   "statistics": statistics_block(c),
+                   **fragility_block(results, c)}
                   for c in results.checks if c.system_id == system.id]
         systems.append({
             "id": system.id, "name": system.name, "mass_kg": system.mass_kg,
@@ -123,6 +132,7 @@ def results_document(results: Results) -> dict:
             "frequency_hz": system.frequency_hz, "damping": system.damping,
             "height_m": system.height_m, "kind": system.kind, "model": system.model_name,
             "derivation": "; ".join(system.derivation),
+            **_mechanics_block(system),
             "responses": responses, "checks": checks,
         })
     document = {"schema": RESULTS_SCHEMA, "generator": f"sdofreport {__version__}",
@@ -131,6 +141,44 @@ def results_document(results: Results) -> dict:
                 "systems": systems}
     document.update(suite_blocks(results))
     return document
+
+
+def statistics_block(check) -> dict:
+    """``checks[].statistics``: mean, median, p84, min, max (the check's SI unit) and
+    beta [-] of the per-record peaks; null where not defined."""
+    return {key: finite_or_none(value) if value is not None else None
+            for key, value in check.statistics.items()}
+
+
+def fragility_block(results: Results, check) -> dict:
+    """``checks[].fragility`` (only for the systems of ``[fragility]``): the stripes'
+    counts and the fitted lognormal curve; levels and median in ``unit`` (g)."""
+    found = next((f for f in results.fragility if (f.system_id, f.quantity) ==
+                  (check.system_id, check.quantity)), None)
+    if found is None:
+        return {}
+    fit = found.fit
+    return {"fragility": {
+        "measure": found.measure, "unit": "g", "status": fit.status,
+        "median": fit.median, "beta": fit.beta, "levels": list(fit.levels),
+        "exceeding": list(fit.exceeding), "motions": list(fit.motions),
+        "design_level": found.design_level_g,
+        "design_probability": found.design_probability}}
+
+
+def _mechanics_block(system) -> dict:
+    """P-Δ, hysteresis parameters and damper of a system (each None when absent)."""
+    model = system.model or {}
+    pdelta = None
+    if system.p_delta is not None:
+        pdelta = {k: v for k, v in system.p_delta.items() if k != "weight_given"}
+    hysteresis = None
+    if "yield_strength_n" in model:
+        hysteresis = {"yield_strength_n": model["yield_strength_n"],
+                      "post_yield_ratio": model["post_yield_ratio"],
+                      **model.get("parameters", {})}
+    return {"p_delta": pdelta, "hysteresis_parameters": hysteresis,
+            "damper": model.get("damper")}
 
 
 def suite_blocks(results: Results) -> dict:
@@ -246,4 +294,21 @@ def peaks_csv(results: Results) -> str:
                          "" if r.peak_drift_ratio is None else r.peak_drift_ratio,
                          "" if r.peak_base_shear_n is None else r.peak_base_shear_n,
                          r.peak_total_accel_m_s2 / G])
+    return _csv_text(rows)
+
+
+#: ``data/checks.csv`` columns: the check, its governing statistic, then every statistic.
+CHECKS_CSV_HEADER = ["system", "quantity", "unit", "limit", "demand", "governing_statistic",
+                     "ratio", "verdict", *STATISTIC_KEYS]
+
+
+def checks_csv(results: Results) -> str:
+    """``data/checks.csv``: one row per check, SI (``unit``; ``beta`` dimensionless)."""
+    rows: list[list] = [CHECKS_CSV_HEADER]
+    for c in results.checks:
+        statistics = statistics_block(c)
+        rows.append([c.system_id, c.quantity, CHECK_SI_UNITS[c.quantity], c.limit, c.demand,
+                     c.statistic, c.ratio, c.verdict,
+                     *("" if statistics.get(k) is None else statistics[k]
+                       for k in STATISTIC_KEYS)])
     return _csv_text(rows)

@@ -18,6 +18,7 @@ from sdofreport.core import processing as core_processing
 from sdofreport.core import scaling as core_scaling
 from sdofreport.core.design_spectra import design_spectrum, en1998_1_parameters
 from sdofreport.core.units import G
+from sdofreport.project.model import natural_key
 
 #: Damping ratio of the spectra that rules naming no edition ("fit") read, and of the
 #: pairs' RotD spectra: 5 %, the target damping of every edition in sdofreport.codes.
@@ -91,7 +92,8 @@ def period_range(project) -> tuple[tuple[float, float], str | None, str]:
 
 
 def motions(project) -> list[tuple[str, list[str]]]:
-    """Ground motions: each pair once (H1, H2), then each unpaired record, in file order."""
+    """Ground motions: each pair once (H1, H2) and each unpaired record, in natural order
+    of their names (P1, P2, ... P10)."""
     seen, result = set(), []
     for spec in project.records:
         if spec.pair:
@@ -103,7 +105,7 @@ def motions(project) -> list[tuple[str, list[str]]]:
             result.append((spec.pair, [r.id for r in members]))
         else:
             result.append((spec.id, [spec.id]))
-    return result
+    return sorted(result, key=lambda motion: natural_key(motion[0]))
 
 
 def usable_period_max_s(spec) -> float | None:

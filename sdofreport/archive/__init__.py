@@ -25,7 +25,7 @@ _EXPORTS = {
     "pack_site": "pack", "zip_bytes": "pack", "archive_name": "pack",
     "build_register": "register",
     "register_commands": "commands",
-    "ArchiveError": "_sitefiles",
+    "ArchiveError": "_sitefiles", "TamperedArchive": "_sitefiles",
 }
 
 __all__ = sorted(_EXPORTS)

@@ -30,11 +30,14 @@ COMPARE_FORMATS = ("text", "json", "html")
 @click.command("verify")
 @click.argument("site", type=click.Path(path_type=str))
 @click.option("--rerun", is_flag=True,
-              help="Also recompute every result from the site's inputs/ with the installed "
-                   "version and compare every number in data/results.json.")
+              help="Also rebuild the site from its inputs/ with the installed versions: "
+                   "compare every number in data/results.json and every other file "
+                   "byte for byte; versions that differ from the recorded ones are "
+                   "named first.")
 @click.option("--rtol", type=click.FloatRange(min=0.0), default=None,
-              help="Relative tolerance of --rerun (default 1e-9 when the site was built by "
-                   "another version; exact with the same version unless given).")
+              help="Relative tolerance of --rerun for numbers (default 1e-9 when the site "
+                   "was built with other versions; exact with the same versions unless "
+                   "given).")
 @click.option("--jobs", "-j", type=click.IntRange(min=1), default=None,
               help="Worker processes for --rerun (default: the number of cores).")
 @format_option(VERIFY_FORMATS, "text")
@@ -43,9 +46,11 @@ def verify_command(site, rerun, rtol, jobs, output_format, output):
     """Check a site folder or packed zip against its manifest.json.
 
     Re-hashes every file (SHA-256) and lists any file added, missing or changed; checks
-    that the manifest lists every input and the project file and that its fingerprint
-    recomputes. Exit status 0 when everything matches, 4 when anything differs, 2 when
-    SITE is not a site (no manifest.json).
+    that the manifest lists every input and the project file, that its fingerprint
+    recomputes and that every page shows it. A zip is read as hostile: duplicate or
+    escaping names, links and inconsistent headers count as tampering. Exit status 0
+    when everything matches, 4 when anything differs, 2 when SITE is not a readable site
+    or archive.
 
     \b
     Example:

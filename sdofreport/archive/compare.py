@@ -21,8 +21,9 @@ from sdofreport.archive._sitefiles import (
     ArchiveError,
     parse_manifest,
     parse_results,
-    read_zip,
+    read_bounded,
 )
+from sdofreport.archive._zipfiles import read_zip
 from sdofreport.jsontext import json_text
 from sdofreport.site.render import MANIFEST_NAME
 
@@ -53,13 +54,14 @@ def load_run(path: str | os.PathLike) -> Run:
         files = {}
         for name in (RESULTS_PATH, MANIFEST_NAME):
             if (path / name).is_file():
-                files[name] = (path / name).read_bytes()
+                files[name] = read_bounded(path / name)
     elif path.is_file():
-        data = path.read_bytes()
-        if data[:2] == b"PK":
+        with open(path, "rb") as stream:
+            head = stream.read(2)
+        if head == b"PK":
             files = read_zip(path)
         else:
-            return Run(str(path), parse_results(data, str(path)))
+            return Run(str(path), parse_results(read_bounded(path), str(path)))
     else:
         raise ArchiveError(f"{path}: not found; expected a site folder, a zip made by "
                            f"sdofreport pack or a results.json file.")

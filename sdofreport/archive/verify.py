@@ -3,23 +3,29 @@
 Integrity: every file is re-hashed (SHA-256, FIPS 180-4) and compared with
 ``manifest.json``; files added, missing or changed are listed. Coverage: the manifest
 lists every input, names the project file, covers ``data/results.json`` and its
-fingerprint recomputes. Re-run: every result is recomputed from the copies under
-``inputs/`` with the installed version and every value of ``data/results.json`` is
-compared, by JSON path.
+fingerprint recomputes; every page shows that fingerprint and the project file's
+SHA-256 (:mod:`sdofreport.archive._printed`). Re-run: the whole site is rebuilt from the
+copies under ``inputs/`` with the installed version into a temporary folder; every value
+of ``data/results.json`` is compared by JSON path, every other file byte for byte (the
+build is deterministic), and installed versions that differ from the recorded ones are
+named first.
 """
 
 from __future__ import annotations
 
-import contextlib
 import hashlib
 import json
 import os
-import tempfile
 from dataclasses import dataclass, field
-from datetime import datetime, timezone
-from pathlib import Path
 
 from sdofreport import __version__
+from sdofreport.archive._printed import page_problems
+from sdofreport.archive._rebuild import (
+    ABSENT,
+    csv_differs,
+    rebuild_site,
+    version_differences,
+)
 from sdofreport.archive._sitefiles import (
     RESULTS_PATH,
     RunFiles,
@@ -35,7 +41,6 @@ from sdofreport.site.render import MANIFEST_NAME, fingerprint
 #: 1e-9 tolerates reordered arithmetic yet catches any change an engineer would see.
 DEFAULT_RTOL = 1e-9
 
-ABSENT = "(absent)"
 
 
 @dataclass
@@ -55,10 +60,37 @@ class RerunOutcome:
     tolerance: float = 0.0     # relative tolerance applied (0 = exact)
     numbers_compared: int = 0
     differences: list[Difference] = field(default_factory=list)
+    #: Installed versions that differ from the recorded ones ("numpy: site 1.26.4,
+    #: installed 2.0.2"); reported before anything else, they explain differences.
+    versions: list[str] = field(default_factory=list)
+    files_differ: list[str] = field(default_factory=list)   # bytes differ from the rebuild
+    not_rebuilt: list[str] = field(default_factory=list)    # in the site, not in the rebuild
+    not_in_site: list[str] = field(default_factory=list)    # made by the rebuild only
 
     @property
     def ok(self) -> bool:
-        return self.performed and not self.differences
+        return self.performed and not (self.differences or self.files_differ
+                                       or self.not_rebuilt or self.not_in_site)
+
+    def lines(self) -> list[str]:
+        """The re-run's findings, differing versions first (they explain the rest)."""
+        out = []
+        if self.versions:
+            out.append("  re-run: installed versions differ from those recorded in "
+                       "manifest.json, so numbers may differ within the tolerance and "
+                       "files that print them may differ:")
+            out += [f"  re-run: version: {item}" for item in self.versions]
+        if not self.performed:
+            out.append(f"  re-run: cannot re-run: {self.reason}")
+        for diff in self.differences:
+            rel = "" if diff.relative is None else f" (relative {diff.relative:.3g})"
+            out.append(f"  re-run: {diff.path}: stored {_show(diff.stored)}, "
+                       f"recomputed {_show(diff.recomputed)}{rel}")
+        out += [f"  re-run: differs from the rebuild: {path}" for path in self.files_differ]
+        out += [f"  re-run: not made by the rebuild: {path}" for path in self.not_rebuilt]
+        out += [f"  re-run: made by the rebuild but missing: {path}"
+                for path in self.not_in_site]
+        return out
 
 
 @dataclass
@@ -73,11 +105,13 @@ class VerifyReport:
     missing: list[str] = field(default_factory=list)
     added: list[str] = field(default_factory=list)
     problems: list[str] = field(default_factory=list)
+    pages: list[str] = field(default_factory=list)      # printed identity ≠ manifest
     rerun: RerunOutcome | None = None
 
     @property
     def ok(self) -> bool:
-        return (not (self.changed or self.missing or self.added or self.problems)
+        return (not (self.changed or self.missing or self.added or self.problems
+                     or self.pages)
                 and (self.rerun is None or self.rerun.ok))
 
     def summary(self) -> str:
@@ -89,7 +123,9 @@ class VerifyReport:
                 how = ("exactly" if self.rerun.tolerance == 0 else
                        f"within relative tolerance {self.rerun.tolerance:g}")
                 text += (f"; re-run reproduces all {self.rerun.numbers_compared} numbers "
-                         f"{how}")
+                         f"{how} and every other file byte for byte")
+                if self.rerun.versions:
+                    text += f" (with other versions: {'; '.join(self.rerun.versions)})"
             return text
         parts = []
         for items, word in ((self.changed, "changed"), (self.missing, "missing"),
@@ -99,11 +135,22 @@ class VerifyReport:
         if self.problems:
             parts.append(f"{len(self.problems)} manifest problem"
                          f"{'s' if len(self.problems) != 1 else ''}")
-        if self.rerun is not None and not self.rerun.performed:
-            parts.append(f"cannot re-run: {self.rerun.reason}")
-        elif self.rerun is not None and self.rerun.differences:
-            count = len(self.rerun.differences)
-            parts.append(f"re-run differs in {count} value{'s' if count != 1 else ''}")
+        if self.pages:
+            parts.append(f"{len(self.pages)} page problem"
+                         f"{'s' if len(self.pages) != 1 else ''}")
+        rerun = self.rerun
+        if rerun is not None and not rerun.performed:
+            parts.append(f"cannot re-run: {rerun.reason}")
+        elif rerun is not None:
+            if rerun.differences:
+                count = len(rerun.differences)
+                parts.append(f"re-run differs in {count} value{'s' if count != 1 else ''}")
+            count = len(rerun.files_differ) + len(rerun.not_rebuilt) + len(rerun.not_in_site)
+            if count:
+                parts.append(f"{count} file{'s' if count != 1 else ''} differ"
+                             f"{'s' if count == 1 else ''} from the rebuild")
+            if rerun.versions and not rerun.ok:
+                parts.append("installed versions differ from the site's")
         return "FAILED verification: " + ", ".join(parts)
 
     def lines(self) -> list[str]:
@@ -113,13 +160,9 @@ class VerifyReport:
         out += [f"  missing: {path}" for path in self.missing]
         out += [f"  added (not in {MANIFEST_NAME}): {path}" for path in self.added]
         out += [f"  manifest: {problem}" for problem in self.problems]
+        out += [f"  page: {problem}" for problem in self.pages]
         if self.rerun is not None:
-            if not self.rerun.performed:
-                out.append(f"  re-run: cannot re-run: {self.rerun.reason}")
-            for diff in self.rerun.differences:
-                rel = "" if diff.relative is None else f" (relative {diff.relative:.3g})"
-                out.append(f"  re-run: {diff.path}: stored {_show(diff.stored)}, "
-                           f"recomputed {_show(diff.recomputed)}{rel}")
+            out += self.rerun.lines()
         return out
 
     def as_dict(self) -> dict:
@@ -132,9 +175,14 @@ class VerifyReport:
                 "performed": self.rerun.performed, "reason": self.rerun.reason,
                 "tolerance": self.rerun.tolerance,
                 "numbers_compared": self.rerun.numbers_compared,
+                "versions_differ": self.rerun.versions,
                 "differences": [{"path": d.path, "stored": d.stored,
                                  "recomputed": d.recomputed, "relative": d.relative}
-                                for d in self.rerun.differences]}
+                                for d in self.rerun.differences],
+                "files_differ": self.rerun.files_differ,
+                "not_rebuilt": self.rerun.not_rebuilt,
+                "not_in_site": self.rerun.not_in_site}
+        document["pages"] = self.pages
         return document
 
 
@@ -160,6 +208,7 @@ def verify_files(run: RunFiles) -> VerifyReport:
     report.missing = sorted(p for p in listed if p not in present)
     report.added = sorted(p for p in present if p not in listed)
     report.problems = _coverage_problems(manifest, run.files)
+    report.pages = page_problems(run.files, manifest)
     return report
 
 
@@ -198,62 +247,50 @@ def _coverage_problems(manifest: dict, files: dict[str, bytes]) -> list[str]:
     return problems
 
 
-# -- re-run --------------------------------------------------------------------------------
+# -- re-run (the rebuild itself: sdofreport.archive._rebuild) ------------------------------
 
-@contextlib.contextmanager
-def _source_date(date: str | None):
-    """Set SOURCE_DATE_EPOCH so a project file without a date gets the stored date back."""
-    saved = os.environ.get("SOURCE_DATE_EPOCH")
+#: Manifest fields a re-run does not compare by value: versions (named by
+#: :func:`version_differences`), the fingerprint (plain verify recomputes it) and the file
+#: hashes (every file is compared itself).
+_MANIFEST_NOT_COMPARED = ("package", "dependencies", "platform", "fingerprint", "files")
+
+
+def compare_rebuild(stored: dict[str, bytes], rebuilt: dict[str, bytes], stored_manifest: dict,
+                    tolerance: float, outcome: RerunOutcome) -> None:
+    """Fill ``outcome`` with every file (other than results.json) that the rebuild does
+    not reproduce: byte for byte, except that the rebuilt fingerprint is read as the
+    stored one and, with a tolerance, CSV numbers compare within it."""
     try:
-        stamp = None
-        if isinstance(date, str):
-            with contextlib.suppress(ValueError):
-                parsed = datetime.strptime(date, "%Y-%m-%d").replace(tzinfo=timezone.utc)
-                stamp = str(int(parsed.timestamp()))
-        if stamp is None:
-            os.environ.pop("SOURCE_DATE_EPOCH", None)
+        rebuilt_manifest = json.loads(rebuilt[MANIFEST_NAME].decode("utf-8"))
+    except (KeyError, UnicodeDecodeError, ValueError):
+        rebuilt_manifest = {}
+    old, new = (str(stored_manifest.get("fingerprint", "")),
+                str(rebuilt_manifest.get("fingerprint", "")))
+    for path in sorted(set(stored) | set(rebuilt)):
+        if path in (RESULTS_PATH, MANIFEST_NAME):
+            continue
+        if path not in rebuilt:
+            outcome.not_rebuilt.append(path)
+        elif path not in stored:
+            outcome.not_in_site.append(path)
         else:
-            os.environ["SOURCE_DATE_EPOCH"] = stamp
-        yield
-    finally:
-        if saved is None:
-            os.environ.pop("SOURCE_DATE_EPOCH", None)
-        else:
-            os.environ["SOURCE_DATE_EPOCH"] = saved
-
-
-def recompute_results(files: dict[str, bytes], manifest: dict, stored_date: str | None,
-                      *, jobs: int | None = 1) -> dict:
-    """
-    results.json recomputed from the run's ``inputs/`` with the installed version.
-
-    The inputs are written to a temporary folder at their paths relative to the project
-    file, loaded and run without the cache. Raises :class:`SdofreportError` when the
-    project cannot be loaded or an input lay outside the project folder.
-    """
-    from sdofreport.engine import run_project
-    from sdofreport.project import load_project
-    from sdofreport.project.quantities import without_memo
-    from sdofreport.results_json import results_document
-
-    inputs = {path: data for path, data in files.items() if path.startswith("inputs/")}
-    outside = sorted(path for path in inputs if path.startswith("inputs/_outside/"))
-    if outside:
-        raise SdofreportError(f"input outside project folder ({', '.join(outside)})")
-    project_file = manifest["project"].get("file")
-    if project_file not in inputs:
-        raise SdofreportError(f"project file {project_file!r} is not in the site")
-    with tempfile.TemporaryDirectory(prefix="sdofreport-rerun-") as folder:
-        for path, data in inputs.items():
-            target = Path(folder, *path.split("/")[1:])
-            target.parent.mkdir(parents=True, exist_ok=True)
-            target.write_bytes(data)
-        with _source_date(stored_date), without_memo():
-            project = load_project(Path(folder, *project_file.split("/")[1:]))
-        results = run_project(project, jobs=jobs, use_cache=False)
-        document = results_document(results)
-    # Round-trip through JSON so types match the stored file (tuples → lists, ints).
-    return json.loads(json.dumps(document, allow_nan=False))
+            data = rebuilt[path]
+            if old and new and old != new:
+                data = data.replace(new.encode("utf-8"), old.encode("utf-8"))
+            if data == stored[path]:
+                continue
+            if tolerance and path.endswith(".csv") and not csv_differs(stored[path], data,
+                                                                        tolerance):
+                continue
+            outcome.files_differ.append(path)
+    strip = {key: value for key, value in stored_manifest.items()
+             if key not in _MANIFEST_NOT_COMPARED}
+    again = {key: value for key, value in rebuilt_manifest.items()
+             if key not in _MANIFEST_NOT_COMPARED}
+    differences, _ = compare_documents(strip, again, 0.0)
+    for diff in differences:
+        diff.path = f"{MANIFEST_NAME}: {diff.path}"
+    outcome.differences += differences
 
 
 def _is_number(value: object) -> bool:
@@ -297,30 +334,38 @@ def compare_documents(stored, recomputed, tolerance: float) -> tuple[list[Differ
 def rerun_check(run: RunFiles, *, rtol: float | None = None,
                 jobs: int | None = 1) -> RerunOutcome:
     """
-    Recompute results.json from the run's inputs and compare every value.
+    Rebuild the site from the run's inputs; compare every value of results.json and
+    every other file byte for byte.
 
     ``rtol=None`` means: exact when the stored results were made by the installed
-    version, else :data:`DEFAULT_RTOL`; a given ``rtol`` always applies.
+    versions (package, dependencies and platform as recorded), else
+    :data:`DEFAULT_RTOL`; a given ``rtol`` always applies.
     """
     manifest = parse_manifest(run.files, run.label)
+    versions = version_differences(manifest)
     if RESULTS_PATH not in run.files:
-        return RerunOutcome(False, f"'{RESULTS_PATH}' is missing")
+        return RerunOutcome(False, f"'{RESULTS_PATH}' is missing", versions=versions)
     try:
         stored = parse_results(run.files[RESULTS_PATH], RESULTS_PATH)
     except SdofreportError as exc:
-        return RerunOutcome(False, exc.message)
+        return RerunOutcome(False, exc.message, versions=versions)
     if rtol is None:
-        same_version = stored.get("generator") == f"sdofreport {__version__}"
+        same_version = (stored.get("generator") == f"sdofreport {__version__}"
+                        and not versions)
         tolerance = 0.0 if same_version else DEFAULT_RTOL
     else:
         tolerance = float(rtol)
     stored_date = (stored.get("project") or {}).get("date")
     try:
-        recomputed = recompute_results(run.files, manifest, stored_date, jobs=jobs)
+        rebuilt = rebuild_site(run.files, manifest, stored_date, jobs=jobs)
+        recomputed = parse_results(rebuilt.get(RESULTS_PATH, b""), RESULTS_PATH)
     except SdofreportError as exc:
-        return RerunOutcome(False, " ".join(exc.message.split()), tolerance)
+        return RerunOutcome(False, " ".join(exc.message.split()), tolerance,
+                            versions=versions)
     differences, count = compare_documents(stored, recomputed, tolerance)
-    return RerunOutcome(True, "", tolerance, count, differences)
+    outcome = RerunOutcome(True, "", tolerance, count, differences, versions)
+    compare_rebuild(run.files, rebuilt, manifest, tolerance, outcome)
+    return outcome
 
 
 def verify_site(path: str | os.PathLike, *, rerun: bool = False, rtol: float | None = None,
@@ -333,10 +378,11 @@ def verify_site(path: str | os.PathLike, *, rerun: bool = False, rtol: float | N
     path : path
         Site folder (``sdofreport build -o``) or zip (``sdofreport pack``).
     rerun : bool
-        Also recompute every result from ``inputs/`` and compare ``data/results.json``.
+        Also rebuild the site from ``inputs/``: compare ``data/results.json`` by value
+        and every other file byte for byte.
     rtol : float, optional
-        Relative tolerance of the re-run comparison [-]; default exact with the same
-        package version, else :data:`DEFAULT_RTOL`.
+        Relative tolerance of the re-run comparison of numbers [-]; default exact with
+        the same recorded versions, else :data:`DEFAULT_RTOL`.
     jobs : int, optional
         Worker processes for the re-run.
 

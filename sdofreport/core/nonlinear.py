@@ -454,6 +454,16 @@ class NonlinearResponse:
     subdivided_steps: int
     #: True when every step met the tolerance
     converged: bool
+    #: energy dissipated by the supplemental damper ∫F_d du [J]
+    damper_j: float = 0.0
+    #: gravity (P-Δ) potential −½ (W/h) u² at the end [J]
+    gravity_j: float = 0.0
+    #: max |F_d| of the supplemental damper [N]
+    peak_damper_force_n: float = 0.0
+    #: True when |u| reached ``instability_limit_m`` (the histories end there)
+    unstable: bool = False
+    #: displacement bound of the instability test (inf: none) [m]
+    instability_limit_m: float = math.inf
 
 
 def _check_workers(workers) -> int:
@@ -515,9 +525,10 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
                        mass_kg=None, initial_displacement_m=0.0, initial_velocity_m_s=0.0,
                        substeps=1, tolerance=DEFAULT_TOLERANCE,
                        max_iterations=DEFAULT_MAX_ITERATIONS,
-                       max_halvings=DEFAULT_MAX_HALVINGS) -> NonlinearResponse:
+                       max_halvings=DEFAULT_MAX_HALVINGS, gravity_stiffness_n_m=0.0,
+                       damper=None, instability_limit_m=None) -> NonlinearResponse:
     """
-    Response of a bilinear or sliding-pendulum SDOF system to base acceleration.
+    Response of a hysteretic or sliding-pendulum SDOF system to base acceleration.
 
     Parameters
     ----------
@@ -525,13 +536,14 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
         Equally spaced base acceleration, linear between samples. [m/s²]
     time_step : float
         Sampling interval, > 0. [s]
-    system : Bilinear or SlidingPendulum
-        Restoring-force model (see :func:`bilinear`, :func:`sliding_pendulum_model`). [-]
+    system : Bilinear, Hysteresis or SlidingPendulum
+        Restoring-force model (see :func:`bilinear`,
+        :func:`sdofreport.core.hysteresis.hysteresis`, :func:`sliding_pendulum_model`). [-]
     damping_ratio : float
-        Viscous damping ratio in [0, 1): ``c = 2 ζ m ω`` with ω from the initial
-        stiffness k (bilinear) or the pendulum stiffness W/R (pendulum; 0 when flat). [-]
+        Viscous damping ratio in [0, 1): ``c = 2 ζ √(m (k − W/h))`` with k the initial
+        stiffness (hysteretic models) or the pendulum stiffness W/R (0 when flat). [-]
     mass_kg : float or None, optional
-        Mass, > 0, for a bilinear system; None works per unit mass (m = 1, forces in
+        Mass, > 0, for a hysteretic system; None works per unit mass (m = 1, forces in
         N/kg, energies in J/kg). A pendulum's mass is W/g: leave this None. [kg]
     initial_displacement_m : float, optional
         Relative displacement at t = 0 (start on the elastic branch). [m]
@@ -546,15 +558,25 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
         Newton–Raphson iterations per step before the step is split, >= 1. [-]
     max_halvings : int, optional
         Most times a record step may be halved, >= 0. [-]
+    gravity_stiffness_n_m : float, optional
+        P-Δ geometric stiffness W/h, >= 0 and below the initial stiffness; acts as
+        ``−(W/h) u`` on every branch ([1]_ sec. 7.11). Hysteretic models only. [N/m]
+    damper : Damper or None, optional
+        Supplemental viscous damper ``C |u̇|^α sign(u̇)``. [-]
+    instability_limit_m : float or None, optional
+        Displacement beyond which the run stops and is reported unstable; the
+        collapse displacement of the backbone under P-Δ
+        (:func:`sdofreport.core.hysteresis.collapse_displacement`) applies too. [m]
 
     Returns
     -------
     NonlinearResponse
+        Histories end at the step where the run stopped when it is unstable.
 
     References
     ----------
     .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
-       2017, sec. 5.7, Table 5.7.1.
+       2017, sec. 5.7, Table 5.7.1, and sec. 7.11.
     .. [2] N. M. Newmark, "A method of computation for structural dynamics," J. Eng.
        Mech. Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
     .. [3] C.-M. Uang and V. V. Bertero, "Evaluation of seismic energy in structures,"
@@ -564,6 +586,8 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
        achieving seismic isolation," Earthquake Spectra, vol. 6, no. 2, pp. 317-333,
        1990, doi: 10.1193/1.1585564.
     """
+    from sdofreport.core import hysteresis as hy
+
     ag = _check_ground_acceleration(ground_acceleration)
     dt = _check_time_step(time_step)
     zeta = _check_damping(damping_ratio)
@@ -576,15 +600,34 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
         )
     n_sub = _check_positive_int(substeps, "substeps", 1)
     tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
+    k_geo = _number(gravity_stiffness_n_m, "gravity_stiffness_n_m", "N/m")
+    if not (math.isfinite(k_geo) and k_geo >= 0.0):
+        raise ValueError(f"gravity_stiffness_n_m must be finite and >= 0 [N/m]; got "
+                         f"{gravity_stiffness_n_m!r}")
+    bound = math.inf
+    if instability_limit_m is not None:
+        bound = _positive(instability_limit_m, "instability_limit_m", "m", allow_inf=True)
 
-    if isinstance(system, Bilinear):
+    if isinstance(system, (Bilinear, hy.Hysteresis)):
         m = 1.0 if mass_kg is None else _positive(mass_kg, "mass_kg", "kg")
         k = system.stiffness_n_m
         alpha = system.hardening_ratio
         fy = system.yield_strength_n
-        k_lin, k_p, f_p = alpha * k, (1.0 - alpha) * k, (1.0 - alpha) * fy
-        omega = math.sqrt(k / m)
-        if abs(k_p * u0) > f_p:
+        if isinstance(system, Bilinear):
+            code = 0
+            params = np.array([alpha * k, (1.0 - alpha) * k, (1.0 - alpha) * fy, 0.0, 0.0,
+                               0.0])
+        else:
+            code, params = system.kernel_parameters()
+        if k_geo >= k:
+            raise ValueError(
+                f"gravity_stiffness_n_m W/h = {k_geo!r} [N/m] must be below the initial "
+                f"stiffness k = {k!r} [N/m]: the system cannot carry its gravity load"
+            )
+        k0 = k - k_geo
+        omega = math.sqrt(k0 / m)
+        bound = min(bound, hy.collapse_displacement(k, fy, alpha, k_geo))
+        if abs(u0) > fy / k:
             raise ValueError(
                 f"initial_displacement_m must lie on the elastic branch, |u0| <= u_y = "
                 f"{fy / k!r} [m]; got {initial_displacement_m!r}"
@@ -595,11 +638,19 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
                 f"mass_kg must be None for a sliding pendulum (its mass is W/g) [kg]; "
                 f"got {mass_kg!r}"
             )
+        if k_geo != 0.0:
+            raise ValueError("gravity_stiffness_n_m must be 0 for a sliding pendulum (its "
+                             f"gravity restoring force is W/R) [N/m]; got {k_geo!r}")
         w = G if system.weight_n is None else system.weight_n
         m = w / G
         k_lin = w / system.radius_m
         f_p = system.friction * w
         k_p = f_p / system.yield_displacement_m
+        code = 0
+        # Pre-sliding dashpot: the stick branch critically damped (hysteresis module).
+        c_stick = 2.0 * hy.STICK_DAMPING_RATIO * math.sqrt(m * k_p)
+        params = np.array([k_lin, k_p, f_p, c_stick, 0.0, 0.0])
+        k0 = k_lin + k_p
         omega = math.sqrt(k_lin / m)
         if abs(k_p * u0) > f_p:
             raise ValueError(
@@ -609,37 +660,54 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
             )
     else:
         raise ValueError(
-            f"system must be a Bilinear or SlidingPendulum model; got {type(system).__name__}"
+            f"system must be a Bilinear, Hysteresis or SlidingPendulum model; got "
+            f"{type(system).__name__}"
         )
     c = 2.0 * zeta * m * omega
+    c_d, a_d = 0.0, 1.0
+    if damper is not None:
+        if not isinstance(damper, hy.Damper):
+            raise ValueError(f"damper must be a Damper or None; got {type(damper).__name__}")
+        c_d, a_d = damper.coefficient, damper.exponent
+    # Linear below a small velocity (module docstring of hysteresis): u_y ω, or the
+    # record's velocity scale max|üg|/ω when there is no yield displacement.
+    uy_ref = system.yield_displacement_m
+    if not math.isfinite(uy_ref):
+        uy_ref = float(np.max(np.abs(ag))) / max(omega, 1e-12) ** 2 or 1.0
+    v_r = hy.DAMPER_LINEAR_BELOW * uy_ref * max(omega, 1e-12)
     # Force scale of the residual test: the largest of the ground inertia force and the
     # forces the initial conditions imply; 1 when nothing at all moves.
-    scale = max(m * float(np.max(np.abs(ag))), (k_lin + k_p) * abs(u0),
-                math.sqrt((k_lin + k_p) * m) * abs(v0)) or 1.0
+    scale = max(m * float(np.max(np.abs(ag))), k0 * abs(u0),
+                math.sqrt(k0 * m) * abs(v0)) or 1.0
 
-    hist = np.empty((8, ag.size))
-    stats = np.empty(12)
-    _integrate(ag, dt, n_sub, m, c, k_lin, k_p, f_p, u0, v0, tol * scale, max_iter,
-               max_halv, np.inf, True, hist, stats)
-    u, v, at, f, e_in, e_d, e_f, up = hist
+    hist = np.empty((10, ag.size))
+    stats = np.empty(14)
+    hy.integrate_model(ag, dt, n_sub, m, c, code, params, k_geo, c_d, a_d, v_r,
+                       u0, v0, tol * scale, max_iter, max_halv, bound, hist, stats)
+    stored = int(stats[13])
+    hist = hist[:, :stored]
+    u, v, at, f, e_in, e_d, e_f, e_x, f_d, k_un = hist
 
     kinetic = 0.5 * m * v * v
-    if isinstance(system, Bilinear):
-        strain = f * f / (2.0 * (k_lin + k_p))
-        ductility = float(stats[0] / system.yield_displacement_m)
-    else:
+    if isinstance(system, SlidingPendulum):
         f_fric = f - k_lin * u
         strain = 0.5 * k_lin * u * u
         if k_p > 0.0:
             strain = strain + f_fric * f_fric / (2.0 * k_p)
         ductility = None
+    else:
+        # f²/(2 k_u); zero where deterioration has left no stiffness (and no force)
+        strain = np.divide(f * f, 2.0 * k_un, out=np.zeros_like(f), where=k_un > 0.0)
+        ductility = float(stats[0] / system.yield_displacement_m)
+    gravity = -0.5 * k_geo * u * u
     # ∫F du = ΔE_strain + E_hysteretic; initial energy E0 enters the balance ([3]).
     hysteretic = e_f - (strain - strain[0])
-    supplied = e_in[-1] + kinetic[0] + strain[0]
-    total = kinetic[-1] + e_d[-1] + strain[-1] + hysteretic[-1]
+    supplied = e_in[-1] + kinetic[0] + strain[0] + gravity[0]
+    total = kinetic[-1] + e_d[-1] + e_x[-1] + strain[-1] + hysteretic[-1] + gravity[-1]
     imbalance = abs(supplied - total) / max(abs(supplied), 1e-300)
+    unstable = bool(stats[12])
     return NonlinearResponse(
-        time_s=np.arange(ag.size) * dt,
+        time_s=np.arange(stored) * dt,
         displacement_m=u.copy(),
         velocity_m_s=v.copy(),
         total_accel_m_s2=at.copy(),
@@ -655,10 +723,17 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
         hysteretic_j=float(hysteretic[-1]),
         imbalance=float(imbalance),
         energy_histories_j={"input": e_in.copy(), "kinetic": kinetic, "damping": e_d.copy(),
-                            "strain": strain, "hysteretic": hysteretic},
+                            "strain": strain, "hysteretic": hysteretic,
+                            **({"damper": e_x.copy()} if c_d > 0.0 else {}),
+                            **({"gravity": gravity} if k_geo > 0.0 else {})},
         max_iterations_used=int(stats[5]),
         subdivided_steps=int(stats[6]),
         converged=bool(stats[7]),
+        damper_j=float(e_x[-1]),
+        gravity_j=float(gravity[-1]),
+        peak_damper_force_n=float(np.max(np.abs(f_d))),
+        unstable=unstable,
+        instability_limit_m=float(bound),
     )
 
 

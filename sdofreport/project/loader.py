@@ -26,6 +26,7 @@ from sdofreport.errors import ProjectError
 from sdofreport.project.model import (
     AnalysisSettings,
     DesignSpectrumSpec,
+    FragilitySpec,
     InelasticSpectraSpec,
     SyntheticSpec,
     ScalingSpec,
@@ -33,14 +34,21 @@ from sdofreport.project.model import (
     ProcessingSettings,
     Project,
     Revision,
+    natural_key,
     ProjectInfo,
     RecordSpec,
     SystemSpec,
 )
-from sdofreport.project.quantities import QuantityError, parse_quantity, save_memo
+from sdofreport.project.quantities import (
+    QuantityError,
+    parse_damper_coefficient,
+    parse_quantity,
+    save_memo,
+)
 from sdofreport.core.units import G
 from sdofreport.project.schema import (
     DESIGN_SPECTRUM_KEYS,
+    HYSTERESIS_PARAMETER_KEYS,
     OPTIONAL_DESIGN_KEYS,
     PROVENANCE_KEYS,
     PROVENANCE_RANGES,
@@ -49,6 +57,7 @@ from sdofreport.project.schema import (
     TOP_LEVEL,
     KeySpec,
 )
+from sdofreport.core.hysteresis import HYSTERESIS_MODELS
 
 _ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
 
@@ -102,6 +111,11 @@ def _read_value(table: dict, spec: KeySpec, location: str, problems: _Problems):
         if value not in choices:
             problems.add(where, f"expected one of {', '.join(map(str, choices))}, found "
                          f"{value!r}")
+            return None
+        return value
+    if spec.type == "boolean":
+        if not isinstance(value, bool):
+            problems.add(where, f"expected true or false, found {value!r}")
             return None
         return value
     if spec.type in ("number", "ratio", "integer"):
@@ -441,6 +455,7 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
         return Limits()
     _check_unknown(table, "systems[].limits", where, problems)
     spec = SECTIONS["systems[].limits"]
+    table, basis = _limits_and_basis(table, where, problems)
     values = {}
     for name, key in spec.items():
         value = _read_value(table, key, where, problems) if name in table else None
@@ -457,7 +472,44 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
                      "height")
     return Limits(values["displacement"], values["drift_ratio"], values["base_shear"],
                   values["total_accel"], values["ductility"],
-                  values["residual_displacement"], values["bearing_displacement"])
+                  values["residual_displacement"], values["bearing_displacement"],
+                  tuple((name, basis[name]) for name in spec if name in basis
+                        and values[name] is not None))
+
+
+#: Keys of a limit written as a table: ``displacement = { value = "50 mm", basis = "..." }``.
+LIMIT_TABLE_KEYS = ("value", "basis")
+
+
+def _limits_and_basis(table: dict, where: str, problems: _Problems) -> tuple[dict, dict]:
+    """
+    Split limits written as ``{ value = ..., basis = "..." }`` into their values (a
+    table of plain limits, as the rest of the reader expects) and their stated basis
+    (quantity -> text); every problem is named.
+    """
+    values, basis = {}, {}
+    for name, raw in table.items():
+        if not isinstance(raw, dict):
+            values[name] = raw
+            continue
+        for key in raw:
+            if key not in LIMIT_TABLE_KEYS:
+                problems.add(f"{where}.{name}.{key}", f"unknown key"
+                             f"{_did_you_mean(key, LIMIT_TABLE_KEYS)}")
+        if "value" not in raw:
+            problems.add(f"{where}.{name}.value", f"missing; a limit written as a table "
+                         f"needs its value (example: {name} = {{ value = ..., basis = "
+                         f"\"owner's specification\" }})")
+        else:
+            values[name] = raw["value"]
+        text = raw.get("basis")
+        if text is not None:
+            if not isinstance(text, str) or not text.strip():
+                problems.add(f"{where}.{name}.basis", f"expected non-empty text, found "
+                             f"{text!r}")
+            else:
+                basis[name] = text.strip()
+    return values, basis
 
 
 _COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits")
@@ -516,19 +568,140 @@ def _build(kind: str, values: dict, where: str, problems: _Problems):
         return None
 
 
-def _nonlinear_model(kind: str, values: dict, derived, where: str, problems: _Problems):
-    """The engine's model dict for a yielding or sliding system, or None (linear)."""
+def _hysteresis_keys(values: dict, table: dict, where: str, problems: _Problems):
+    """The checked hysteresis model name and parameters, or None on a problem."""
+    from sdofreport.core import hysteresis as hy
+
+    name = values.get("hysteresis") or "bilinear"
+    parameters = {}
+    for key, owners in HYSTERESIS_PARAMETER_KEYS.items():
+        if key in table and name not in owners:
+            allowed = " or ".join(repr(owner) for owner in owners)
+            problems.add(f"{where}.{key}", f"applies only to hysteresis = {allowed}; this "
+                         f"system's hysteresis is {name!r}")
+            return None
+        if key in values:
+            parameters[key] = values[key]
+    if "deterioration_exponent" in parameters and "deterioration_capacity" not in parameters:
+        problems.add(f"{where}.deterioration_exponent", "applies only with "
+                     "deterioration_capacity")
+        return None
+    if "deterioration_capacity" in parameters and not parameters["deterioration_capacity"] > 0:
+        problems.add(f"{where}.deterioration_capacity", "must be greater than 0 (omit it "
+                     f"for no deterioration), found {parameters['deterioration_capacity']!r}")
+        return None
+    for key, value in parameters.items():
+        try:
+            hy.hysteresis(name, 1.0, 1.0, **{key: value})
+        except ValueError as exc:
+            problems.add(f"{where}.{key}", str(exc).split(" [-]")[0] + f", found {value!r}")
+            return None
+    return name, parameters
+
+
+def _damper(table, where: str, problems: _Problems):
+    """The damper table as {"coefficient": C [N·(s/m)^α], "exponent": α}, or None."""
+    from sdofreport.core import hysteresis as hy
+
+    if not isinstance(table, dict):
+        problems.add(where, f"expected a table {{ coefficient = ..., exponent = ... }}, "
+                     f"found {table!r}")
+        return None
+    unknown = [key for key in table if key not in ("coefficient", "exponent")]
+    if unknown:
+        problems.add(f"{where}.{unknown[0]}", "unknown key; a damper reads coefficient and "
+                     "exponent")
+        return None
+    missing = [key for key in ("coefficient", "exponent") if key not in table]
+    if missing:
+        problems.add(f"{where}.{missing[0]}", "missing; a damper needs coefficient (C of "
+                     "F = C·|v|^α·sign(v)) and exponent (α)")
+        return None
+    alpha = table["exponent"]
+    if isinstance(alpha, bool) or not isinstance(alpha, (int, float)) or \
+            not 0.0 < float(alpha) <= 2.0:
+        problems.add(f"{where}.exponent", f"expected a number greater than 0 and at most "
+                     f"2, found {alpha!r}")
+        return None
+    try:
+        coefficient = parse_damper_coefficient(table["coefficient"], float(alpha))
+        hy.damper(coefficient, float(alpha))
+    except (QuantityError, ValueError) as exc:
+        problems.add(f"{where}.coefficient", str(exc))
+        return None
+    if not coefficient > 0.0:
+        problems.add(f"{where}.coefficient", f"must be greater than 0, found "
+                     f"{table['coefficient']!r}")
+        return None
+    return {"coefficient": coefficient, "exponent": float(alpha)}
+
+
+def _p_delta(kind: str, table: dict, values: dict, derived, where: str,
+             problems: _Problems):
+    """P-Δ of a system: None when off; else W, h, W/h, θ and the elastic period with
+    P-Δ, T/√(1−θ) (Chopra 2017 sec. 7.11: k_eff = k − W/h)."""
+    if kind not in ("lumped", "columns", "springs"):
+        return None
+    height = values.get("height")
+    complete = (height is not None and derived.mass_kg is not None
+                and derived.stiffness_n_m is not None)
+    wanted = values.get("p_delta")
+    if wanted is None:
+        wanted = complete
+    if not wanted:
+        if "gravity_load" in table:
+            problems.add(f"{where}.gravity_load", "applies only with P-Δ (p_delta = true)")
+        return None
+    if not complete:
+        problems.add(f"{where}.p_delta", "P-Δ needs the system's height, mass and "
+                     "stiffness (give height, and mass with stiffness or period)")
+        return None
+    weight = values.get("gravity_load", derived.mass_kg * G)
+    k = derived.stiffness_n_m
+    k_geo = weight / height
+    theta = k_geo / k
+    if k_geo >= k:
+        keys = "gravity_load, height" if "gravity_load" in table else "mass, height"
+        problems.add(where, f"the gravity load cannot be carried: W/h = {weight:.6g} N / "
+                     f"{height:.6g} m = {k_geo:.6g} N/m is not below the lateral stiffness "
+                     f"k = {k:.6g} N/m (stability coefficient θ = W/(k h) = {theta:.3g} >= "
+                     f"1); check {keys} and the stiffness, or set p_delta = false")
+        return None
+    return {"gravity_load_n": weight, "height_m": height, "gravity_stiffness_n_m": k_geo,
+            "stability_coefficient": theta,
+            "period_s": derived.period_s / math.sqrt(1.0 - theta),
+            "weight_given": "gravity_load" in table}
+
+
+def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damper,
+                     where: str, problems: _Problems):
+    """The engine's model dict for a yielding, sliding or damped system; None (linear)."""
+    from sdofreport.core.hysteresis import collapse_displacement
+
+    extras = {"damper": damper}
     if kind == "sliding-pendulum":
         return {"model": "sliding-pendulum", "weight_n": values["weight"],
                 "radius_m": values["radius"], "friction": values["friction"],
-                "slip_displacement_m": values.get("slip_displacement", 0.25e-3)}
+                "slip_displacement_m": values.get("slip_displacement", 0.25e-3), **extras}
+    k_geo = pdelta["gravity_stiffness_n_m"] if pdelta else 0.0
+    extras.update({"gravity_stiffness_n_m": k_geo,
+                   "instability_limit_m": pdelta["height_m"] if pdelta else None})
     strength = values.get("yield_strength")
     displacement = values.get("yield_displacement")
     if strength is None and displacement is None:
-        if "post_yield_ratio" in values and values.get("_post_given"):
-            problems.add(f"{where}.post_yield_ratio", "applies only with yield_strength "
-                         "or yield_displacement")
-        return None
+        for key in ("post_yield_ratio", "hysteresis", *HYSTERESIS_PARAMETER_KEYS):
+            if key in table:
+                problems.add(f"{where}.{key}", "applies only with yield_strength or "
+                             "yield_displacement")
+                return None
+        if damper is None:
+            return None
+        if derived.stiffness_n_m is None or derived.mass_kg is None:
+            problems.add(f"{where}.damper", "a damper needs the system's mass and "
+                         "stiffness (give mass with stiffness or period)")
+            return None
+        return {"model": "elastic", "stiffness_n_m": derived.stiffness_n_m,
+                "mass_kg": derived.mass_kg, **extras}
     if strength is not None and displacement is not None:
         problems.add(where, "give yield_strength or yield_displacement, not both")
         return None
@@ -538,9 +711,17 @@ def _nonlinear_model(kind: str, values: dict, derived, where: str, problems: _Pr
         return None
     if strength is None:
         strength = derived.stiffness_n_m * displacement
-    return {"model": "bilinear", "stiffness_n_m": derived.stiffness_n_m,
-            "yield_strength_n": strength, "post_yield_ratio": values.get(
-                "post_yield_ratio", 0.0), "mass_kg": derived.mass_kg}
+    chosen = _hysteresis_keys(values, table, where, problems)
+    if chosen is None:
+        return None
+    name, parameters = chosen
+    alpha = values.get("post_yield_ratio", 0.0)
+    collapse = collapse_displacement(derived.stiffness_n_m, strength, alpha, k_geo)
+    return {"model": name, "stiffness_n_m": derived.stiffness_n_m,
+            "yield_strength_n": strength, "post_yield_ratio": alpha,
+            "mass_kg": derived.mass_kg, "parameters": parameters,
+            "collapse_displacement_m": None if math.isinf(collapse) else collapse,
+            **extras}
 
 
 def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
@@ -567,6 +748,13 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
         if key == "network":
             values[key] = _network_to_si(table[key], f"{where}.network", problems)
             continue
+        if key == "damper":
+            continue  # read by _damper below
+        if key in HYSTERESIS_PARAMETER_KEYS:
+            value = _read_value(table, spec[key], where, problems)
+            if value is not None:
+                values[key] = value
+            continue
         value = _read_value(table, spec[key], where, problems)
         if value is None:
             continue
@@ -590,14 +778,22 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
     derived = _build(kind, values, where, problems)
     if derived is None:
         return None
-    model = _nonlinear_model(kind, values, derived, where, problems)
+    damper = _damper(table["damper"], f"{where}.damper", problems) \
+        if "damper" in table else None
+    pdelta = _p_delta(kind, table, values, derived, where, problems)
+    if len(problems.items) > before:
+        return None
+    model = _nonlinear_model(kind, values, table, derived, pdelta, damper, where, problems)
+    if model is None and pdelta is not None:
+        model = {"model": "linear", "period_s": pdelta["period_s"]}
     height = values.get("height")
     mass = derived.mass_kg
     if kind in ("static-deflection", "sliding-pendulum"):
         mass = values["weight"] / G
     limits = _read_limits(table.get("limits", {}), f"{where}.limits",
                           mass if mass is not None else None, height, problems)
-    if limits.ductility is not None and (model is None or model["model"] != "bilinear"):
+    if limits.ductility is not None and (model is None or
+                                         model["model"] not in HYSTERESIS_MODELS):
         problems.add(f"{where}.limits.ductility", "a ductility limit needs a yielding "
                      "system (yield_strength or yield_displacement)")
     if limits.bearing_displacement_m is not None and kind != "sliding-pendulum":
@@ -611,7 +807,7 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
         model = {"model": "linear", "participation": gamma}
     inputs = {k: v for k, v in values.items() if not k.startswith("_")}
     return SystemSpec(system_id, name, damping, derived.period_s, mass, stiffness, height,
-                      limits, tuple(derived.derivation), kind, model, inputs)
+                      limits, tuple(derived.derivation), kind, model, inputs, pdelta)
 
 
 def _read_systems(items, problems: _Problems) -> list[SystemSpec]:
@@ -827,6 +1023,43 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
     return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha, steps)
 
 
+def _read_fragility(table, systems, problems: _Problems) -> FragilitySpec | None:
+    where = "fragility"
+    table = _section(table, where, problems)
+    if table is None:
+        return None
+    spec = SECTIONS["fragility"]
+    levels = None
+    if "levels" not in table:
+        problems.add(f"{where}.levels", f"missing; expected a list of at least 2 levels "
+                     f"in g (example: levels = {spec['levels'].example})")
+    else:
+        levels = _number_list(table["levels"], f"{where}.levels", 0.0, problems,
+                              strict=True)
+        if levels is not None and not 2 <= len(levels) <= 50:
+            problems.add(f"{where}.levels", f"expected 2 to 50 different levels, found "
+                         f"{len(levels)}")
+            levels = None
+    measure = _read_value(table, spec["measure"], where, problems)
+    design = _read_value(table, spec["design_level"], where, problems)
+    _positive(design, f"{where}.design_level", "the design level", problems, "g")
+    known = [s.id for s in systems]
+    chosen = table.get("systems", [s.id for s in systems if s.limits.items()])
+    if not isinstance(chosen, list) or not chosen or \
+            not all(isinstance(i, str) for i in chosen):
+        problems.add(f"{where}.systems", f"expected a list of system ids, found {chosen!r}")
+        chosen = None
+    else:
+        for name in chosen:
+            if name not in known:
+                problems.add(f"{where}.systems", f"no system has id {name!r}; the ids are "
+                             f"{', '.join(known)}")
+                chosen = None
+    if levels is None or measure is None or chosen is None:
+        return None
+    return FragilitySpec(levels, measure, tuple(dict.fromkeys(chosen)), design)
+
+
 def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError, text_in: str) -> str:
     text = str(exc)
     match = re.search(r"\(at line (\d+), column (\d+)\)", text)
@@ -909,6 +1142,7 @@ def load_project(path) -> Project:
     scaling = _read_scaling(document.get("scaling"), design, "design_spectrum" in document,
                             problems)
     inelastic = _read_inelastic(document.get("inelastic_spectra"), problems)
+    fragility = _read_fragility(document.get("fragility"), systems, problems)
     synthetic = _read_synthetic(synthetic_table, design if design_early is not None else
                                 None, problems)
     if synthetic is not None:
@@ -919,5 +1153,8 @@ def load_project(path) -> Project:
     save_memo()  # unit strings pint converted, so the next read need not import it
     if problems.items:
         raise ProjectError(format_problems(shown, problems.items))
+    # Records in natural order of their ids (P1, P2, ... P10), wherever they are listed.
+    records = sorted(records, key=lambda spec: natural_key(spec.id))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
-                   tuple(records), tuple(systems), design, scaling, inelastic, synthetic)
+                   tuple(records), tuple(systems), design, scaling, inelastic, synthetic,
+                   fragility)

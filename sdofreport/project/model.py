@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -19,6 +21,16 @@ class ProcessingSettings:
         return {"baseline_order": self.baseline_order,
                 "bandpass_hz": list(self.bandpass_hz) if self.bandpass_hz else None,
                 "filter_order": self.filter_order, "taper_s": self.taper_s}
+
+
+def natural_key(identifier: str) -> tuple:
+    """
+    Sort key that orders ids as people read them: ``P2`` before ``P10``, ``hcs9`` before
+    ``hcs10`` (digit runs compared as numbers, the rest without regard to case).
+    """
+    parts = re.split(r"(\d+)", str(identifier))
+    return tuple(int(part) if index % 2 else part.casefold()
+                 for index, part in enumerate(parts)) + (str(identifier),)
 
 
 @dataclass(frozen=True)
@@ -120,6 +132,16 @@ class ScalingSpec:
 
 
 @dataclass(frozen=True)
+class FragilitySpec:
+    """Optional multiple-stripe fragility: levels [g] of a measure, systems to run."""
+
+    levels_g: tuple[float, ...]
+    measure: str = "sa"
+    systems: tuple[str, ...] = ()
+    design_level_g: float | None = None
+
+
+@dataclass(frozen=True)
 class InelasticSpectraSpec:
     """Optional constant-ductility and constant-strength spectra of every record."""
 
@@ -143,6 +165,13 @@ class Limits:
     ductility: float | None = None
     residual_displacement_m: float | None = None
     bearing_displacement_m: float | None = None
+    #: (quantity, basis) for limits that state where they come from (a clause, the
+    #: owner's specification), in the order of :meth:`items`.
+    basis: tuple[tuple[str, str], ...] = ()
+
+    def basis_of(self, quantity: str) -> str | None:
+        """The stated basis of the limit on ``quantity``, or None."""
+        return dict(self.basis).get(quantity)
 
     def items(self) -> list[tuple[str, float]]:
         """(quantity, limit) pairs that are set, in a fixed order."""
@@ -170,6 +199,9 @@ class SystemSpec:
     kind: str = "lumped"
     model: dict | None = None  # nonlinear model parameters for the engine (SI)
     inputs: dict = field(default_factory=dict)  # the builder's inputs (SI), for display
+    #: P-Δ when on: gravity_load_n, height_m, gravity_stiffness_n_m, stability_coefficient
+    #: θ = W/(k h), period_s (elastic, with P-Δ: T/√(1−θ)), weight_given
+    p_delta: dict | None = None
 
     @property
     def frequency_hz(self) -> float:
@@ -177,7 +209,8 @@ class SystemSpec:
 
     @property
     def model_name(self) -> str:
-        """``linear``, ``bilinear`` or ``sliding-pendulum``."""
+        """``linear``, ``elastic`` (with a damper), a hysteresis model name or
+        ``sliding-pendulum``."""
         return (self.model or {}).get("model", "linear")
 
 
@@ -194,6 +227,7 @@ class Project:
     scaling: ScalingSpec = field(default_factory=ScalingSpec)
     inelastic: InelasticSpectraSpec | None = None
     synthetic: SyntheticSpec | None = None
+    fragility: FragilitySpec | None = None
 
     @property
     def root(self) -> Path:

@@ -253,6 +253,51 @@ def _convert(text: str, value: str, dimension: str) -> float:
     return number
 
 
+def parse_damper_coefficient(value: object, exponent: float) -> float:
+    """
+    A damper coefficient C of ``F = C |v|^α sign(v)`` in SI, [N·(s/m)^α].
+
+    Parameters
+    ----------
+    value : int, float or str
+        A number already in N·(s/m)^α, or text with units such as ``"120 kN*s/m"`` or
+        ``"40 kN*(s/m)**0.5"``. [-]
+    exponent : float
+        The velocity exponent α. [-]
+
+    Returns
+    -------
+    float
+        C in N·(s/m)^α.
+
+    Raises
+    ------
+    QuantityError
+        When the text cannot be read or has another dimension than force·(time/length)^α.
+    """
+    unit = f"N*(s/m)**{exponent:g}"
+    if isinstance(value, bool) or not isinstance(value, (int, float, str)):
+        raise QuantityError(f"expected a damper coefficient (number in {unit} or text with "
+                            f"units), found {value!r}")
+    if isinstance(value, (int, float)):
+        number = float(value)
+    else:
+        try:
+            number = float(value.strip())
+        except ValueError:
+            ureg = _registry()
+            try:
+                quantity = ureg.Quantity(value.strip())
+                number = float(quantity.to(unit).magnitude)
+            except Exception:
+                raise QuantityError(f"expected a damper coefficient in units of force × "
+                                    f"(time/length)^{exponent:g}, such as '{unit}', found "
+                                    f"{value!r}") from None
+    if not math.isfinite(number):
+        raise QuantityError(f"expected a finite damper coefficient, found {value!r}")
+    return number
+
+
 _EXAMPLES = {
     "length": "300 mm",
     "mass": "120 t",

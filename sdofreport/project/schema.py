@@ -16,6 +16,7 @@ from sdofreport.core.design_spectra import (
     EN1998_1_GROUND_TYPES,
     EN1998_1_SPECTRUM_TYPES,
 )
+from sdofreport.core.hysteresis import HYSTERESIS_MODELS
 from sdofreport.core.spectra import SPECTRUM_METHODS
 from sdofreport.core.spectra_current import (
     ASCE7_22_SITE_CLASSES,
@@ -45,6 +46,9 @@ PROVENANCE_KEYS = ("event", "station", "magnitude", "distance_km", "vs30_m_s", "
 #: Plausible ranges of the numeric provenance keys: (lowest, highest, inclusive low).
 PROVENANCE_RANGES = {"magnitude": (0.0, 10.0, True), "distance_km": (0.0, 20000.0, True),
                      "vs30_m_s": (0.0, 10000.0, False)}
+
+#: Intensity measures of the fragility stripes (sdofreport.jobs.stripe_job).
+FRAGILITY_MEASURES = ("sa", "pga")
 
 #: Components of a horizontal pair.
 COMPONENTS = ("H1", "H2")
@@ -77,17 +81,31 @@ OPTIONAL_DESIGN_KEYS: dict[str, tuple[str, ...]] = {
 SYSTEM_KINDS = ("lumped", "columns", "springs", "static-deflection", "sliding-pendulum",
                 "hanging")
 
+#: Keys of a yielding system with P-Δ and a supplemental damper (lumped, columns, springs).
+_HYSTERETIC_KEYS = ("yield_strength", "yield_displacement", "post_yield_ratio",
+                    "hysteresis", "unloading_exponent", "bouc_wen_exponent",
+                    "bouc_wen_beta", "dissipation_ratio", "deterioration_capacity",
+                    "deterioration_exponent", "p_delta", "gravity_load", "damper")
+
+#: Hysteresis-model parameters and the models each applies to.
+HYSTERESIS_PARAMETER_KEYS: dict[str, tuple[str, ...]] = {
+    "unloading_exponent": ("takeda",),
+    "bouc_wen_exponent": ("bouc-wen",), "bouc_wen_beta": ("bouc-wen",),
+    "dissipation_ratio": ("flag-shaped",),
+    "deterioration_capacity": ("clough", "takeda"),
+    "deterioration_exponent": ("clough", "takeda"),
+}
+
 #: Keys each system kind reads besides id, name, kind, damping, height and limits.
 SYSTEM_KIND_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     # kind: (required, optional)
-    "lumped": ((), ("mass", "stiffness", "period", "yield_strength", "yield_displacement",
-                    "post_yield_ratio")),
+    "lumped": ((), ("mass", "stiffness", "period") + _HYSTERETIC_KEYS),
     "columns": (("count", "elastic_modulus", "second_moment", "height", "end_condition",
-                 "mass"), ("yield_strength", "yield_displacement", "post_yield_ratio")),
-    "springs": (("network", "mass"), ("yield_strength", "yield_displacement",
-                                      "post_yield_ratio")),
+                 "mass"), _HYSTERETIC_KEYS),
+    "springs": (("network", "mass"), _HYSTERETIC_KEYS),
     "static-deflection": (("weight", "deflection"), ()),
-    "sliding-pendulum": (("weight", "radius", "friction"), ("slip_displacement",)),
+    "sliding-pendulum": (("weight", "radius", "friction"), ("slip_displacement",
+                                                            "damper")),
     "hanging": (("mass", "pivot_inertia", "pivot_to_centre"), ()),
 }
 
@@ -101,6 +119,7 @@ class KeySpec:
 
     name: str
     type: str  # text | path | number | integer | ratio | quantity | choice | list | table
+    #            | boolean
     description: str
     required: bool = False
     default: object = None
@@ -301,6 +320,22 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "looked for; the elastic force matches the exact elastic spectrum to "
                 "round-off at any setting.", default=8.0, example="8"),
     ),
+    "fragility": _keys(
+        KeySpec("levels", "list", "Intensity levels of the multiple-stripe analysis, in g "
+                "(at least 2; sorted): each record of the scaled suite is scaled again so "
+                "its measure equals each level, and every listed system is run at each "
+                "level (Baker 2015, Earthquake Spectra 31(1)).", required=True,
+                example="[0.1, 0.2, 0.3, 0.45, 0.6]"),
+        KeySpec("measure", "choice", "Intensity measure: sa, the "
+                "pseudo-spectral acceleration at the system's own period and damping; "
+                "pga, the peak ground acceleration.", default="sa",
+                choices=FRAGILITY_MEASURES, example='"sa"'),
+        KeySpec("systems", "list", "Ids of the systems to run (default: every system "
+                "with limits).", example='["pier"]'),
+        KeySpec("design_level", "number", "Level at which the probability of exceeding "
+                "each limit is stated, in g (default: the target spectrum at the "
+                "system's period, or at T = 0 for pga).", example="0.42"),
+    ),
     "records[]": _keys(
         KeySpec("id", "text", "Unique short name of the record.", required=True,
                 example='"rec01"'),
@@ -388,12 +423,44 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 dimension="inertia", example='"2400 kg*m**2"'),
         KeySpec("pivot_to_centre", "quantity", "hanging: distance from the pivot to the "
                 "centre of mass.", dimension="length", example='"1.5 m"'),
-        KeySpec("yield_strength", "quantity", "Bilinear hysteresis: yield strength F_y "
+        KeySpec("yield_strength", "quantity", "Yielding system: yield strength F_y "
                 "(or give yield_displacement).", dimension="force", example='"300 kN"'),
-        KeySpec("yield_displacement", "quantity", "Bilinear hysteresis: yield "
+        KeySpec("yield_displacement", "quantity", "Yielding system: yield "
                 "displacement u_y.", dimension="length", example='"25 mm"'),
-        KeySpec("post_yield_ratio", "ratio", "Bilinear hysteresis: post-yield stiffness "
+        KeySpec("post_yield_ratio", "ratio", "Yielding system: post-yield stiffness "
                 "ratio α (0 = elastic-perfectly plastic).", default=0.0, example="0.03"),
+        KeySpec("hysteresis", "choice", "Hysteresis model of a yielding system: bilinear "
+                "(kinematic hardening), clough (peak-oriented stiffness degradation, Clough "
+                "& Johnston 1966), takeda (Takeda, Sozen & Nielsen 1970, bilinear "
+                "backbone), bouc-wen (smooth, Wen 1976) or flag-shaped (self-centring, "
+                "Christopoulos et al. 2002). All share k, F_y and α.", default="bilinear",
+                choices=HYSTERESIS_MODELS, example='"takeda"'),
+        KeySpec("unloading_exponent", "number", "takeda: exponent β of the unloading "
+                "stiffness k (u_y/u_max)^β, 0 to 1 (0.4 in Takeda et al. 1970, from "
+                "memory).", default=0.4, example="0.4"),
+        KeySpec("bouc_wen_exponent", "number", "bouc-wen: smoothness exponent n, 1 to 200 "
+                "(large n approaches bilinear).", default=2.0, example="2"),
+        KeySpec("bouc_wen_beta", "number", "bouc-wen: shape parameter β, 0.5 to 1, with A "
+                "= 1 and γ = 1 − β (β = γ = 0.5 is usual).", default=0.5, example="0.5"),
+        KeySpec("dissipation_ratio", "number", "flag-shaped: energy-dissipation ratio β_E, "
+                "0 (nonlinear elastic) to 1 (unloading branch through the origin).",
+                default=1.0, example="0.8"),
+        KeySpec("deterioration_capacity", "number", "clough, takeda: cyclic deterioration "
+                "(Ibarra, Medina & Krawinkler 2005) with the hysteretic energy capacity "
+                "E_t = λ·F_y·u_y; λ > 0 (omit for none). Strength, hardening and unloading "
+                "stiffness scale by 1 − β_i at each zero-force crossing.", example="80"),
+        KeySpec("deterioration_exponent", "number", "clough, takeda: exponent c of "
+                "β_i = (E_i/(E_t − ΣE_j))^c, above 0 and at most 10.", default=1.0,
+                example="1.0"),
+        KeySpec("p_delta", "boolean", "P-Δ: the gravity load W on the height h adds the "
+                "stiffness −W/h to every branch. Default: on when the system has a height, "
+                "a mass and a stiffness (lumped, columns, springs).", example="true"),
+        KeySpec("gravity_load", "quantity", "P-Δ: gravity load W carried on the height "
+                "(default W = m·g).", dimension="force", example='"650 kN"'),
+        KeySpec("damper", "table", "Supplemental viscous damper F = C·|v|^α·sign(v): "
+                "coefficient C (a number in N·(s/m)^α or text with units, e.g. "
+                "\"120 kN*s/m\") and exponent α (0 < α <= 2; 1 is linear).",
+                example='{ coefficient = "40 kN*(s/m)**0.5", exponent = 0.5 }'),
         KeySpec("limits", "table", "Limits checked against the demands.",
                 example="{ displacement = \"40 mm\" }"),
     ),
@@ -417,4 +484,4 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
 
 #: Top-level tables and arrays of tables of the project file.
 TOP_LEVEL = ("project", "analysis", "processing", "design_spectrum", "scaling",
-             "synthetic_records", "inelastic_spectra", "records", "systems")
+             "synthetic_records", "inelastic_spectra", "fragility", "records", "systems")

@@ -82,6 +82,12 @@ _NPTS_VALUE = re.compile(rf"\bNPTS\b\s*[=:,]?\s*({_NUM})(?![\w.])", re.IGNORECAS
 _DT_VALUE = re.compile(
     rf"\bDT\b\s*[=:,]?\s*({_NUM})(?![\w.])\s*([A-Za-z]+)?", re.IGNORECASE | re.ASCII
 )
+#: The count-and-step line of the files sdofreport writes (``write_headed``):
+#: ``samples: 5000, step: 0.005 s``.
+_OWN_COUNT_STEP = re.compile(
+    rf"^\s*samples:\s*({_NUM})\s*[,;]?\s*step:\s*({_NUM})\s*([A-Za-z]+)?\s*$",
+    re.IGNORECASE | re.ASCII,
+)
 _VALUES_FIRST = re.compile(
     rf"^\s*({_NUM})[\s,;]+({_NUM})[\s,;]+(NPTS|DT)[\s,;]+(NPTS|DT)\b",
     re.IGNORECASE | re.ASCII,
@@ -480,6 +486,9 @@ def _line_of_value(spans, index: int) -> int | None:
 
 def _header_values(text: str):
     """(npts token, dt token, dt unit word or None) stated on one header line, or None."""
+    own = _OWN_COUNT_STEP.match(text)
+    if own:
+        return own.group(1), own.group(2), own.group(3)
     npts, dt = _NPTS_VALUE.search(text), _DT_VALUE.search(text)
     if npts and dt:
         return npts.group(1), dt.group(1), dt.group(2)
@@ -498,16 +507,19 @@ def _may_state_npts_and_dt(text: str) -> bool:
     ``bytes.lower`` does; the substring tests skip the slower searches for most files.
     """
     folded = text.encode("utf-8", "surrogatepass").lower()
+    if b"samples:" in folded and b"step:" in folded:
+        return True  # perhaps sdofreport's own count-and-step line
     return (b"npts" in folded and b"dt" in folded
             and _HAS_NPTS.search(text) is not None and _HAS_DT.search(text) is not None)
 
 
 def _find_header_line(lines):
-    """Index into ``lines`` of the first line naming both NPTS and DT, or None."""
+    """Index into ``lines`` of the first line naming both NPTS and DT (or stating
+    ``samples: N, step: DT`` as sdofreport writes it), or None."""
     if not _may_state_npts_and_dt("\n".join(raw for _, raw in lines)):
         return None
     for index, (_, raw) in enumerate(lines):
-        if _HAS_NPTS.search(raw) and _HAS_DT.search(raw):
+        if _OWN_COUNT_STEP.match(raw) or (_HAS_NPTS.search(raw) and _HAS_DT.search(raw)):
             return index
     return None
 

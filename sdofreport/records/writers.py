@@ -33,7 +33,9 @@ TWO_COLUMN_UNITS_LINE = "# acceleration units: {units}"
 #: Header row of a two-column file.
 TWO_COLUMN_HEADER = "time_s,accel_{units}"
 #: Values per line in a headed file.
-HEADED_VALUES_PER_LINE = 5
+HEADED_VALUES_PER_LINE = 8
+#: First line of every headed file sdofreport writes (our own layout).
+HEADED_FIRST_LINE = "sdofreport record: equally spaced ground acceleration"
 #: Title lines used to fill a headed file's title block up to two lines.
 HEADED_DEFAULT_TITLES: tuple[str, ...] = ("untitled record", "written by sdofreport")
 
@@ -176,7 +178,7 @@ def write_two_column(
 
 def headed_header_line(npts: int, time_step_s: float) -> str:
     """
-    The count-and-step line of a headed file.
+    The count-and-step line of a headed file, in sdofreport's own wording.
 
     Parameters
     ----------
@@ -188,14 +190,19 @@ def headed_header_line(npts: int, time_step_s: float) -> str:
     Returns
     -------
     str
-        For example ``"ACCELERATION IN G, NPTS=  4000, DT= 0.01000 SEC"``.
+        For example ``"samples: 4000, step: 0.01 s"``.
     """
-    return f"ACCELERATION IN G, NPTS={int(npts):6d}, DT={float(time_step_s):8.5f} SEC"
+    return f"samples: {int(npts)}, step: {float(time_step_s):.10g} s"
 
 
 def write_headed(path, time_step_s, acceleration_g, *, title_lines: Sequence[str] = ()) -> None:
     """
     Write an equally spaced record in sdofreport's headed text format (values in g).
+
+    The layout is our own: a first line naming the file, ``title:`` lines, the unit,
+    the line ``samples: N, step: DT s``, then the values, eight per line separated by
+    single spaces. :func:`sdofreport.records.read_record` reads it as ``headed``, as
+    it reads other files whose free-text header states a point count and a step.
 
     Parameters
     ----------
@@ -208,8 +215,9 @@ def write_headed(path, time_step_s, acceleration_g, *, title_lines: Sequence[str
         Finite acceleration samples in units of standard gravity; magnitudes below
         1e-99 are written as 0. [g]
     title_lines : sequence of str, optional
-        Free-text title lines (ASCII, no line breaks, not containing ``"NPTS="``); the
-        block is filled up to two lines with :data:`HEADED_DEFAULT_TITLES`. [-]
+        Free-text title lines (ASCII, no line breaks, not containing ``"NPTS="`` and
+        not starting ``samples:``); the block is filled up to two lines with
+        :data:`HEADED_DEFAULT_TITLES`. [-]
 
     Raises
     ------
@@ -230,15 +238,16 @@ def write_headed(path, time_step_s, acceleration_g, *, title_lines: Sequence[str
     acc = _check_values(acceleration_g, "acceleration_g", "g")
     titles = _check_text_lines(title_lines, "title_lines")
     for i, line in enumerate(titles):
-        if "NPTS=" in line.upper():
-            raise ValueError(f"title_lines[{i}] must not contain 'NPTS='; got {line!r}")
+        if "NPTS=" in line.upper() or line.strip().lower().startswith("samples:"):
+            raise ValueError(f"title_lines[{i}] must not contain 'NPTS=' or start with "
+                             f"'samples:'; got {line!r}")
     titles = titles + list(HEADED_DEFAULT_TITLES[len(titles):])
 
-    lines = titles + [headed_header_line(acc.size, dt)]
-    # A three-digit exponent would fill all 15 columns and fuse neighbouring values, so
-    # magnitudes below 1e-99 g (far below any instrument's resolution) are written as 0.
-    values = np.where(np.abs(acc) < 1e-99, 0.0, acc).tolist()
+    lines = ([HEADED_FIRST_LINE] + [f"title: {line}" for line in titles]
+             + ["unit: g", headed_header_line(acc.size, dt)])
+    # Eight significant digits, far finer than any instrument's resolution.
+    values = acc.tolist()
     step = HEADED_VALUES_PER_LINE
     for start in range(0, len(values), step):
-        lines.append("".join(f"{v:15.7E}" for v in values[start:start + step]))
+        lines.append(" ".join(f"{v:.7e}" for v in values[start:start + step]))
     _write_atomic(path, "\n".join(lines) + "\n")

@@ -13,9 +13,11 @@ from importlib import metadata
 import numpy as np
 
 from sdofreport import __version__, codes
+from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.processing import pad_length_s
 from sdofreport.core.units import G
-from sdofreport.engine import VERDICT_EXCEEDS, Results
+from sdofreport.engine import VERDICT_EXCEEDS, VERDICT_UNSTABLE, Results
+from sdofreport.project.schema import HYSTERESIS_PARAMETER_KEYS
 from sdofreport.site import design_formulas, provenance
 from sdofreport.site.display import CHECK_LABELS, Display, number
 from sdofreport.suite import usable_period_max_s
@@ -168,10 +170,61 @@ class SiteContext:
                     f"| over the records)" if c.absolute else ""),
                 "demand": self.display.check_value(c.quantity, c.demand),
                 "limit": self.display.check_value(c.quantity, c.limit),
+                "basis": system.limits.basis_of(c.quantity) or "not stated",
                 "ratio": f"{c.ratio:.3f}", "verdict": c.verdict,
-                "css": "exceeds" if c.verdict == VERDICT_EXCEEDS else "within",
+                "css": "exceeds" if c.verdict in (VERDICT_EXCEEDS, VERDICT_UNSTABLE)
+                else "within",
             })
         return rows
+
+    def _statistics_rows(self, checks) -> list[dict]:
+        """Demand statistics of each check (system page); ``governing`` marks the one
+        the verdict reads (the edition's statistic)."""
+        rows = []
+        for c in checks:
+            cells = []
+            for key in STATISTIC_KEYS:
+                value = c.statistics.get(key)
+                text = "–" if value is None else (
+                    number(value) if key == "beta" else
+                    self.display.check_value(c.quantity, value))
+                cells.append({"text": text, "governing": key == c.statistic})
+            rows.append({"label": CHECK_LABELS[c.quantity], "cells": cells})
+        return rows
+
+    def _fragility_bits(self, system) -> dict | None:
+        """The fragility section of a system page (None when the system has none)."""
+        found = [f for f in self.results.fragility if f.system_id == system.id]
+        if not found:
+            return None
+        measure = found[0].measure
+        symbol = (f"Sa(T = {number(system.period_s)} s, ζ = {100 * system.damping:.3g} %)"
+                  if measure == "sa" else "PGA")
+        design = found[0].design_level_g
+        rows, curves = [], []
+        for f in found:
+            fit, label = f.fit, CHECK_LABELS[f.quantity]
+            rows.append({
+                "label": label, "status": fit.status,
+                "median": "–" if fit.median is None else f"{number(fit.median)} g",
+                "beta": "–" if fit.beta is None else number(fit.beta),
+                "probability": "–" if f.design_probability is None else
+                f"{100 * f.design_probability:.1f} %",
+                "counts": ", ".join(f"{z}/{n}" for z, n in zip(fit.exceeding, fit.motions))})
+            curves.append({"label": label, "levels": list(fit.levels),
+                           "fractions": [z / n for z, n in zip(fit.exceeding, fit.motions)],
+                           "median": fit.median if fit.beta else None, "beta": fit.beta})
+        figure = self._figure(f"figures/system-{system.id}-fragility.svg",
+                              "fragility_figure", curves=curves, xlabel=f"{symbol} [g]",
+                              design_level=design)
+        return {"symbol": symbol, "rows": rows, "figure": figure,
+                "levels": ", ".join(f"{x:g}" for x in found[0].fit.levels),
+                "design": None if design is None else f"{number(design)} g",
+                "design_source": "as set in [fragility] design_level"
+                if self.project.fragility.design_level_g is not None else
+                f"the target spectrum, {_design_label(self.project.design_spectrum)}, at "
+                + (f"T = {number(system.period_s)} s" if measure == "sa" else "T = 0"),
+                "records": found[0].fit.motions[0]}
 
     def _statistic_bits(self) -> dict:
         return {"statistic": self.results.statistic,
@@ -199,7 +252,7 @@ class SiteContext:
         status = suite_status(self.results.scaling)
         results = self.results
         checks = sorted(results.checks, key=lambda c: -c.ratio)
-        exceeding = sum(c.verdict == VERDICT_EXCEEDS for c in checks)
+        exceeding = sum(c.verdict in (VERDICT_EXCEEDS, VERDICT_UNSTABLE) for c in checks)
         if not checks:
             summary_text = "No limits are checked."
         elif exceeding:
@@ -542,25 +595,16 @@ class SiteContext:
             {"name": "Circular frequency ω", "value":
              f"{number(2 * np.pi / system.period_s)} rad/s", "basis": "ω = 2π/T"},
             {"name": "Damping ratio ζ", "value": f"{100 * system.damping:.3g} %",
-             "basis": "as given (fraction of critical)"},
+             "basis": "as given (fraction of critical" + (
+                 "; with P-Δ, of the stiffness k − W/h)" if system.p_delta else ")")},
         ]
         if system.height_m is not None:
             rows.append({"name": "Height h", "value": d.show(system.height_m, "length"),
                          "basis": "as given; drift ratio = displacement / h"})
         model = system.model or {}
-        if system.model_name == "bilinear":
-            fy = model["yield_strength_n"]
-            rows += [
-                {"name": "Yield strength F_y", "value": d.show(fy, "force"),
-                 "basis": "as given" if "yield_strength" in system.inputs else
-                 "F_y = k u_y"},
-                {"name": "Yield displacement u_y", "value":
-                 d.show(fy / model["stiffness_n_m"], "length"), "basis": "u_y = F_y / k"},
-                {"name": "Post-yield stiffness ratio α",
-                 "value": number(model["post_yield_ratio"]),
-                 "basis": "bilinear, kinematic hardening (α = 0: elastic-perfectly "
-                          "plastic)"}]
-        elif system.model_name == "sliding-pendulum":
+        if "yield_strength_n" in model:
+            rows += _hysteresis_rows(system, model, d)
+        if system.model_name == "sliding-pendulum":
             rows.append({"name": "Friction regularisation", "value":
                          d.show(model["slip_displacement_m"], "length"),
                          "basis": "elastic displacement before sliding (common practice, "
@@ -569,6 +613,7 @@ class SiteContext:
             rows.append({"name": "Participation Γ", "value": number(model["participation"]),
                          "basis": "Γ = m d²/I: the centre of mass obeys ü + 2ζωu̇ + ω²u "
                                   "= −Γ üg (linearised compound pendulum)"})
+        rows += _p_delta_rows(system, d) + _damper_rows(model)
         return rows
 
     def system_page(self, system) -> Page:
@@ -590,6 +635,11 @@ class SiteContext:
                             "residual": d.show(residual, "length"),
                             "residual_abs": d.show(abs(residual), "length")
                             if residual is not None else "–"})
+                if response.unstable:
+                    row["unstable"] = (f"unstable: the displacement passed "
+                                       f"{d.show(response.instability_limit_m, 'length')} "
+                                       f"at {number(float(response.time_s[-1]))} s; the "
+                                       f"run stopped there")
             peaks.append(row)
             panels = [
                 ("Relative displacement", d.convert(1.0, "length") * response.displacement_m,
@@ -647,7 +697,8 @@ class SiteContext:
         figure = self._figure(f"figures/system-{system.id}-spectra.svg", "spectra_figure",
                               periods_s=periods, curves=spectrum_curves,
                               ylabel=f"PSA at ζ = {100 * damping[z_index]:g} % [g]",
-                              highlight_periods=[system.period_s],
+                              highlight_periods=[system.period_s] + (
+                                  [system.p_delta["period_s"]] if system.p_delta else []),
                               design=self._design(periods))
         context = {**self.common("../", f"System {system.id}", "system", system.id),
                    **self._statistic_bits(),
@@ -658,6 +709,9 @@ class SiteContext:
                               "derivation": list(system.derivation)},
                    "properties": self._properties(system),
                    "checks": self._check_rows(checks), "nonlinear": nonlinear,
+                   "demand_statistics": self._statistics_rows(checks),
+                   "fragility": self._fragility_bits(system),
+                   "mechanics_notes": _mechanics_cautions(system, responses, d),
                    "peaks": peaks, "histories": histories, "energies": energies,
                    "energy_flag": f"{100 * ENERGY_IMBALANCE_FLAG:g} %",
                    "figures": {"spectrum": figure}}
@@ -695,10 +749,20 @@ _KIND_TEXT = {
     "hanging": "suspended item, compound pendulum",
 }
 
+_SOLVER_TEXT = "Newmark average acceleration with Newton–Raphson iteration, Chopra §5.7"
+
 _MODEL_TEXT = {
     "linear": "linear elastic",
-    "bilinear": "bilinear hysteresis with kinematic hardening (Newmark average "
-                "acceleration with Newton–Raphson iteration, Chopra §5.7)",
+    "elastic": f"linear spring with a supplemental nonlinear viscous damper ({_SOLVER_TEXT})",
+    "bilinear": f"bilinear hysteresis with kinematic hardening ({_SOLVER_TEXT})",
+    "clough": "peak-oriented stiffness degradation, Clough & Johnston (1966): unloading at "
+              f"k, reloading towards the largest earlier excursion ({_SOLVER_TEXT})",
+    "takeda": "Takeda, Sozen & Nielsen (1970) on a bilinear backbone: unloading stiffness "
+              f"k·(u_y/u_max)^β, peak-oriented reloading ({_SOLVER_TEXT})",
+    "bouc-wen": "smooth Bouc–Wen hysteresis, Wen (1976): F = αku + (1−α)F_y·z, "
+                f"dz/du = [1 − |z|^n (γ + β·sign(u̇z))]/u_y ({_SOLVER_TEXT})",
+    "flag-shaped": "flag-shaped self-centring hysteresis, Christopoulos et al. (2002): "
+                   f"energy-dissipation ratio β_E ({_SOLVER_TEXT})",
     "sliding-pendulum": "sliding pendulum: (W/R)·u + μW·sgn(u̇), friction regularised "
                         "(Zayas, Low & Mahin 1990); Newmark average acceleration with "
                         "Newton–Raphson iteration",
@@ -719,6 +783,103 @@ _INPUT_DIMENSIONS = {
 }
 
 _SI_LABELS = {"pressure": "Pa", "second_moment": "m⁴", "inertia": "kg·m²"}
+
+
+#: Stability coefficient above which P-Δ earns a caution (common practice, no source).
+P_DELTA_CAUTION = 0.1
+
+_PARAMETER_ROWS = {
+    "unloading_exponent": ("Unloading-stiffness exponent β",
+                           "takeda: k_u = k (u_y/u_max)^β (0.4 in Takeda et al. 1970, from "
+                           "memory)"),
+    "bouc_wen_exponent": ("Smoothness exponent n", "bouc-wen: large n approaches bilinear"),
+    "bouc_wen_beta": ("Shape parameter β (γ = 1 − β)", "bouc-wen, with A = 1"),
+    "dissipation_ratio": ("Energy-dissipation ratio β_E",
+                          "flag-shaped: 0 nonlinear elastic, 1 full flag"),
+    "deterioration_capacity": ("Deterioration capacity λ",
+                               "E_t = λ F_y u_y; β_i = (E_i/(E_t − ΣE_j))^c (Ibarra, Medina "
+                               "& Krawinkler 2005)"),
+    "deterioration_exponent": ("Deterioration exponent c", "Ibarra et al. (2005)"),
+}
+
+
+def _hysteresis_rows(system, model: dict, d) -> list[dict]:
+    """Strength, yield displacement, post-yield ratio and the model's parameters."""
+    from sdofreport.core.hysteresis import hysteresis
+
+    fy = model["yield_strength_n"]
+    rows = [
+        {"name": "Yield strength F_y", "value": d.show(fy, "force"),
+         "basis": "as given" if "yield_strength" in system.inputs else "F_y = k u_y"},
+        {"name": "Yield displacement u_y", "value":
+         d.show(fy / model["stiffness_n_m"], "length"), "basis": "u_y = F_y / k"},
+        {"name": "Post-yield stiffness ratio α", "value": number(model["post_yield_ratio"]),
+         "basis": f"{model['model']} backbone (α = 0: elastic-perfectly plastic)"}]
+    # every parameter of the model, with its default when not given
+    full = hysteresis(model["model"], 1.0, 1.0, **model.get("parameters", {}))
+    for key, (label, basis) in _PARAMETER_ROWS.items():
+        if model["model"] in HYSTERESIS_PARAMETER_KEYS[key]:
+            if key.startswith("deterioration") and key not in model.get("parameters", {}):
+                continue  # no deterioration unless asked for
+            given = key in model.get("parameters", {})
+            rows.append({"name": label, "value": number(getattr(full, key)),
+                         "basis": basis + ("" if given else " (default)")})
+    return rows
+
+
+def _p_delta_rows(system, d) -> list[dict]:
+    """P-Δ rows: W, W/h, θ and the elastic period with P-Δ (Chopra 2017 sec. 7.11)."""
+    p = system.p_delta
+    if p is None:
+        return []
+    return [
+        {"name": "Gravity load W (P-Δ)", "value": d.show(p["gravity_load_n"], "force"),
+         "basis": "as given (gravity_load)" if p["weight_given"] else "W = m g"},
+        {"name": "Geometric stiffness W/h", "value":
+         d.show(p["gravity_stiffness_n_m"], "stiffness"),
+         "basis": "acts as −W/h on every branch (P-Δ)"},
+        {"name": "Stability coefficient θ", "value": number(p["stability_coefficient"]),
+         "basis": "θ = W/(k h)" + (f"; above {P_DELTA_CAUTION:g}: see the caution"
+                                   if p["stability_coefficient"] > P_DELTA_CAUTION else "")},
+        {"name": "Elastic period with P-Δ", "value": f"{number(p['period_s'])} s",
+         "basis": "T/√(1−θ)"},
+    ]
+
+
+def _damper_rows(model: dict) -> list[dict]:
+    spec = model.get("damper")
+    if spec is None:
+        return []
+    alpha = spec["exponent"]
+    return [{"name": "Damper coefficient C", "value":
+             f"{number(spec['coefficient'])} N·(s/m)^{alpha:g}",
+             "basis": f"F = C·|v|^α·sign(v) with α = {alpha:g} (linear below a small "
+                      "velocity, common practice)"}]
+
+
+def _mechanics_cautions(system, responses, d) -> list[str]:
+    """Cautions of the system page about P-Δ and dynamic instability."""
+    notes = []
+    p = system.p_delta
+    model = system.model or {}
+    if p is not None and p["stability_coefficient"] > P_DELTA_CAUTION:
+        notes.append(f"The stability coefficient θ = W/(k h) = "
+                     f"{number(p['stability_coefficient'])} exceeds {P_DELTA_CAUTION:g} "
+                     "(a common threshold, no source): gravity (P-Δ) effects are "
+                     "significant; check the stability rules of the governing code.")
+    if p is not None and "yield_strength_n" in model and \
+            model["post_yield_ratio"] * model["stiffness_n_m"] < p["gravity_stiffness_n_m"]:
+        collapse = model.get("collapse_displacement_m")
+        notes.append("With P-Δ the post-yield stiffness α k − W/h is negative: past the "
+                     "yield point the system loses strength and may run away"
+                     + (f"; the backbone's restoring force reaches zero at "
+                        f"{d.show(collapse, 'length')}" if collapse else "") + ".")
+    unstable = [r.record_id for r in responses if r.unstable]
+    if unstable:
+        notes.append(f"Dynamic instability under {', '.join(unstable)}: the displacement "
+                     "ran past the stated bound, so those runs stopped and their demands "
+                     "are not meaningful (verdict 'unstable').")
+    return notes
 
 
 def _basis(system, prefixes: tuple[str, ...], default: str) -> str:

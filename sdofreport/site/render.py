@@ -23,7 +23,7 @@ from sdofreport import __version__
 from sdofreport.engine import Results
 from sdofreport.errors import BuildError
 from sdofreport.jsontext import json_text as _json_text
-from sdofreport.results_json import peaks_csv, results_document, spectra_csv
+from sdofreport.results_json import checks_csv, peaks_csv, results_document, spectra_csv
 from sdofreport.site.context import SiteContext, dependency_versions, record_figures
 from sdofreport.site.drawing import FigureWriter
 from sdofreport.site.spreadsheet import results_workbook
@@ -34,6 +34,9 @@ log = logging.getLogger("sdofreport.site")
 
 MANIFEST_SCHEMA = "sdofreport/manifest@1"
 MANIFEST_NAME = "manifest.json"
+#: Where a build with ``--compare-to`` keeps the earlier run's results.json: an input of
+#: the revision page, covered by the fingerprint, so ``verify --rerun`` rebuilds it.
+COMPARE_TO_INPUT = "inputs/_compare-to/results.json"
 
 
 def template_dir() -> Path:
@@ -115,7 +118,8 @@ def start_record_figures(project, records, tree: StagedTree, *, jobs: int = 1,
 
 
 def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cache=None,
-                extra_pages=None, early: FigureWriter | None = None) -> int:
+                extra_pages=None, extra_inputs: dict[str, bytes] | None = None,
+                early: FigureWriter | None = None) -> int:
     """
     Write every file of the site into ``tree``, the manifest last; the number of files.
 
@@ -124,7 +128,9 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
     ``figure_cache`` (:class:`sdofreport.engine.ResultCache`), figures whose inputs did not
     change are taken from it. ``extra_pages(results_document, fingerprint) -> dict[path,
     bytes]`` may add pages (the revision page of ``--compare-to``); they are linked from
-    the summary page's navigation when one of them is ``revision.html``. Figures an
+    the summary page's navigation when one of them is ``revision.html``; ``extra_inputs``
+    (site path under ``inputs/`` → bytes) are kept as inputs, covered by the
+    fingerprint. Figures an
     ``early`` writer (:func:`start_record_figures`) already handles are not drawn again.
     """
     hashes: dict[str, str] = {}
@@ -141,6 +147,8 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
         put("data/results.json", _json_text(document).encode("utf-8"))
         for site_path, source in _input_files(results).items():
             put(site_path, source.read_bytes())
+        for site_path, data in (extra_inputs or {}).items():
+            put(site_path, data)
         # The fingerprint covers the inputs and results.json; every page shows it.
         run_fingerprint = manifest_document(results, hashes)["fingerprint"]
         extra = extra_pages(document, run_fingerprint) if extra_pages else {}
@@ -157,6 +165,7 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
             put(path, data)
         put("data/spectra.csv", spectra_csv(results).encode("utf-8"))
         put("data/peaks.csv", peaks_csv(results).encode("utf-8"))
+        put("data/checks.csv", checks_csv(results).encode("utf-8"))
         put("data/results.xlsx", results_workbook(document))
         if early is not None:
             hashes.update(early.result())
@@ -184,6 +193,15 @@ def fingerprint(manifest: dict) -> str:
     return hashlib.sha256(text.encode("ascii")).hexdigest()[:16]
 
 
+def manifest_versions() -> dict:
+    """The manifest's ``package``, ``dependencies`` and ``platform`` fields for the
+    installed versions (``verify --rerun`` names those that differ from a site's)."""
+    return {"package": {"name": "sdofreport", "version": __version__},
+            "dependencies": dict(dependency_versions()),
+            "platform": {"system": platform.system(), "machine": platform.machine(),
+                         "python_implementation": platform.python_implementation()}}
+
+
 def manifest_document(results: Results, hashes: dict[str, str]) -> dict:
     """The manifest: versions, platform, settings and the SHA-256 of every site file
     (``hashes``: site path → hex digest)."""
@@ -192,10 +210,7 @@ def manifest_document(results: Results, hashes: dict[str, str]) -> dict:
     inputs = sorted(path for path in hashes if path.startswith("inputs/"))
     document = {
         "schema": MANIFEST_SCHEMA,
-        "package": {"name": "sdofreport", "version": __version__},
-        "dependencies": dict(dependency_versions()),
-        "platform": {"system": platform.system(), "machine": platform.machine(),
-                     "python_implementation": platform.python_implementation()},
+        **manifest_versions(),
         "project": {"file": f"inputs/{results.project.path.name}",
                     "title": results.project.info.title,
                     "reference": results.project.info.reference,

@@ -153,9 +153,9 @@ spectrum; amplitude scaling to a target is left to the project file.
 ## Files
 
 Two-column files (`.csv`): comment lines starting with `#`, a header row
-`time_s,accel_g`, then `time,acceleration` rows in g. Headed files (`.txt`): two title
-lines, a line `ACCELERATION IN G, NPTS=..., DT=... SEC`, then the values in g, five per
-line.
+`time_s,accel_g`, then `time,acceleration` rows in g. Headed files (`.txt`), in sdofreport's
+own layout: a first line naming the file, two `title:` lines, `unit: g`, the line
+`samples: N, step: DT s`, then the values in g, eight per line.
 
 | id | file | format | seed | duration [s] | dt [s] | f_g [Hz] | zeta_g [-] | envelope | PGA [g] |
 |----|------|--------|------|--------------|--------|----------|------------|----------|---------|

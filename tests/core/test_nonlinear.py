@@ -295,5 +295,5 @@ def test_response_refuses():
     with pytest.raises(ValueError, match=r"max_iterations must be an integer >= 1 \[-\]; "
                                          r"got 0"):
         nonlinear_response(np.zeros(4), 0.01, system, 0.0, max_iterations=0)
-    with pytest.raises(ValueError, match=r"system must be a Bilinear or SlidingPendulum"):
+    with pytest.raises(ValueError, match=r"system must be a Bilinear, Hysteresis or SlidingPendulum"):
         nonlinear_response(np.zeros(4), 0.01, "elastic", 0.0)

@@ -83,6 +83,16 @@ BAD_CASES = [
      ["analysis.periods", "expected 0 < min < max"]),
     ("bad statistic", '[analysis]\nstatistic = "median"\n',
      ["analysis.statistic", "expected one of auto, mean, max"]),
+    ("fragility without levels", '[fragility]\nmeasure = "sa"\n',
+     ["fragility.levels: missing; expected a list of at least 2 levels in g"]),
+    ("fragility level zero", '[fragility]\nlevels = [0.0, 0.2]\n',
+     ["fragility.levels: expected a list of numbers > 0, found [0.0, 0.2]"]),
+    ("fragility one level", '[fragility]\nlevels = [0.2]\n',
+     ["fragility.levels: expected 2 to 50 different levels, found 1"]),
+    ("fragility unknown system", '[fragility]\nlevels = [0.1, 0.2]\nsystems = ["s9"]\n',
+     ["fragility.systems: no system has id 's9'; the ids are s1"]),
+    ("fragility measure", '[fragility]\nlevels = [0.1, 0.2]\nmeasure = "pgv"\n',
+     ["fragility.measure: expected one of sa, pga, found 'pgv'"]),
 ]
 
 
@@ -218,3 +228,57 @@ def test_bad_signoff_and_revisions_are_each_named(project_factory):
     assert "project.revisions[1].author: unknown key; did you mean 'by'?" in message or \
         "project.revisions[1].author: unknown key" in message
     assert "project.revisions[2].revision: expected non-empty text, found 3" in message
+
+
+def test_ids_are_put_in_natural_order():
+    """natural_key orders ids as people read them (digit runs as numbers): the ordering
+    rule of ISO 14651-style 'natural sort', common practice (no source)."""
+    from sdofreport.project.model import natural_key
+
+    ids = ["P10", "P2", "p1", "P1b", "rec9", "rec10", "rec09x"]
+    assert sorted(ids, key=natural_key) == ["p1", "P1b", "P2", "P10", "rec9", "rec09x",
+                                            "rec10"]
+
+
+def test_records_and_pairs_follow_natural_order(project_factory):
+    """Records listed as r10, r2, r1 in the file come out r1, r2, r10; pairs P10, P2
+    come out P2, P10 (motions and pairs of the suite)."""
+    from sdofreport.engine import _pairs
+    from sdofreport.suite import motions
+
+    text = PROJECT_HEAD + "\n" + "\n".join(
+        f'[[records]]\nid = "{rid}"\nfile = "records/r1.csv"\npair = "{pair}"\n'
+        f'component = "{comp}"\n'
+        for rid, pair, comp in [("r10", "P10", "H1"), ("r2", "P2", "H1"),
+                                ("r1", "P10", "H2"), ("r3", "P2", "H2")]
+    ) + "\n" + ONE_SYSTEM
+    project = load_project(project_factory(text))
+    assert [r.id for r in project.records] == ["r1", "r2", "r3", "r10"]
+    assert [name for name, _ in motions(project)] == ["P2", "P10"]
+    assert list(_pairs(project)) == ["P2", "P10"]
+
+
+def test_a_limit_may_state_its_basis(project_factory):
+    """`displacement = { value = "50 mm", basis = "..." }`: the value is read as a
+    plain limit (1 mm = 0.001 m by definition) and the basis kept beside it."""
+    system = ONE_SYSTEM.replace('displacement = "50 mm"',
+                                'displacement = { value = "50 mm", basis = "Spec §4" }')
+    assert system != ONE_SYSTEM
+    limits = load_project(project_factory(PROJECT_HEAD + "\n" + TWO_RECORDS + "\n"
+                                          + system)).systems[0].limits
+    assert limits.displacement_m == pytest.approx(0.050)
+    assert limits.basis_of("displacement") == "Spec §4"
+    assert limits.basis_of("drift_ratio") is None
+
+
+@pytest.mark.parametrize("written, fragment", [
+    ('{ basis = "Spec" }', "limits.displacement.value: missing"),
+    ('{ value = "50 mm", basis = "" }', "limits.displacement.basis: expected non-empty"),
+    ('{ value = "50 mm", source = "Spec" }',
+     "limits.displacement.source: unknown key; allowed keys: value, basis"),
+])
+def test_a_limit_table_names_its_problem(project_factory, written, fragment):
+    system = ONE_SYSTEM.replace('displacement = "50 mm"', f"displacement = {written}")
+    with pytest.raises(ProjectError) as caught:
+        load_project(project_factory(PROJECT_HEAD + "\n" + TWO_RECORDS + "\n" + system))
+    assert fragment in str(caught.value)

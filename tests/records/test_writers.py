@@ -106,6 +106,8 @@ def test_two_column_rejects_bad_arguments(tmp_path, kwargs, match):
 
 
 def test_headed_layout_and_round_trip(tmp_path):
+    from sdofreport.records import read_record
+
     path = tmp_path / "rec.txt"
     acc = _signal(4000, seed=21)
     write_headed(path, 0.01, acc, title_lines=["Fictional site, test record", "Component H1"])
@@ -113,35 +115,34 @@ def test_headed_layout_and_round_trip(tmp_path):
     # Common practice (no source): Unix line endings only, final newline.
     assert b"\r" not in raw and raw.endswith(b"\n")
     lines = raw.decode("ascii").split("\n")[:-1]
-    assert lines[:2] == ["Fictional site, test record", "Component H1"]
-    # Format definition (the brief): the count-and-step line, character for character.
-    assert lines[2] == "ACCELERATION IN G, NPTS=  4000, DT= 0.01000 SEC"
-    body = lines[3:]
-    # Closed form: 4000 values at 5 per line fill 800 lines of 5 × 15 characters.
-    assert len(body) == 800
-    assert all(len(line) == 75 for line in body)
+    # Format definition (ours): first line, titles, unit, then count and step.
+    assert lines[:5] == ["sdofreport record: equally spaced ground acceleration",
+                         "title: Fictional site, test record", "title: Component H1",
+                         "unit: g", "samples: 4000, step: 0.01 s"]
+    body = lines[5:]
+    # Closed form: 4000 values at 8 per line fill 500 lines.
+    assert len(body) == 500 and all(len(line.split()) == 8 for line in body)
     values = np.array(" ".join(body).split(), dtype=float)
-    # Tolerance: "%15.7E" keeps 8 significant digits, relative round-off <= 5e-8.
+    # Tolerance: "%.7e" keeps 8 significant digits, relative round-off <= 5e-8.
     np.testing.assert_allclose(values, acc, rtol=5.1e-8, atol=0)
+    # The reader takes it as headed, with the stated count and step (our interface).
+    record = read_record(path, units="g")
+    assert record.file_format == "headed" and record.npts == 4000 and record.dt_s == 0.01
 
 
-def test_headed_short_last_line_default_titles_and_fixed_width(tmp_path):
+def test_headed_short_last_line_and_default_titles(tmp_path):
     path = tmp_path / "rec.txt"
-    acc = np.array([0.0, -0.125, 0.5, 1e-3, -2.0e-5, 0.25, 0.0625])
+    acc = np.array([0.0, -0.125, 0.5, 1e-3, -2.0e-5, 0.25, 0.0625, 1.0, -3.0])
     write_headed(path, 0.005, acc)
     lines = path.read_text(encoding="ascii").splitlines()
     # Format definition (ours): the title block is filled up to two lines.
-    assert lines[:2] == ["untitled record", "written by sdofreport"]
-    # Format definition (the brief): NPTS width 6, DT "%8.5f".
-    assert lines[2] == "ACCELERATION IN G, NPTS=     7, DT= 0.00500 SEC"
-    # Closed form: 7 values → one full line of 5 and a last line of 2 (30 characters).
-    assert lines[3] == ("  0.0000000E+00 -1.2500000E-01  5.0000000E-01"
-                        "  1.0000000E-03 -2.0000000E-05")
-    assert lines[4] == "  2.5000000E-01  6.2500000E-02"
-    # Fixed width: each value occupies columns [15 k, 15 k + 15).
-    fixed = [float(lines[3][15 * k:15 * k + 15]) for k in range(5)]
-    # Closed form: these values are exact in 8 significant digits.
-    assert fixed == [0.0, -0.125, 0.5, 1e-3, -2.0e-5]
+    assert lines[1:3] == ["title: untitled record", "title: written by sdofreport"]
+    assert lines[4] == "samples: 9, step: 0.005 s"
+    # Closed form: 9 values → one full line of 8 and a last line of 1.
+    assert lines[5].split() == ["0.0000000e+00", "-1.2500000e-01", "5.0000000e-01",
+                                "1.0000000e-03", "-2.0000000e-05", "2.5000000e-01",
+                                "6.2500000e-02", "1.0000000e+00"]
+    assert lines[6] == "-3.0000000e+00"
 
 
 def test_headed_deterministic(tmp_path):
@@ -164,7 +165,10 @@ def test_headed_deterministic(tmp_path):
         ({"acceleration_g": [0.0, float("inf")]},
          r"acceleration_g must hold finite values \[g\]; got inf at index 1"),
         ({"title_lines": ["x", "ACCELERATION IN G, NPTS= 3"]},
-         r"title_lines\[1\] must not contain 'NPTS='; got 'ACCELERATION IN G, NPTS= 3'"),
+         r"title_lines\[1\] must not contain 'NPTS=' or start with 'samples:'; got "
+         r"'ACCELERATION IN G, NPTS= 3'"),
+        ({"title_lines": ["samples: 3, step: 0.01 s"]},
+         r"title_lines\[0\] must not contain 'NPTS=' or start with 'samples:'"),
     ],
 )
 def test_headed_rejects_bad_arguments(tmp_path, kwargs, match):
