@@ -238,10 +238,10 @@ def test_provenance_round_trip_into_results_json_and_pages(project_factory):
 
 
 @pytest.mark.parametrize("extra, fragment", [
-    ("magnitude = 11\n", "records[1].magnitude: expected a number >= 0 and <= 10, "
+    ("magnitude = 11\n", "records[a1].magnitude: expected a number >= 0 and <= 10, "
                          "found 11"),
-    ("vs30_m_s = 0\n", "records[1].vs30_m_s: expected a number > 0"),
-    ("station = 3\n", "records[1].station: expected non-empty text, found 3"),
+    ("vs30_m_s = 0\n", "records[a1].vs30_m_s: expected a number > 0"),
+    ("station = 3\n", "records[a1].station: expected non-empty text, found 3"),
 ])
 def test_bad_provenance_exits_2(project_factory, extra, fragment):
     text = PROJECT_HEAD + TWO + _with_provenance(_pairs(1), extra) + ONE_SYSTEM
