@@ -7,12 +7,11 @@ Until the next release the earlier spellings still work with a deprecation messa
 
 from __future__ import annotations
 
-import contextlib
-import os
-import tempfile
 from pathlib import Path
 
 import click
+
+from sdofreport.fsio import write_atomically
 
 
 def deprecated(message: str) -> None:
@@ -74,28 +73,10 @@ def resolve_format(formats: tuple[str, ...], default: str, output_format: str | 
     return output_format or default, output
 
 
-def write_text_atomically(text: str, target: Path) -> None:
-    """Write ``text`` to ``target`` through a temporary sibling and a rename."""
-    target.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".partial",
-                                         dir=target.parent)
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as stream:
-            stream.write(text)
-            stream.flush()
-            os.fsync(stream.fileno())
-        os.chmod(temporary, 0o644)
-        os.replace(temporary, target)
-    except BaseException:
-        with contextlib.suppress(OSError):
-            os.unlink(temporary)
-        raise
-
-
 def emit(text: str, output: str | None) -> None:
     """Print ``text`` to standard output, or write it to the file ``output``."""
     if output is None:
         click.echo(text, nl=False)
     else:
-        write_text_atomically(text, Path(output))
+        write_atomically(Path(output), text.encode("utf-8"))
         click.echo(f"Wrote {output}", err=True)

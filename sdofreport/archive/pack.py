@@ -8,15 +8,14 @@ bytes do not depend on the archive's file name.
 
 from __future__ import annotations
 
-import contextlib
 import io
 import os
-import tempfile
 import zipfile
 from pathlib import Path
 
 from sdofreport.archive._sitefiles import ArchiveError, RunFiles, read_run, run_name
 from sdofreport.archive.verify import verify_files
+from sdofreport.fsio import write_atomically
 
 #: Fixed entry time (the zip format's epoch; APPNOTE.TXT 4.4.6, MS-DOS date and time).
 ZIP_TIMESTAMP = (1980, 1, 1, 0, 0, 0)
@@ -68,18 +67,7 @@ def _write_atomically(data: bytes, target: Path) -> None:
     if target.exists() and (target.is_dir() or not zipfile.is_zipfile(target)):
         raise ArchiveError(f"{target}: exists and is not a zip archive; refusing to replace "
                            f"it. Choose another -o (a new .zip file or a folder).")
-    target.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".partial",
-                                         dir=target.parent)
-    try:
-        with os.fdopen(handle, "wb") as stream:
-            stream.write(data)
-        os.chmod(temporary, 0o644)
-        os.replace(temporary, target)
-    except BaseException:
-        with contextlib.suppress(OSError):
-            os.unlink(temporary)
-        raise
+    write_atomically(target, data)
 
 
 def pack_run(run: RunFiles, output: str | os.PathLike | None = None) -> Path:

@@ -41,7 +41,8 @@ from urllib.parse import urlsplit
 from markupsafe import Markup
 
 from sdofreport import __version__
-from sdofreport.errors import BuildError, naming_path
+from sdofreport.errors import BuildError
+from sdofreport.fsio import write_atomically
 from sdofreport.site.context import CAUTION_FULL, CAUTION_SHORT
 
 log = logging.getLogger("sdofreport.site.pdf")
@@ -477,17 +478,7 @@ def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=N
                 log.warning("the contents' page numbers of %s did not settle after "
                             "three prints", output_pdf)
     pdf = _renumber_node_ids(_stamp_dates(raw, _fixed_date(manifest)))
-    output_pdf.resolve().parent.mkdir(parents=True, exist_ok=True)
-    handle, partial = tempfile.mkstemp(prefix=f".{output_pdf.name}.", suffix=".part",
-                                       dir=output_pdf.resolve().parent)
-    try:
-        with naming_path(output_pdf), os.fdopen(handle, "wb") as stream:
-            stream.write(pdf)
-        os.chmod(partial, 0o644)
-        os.replace(partial, output_pdf)
-    except BaseException:
-        Path(partial).unlink(missing_ok=True)
-        raise
+    write_atomically(output_pdf, pdf)
     pages = pdf_page_count(pdf)
     log.info("printed %s into %s: %d pages in %.1f s", site_dir, output_pdf, pages,
              time.perf_counter() - started)
