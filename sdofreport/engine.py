@@ -110,6 +110,11 @@ class ResponseResult:
     instability_limit_m: float | None = None
     #: peak damper force [N]; None without a damper
     peak_damper_force_n: float | None = None
+    #: 2 when the system moved in both horizontal directions under the record's pair;
+    #: the peaks are then of the resultant and the histories along this record
+    directions: int = 1
+    #: two-direction runs: peak |u| along H1 and along H2 [m]
+    peak_displacement_per_direction_m: tuple | None = None
 
 
 @dataclass(frozen=True)
@@ -338,6 +343,41 @@ def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseR
         if model.get("damper") is not None else None)
 
 
+def _biaxial_result(system: SystemSpec, record_id: str, direction: int,
+                    raw: dict) -> ResponseResult:
+    """The response of a ``directions = 2`` system to the pair of ``record_id``: peaks of
+    the resultant, histories along the record's own direction (0: H1, 1: H2)."""
+    r = raw["biaxial"]
+    u_peak = float(r.peak_displacement_m)
+    drift = u_peak / system.height_m if system.height_m else None
+    common = dict(directions=2, peak_displacement_per_direction_m=tuple(
+        r.peak_displacement_per_direction_m), unstable=bool(r.unstable))
+    if raw["model"] == "linear":
+        return ResponseResult(system.id, record_id, u_peak, r.peak_velocity_m_s,
+                              r.peak_total_accel_m_s2, drift, r.peak_force_n, r.time_s,
+                              r.displacement_m[direction], r.total_accel_m_s2[direction],
+                              **common)
+    energy = dict(r.energy_j)
+    supplied = energy["input_j"]
+    total = sum(energy[k] for k in ("kinetic_j", "damping_j", "strain_j", "hysteretic_j"))
+    energy["imbalance"] = abs(supplied - total) / max(abs(supplied), 1e-300)
+    model = system.model or {}
+    yield_m = (model["yield_strength_n"] / model["stiffness_n_m"]
+               if "yield_strength_n" in model else None)
+    limit = model.get("instability_limit_m")
+    return ResponseResult(
+        system.id, record_id, u_peak, r.peak_velocity_m_s, r.peak_total_accel_m_s2, drift,
+        r.peak_force_n, r.time_s, r.displacement_m[direction],
+        r.total_accel_m_s2[direction], model=raw["model"], force_n=r.force_n[direction],
+        ductility=None if yield_m is None else u_peak / yield_m,
+        residual_displacement_m=float(np.hypot(*r.residual_displacement_m)),
+        peak_force_n=r.peak_force_n, energy=energy,
+        convergence={"converged": bool(r.converged),
+                     "max_iterations_used": int(r.max_iterations_used),
+                     "subdivided_steps": int(r.subdivided_steps)},
+        instability_limit_m=limit, **common)
+
+
 #: Check quantity -> ResponseResult attribute read for its per-record peak.
 CHECK_ATTRIBUTES = {
     "displacement": "peak_displacement_m", "drift_ratio": "peak_drift_ratio",
@@ -467,6 +507,8 @@ def run_project(project: Project, *, jobs: int | None = None,
     base = {"version": __version__, "method": analysis.method}
     pairs = _pairs(project)
     total = len(records) + len(pairs) + len(records)
+    if any(system.directions == 2 for system in project.systems):
+        total += len(pairs)
     if project.inelastic is not None:
         total += len(records)
     phase = _Phase(cache, progress, total, {"workers": workers,
@@ -525,8 +567,8 @@ def run_project(project: Project, *, jobs: int | None = None,
 
     # Phase 3: every system's response to every (scaled) record, one job per record.
     plan = []
-    models = [{**system_model(system), "system_id": system.id}
-              for system in project.systems]
+    one_d = [s for s in project.systems if s.directions == 1]
+    models = [{**system_model(system), "system_id": system.id} for system in one_d]
     for record in (scaled[r.id] for r in project.records):
         args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
         key = cache_key({**base, "job": "responses", "sha": _array_hash(args[0]),
@@ -545,7 +587,10 @@ def run_project(project: Project, *, jobs: int | None = None,
                                     inelastic_spec)})
             plan.append((f"record {record.id} (inelastic spectra)", "inelastic", args,
                          key))
-    outputs = phase.run(plan)
+    biaxial_plan = _biaxial_plan(project, scaled, base)
+    outputs = phase.run(plan + biaxial_plan)
+    biaxial_outputs = outputs[len(plan):]
+    outputs = outputs[:len(plan)]
     inelastic = {}
     if inelastic_spec is not None:
         tail = outputs[len(project.records):]
@@ -554,16 +599,40 @@ def run_project(project: Project, *, jobs: int | None = None,
     for spec, group in zip(project.records, outputs[:len(project.records)]):
         record = scaled[spec.id]
         time_s = np.arange(record.npts) * record.dt_s
-        for system, raw in zip(project.systems, group):
+        for system, raw in zip(one_d, group):
             if raw["model"] == "linear":  # linear jobs send no time axis: it is n · dt
                 raw = {**raw, "time_s": time_s}
             responses[(system.id, spec.id)] = _response_result(system, spec.id, raw)
+    two_d = [s for s in project.systems if s.directions == 2]
+    for (h1, h2), group in zip(_pairs(project).values() if two_d else (), biaxial_outputs):
+        for system, raw in zip(two_d, group):
+            for direction, rid in enumerate((h1, h2)):
+                responses[(system.id, rid)] = _biaxial_result(system, rid, direction, raw)
     statistic = project.statistic_used
     checks = _checks(project, responses, statistic)
     return Results(project, record_results, responses, checks, statistic, scaling,
                    pair_results, inelastic,
                    {"read_s": read_time, "compute_s": phase.seconds,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses)
+
+
+def _biaxial_plan(project: Project, scaled: dict, base: dict) -> list:
+    """One job per horizontal pair for the systems with ``directions = 2`` (scaled
+    records; the loader has checked that every record belongs to a pair)."""
+    models = [{**system_model(system), "system_id": system.id,
+               "stiffness_n_m": system.stiffness_n_m}
+              for system in project.systems if system.directions == 2]
+    if not models:
+        return []
+    plan = []
+    for name, (h1, h2) in _pairs(project).items():
+        a1, a2 = scaled[h1].acceleration_m_s2, scaled[h2].acceleration_m_s2
+        args = (a1, a2, scaled[h1].dt_s, models, project.analysis.method)
+        key = cache_key({**base, "job": "biaxial", "sha1": _array_hash(a1),
+                         "sha2": _array_hash(a2), "dt": scaled[h1].dt_s, "models": models})
+        plan.append((f"pair {name} (two-direction responses of {len(models)} systems)",
+                     "biaxial", args, key))
+    return plan
 
 
 def _record_args(record: Record, analysis, damping=None) -> tuple:

@@ -446,7 +446,7 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
                   values["residual_displacement"], values["bearing_displacement"])
 
 
-_COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits")
+_COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits", "directions")
 
 
 def _network_to_si(node, path: str, problems: _Problems):
@@ -740,8 +740,41 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
         gamma = values["mass"] * values["pivot_to_centre"] ** 2 / values["pivot_inertia"]
         model = {"model": "linear", "participation": gamma}
     inputs = {k: v for k, v in values.items() if not k.startswith("_")}
+    directions = _read_directions(table, kind, model, where, problems)
     return SystemSpec(system_id, name, damping, derived.period_s, mass, stiffness, height,
-                      limits, tuple(derived.derivation), kind, model, inputs, pdelta)
+                      limits, tuple(derived.derivation), kind, model, inputs, pdelta,
+                      directions)
+
+
+def _read_directions(table: dict, kind: str, model, where: str, problems: _Problems) -> int:
+    """``directions`` (1 or 2) and what two-direction runs support (sdofreport.core.biaxial):
+    elastic systems, bilinear yielding systems and the sliding pendulum, without a
+    damper; a hanging item swings as a compound pendulum in its own plane only."""
+    value = _read_value(table, SECTIONS["systems[]"]["directions"], where, problems)
+    if value is None or value == 1:
+        return 1
+    if value != 2:
+        problems.add(f"{where}.directions", f"expected 1 or 2, found {table['directions']!r}")
+        return 1
+    name = (model or {}).get("model", "linear")
+    if kind == "hanging" or name not in ("linear", "bilinear", "sliding-pendulum") or \
+            (model or {}).get("damper") is not None:
+        what = "kind 'hanging'" if kind == "hanging" else (
+            "a damper" if (model or {}).get("damper") is not None else f"model {name!r}")
+        problems.add(f"{where}.directions", "directions = 2 supports elastic systems, "
+                     f"bilinear yielding systems and the sliding pendulum without a "
+                     f"damper; this system has {what}")
+    return 2
+
+
+def _check_two_directions(records: list, systems: list, problems: _Problems) -> None:
+    """A system with ``directions = 2`` needs every record in a horizontal pair."""
+    two = [s.id for s in systems if s.directions == 2]
+    lone = [r.id for r in records if not r.pair]
+    if two and (lone or not records):
+        problems.add(f"systems {', '.join(two)}", "directions = 2 needs every record in "
+                     "a horizontal pair (pair and component H1/H2); unpaired: "
+                     f"{', '.join(lone) or 'no [[records]] given'}")
 
 
 def _read_systems(items, problems: _Problems) -> list[SystemSpec]:
@@ -1044,6 +1077,7 @@ def load_project(path) -> Project:
                               f"synthetic (seed {synthetic.seed + i})", "synthetic", "g",
                               synthetic.dt_s, 1.0, processing)
                    for i in range(synthetic.count)]
+    _check_two_directions(records, systems, problems)
     save_memo()  # unit strings pint converted, so the next read need not import it
     if problems.items:
         raise ProjectError(format_problems(shown, problems.items))

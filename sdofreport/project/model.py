@@ -179,6 +179,9 @@ class SystemSpec:
     #: P-Δ when on: gravity_load_n, height_m, gravity_stiffness_n_m, stability_coefficient
     #: θ = W/(k h), period_s (elastic, with P-Δ: T/√(1−θ)), weight_given
     p_delta: dict | None = None
+    #: 1: each record drives its own one-direction oscillator; 2: each horizontal pair
+    #: drives one oscillator in both directions (sdofreport.core.biaxial)
+    directions: int = 1
 
     @property
     def frequency_hz(self) -> float:

@@ -361,6 +361,11 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "coefficient C (a number in N·(s/m)^α or text with units, e.g. "
                 "\"120 kN*s/m\") and exponent α (0 < α <= 2; 1 is linear).",
                 example='{ coefficient = "40 kN*(s/m)**0.5", exponent = 0.5 }'),
+        KeySpec("directions", "integer", "1: each record drives its own one-direction "
+                "oscillator; 2: each horizontal pair drives one isotropic oscillator in "
+                "both directions and the peaks are of the resultant (needs every record "
+                "in a pair; elastic, bilinear and sliding-pendulum systems).", default=1,
+                example="2"),
         KeySpec("limits", "table", "Limits checked against the demands.",
                 example="{ displacement = \"40 mm\" }"),
     ),
