@@ -114,6 +114,7 @@ def results_document(results: Results) -> dict:
                 if response.peak_damper_force_n is not None:
                     entry["peak_damper_force_n"] = finite_or_none(
                         response.peak_damper_force_n)
+            entry.update(_directions_entry(response))
             responses.append(entry)
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
@@ -124,6 +125,7 @@ def results_document(results: Results) -> dict:
             "stiffness_n_m": system.stiffness_n_m, "period_s": system.period_s,
             "frequency_hz": system.frequency_hz, "damping": system.damping,
             "height_m": system.height_m, "kind": system.kind, "model": system.model_name,
+            "directions": system.directions,
             "derivation": "; ".join(system.derivation),
             **_mechanics_block(system),
             "responses": responses, "checks": checks,
@@ -134,6 +136,14 @@ def results_document(results: Results) -> dict:
                 "systems": systems}
     document.update(suite_blocks(results))
     return document
+
+
+def _directions_entry(response) -> dict:
+    """Two-direction runs: the peaks are of the resultant; the per-direction peaks."""
+    if response.directions == 1:
+        return {}
+    return {"directions": 2, "peak_displacement_per_direction_m": [
+        finite_or_none(v) for v in response.peak_displacement_per_direction_m]}
 
 
 def _mechanics_block(system) -> dict:

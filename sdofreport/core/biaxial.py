@@ -107,6 +107,28 @@ def _resultant(x: np.ndarray) -> np.ndarray:
     return np.hypot(x[0], x[1])
 
 
+#: Points per step at which the resultant is interpolated between samples. Our choice:
+#: the cubic Hermite error is O(h⁴), far below 0.01 % of the peak at 10 points.
+HERMITE_POINTS = 10
+
+
+def _hermite_peak(u: np.ndarray, v: np.ndarray, dt: float) -> float:
+    """max |u(t)| of the resultant, u between samples by cubic Hermite interpolation of
+    the displacement with its velocity (exact for a cubic) [m]."""
+    s = (np.arange(1, HERMITE_POINTS) / HERMITE_POINTS)[:, None]
+    h00 = 2 * s ** 3 - 3 * s ** 2 + 1
+    h10 = s ** 3 - 2 * s ** 2 + s
+    h01 = -2 * s ** 3 + 3 * s ** 2
+    h11 = s ** 3 - s ** 2
+    best = float(np.max(_resultant(u)))
+    for lo in range(0, u.shape[1] - 1, 4096):  # in blocks: bounded memory
+        hi = min(lo + 4096, u.shape[1] - 1)
+        x = [h00 * c[lo:hi] + h10 * dt * w[lo:hi] + h01 * c[lo + 1:hi + 1]
+             + h11 * dt * w[lo + 1:hi + 1] for c, w in zip(u, v)]
+        best = max(best, float(np.max(np.hypot(x[0], x[1]))))
+    return best
+
+
 def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
                     damping_ratio, *, stiffness_n_m=None, method="exact"
                     ) -> BiaxialResponse:
@@ -142,17 +164,21 @@ def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
     ag[0, :a1.size] = a1
     ag[1, :a2.size] = a2
     u, v, at = np.empty((2, n)), np.empty((2, n)), np.empty((2, n))
+    refined = []
     for i in range(2):
         h = oscillator_histories(ag[i], time_step, np.array([natural_period]),
                                  np.array([damping_ratio]), method=method)
         u[i], v[i], at[i] = (h.displacement_m[0], h.velocity_m_s[0],
                              h.total_acceleration_m_s2[0])
+        refined.append(float(h.peaks.displacement_m[0]))
     force = None if stiffness_n_m is None else stiffness_n_m * u
-    peak_u = float(np.max(_resultant(u)))
+    # The resultant between samples too (cubic Hermite interpolation of u with u̇ in each
+    # step), and never below a direction's own refined peak.
+    peak_u = max(_hermite_peak(u, v, time_step), *refined)
     return BiaxialResponse(
         time_s=np.arange(n) * time_step, displacement_m=u, velocity_m_s=v,
         total_accel_m_s2=at, force_n=force, peak_displacement_m=peak_u,
-        peak_displacement_per_direction_m=tuple(float(x) for x in np.max(np.abs(u), 1)),
+        peak_displacement_per_direction_m=tuple(refined),
         peak_total_accel_m_s2=float(np.max(_resultant(at))),
         peak_force_n=None if stiffness_n_m is None else stiffness_n_m * peak_u,
         peak_velocity_m_s=float(np.max(_resultant(v))),

@@ -542,7 +542,7 @@ class SiteContext:
             rows.append({"name": "Participation Γ", "value": number(model["participation"]),
                          "basis": "Γ = m d²/I: the centre of mass obeys ü + 2ζωu̇ + ω²u "
                                   "= −Γ üg (linearised compound pendulum)"})
-        rows += _p_delta_rows(system, d) + _damper_rows(model)
+        rows += _p_delta_rows(system, d) + _damper_rows(model) + _directions_rows(system)
         return rows
 
     def system_page(self, system) -> Page:
@@ -558,6 +558,10 @@ class SiteContext:
                    "drift": number(response.peak_drift_ratio),
                    "shear": d.show(response.peak_base_shear_n, "force"),
                    "accel": d.show(response.peak_total_accel_m_s2, "acceleration")}
+            if response.directions == 2:
+                h1, h2 = response.peak_displacement_per_direction_m
+                row["displacement"] += (f" (resultant; H1 {d.show(h1, 'length')}, "
+                                        f"H2 {d.show(h2, 'length')})")
             if nonlinear:
                 residual = response.residual_displacement_m
                 row.update({"ductility": number(response.ductility),
@@ -886,3 +890,15 @@ def _processing_text(settings) -> str:
     if settings.taper_s:
         parts.append(f"taper {settings.taper_s:g} s")
     return ", ".join(parts) if parts else "none"
+
+
+def _directions_rows(system) -> list[dict]:
+    """The two-direction row of a system's properties (none for one direction)."""
+    if system.directions == 1:
+        return []
+    return [{"name": "Directions", "value": "2 (both horizontal directions at once)",
+             "basis": "each horizontal pair drives one isotropic oscillator along H1 and "
+                      "H2 at once; peaks are of the resultant (elastic: the pair's RotD100 "
+                      "at T, Boore 2010); friction along the sliding velocity (Mokha, "
+                      "Constantinou & Reinhorn 1993); yielding: a circular yield surface; "
+                      "histories are shown along each record's own direction"}]
