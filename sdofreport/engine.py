@@ -130,6 +130,8 @@ class Check:
     verdict: str  # VERDICT_WITHIN | VERDICT_EXCEEDS | VERDICT_UNSTABLE
     #: True when the statistic is of absolute values (|residual displacement|, ...)
     absolute: bool = False
+    #: with property_factors: the run whose demand governs (nominal, lower or upper)
+    governing_run: str | None = None
 
 
 @dataclass
@@ -145,6 +147,12 @@ class Results:
     timings_s: dict[str, float] = field(default_factory=dict)
     cache_hits: int = 0
     cache_misses: int = 0
+    #: (system id, record id) -> {"lower": ResponseResult, "upper": ResponseResult} for
+    #: systems with property_factors (the nominal run is in ``responses``)
+    bounds: dict = field(default_factory=dict)
+    #: sliding pendulums: system id -> {run: EffectiveProperties} at the suite statistic
+    #: of the run's peak displacements (sdofreport.core.isolation)
+    effective: dict = field(default_factory=dict)
 
     def response(self, system_id: str, record_id: str) -> ResponseResult:
         return self.responses[(system_id, record_id)]
@@ -352,6 +360,8 @@ def _biaxial_result(system: SystemSpec, record_id: str, direction: int,
     drift = u_peak / system.height_m if system.height_m else None
     common = dict(directions=2, peak_displacement_per_direction_m=tuple(
         r.peak_displacement_per_direction_m), unstable=bool(r.unstable))
+    if raw.get("one_direction"):  # a one-direction run through the biaxial kernel
+        common.update(directions=1, peak_displacement_per_direction_m=None)
     if raw["model"] == "linear":
         return ResponseResult(system.id, record_id, u_peak, r.peak_velocity_m_s,
                               r.peak_total_accel_m_s2, drift, r.peak_force_n, r.time_s,
@@ -567,7 +577,8 @@ def run_project(project: Project, *, jobs: int | None = None,
 
     # Phase 3: every system's response to every (scaled) record, one job per record.
     plan = []
-    one_d = [s for s in project.systems if s.directions == 1]
+    runs = list(project.systems) + _bound_systems(project)
+    one_d = [s for s in runs if s.directions == 1]
     models = [{**system_model(system), "system_id": system.id} for system in one_d]
     for record in (scaled[r.id] for r in project.records):
         args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
@@ -587,7 +598,8 @@ def run_project(project: Project, *, jobs: int | None = None,
                                     inelastic_spec)})
             plan.append((f"record {record.id} (inelastic spectra)", "inelastic", args,
                          key))
-    biaxial_plan = _biaxial_plan(project, scaled, base)
+    two_d = [s for s in runs if s.directions == 2]
+    biaxial_plan = _biaxial_plan(project, two_d, scaled, base)
     outputs = phase.run(plan + biaxial_plan)
     biaxial_outputs = outputs[len(plan):]
     outputs = outputs[:len(plan)]
@@ -602,26 +614,107 @@ def run_project(project: Project, *, jobs: int | None = None,
         for system, raw in zip(one_d, group):
             if raw["model"] == "linear":  # linear jobs send no time axis: it is n · dt
                 raw = {**raw, "time_s": time_s}
-            responses[(system.id, spec.id)] = _response_result(system, spec.id, raw)
-    two_d = [s for s in project.systems if s.directions == 2]
+            responses[(system.id, spec.id)] = _biaxial_result(system, spec.id, 0, raw) \
+                if "biaxial" in raw else _response_result(system, spec.id, raw)
     for (h1, h2), group in zip(_pairs(project).values() if two_d else (), biaxial_outputs):
         for system, raw in zip(two_d, group):
             for direction, rid in enumerate((h1, h2)):
                 responses[(system.id, rid)] = _biaxial_result(system, rid, direction, raw)
     statistic = project.statistic_used
-    checks = _checks(project, responses, statistic)
+    bounds = _split_bounds(responses)
+    checks = _governing_checks(project, _checks(project, responses, statistic), responses,
+                               bounds, statistic)
     return Results(project, record_results, responses, checks, statistic, scaling,
                    pair_results, inelastic,
                    {"read_s": read_time, "compute_s": phase.seconds,
-                    "total_s": time.perf_counter() - started}, phase.hits, phase.misses)
+                    "total_s": time.perf_counter() - started}, phase.hits, phase.misses,
+                   bounds=bounds,
+                   effective=_effective_properties(project, responses, bounds, statistic))
 
 
-def _biaxial_plan(project: Project, scaled: dict, base: dict) -> list:
+#: The bound analyses of systems with property_factors, in the factors' order.
+BOUND_RUNS = ("lower", "upper")
+
+
+def _bound_systems(project: Project) -> list[SystemSpec]:
+    """The lower- and upper-bound variants (ids ``<id>@lower``, ``<id>@upper``; ``@`` is
+    not allowed in ids) of systems with ``property_factors``: the friction coefficients
+    multiplied by the factor (ASCE/SEI 7-16 §17.2.8.4, from memory)."""
+    out = []
+    for system in project.systems:
+        factors = (system.model or {}).get("property_factors")
+        for name, factor in zip(BOUND_RUNS, factors or ()):
+            model = {k: v for k, v in system.model.items() if k != "property_factors"}
+            for key in ("friction", "friction_slow"):
+                if key in model:
+                    model[key] = model[key] * factor
+            out.append(dataclasses.replace(system, id=f"{system.id}@{name}", model=model))
+    return out
+
+
+def _split_bounds(responses: dict) -> dict:
+    """Move the bound runs out of ``responses``: (system id, record id) -> {run: result}."""
+    bounds: dict = {}
+    for (sid, rid) in [key for key in responses if "@" in key[0]]:
+        system_id, run = sid.split("@")
+        bounds.setdefault((system_id, rid), {})[run] = dataclasses.replace(
+            responses.pop((sid, rid)), system_id=system_id)
+    return bounds
+
+
+def _governing_checks(project: Project, checks: list[Check], responses: dict,
+                      bounds: dict, statistic: str) -> list[Check]:
+    """With bound runs: each check of such a system takes the run of the largest demand
+    ratio (an unstable run governs), naming it in ``governing_run``."""
+    if not bounds:
+        return checks
+    bounded = {sid for sid, _ in bounds}
+    per_run = {run: _checks(project, {**responses, **{k: v[run] for k, v in
+                                                      bounds.items()}}, statistic)
+               for run in BOUND_RUNS}
+    out = []
+    for i, check in enumerate(checks):
+        if check.system_id not in bounded:
+            out.append(check)
+            continue
+        options = [("nominal", check)] + [(run, per_run[run][i]) for run in BOUND_RUNS]
+        run, best = max(options, key=lambda o: (o[1].verdict == VERDICT_UNSTABLE,
+                                                 o[1].ratio))
+        out.append(dataclasses.replace(best, governing_run=run))
+    return out
+
+
+def _effective_properties(project: Project, responses: dict, bounds: dict,
+                          statistic: str) -> dict:
+    """Effective period and damping of each sliding pendulum, per run, at the suite
+    statistic of that run's peak (resultant) displacements."""
+    from sdofreport.core.isolation import pendulum_effective_properties
+
+    out = {}
+    for system in project.systems:
+        model = system.model or {}
+        if system.model_name != "sliding-pendulum" or math.isinf(model["radius_m"]):
+            continue
+        factors = dict(zip(BOUND_RUNS, model.get("property_factors") or ()))
+        runs = {}
+        for run, factor in [("nominal", 1.0), *factors.items()]:
+            peaks = [(responses[(system.id, r.id)] if run == "nominal" else
+                      bounds[(system.id, r.id)][run]).peak_displacement_m
+                     for r in project.records]
+            demand = _statistic(peaks, statistic)
+            if demand > 0:
+                runs[run] = pendulum_effective_properties(
+                    model["weight_n"], model["radius_m"], model["friction"] * factor,
+                    demand)
+        out[system.id] = runs
+    return out
+
+
+def _biaxial_plan(project: Project, systems: list, scaled: dict, base: dict) -> list:
     """One job per horizontal pair for the systems with ``directions = 2`` (scaled
     records; the loader has checked that every record belongs to a pair)."""
     models = [{**system_model(system), "system_id": system.id,
-               "stiffness_n_m": system.stiffness_n_m}
-              for system in project.systems if system.directions == 2]
+               "stiffness_n_m": system.stiffness_n_m} for system in systems]
     if not models:
         return []
     plan = []

@@ -107,6 +107,10 @@ def response_job(acceleration, dt_s, model: dict, method: str) -> dict:
     """Response of one system (``model`` dict, see the engine) to one record."""
     if model["model"] == "linear":
         return _linear_response(acceleration, dt_s, model, method)
+    if "friction_slow" in model:  # velocity-dependent friction: the biaxial kernel
+        return {"model": model["model"], "one_direction": True, "biaxial":
+                _biaxial_response(acceleration, np.zeros_like(acceleration), dt_s, model,
+                                  method)}
     return _nonlinear_response(acceleration, dt_s, model)
 
 

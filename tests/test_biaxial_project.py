@@ -115,3 +115,64 @@ def test_bad_directions_name_the_key(paired, extra, fragment):
     with pytest.raises(ProjectError) as info:
         load_project(paired(PROJECT_HEAD + PAIR + body))
     assert "systems[1].directions" in str(info.value) and fragment in str(info.value)
+
+
+BOUNDED = """\
+[[systems]]
+id = "fps"
+name = "Isolated platform"
+kind = "sliding-pendulum"
+damping = 0.0
+weight = "800 kN"
+radius = "2.2 m"
+friction = 0.08
+friction_slow = 0.05
+friction_rate = "25 s/m"
+property_factors = [0.6, 1.5]
+directions = 2
+[systems.limits]
+bearing_displacement = "400 mm"
+"""
+
+
+def test_bounds_order_govern_and_effective_properties(paired):
+    from sdofreport.core.isolation import pendulum_effective_properties
+
+    results = run_project(load_project(paired(PROJECT_HEAD + PAIR + BOUNDED)), jobs=1,
+                          use_cache=False)
+    ids = ("a1", "a2")
+
+    def mean(run):
+        return np.mean([results.response("fps", r).peak_displacement_m if run == "nominal"
+                        else results.bounds[("fps", r)][run].peak_displacement_m
+                        for r in ids])
+    # Lower friction, larger displacement (ASCE/SEI 7-16 §17.2.8.4, from memory: the
+    # lower bound governs the displacement, the upper bound the forces).
+    assert mean("lower") > mean("nominal") > mean("upper")
+    check = next(c for c in results.checks if c.system_id == "fps")
+    assert check.governing_run == "lower"
+    assert check.demand == pytest.approx(mean("lower"), rel=1e-12)
+    # Effective properties at the run's mean displacement: the published formulas
+    # (sdofreport.core.isolation, checked by hand in tests/core/test_isolation.py).
+    effective = results.effective["fps"]
+    expected = pendulum_effective_properties(800e3, 2.2, 0.08 * 1.5, mean("upper"))
+    assert effective["upper"] == expected
+    doc = results_document(results)
+    fps = doc["systems"][0]
+    assert fps["property_factors"] == [0.6, 1.5]
+    assert set(fps["effective_properties"]) == {"nominal", "lower", "upper"}
+    assert set(fps["responses"][0]["bounds"]) == {"lower", "upper"}
+    assert fps["checks"][0]["governing_run"] == "lower"
+
+
+@pytest.mark.parametrize("extra, fragment", [
+    ("property_factors = [1.2, 1.5]", "0 < lower <= 1 <= upper"),
+    ("friction_slow = 0.03", "needs both friction_slow and friction_rate"),
+    ('friction_slow = 0.09\nfriction_rate = "20 s/m"', "expected at most friction"),
+])
+def test_bad_isolator_keys_name_the_key(paired, extra, fragment):
+    body = BOUNDED.replace("friction_slow = 0.05\nfriction_rate = \"25 s/m\"\n"
+                           "property_factors = [0.6, 1.5]\n", extra + "\n")
+    with pytest.raises(ProjectError) as info:
+        load_project(paired(PROJECT_HEAD + PAIR + body))
+    assert "systems[1]" in str(info.value) and fragment in str(info.value)

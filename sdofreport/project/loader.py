@@ -616,7 +616,8 @@ def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damp
     if kind == "sliding-pendulum":
         return {"model": "sliding-pendulum", "weight_n": values["weight"],
                 "radius_m": values["radius"], "friction": values["friction"],
-                "slip_displacement_m": values.get("slip_displacement", 0.25e-3), **extras}
+                "slip_displacement_m": values.get("slip_displacement", 0.25e-3), **extras,
+                **_isolator_keys(values, table, where, problems)}
     k_geo = pdelta["gravity_stiffness_n_m"] if pdelta else 0.0
     extras.update({"gravity_stiffness_n_m": k_geo,
                    "instability_limit_m": pdelta["height_m"] if pdelta else None})
@@ -658,6 +659,37 @@ def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damp
             **extras}
 
 
+def _isolator_keys(values: dict, table: dict, where: str, problems: _Problems) -> dict:
+    """Velocity-dependent friction and the property factors of a sliding pendulum (only
+    the keys given, so models without them keep their cache keys)."""
+    out: dict = {}
+    if ("friction_slow" in values) != ("friction_rate" in values):
+        problems.add(where, "velocity-dependent friction needs both friction_slow and "
+                     "friction_rate")
+    elif "friction_slow" in values:
+        if values["friction_slow"] > values["friction"]:
+            problems.add(f"{where}.friction_slow", f"expected at most friction (μ_fast = "
+                         f"{values['friction']:g}), found {values['friction_slow']:g}")
+        if "damper" in table:
+            problems.add(f"{where}.friction_slow", "velocity-dependent friction and a "
+                         "damper together are not supported; give one of them")
+        out.update(friction_slow=values["friction_slow"],
+                   friction_rate_s_m=values["friction_rate"])
+    if "property_factors" in table:
+        raw = table["property_factors"]
+        if not (isinstance(raw, list) and len(raw) == 2 and all(
+                isinstance(v, (int, float)) and not isinstance(v, bool) and
+                math.isfinite(v) for v in raw) and 0 < raw[0] <= 1 <= raw[1]):
+            problems.add(f"{where}.property_factors", f"expected [lower, upper] with "
+                         f"0 < lower <= 1 <= upper, found {raw!r}")
+        elif max(raw[1] * values["friction"], 0.0) >= 1.0:
+            problems.add(f"{where}.property_factors", f"the upper-bound friction "
+                         f"{raw[1]:g} × {values['friction']:g} is not below 1")
+        else:
+            out["property_factors"] = [float(raw[0]), float(raw[1])]
+    return out
+
+
 def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
     spec = SECTIONS["systems[]"]
     _check_unknown(table, "systems[]", where, problems)
@@ -682,8 +714,8 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
         if key == "network":
             values[key] = _network_to_si(table[key], f"{where}.network", problems)
             continue
-        if key == "damper":
-            continue  # read by _damper below
+        if key in ("damper", "property_factors"):
+            continue  # read by _damper and _isolator_keys
         if key in HYSTERESIS_PARAMETER_KEYS:
             value = _read_value(table, spec[key], where, problems)
             if value is not None:

@@ -76,7 +76,9 @@ SYSTEM_KIND_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "springs": (("network", "mass"), _HYSTERETIC_KEYS),
     "static-deflection": (("weight", "deflection"), ()),
     "sliding-pendulum": (("weight", "radius", "friction"), ("slip_displacement",
-                                                            "damper")),
+                                                            "damper", "friction_slow",
+                                                            "friction_rate",
+                                                            "property_factors")),
     "hanging": (("mass", "pivot_inertia", "pivot_to_centre"), ()),
 }
 
@@ -319,6 +321,18 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "before sliding, which regularises friction (default 0.25 mm: common "
                 "practice, no source).", dimension="length", default=0.25e-3,
                 example='"0.25 mm"'),
+        KeySpec("friction_slow", "ratio", "sliding-pendulum: friction coefficient at "
+                "very low sliding speed μ_slow; with it friction depends on the speed, "
+                "μ = μ_fast − (μ_fast − μ_slow)·exp(−a|v|) with μ_fast = friction "
+                "(Constantinou, Mokha & Reinhorn 1990). Needs friction_rate.",
+                example="0.03"),
+        KeySpec("friction_rate", "quantity", "sliding-pendulum: rate parameter a of the "
+                "velocity-dependent friction (for example \"20 s/m\").",
+                dimension="slowness", example='"20 s/m"'),
+        KeySpec("property_factors", "list", "sliding-pendulum: [lower, upper] factors on "
+                "the friction coefficients for the lower- and upper-bound analyses beside "
+                "the nominal one; each check takes the governing run (ASCE/SEI 7-16 "
+                "§17.2.8.4, from memory).", example="[0.8, 1.3]"),
         KeySpec("pivot_inertia", "quantity", "hanging: moment of inertia about the pivot.",
                 dimension="inertia", example='"2400 kg*m**2"'),
         KeySpec("pivot_to_centre", "quantity", "hanging: distance from the pivot to the "
