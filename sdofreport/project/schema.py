@@ -218,8 +218,10 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("period_range", "list", "Period range of the scaling: a named option, "
                 "\"governing-period\" (0.2 T to 2 T of period) or \"every-system\" "
                 "(0.2 × the shortest to 2 × the longest system period), or explicit "
-                "[low, high] in s. Default: governing-period when period is given, "
-                "otherwise every-system.", example='"every-system"'),
+                "[low, high] in s; with rule asce7-16 also \"isolated-system\" (0.75 T_M "
+                "to 1.25 T_M, T_M = period, ASCE/SEI 7-16 §17.3.3, from memory). Default: "
+                "governing-period when period is given, otherwise every-system.",
+                example='"every-system"'),
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
     ),
