@@ -935,9 +935,8 @@ def _isolation_rows(system, results, d) -> list[dict]:
                               " peak displacement: lower "
                               f"{peaks['lower']}, upper {peaks['upper']}"})
     for run, e in results.effective.get(system.id, {}).items():
-        rows.append({"name": f"Effective period and damping ({run})",
-                     "value": f"T_eff = {number(e.period_s)} s, β_eff = "
-                              f"{100 * e.damping:.3g} %",
+        rows.append({"name": f"Effective period T_eff, damping β_eff ({run})",
+                     "value": f"{number(e.period_s)} s, {100 * e.damping:.3g} %",
                      "basis": f"at D = {d.show(e.displacement_m, 'length')} "
                               f"({STATISTIC_TEXT[results.statistic]} peak): k_eff = W/R + "
                               "μW/D, T_eff = 2π√(W/(g k_eff)), β_eff = (2/π)·μ/(μ + D/R) "
