@@ -408,9 +408,10 @@ def _statistic(values: list[float], statistic: str) -> float:
 def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
     checks = []
     for system in project.systems:
+        records = project.records_for(system)
         for quantity, limit in system.limits.items():
             peaks = [getattr(responses[(system.id, r.id)], CHECK_ATTRIBUTES[quantity])
-                     for r in project.records]
+                     for r in records]
             peaks = [p for p in peaks if p is not None]
             if not peaks:
                 continue
@@ -418,7 +419,7 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
             demand = _statistic([abs(p) for p in peaks], statistic)
             ratio = demand / limit
             verdict = VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS
-            if any(responses[(system.id, r.id)].unstable for r in project.records):
+            if any(responses[(system.id, r.id)].unstable for r in records):
                 verdict = VERDICT_UNSTABLE  # the demand of a runaway record means nothing
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
                                 verdict, absolute))
@@ -579,8 +580,11 @@ def run_project(project: Project, *, jobs: int | None = None,
     plan = []
     runs = list(project.systems) + _bound_systems(project)
     one_d = [s for s in runs if s.directions == 1]
-    models = [{**system_model(system), "system_id": system.id} for system in one_d]
+    driven = {spec.id: [s for s in one_d if (s.direction == "vertical") ==
+                        (spec.component == "V")] for spec in project.records}
     for record in (scaled[r.id] for r in project.records):
+        models = [{**system_model(system), "system_id": system.id}
+                  for system in driven[record.id]]
         args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
         key = cache_key({**base, "job": "responses", "sha": _array_hash(args[0]),
                             "dt": record.dt_s, "models": models})
@@ -611,7 +615,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     for spec, group in zip(project.records, outputs[:len(project.records)]):
         record = scaled[spec.id]
         time_s = np.arange(record.npts) * record.dt_s
-        for system, raw in zip(one_d, group):
+        for system, raw in zip(driven[spec.id], group):
             if raw["model"] == "linear":  # linear jobs send no time axis: it is n · dt
                 raw = {**raw, "time_s": time_s}
             responses[(system.id, spec.id)] = _biaxial_result(system, spec.id, 0, raw) \
@@ -700,7 +704,7 @@ def _effective_properties(project: Project, responses: dict, bounds: dict,
         for run, factor in [("nominal", 1.0), *factors.items()]:
             peaks = [(responses[(system.id, r.id)] if run == "nominal" else
                       bounds[(system.id, r.id)][run]).peak_displacement_m
-                     for r in project.records]
+                     for r in project.records_for(system)]
             demand = _statistic(peaks, statistic)
             if demand > 0:
                 runs[run] = pendulum_effective_properties(

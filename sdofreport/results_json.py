@@ -87,7 +87,7 @@ def results_document(results: Results) -> dict:
     systems = []
     for system in project.systems:
         responses = []
-        for spec in project.records:
+        for spec in project.records_for(system):
             response = results.response(system.id, spec.id)
             entry = {
                 "record": spec.id,
@@ -297,7 +297,7 @@ PEAKS_CSV_HEADER = ["system", "record", "peak_displacement_m", "peak_drift_ratio
 def peaks_csv(results: Results) -> str:
     rows: list[list] = [PEAKS_CSV_HEADER]
     for system in results.project.systems:
-        for spec in results.project.records:
+        for spec in results.project.records_for(system):
             r = results.response(system.id, spec.id)
             rows.append([system.id, spec.id, r.peak_displacement_m,
                          "" if r.peak_drift_ratio is None else r.peak_drift_ratio,

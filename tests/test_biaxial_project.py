@@ -176,3 +176,64 @@ def test_bad_isolator_keys_name_the_key(paired, extra, fragment):
     with pytest.raises(ProjectError) as info:
         load_project(paired(PROJECT_HEAD + PAIR + body))
     assert "systems[1]" in str(info.value) and fragment in str(info.value)
+
+
+VERTICAL = """\
+[[records]]
+id = "v1"
+file = "records/r3.csv"
+component = "V"
+
+[[systems]]
+id = "chiller"
+name = "Chiller on springs"
+direction = "vertical"
+damping = 0.03
+mass = "4 t"
+period = "0.2 s"
+[systems.limits]
+displacement = "10 mm"
+
+[[systems]]
+id = "flat"
+name = "Horizontal system"
+damping = 0.05
+mass = "100 t"
+period = "0.5 s"
+[systems.limits]
+displacement = "100 mm"
+"""
+
+
+def test_vertical_systems_see_vertical_records_only(paired):
+    from sdofreport.core.spectra import response_spectrum
+
+    project = load_project(paired(PROJECT_HEAD + PAIR + VERTICAL))
+    chiller, flat = project.systems
+    assert [r.id for r in project.records_for(chiller)] == ["v1"]
+    assert [r.id for r in project.records_for(flat)] == ["a1", "a2"]
+    assert project.motions_counted == 1  # the pair; a vertical record is no motion
+    results = run_project(project, jobs=1, use_cache=False)
+    check = next(c for c in results.checks if c.system_id == "chiller")
+    # The vertical system's demand is its spectral displacement under v1 alone (linear
+    # SDOF, the record's own spectrum).
+    acc = synthetic_acceleration(13)
+    sd = response_spectrum(acc, 0.01, np.array([0.2]), np.array([0.03])).sd_m[0, 0]
+    assert check.demand == pytest.approx(sd, rel=1e-6)
+    doc = results_document(results)
+    chiller_doc = next(s for s in doc["systems"] if s["id"] == "chiller")
+    assert [r["record"] for r in chiller_doc["responses"]] == ["v1"]
+
+
+@pytest.mark.parametrize("text, fragment", [
+    (PAIR.replace('component = "H2"', 'component = "V"'), "a vertical record "),
+    (PAIR + VERTICAL.split("[[systems]]")[0] + TWO_D.replace(
+        'period = "0.5 s"\ndirections = 2', 'period = "0.5 s"\ndirections = 2\n'
+        'direction = "vertical"', 1), "applies to horizontal systems"),
+    (PAIR + "[[systems]]" + VERTICAL.split("[[systems]]")[1], "the suite has none"),
+])
+def test_bad_vertical_inputs_exit_2(paired, text, fragment):
+    with pytest.raises(ProjectError) as info:
+        load_project(paired(PROJECT_HEAD + text + ("" if "[[systems]]" in text else
+                                                   TWO_D)))
+    assert fragment in str(info.value)

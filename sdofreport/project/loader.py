@@ -396,7 +396,10 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
                                problems, processing)
         pair = _read_value(table, spec["pair"], where, problems)
         component = _read_value(table, spec["component"], where, problems)
-        if ("pair" in table) != ("component" in table):
+        if component == "V" and "pair" in table:
+            problems.add(f"{where}.pair", "a vertical record (component = \"V\") stands "
+                         "alone: give no pair")
+        elif ("pair" in table) != ("component" in table) and component != "V":
             problems.add(where, "a paired record needs both pair and component "
                          "(H1 or H2)")
         path = _input_file(root, file, f"{where}.file", problems) if file else None
@@ -446,7 +449,8 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
                   values["residual_displacement"], values["bearing_displacement"])
 
 
-_COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits", "directions")
+_COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits", "directions",
+                       "direction")
 
 
 def _network_to_si(node, path: str, problems: _Problems):
@@ -773,9 +777,13 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
         model = {"model": "linear", "participation": gamma}
     inputs = {k: v for k, v in values.items() if not k.startswith("_")}
     directions = _read_directions(table, kind, model, where, problems)
+    direction = _read_value(table, spec["direction"], where, problems) or "horizontal"
+    if direction == "vertical" and directions == 2:
+        problems.add(f"{where}.directions", "directions = 2 applies to horizontal "
+                     "systems; this system has direction = \"vertical\"")
     return SystemSpec(system_id, name, damping, derived.period_s, mass, stiffness, height,
                       limits, tuple(derived.derivation), kind, model, inputs, pdelta,
-                      directions)
+                      directions, direction)
 
 
 def _read_directions(table: dict, kind: str, model, where: str, problems: _Problems) -> int:
@@ -799,10 +807,21 @@ def _read_directions(table: dict, kind: str, model, where: str, problems: _Probl
     return 2
 
 
+def _check_directions_have_records(records: list, systems: list,
+                                   problems: _Problems) -> None:
+    """Every system has records of its direction (vertical: component V)."""
+    for system in systems:
+        vertical = system.direction == "vertical"
+        wanted = 'vertical (component = "V")' if vertical else "horizontal"
+        if records and not any((r.component == "V") == vertical for r in records):
+            problems.add(f"systems {system.id}", f"direction = {system.direction!r} needs "
+                         f"{wanted} records; the suite has none")
+
+
 def _check_two_directions(records: list, systems: list, problems: _Problems) -> None:
     """A system with ``directions = 2`` needs every record in a horizontal pair."""
     two = [s.id for s in systems if s.directions == 2]
-    lone = [r.id for r in records if not r.pair]
+    lone = [r.id for r in records if not r.pair and r.component != "V"]
     if two and (lone or not records):
         problems.add(f"systems {', '.join(two)}", "directions = 2 needs every record in "
                      "a horizontal pair (pair and component H1/H2); unpaired: "
@@ -1110,6 +1129,7 @@ def load_project(path) -> Project:
                               synthetic.dt_s, 1.0, processing)
                    for i in range(synthetic.count)]
     _check_two_directions(records, systems, problems)
+    _check_directions_have_records(records, systems, problems)
     save_memo()  # unit strings pint converted, so the next read need not import it
     if problems.items:
         raise ProjectError(format_problems(shown, problems.items))

@@ -36,7 +36,7 @@ PERIOD_RANGE_OPTIONS = tuple(o.name for o in GENERIC_PERIOD_RANGES)
 ASCE7_16_LEVEL_CHOICES = tuple(ASCE7_16_LEVELS)
 
 #: Components of a horizontal pair.
-COMPONENTS = ("H1", "H2")
+COMPONENTS = ("H1", "H2", "V")
 
 #: Design-spectrum keys of the project file per kind: TOML key -> core parameter name.
 DESIGN_SPECTRUM_KEYS: dict[str, dict[str, str]] = {
@@ -275,7 +275,10 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 example="{ baseline_order = 1 }"),
         KeySpec("pair", "text", "Name of the horizontal pair this record belongs to "
                 "(two records share it, one H1 and one H2).", example='"p1"'),
-        KeySpec("component", "choice", "Component of the pair.", choices=COMPONENTS,
+        KeySpec("component", "choice", "Component: H1 or H2 of a horizontal pair (with "
+                "pair), or V for a vertical record (without pair; not scaled by the "
+                "suite rule, drives only systems with direction = \"vertical\").",
+                choices=COMPONENTS,
                 example='"H1"'),
     ),
     "records[].processing": _PROCESSING_KEYS,
@@ -377,6 +380,11 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "coefficient C (a number in N·(s/m)^α or text with units, e.g. "
                 "\"120 kN*s/m\") and exponent α (0 < α <= 2; 1 is linear).",
                 example='{ coefficient = "40 kN*(s/m)**0.5", exponent = 0.5 }'),
+        KeySpec("direction", "choice", "horizontal (driven by the horizontal records) "
+                "or vertical (for example equipment on springs or a hanging item moving "
+                "up and down: driven by the component = \"V\" records only).",
+                default="horizontal", choices=("horizontal", "vertical"),
+                example='"vertical"'),
         KeySpec("directions", "integer", "1: each record drives its own one-direction "
                 "oscillator; 2: each horizontal pair drives one isotropic oscillator in "
                 "both directions and the peaks are of the resultant (needs every record "

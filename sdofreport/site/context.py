@@ -216,7 +216,7 @@ class SiteContext:
         systems = []
         for s in self.project.systems:
             peaks = [results.response(s.id, r.id).peak_displacement_m
-                     for r in self.project.records]
+                     for r in self.project.records_for(s)]
             demand = float(np.mean(peaks)) if results.statistic == "mean" else max(peaks)
             systems.append({"id": s.id, "name": s.name, "file": page_name(s.id),
                             "period": f"{number(s.period_s)} s",
@@ -552,7 +552,8 @@ class SiteContext:
         nonlinear = system.model_name != "linear"
         checks = [c for c in results.checks if c.system_id == system.id]
         peaks, histories, energies = [], [], []
-        responses = [results.response(system.id, r.id) for r in self.project.records]
+        responses = [results.response(system.id, r.id)
+                     for r in self.project.records_for(system)]
         for response in responses:
             rid = response.record_id
             row = {"record": rid, "file_html": page_name(rid), "summary": False,
@@ -924,7 +925,7 @@ def _isolation_rows(system, results, d) -> list[dict]:
         peaks = {}
         for run in ("lower", "upper"):
             values = [results.bounds[(system.id, r.id)][run].peak_displacement_m
-                      for r in results.project.records]
+                      for r in results.project.records_for(system)]
             reduce = np.mean if results.statistic == "mean" else np.max
             peaks[run] = d.show(float(reduce(values)), "length")
         rows.append({"name": "Property factors (lower, upper)",
