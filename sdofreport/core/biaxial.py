@@ -261,16 +261,11 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
     npts = ag.shape[1]
     q = p.copy()
     out = np.zeros(7)
-    u = np.zeros(2)
-    v = np.zeros(2)
-    a = np.zeros(2)
-    f = np.zeros(2)
-    up = np.zeros(2)
-    tu = np.zeros(2)
-    tv = np.zeros(2)
-    ta = np.zeros(2)
-    tf = np.zeros(2)
-    tup = np.zeros(2)
+    # committed state and the state of the attempt: rows u, v, ü, F, u_p; columns 1, 2
+    state = np.zeros((5, 2))
+    trial = np.zeros((5, 2))
+    u, v, a, f, up = state[0], state[1], state[2], state[3], state[4]
+    tu, tv, ta, tf, tup = trial[0], trial[1], trial[2], trial[3], trial[4]
     a[0] = -ag[0, 0]
     a[1] = -ag[1, 0]
     e_in = 0.0
@@ -289,12 +284,7 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
         n_try = n_sub
         for attempt in range(max_halvings + 1):
             last = attempt == max_halvings
-            for d in range(2):
-                tu[d] = u[d]
-                tv[d] = v[d]
-                ta[d] = a[d]
-                tf[d] = f[d]
-                tup[d] = up[d]
+            trial[:, :] = state
             t_in = e_in
             t_d = e_d
             t_f = e_f
@@ -365,12 +355,7 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
                     n_split += 1
                 if not ok:
                     all_ok = 0
-                for d in range(2):
-                    u[d] = tu[d]
-                    v[d] = tv[d]
-                    a[d] = ta[d]
-                    f[d] = tf[d]
-                    up[d] = tup[d]
+                state[:, :] = trial
                 e_in = t_in
                 e_d = t_d
                 e_f = t_f
