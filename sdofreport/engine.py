@@ -30,6 +30,13 @@ import numpy as np
 
 from sdofreport import __version__
 from sdofreport.cache import ResultCache, cache_key, default_cache_dir
+from sdofreport.core.fragility import (
+    FITTED,
+    Fragility,
+    demand_statistics,
+    exceedance_probability,
+    fit_fragility,
+)
 from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
@@ -130,8 +137,23 @@ class Check:
     verdict: str  # VERDICT_WITHIN | VERDICT_EXCEEDS | VERDICT_UNSTABLE
     #: True when the statistic is of absolute values (|residual displacement|, ...)
     absolute: bool = False
+    #: mean, median, p84, beta, min, max of the per-record peaks (SI; beta [-]), see
+    #: sdofreport.core.fragility.demand_statistics; ``statistic`` names the governing one
+    statistics: dict = field(default_factory=dict)
     #: with property_factors: the run whose demand governs (nominal, lower or upper)
     governing_run: str | None = None
+
+
+@dataclass(frozen=True)
+class FragilityResult:
+    """Multiple-stripe fragility of one limit of one system (Baker 2015)."""
+
+    system_id: str
+    quantity: str
+    measure: str  # "sa" (at the system's period and damping) or "pga"
+    fit: Fragility  # levels and median in g
+    design_level_g: float | None = None
+    design_probability: float | None = None  # P(exceed | design level) [-]
 
 
 @dataclass
@@ -147,6 +169,7 @@ class Results:
     timings_s: dict[str, float] = field(default_factory=dict)
     cache_hits: int = 0
     cache_misses: int = 0
+    fragility: list[FragilityResult] = field(default_factory=list)
     #: (system id, record id) -> {"lower": ResponseResult, "upper": ResponseResult} for
     #: systems with property_factors (the nominal run is in ``responses``)
     bounds: dict = field(default_factory=dict)
@@ -422,7 +445,7 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
             if any(responses[(system.id, r.id)].unstable for r in records):
                 verdict = VERDICT_UNSTABLE  # the demand of a runaway record means nothing
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
-                                verdict, absolute))
+                                verdict, absolute, demand_statistics(np.abs(peaks))))
     return checks
 
 
@@ -593,10 +616,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     inelastic_spec = project.inelastic
     if inelastic_spec is not None:
         for record in (scaled[r.id] for r in project.records):
-            args = (record.acceleration_m_s2, record.dt_s, inelastic_spec.periods_s,
-                    inelastic_spec.damping, inelastic_spec.ductility,
-                    inelastic_spec.strength_reduction, inelastic_spec.post_yield_ratio,
-                    inelastic_spec.steps_per_period)
+            args = _inelastic_args(record, inelastic_spec)
             key = cache_key({**base, "job": "inelastic", "sha": _array_hash(args[0]),
                                 "dt": record.dt_s, "spec": dataclasses.asdict(
                                     inelastic_spec)})
@@ -604,9 +624,14 @@ def run_project(project: Project, *, jobs: int | None = None,
                          key))
     two_d = [s for s in runs if s.directions == 2]
     biaxial_plan = _biaxial_plan(project, two_d, scaled, base)
-    outputs = phase.run(plan + biaxial_plan)
-    biaxial_outputs = outputs[len(plan):]
-    outputs = outputs[:len(plan)]
+    stripes = _stripe_plan(project, scaled, base)
+    phase.total += len(stripes)
+    plan += stripes + biaxial_plan
+    outputs = phase.run(plan)
+    biaxial_outputs = outputs[len(plan) - len(biaxial_plan):]
+    stripe_outputs = outputs[len(plan) - len(biaxial_plan) - len(stripes):
+                             len(plan) - len(biaxial_plan)]
+    outputs = outputs[:len(plan) - len(biaxial_plan) - len(stripes)]
     inelastic = {}
     if inelastic_spec is not None:
         tail = outputs[len(project.records):]
@@ -632,6 +657,7 @@ def run_project(project: Project, *, jobs: int | None = None,
                    pair_results, inelastic,
                    {"read_s": read_time, "compute_s": phase.seconds,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses,
+                   _fragility_results(project, stripe_outputs),
                    bounds=bounds,
                    effective=_effective_properties(project, responses, bounds, statistic))
 
@@ -732,6 +758,85 @@ def _biaxial_plan(project: Project, systems: list, scaled: dict, base: dict) -> 
     return plan
 
 
+# ---------------------------------------------------------------------------------------
+# Multiple-stripe fragility (optional [fragility] section)
+
+
+def _fragility_systems(project: Project) -> list[SystemSpec]:
+    spec = project.fragility
+    return [] if spec is None else [s for s in project.systems if s.id in spec.systems]
+
+
+def _stripe_plan(project: Project, scaled: dict[str, Record], base: dict) -> list:
+    """One ``stripe`` job per fragility system and level: the scaled suite, each record
+    scaled again so its measure equals the level (sdofreport.jobs.stripe_job)."""
+    spec = project.fragility
+    plan = []
+    records = [scaled[r.id] for r in project.records]
+    accelerations = tuple(r.acceleration_m_s2 for r in records)
+    dts = tuple(r.dt_s for r in records)
+    shas = [_array_hash(a) for a in accelerations] if spec is not None else []
+    for system in _fragility_systems(project):
+        model = {**system_model(system), "system_id": system.id}
+        for level in spec.levels_g:
+            args = (accelerations, dts, model, project.analysis.method, spec.measure,
+                    level * G)
+            key = cache_key({**base, "job": "stripe", "shas": shas, "dts": list(dts),
+                             "model": model, "measure": spec.measure, "level_g": level})
+            plan.append((f"system {system.id} at {spec.measure} = {level:g} g (stripe)",
+                         "stripe", args, key))
+    return plan
+
+
+def run_exceeds(response: ResponseResult, quantity: str, limit: float) -> bool:
+    """Whether one run exceeds a limit. A run that became unstable (the ``unstable``
+    verdict of the checks), or did not give a finite number, exceeds every limit."""
+    value = getattr(response, CHECK_ATTRIBUTES[quantity])
+    if response.unstable or value is None or not np.isfinite(value):
+        return True
+    return abs(value) > limit
+
+
+def _design_level_g(project: Project, system: SystemSpec) -> float | None:
+    """The level at which P(exceed) is stated: [fragility] design_level, else the target
+    spectrum at the system's period (``sa``) or at T = 0 (``pga``), else None."""
+    spec = project.fragility
+    if spec.design_level_g is not None:
+        return spec.design_level_g
+    if project.design_spectrum is None:
+        return None
+    period = system.period_s if spec.measure == "sa" else 0.0
+    value = float(np.asarray(project.design_spectrum.spectrum().sa_g(
+        np.array([period]))).ravel()[0])
+    return value if np.isfinite(value) and value > 0 else None
+
+
+def _fragility_results(project: Project, outputs: list) -> list[FragilityResult]:
+    """Counts of exceeding runs per level and limit, and their lognormal fit."""
+    spec = project.fragility
+    results, position = [], 0
+    for system in _fragility_systems(project):
+        stripes = outputs[position:position + len(spec.levels_g)]
+        position += len(spec.levels_g)
+        responses = [[_response_result(system, r.id, {**raw, "time_s": np.zeros(0)}
+                                       if raw["model"] == "linear" else raw)
+                      for r, raw in zip(project.records, stripe["runs"])]
+                     for stripe in stripes]
+        design = _design_level_g(project, system)
+        for quantity, limit in system.limits.items():
+            if getattr(responses[0][0], CHECK_ATTRIBUTES[quantity]) is None:
+                continue
+            exceeding = [sum(run_exceeds(r, quantity, limit) for r in runs)
+                         for runs in responses]
+            fit = fit_fragility(spec.levels_g, exceeding, [len(r) for r in responses])
+            probability = None
+            if fit.status == FITTED and design is not None:
+                probability = exceedance_probability(design, fit.median, fit.beta)
+            results.append(FragilityResult(system.id, quantity, spec.measure, fit, design,
+                                           probability))
+    return results
+
+
 def _record_args(record: Record, analysis, damping=None) -> tuple:
     """Arguments of a record job (see sdofreport.jobs), for the plan and the warm-up."""
     return (record.acceleration_m_s2, record.dt_s, analysis.periods_s,
@@ -747,29 +852,76 @@ def _spectrum_at(spectrum: ResponseSpectrum, damping) -> ResponseSpectrum:
                                **{n: np.asarray(getattr(spectrum, n))[rows] for n in names})
 
 
+def _inelastic_args(record: Record, spec) -> tuple:
+    """Arguments of an inelastic-spectra job, for the plan and the warm-up."""
+    return (record.acceleration_m_s2, record.dt_s, spec.periods_s, spec.damping,
+            spec.ductility, spec.strength_reduction, spec.post_yield_ratio,
+            spec.steps_per_period)
+
+
 # ---------------------------------------------------------------------------------------
 # Loading the compiled kernels while the records are read
 
 
-def warm_kernels(project: Project) -> None:
-    """
-    Load numba and the compiled kernels of the record jobs (response spectra) of
-    ``project``, by running one on a very short made-up record (32 steps of 0.01 s of a
-    decaying 5 Hz sine: the kernels' types, not the record, decide what is loaded) and
-    discarding the output. That first kernel call carries the one-off costs, about a
-    second: importing numba, setting up its type registry, loading machine code from
-    its cache. Afterwards the record jobs run at full speed here and in workers forked
-    from here; other job kinds load their few extra kernels when they first run.
-    """
+def _made_up_record() -> Record:
+    """A very short made-up record for the warm-ups: 32 steps of 0.01 s of a decaying
+    5 Hz sine (the kernels' argument types, not the record, decide what is compiled)."""
     from sdofreport.records import record_from_array
 
     time_s = np.arange(32) * 0.01
-    made_up = record_from_array(0.5 * np.sin(10.0 * np.pi * time_s) * np.exp(-5.0 * time_s),
-                                0.01, record_id="warm-up")
+    return record_from_array(0.5 * np.sin(10.0 * np.pi * time_s) * np.exp(-5.0 * time_s),
+                             0.01, record_id="warm-up")
+
+
+def warm_kernels(project: Project) -> None:
+    """
+    Load numba and the compiled kernels of the linear path of ``project`` — the record
+    jobs' (response spectra: the peak kernel, the exact method's coefficients) and the
+    response-history kernel (pairs and linear systems) — by running them on made-up
+    input (:func:`_made_up_record`) and discarding the output. The first kernel call
+    carries the one-off costs, about a second: importing numba, setting up its type
+    registry, loading machine code from its cache (or, on a fresh machine, compiling
+    it: several seconds). Afterwards the record jobs run at full speed here and in
+    workers forked from here; the nonlinear kernels come from
+    :func:`warm_later_kernels`, run meanwhile in another process, or are loaded when
+    they first run.
+    """
+    from sdofreport.core.spectra import load_history_kernel, load_peak_kernel
+
     try:
-        run_job("record", _record_args(made_up, project.analysis))
+        load_peak_kernel()
+        run_job("record", _record_args(_made_up_record(), project.analysis))
+        if _pairs(project) or any(system_model(system)["model"] == "linear"
+                                  for system in project.systems):
+            load_history_kernel()
     except Exception as exc:  # only a warm-up: the real jobs report any problem
         log.debug("warm-up stopped: %s", exc)
+
+
+def warm_later_kernels(project: Project) -> None:
+    """
+    Compile, or load, the nonlinear kernels ``project`` needs: the inelastic-spectrum
+    kernels (an ``[inelastic_spectra]`` table; first, the costliest to compile) and the
+    hysteresis kernels (nonlinear systems), by running those jobs on a made-up record
+    while :func:`warm_kernels` compiles the linear path in another process; only what
+    the project uses. Compiled kernels go to numba's cache on disk, where the build
+    process and its workers load them in milliseconds.
+    """
+    record = _made_up_record()
+    steps = []
+    if project.inelastic is not None:
+        steps.append(lambda: run_job("inelastic", _inelastic_args(record,
+                                                                  project.inelastic)))
+    nonlinear = [model for model in map(system_model, project.systems)
+                 if model["model"] != "linear"]
+    if nonlinear:
+        steps.append(lambda: run_job("responses", (record.acceleration_m_s2, record.dt_s,
+                                                    nonlinear, project.analysis.method)))
+    for step in steps:
+        try:
+            step()
+        except Exception as exc:  # only a warm-up: the real jobs report any problem
+            log.debug("warm-up of later kernels stopped: %s", exc)
 
 
 def _probably_cold(project: Project, cache: ResultCache) -> bool:
@@ -796,11 +948,18 @@ def _read_inherited() -> list[Record]:
     return load_records(project, cache)
 
 
+def _warm_inherited() -> None:
+    warm_later_kernels(_TO_READ[0])
+
+
 def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]:
     """
     :func:`load_records` in a forked process while this one runs :func:`warm_kernels`:
     the two one-off costs of a build that computes overlap. The records (and any error
-    about them) are the same as read here; if the reader dies, they are read here.
+    about them) are the same as read here; if the reader dies, they are read here. The
+    forked process then runs :func:`warm_later_kernels`, and this one waits for it, so
+    on a fresh machine the nonlinear kernels are compiled beside the linear ones rather
+    than after them.
     """
     from concurrent.futures.process import BrokenProcessPool
 
@@ -809,12 +968,16 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
     try:
         with local_pool(1) as pool:
             future = pool.submit(_read_inherited)
+            later = pool.submit(_warm_inherited)  # after the reading, in that process
             warm_kernels(project)
             try:
                 records = future.result()
             except (BrokenProcessPool, OSError) as exc:
                 log.debug("record reader lost (%s); reading here", exc)
                 records = None
+            except BaseException:
+                later.cancel()  # a bad record ends the build: no warm-up is needed
+                raise
     finally:
         _TO_READ = (None, None)
     if records is None:
@@ -851,7 +1014,8 @@ def _scaled_rotd(rotd, factor: float):
                                         for n in names})
 
 
-__all__ = ["Check", "PairResult", "RecordResult", "ResponseResult", "Results",
+__all__ = ["Check", "FragilityResult", "PairResult", "RecordResult", "ResponseResult",
+           "Results",
            "run_project", "load_records", "default_cache_dir", "ResultCache",
            "VERDICT_WITHIN", "VERDICT_EXCEEDS", "VERDICT_UNSTABLE", "CHECK_ATTRIBUTES",
            "G"]

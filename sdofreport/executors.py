@@ -163,8 +163,9 @@ def run_dask(jobs: list[Job], done: Done, *, scheduler: str | None = None,
     try:
         from distributed import Client, LocalCluster, as_completed as dask_completed
     except ImportError:
-        raise BuildError("the Dask path needs the optional extra: "
-                         "pip install 'sdofreport[dask]'") from None
+        raise BuildError("the Dask path needs Dask's distributed scheduler, the optional "
+                         "extra 'dask' of sdofreport: python -m pip install "
+                         "'dask[distributed]>=2024.1'") from None
     if not log.isEnabledFor(logging.DEBUG):  # Dask's own chatter only with -v
         for name in ("distributed", "bokeh", "tornado"):
             logging.getLogger(name).setLevel(logging.WARNING)

@@ -4,12 +4,15 @@
   amplitude and response spectra of one record;
 * :func:`pair_job` — RotD50/RotD100, geometric-mean and SRSS spectra of a horizontal pair
   (Boore 2010);
-* :func:`responses_job` — the response histories of every system to one record.
+* :func:`responses_job` — the response histories of every system to one record;
+* :func:`stripe_job` — one stripe of a multiple-stripe fragility analysis (peaks only).
 
 They are top-level functions so a process pool or a Dask cluster can pickle them.
 """
 
 from __future__ import annotations
+
+import dataclasses
 
 import numpy as np
 
@@ -217,8 +220,57 @@ def biaxial_job(acc_h1, acc_h2, dt_s, models: list, method: str) -> list:
     return outputs
 
 
+
+def stripe_intensity(acceleration, dt_s, model: dict, measure: str, method: str) -> float:
+    """A record's intensity measure for the fragility stripes [m/s²]: ``sa``, the
+    pseudo-spectral acceleration ω²·SD at the system's period and damping, or ``pga``."""
+    if measure == "pga":
+        return float(np.max(np.abs(acceleration)))
+    spectrum = response_spectrum(acceleration, dt_s, np.array([model["period_s"]]),
+                                 np.array([model["damping"]]), method=method)
+    return float(spectrum.psa_m_s2[0, 0])
+
+
+def _peaks_only(raw: dict) -> dict:
+    """A response job's output with its histories reduced to what the peaks need (the
+    stripes keep hundreds of runs: only their peaks are cached)."""
+    empty = np.zeros(0)
+    if raw["model"] == "linear":
+        return {**raw, "displacement_m": empty, "total_accel_m_s2": empty}
+    r = raw["response"]
+    return {**raw, "response": dataclasses.replace(
+        r, time_s=empty, displacement_m=empty, force_n=empty, energy_histories_j={},
+        velocity_m_s=np.array([np.max(np.abs(r.velocity_m_s), initial=0.0)]),
+        total_accel_m_s2=np.array([np.max(np.abs(r.total_accel_m_s2), initial=0.0)]))}
+
+
+def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
+               level_m_s2: float) -> dict:
+    """
+    One stripe of a multiple-stripe analysis: every record scaled so its intensity
+    measure (:func:`stripe_intensity`) equals ``level_m_s2``, and the system's response
+    to each (peaks only), in record order.
+    """
+    intensities, factors, runs = [], [], []
+    for acceleration, dt_s in zip(accelerations, dts):
+        im = stripe_intensity(acceleration, dt_s, model, measure, method)
+        if not im > 0:
+            raise ValueError(f"system {model.get('system_id')}: a record has no "
+                             f"{measure} ({im!r} m/s²) and cannot be scaled to a level")
+        factor = level_m_s2 / im
+        try:
+            raw = response_job(np.asarray(acceleration) * factor, dt_s, model, method)
+        except ValueError as exc:
+            raise ValueError(f"system {model.get('system_id')}: {exc}") from None
+        intensities.append(im)
+        factors.append(factor)
+        runs.append(_peaks_only(raw))
+    return {"intensity_m_s2": np.array(intensities), "factors": np.array(factors),
+            "runs": runs}
+
+
 JOBS = {"record": record_job, "pair": pair_job, "responses": responses_job,
-        "inelastic": inelastic_job, "biaxial": biaxial_job}
+        "inelastic": inelastic_job, "stripe": stripe_job, "biaxial": biaxial_job}
 
 
 def run_job(kind: str, args: tuple) -> dict:

@@ -10,6 +10,7 @@ import csv
 import io
 
 from sdofreport import __version__
+from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import Results
 from sdofreport.serialize import (
@@ -120,6 +121,9 @@ def results_document(results: Results) -> dict:
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
                    "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute,
+                   "basis": system.limits.basis_of(c.quantity),
+                   "statistics": statistics_block(c),
+                   **fragility_block(results, c),
                    **({"governing_run": c.governing_run} if c.governing_run else {})}
                   for c in results.checks if c.system_id == system.id]
         systems.append({
@@ -173,6 +177,29 @@ def _isolation_block(system, results) -> dict:
             "displacement_m": e.displacement_m, "stiffness_n_m": e.stiffness_n_m,
             "period_s": e.period_s, "damping": e.damping} for run, e in runs.items()}
     return block
+
+
+def statistics_block(check) -> dict:
+    """``checks[].statistics``: mean, median, p84, min, max (the check's SI unit) and
+    beta [-] of the per-record peaks; null where not defined."""
+    return {key: finite_or_none(value) if value is not None else None
+            for key, value in check.statistics.items()}
+
+
+def fragility_block(results: Results, check) -> dict:
+    """``checks[].fragility`` (only for the systems of ``[fragility]``): the stripes'
+    counts and the fitted lognormal curve; levels and median in ``unit`` (g)."""
+    found = next((f for f in results.fragility if (f.system_id, f.quantity) ==
+                  (check.system_id, check.quantity)), None)
+    if found is None:
+        return {}
+    fit = found.fit
+    return {"fragility": {
+        "measure": found.measure, "unit": "g", "status": fit.status,
+        "median": fit.median, "beta": fit.beta, "levels": list(fit.levels),
+        "exceeding": list(fit.exceeding), "motions": list(fit.motions),
+        "design_level": found.design_level_g,
+        "design_probability": found.design_probability}}
 
 
 def _mechanics_block(system) -> dict:
@@ -303,4 +330,21 @@ def peaks_csv(results: Results) -> str:
                          "" if r.peak_drift_ratio is None else r.peak_drift_ratio,
                          "" if r.peak_base_shear_n is None else r.peak_base_shear_n,
                          r.peak_total_accel_m_s2 / G])
+    return _csv_text(rows)
+
+
+#: ``data/checks.csv`` columns: the check, its governing statistic, then every statistic.
+CHECKS_CSV_HEADER = ["system", "quantity", "unit", "limit", "demand", "governing_statistic",
+                     "ratio", "verdict", *STATISTIC_KEYS]
+
+
+def checks_csv(results: Results) -> str:
+    """``data/checks.csv``: one row per check, SI (``unit``; ``beta`` dimensionless)."""
+    rows: list[list] = [CHECKS_CSV_HEADER]
+    for c in results.checks:
+        statistics = statistics_block(c)
+        rows.append([c.system_id, c.quantity, CHECK_SI_UNITS[c.quantity], c.limit, c.demand,
+                     c.statistic, c.ratio, c.verdict,
+                     *("" if statistics.get(k) is None else statistics[k]
+                       for k in STATISTIC_KEYS)])
     return _csv_text(rows)

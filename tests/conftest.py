@@ -127,3 +127,65 @@ def process_alive(pid: int) -> bool:
             return handle.read().rsplit(")", 1)[1].split()[0] != "Z"
     except OSError:
         return False
+
+
+# ---------------------------------------------------------------------- the wheel
+#: Left out of the copy the wheel is built from: what a clean clone does not have.
+_NOT_SOURCES = (".git", "build", "dist", "*.egg-info", "__pycache__", "_site", "_artifacts",
+                ".pytest_cache", ".hypothesis", "*.nbi", "*.nbc")
+
+
+def run_checked(args, **kwargs):
+    """Run a command (arguments made strings); fail the test with its output if it fails."""
+    import subprocess
+
+    result = subprocess.run([str(a) for a in args], capture_output=True, text=True,
+                            check=False, **kwargs)
+    assert result.returncode == 0, f"{args}: {result.stdout[-3000:]}{result.stderr[-3000:]}"
+    return result
+
+
+@pytest.fixture(scope="session")
+def built_wheel(tmp_path_factory) -> Path:
+    """The wheel pip builds from a clean copy of the repository, as docs/ci.md says
+    (about 10 s: pip fetches the build backend into an isolated environment)."""
+    import shutil
+    import sys
+
+    root = tmp_path_factory.mktemp("wheel")
+    source = root / "sdofreport-src"
+    shutil.copytree(EXAMPLE.parents[1], source, ignore=shutil.ignore_patterns(*_NOT_SOURCES))
+    run_checked([sys.executable, "-m", "pip", "wheel", "--no-deps", "-q", "-w",
+                 root / "dist", source])
+    (wheel,) = (root / "dist").glob("sdofreport-*.whl")
+    return wheel
+
+
+def fresh_venv(folder: Path) -> tuple[Path, dict]:
+    """
+    A new virtual environment in ``folder`` that sees the installed dependencies
+    (``--system-site-packages``, so nothing is downloaded) but holds no sdofreport of its
+    own; returns (its scripts folder, environment variables with that folder first on
+    PATH and no PYTHONPATH, so the checkout is not importable from outside it).
+    """
+    import sys
+
+    run_checked([sys.executable, "-m", "venv", "--system-site-packages", folder])
+    scripts = folder / ("Scripts" if os.name == "nt" else "bin")
+    if sys.prefix != sys.base_prefix:
+        # Run from inside a virtual environment, whose packages --system-site-packages
+        # does not reach: list its folders after the new environment's own (a .pth file
+        # only extends sys.path; the .pth files in those folders, such as an editable
+        # install's, are not run).
+        import site
+
+        purelib = run_checked([scripts / "python", "-c",
+                               "import sysconfig; print(sysconfig.get_path('purelib'))"])
+        Path(purelib.stdout.strip(), "_test_parent_packages.pth").write_text(
+            "\n".join(site.getsitepackages()) + "\n", encoding="utf-8")
+    # Not inherited either: numba settings this test process made for itself
+    # (sdofreport.core._jit sets NUMBA_CACHE_DIR when it is imported).
+    env = {k: v for k, v in os.environ.items()
+           if k not in ("PYTHONPATH", "PYTHONHOME") and not k.startswith("NUMBA_")}
+    env["PATH"] = f"{scripts}{os.pathsep}{env.get('PATH', '')}"
+    return scripts, env

@@ -205,3 +205,22 @@ def test_display_units_us_on_pages_and_si_in_json(project_factory, valid_project
     # Definition: 1 in = 0.0254 m; the 50 mm limit is 1.969 in on a US page.
     assert "1.969 in" in page and " kip" in page and " mm<" not in page
     assert check["limit"] == pytest.approx(0.05) and check["unit"] == "m"
+
+
+@pytest.mark.parametrize("args", [["--version"], ["--help"], ["build", "--help"],
+                                  ["build", "no-such-project.toml"]])
+def test_python_m_sdofreport_runs_the_same_command(args, tmp_path):
+    # Reference: the console-script entry point pyproject.toml declares for the
+    # `sdofreport` command (sdofreport.cli:main, called as pip's launcher calls it).
+    import subprocess
+    import sys
+
+    launcher = "import sys; from sdofreport.cli import main; sys.exit(main())"
+    as_module = subprocess.run([sys.executable, "-m", "sdofreport", *args], cwd=tmp_path,
+                               capture_output=True, text=True, check=False)
+    as_command = subprocess.run([sys.executable, "-c", launcher, *args], cwd=tmp_path,
+                                capture_output=True, text=True, check=False)
+    assert (as_module.returncode, as_module.stdout, as_module.stderr) == \
+        (as_command.returncode, as_command.stdout, as_command.stderr)
+    # Exit statuses as README documents them: 2 for bad input (a missing project file).
+    assert as_module.returncode == (2 if args[-1].endswith(".toml") else 0)

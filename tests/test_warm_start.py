@@ -76,17 +76,18 @@ def test_cold_two_worker_build_matches_one_process(project_factory, valid_projec
 
 _PROBE = """
 import json, sys
+import sdofreport.core._jit  # first: it points numba's cache at the per-user folder
 import numba
 from sdofreport import engine
 from sdofreport.cache import ResultCache
 from sdofreport.jobs import run_job
 from sdofreport.project import load_project
-import sdofreport.core.exact, sdofreport.core.inelastic_spectra, sdofreport.core.newmark
-import sdofreport.core.nonlinear, sdofreport.core.rotd, sdofreport.core.spectra
+import importlib, pkgutil
+import sdofreport.core
 
-MODULES = (sdofreport.core.exact, sdofreport.core.inelastic_spectra,
-           sdofreport.core.newmark, sdofreport.core.nonlinear, sdofreport.core.rotd,
-           sdofreport.core.spectra)
+# Every module of sdofreport.core, so kernels in modules added later are seen too.
+MODULES = [importlib.import_module(f"sdofreport.core.{info.name}")
+           for info in pkgutil.iter_modules(sdofreport.core.__path__)]
 
 def loaded():
     return {f"{module.__name__}.{name}": sorted(map(str, value.signatures))
@@ -111,3 +112,32 @@ def test_warm_up_loads_the_kernels_the_record_jobs_use():
     # The record jobs on real (read-only) records then need no specialization the
     # warm-up did not already load: the forked workers inherit them all.
     assert seen["real"] == seen["warm"]
+
+
+_PROBE_LATER = _PROBE.split("project = load_project")[0] + """
+project = load_project(sys.argv[1])
+engine.warm_later_kernels(project)
+later = loaded()
+engine.warm_kernels(project)
+both = loaded()
+engine.run_project(project, jobs=1, use_cache=False)
+print(json.dumps({"later": later, "both": both, "real": loaded()}))
+"""
+
+
+def test_the_two_warm_ups_load_every_kernel_the_build_uses_and_split_the_work():
+    result = subprocess.run([sys.executable, "-c", _PROBE_LATER,
+                             str(EXAMPLE / "sdofreport.toml")],
+                            capture_output=True, text=True, check=True)
+    seen = json.loads(result.stdout.strip().splitlines()[-1])
+    # A whole build of the example (nonlinear systems, pairs, inelastic spectra) needs
+    # no specialization beyond those the two warm-ups loaded (numba's own list).
+    assert seen["real"] == seen["both"]
+    # The later kernels' warm-up leaves the linear path alone, so no compilation is
+    # done twice when the two warm-ups run side by side ...
+    for kernel in ("spectra._recurrence_peaks", "spectra._recurrence_samples",
+                   "exact._exact_coefficients_into"):
+        assert seen["later"][f"sdofreport.core.{kernel}"] == [], kernel
+    # ... and it loads the nonlinear kernels the example uses.
+    for kernel in ("nonlinear._integrate", "inelastic_spectra._ductility_period"):
+        assert seen["later"][f"sdofreport.core.{kernel}"], kernel

@@ -58,7 +58,11 @@ SECTION_INTRO: dict[str, tuple[str, str]] = {
                   "this one)."),
     "systems[].limits": ("[systems.limits]", "Limits checked against the suite "
                          "statistic of each demand. Each verdict says whether the demand "
-                         "is within the stated limit; it is not an approval."),
+                         "is within the stated limit; it is not an approval. Any limit "
+                         "may state its basis by being written as a table, e.g. "
+                         "`displacement = { value = \"40 mm\", basis = \"owner's "
+                         "specification KB-S-12 §4\" }`; the basis is shown beside the "
+                         "limit in the checks tables and in results.json."),
 }
 
 TYPE_TEXT = {

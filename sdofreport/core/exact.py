@@ -91,7 +91,12 @@ def _check_ground_acceleration(ground_acceleration) -> np.ndarray:
             "ground_acceleration must be finite [m/s²]; "
             f"got {float(ag[bad])!r} at sample {bad}"
         )
-    return np.ascontiguousarray(ag)
+    # Always a read-only view: numba compiles a kernel once per argument type, and a
+    # read-only array is a different type from a writeable one, so without this the
+    # costliest kernels would be compiled (and cached) twice, once for each kind.
+    view = np.ascontiguousarray(ag).view()
+    view.flags.writeable = False
+    return view
 
 
 def _check_oscillators(natural_periods, damping_ratios, *, allow_zero_period=True):

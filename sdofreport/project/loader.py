@@ -26,6 +26,7 @@ from sdofreport.errors import ProjectError
 from sdofreport.project.model import (
     AnalysisSettings,
     DesignSpectrumSpec,
+    FragilitySpec,
     InelasticSpectraSpec,
     SyntheticSpec,
     ScalingSpec,
@@ -430,6 +431,7 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
         return Limits()
     _check_unknown(table, "systems[].limits", where, problems)
     spec = SECTIONS["systems[].limits"]
+    table, basis = _limits_and_basis(table, where, problems)
     values = {}
     for name, key in spec.items():
         value = _read_value(table, key, where, problems) if name in table else None
@@ -446,7 +448,44 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
                      "height")
     return Limits(values["displacement"], values["drift_ratio"], values["base_shear"],
                   values["total_accel"], values["ductility"],
-                  values["residual_displacement"], values["bearing_displacement"])
+                  values["residual_displacement"], values["bearing_displacement"],
+                  tuple((name, basis[name]) for name in spec if name in basis
+                        and values[name] is not None))
+
+
+#: Keys of a limit written as a table: ``displacement = { value = "50 mm", basis = "..." }``.
+LIMIT_TABLE_KEYS = ("value", "basis")
+
+
+def _limits_and_basis(table: dict, where: str, problems: _Problems) -> tuple[dict, dict]:
+    """
+    Split limits written as ``{ value = ..., basis = "..." }`` into their values (a
+    table of plain limits, as the rest of the reader expects) and their stated basis
+    (quantity -> text); every problem is named.
+    """
+    values, basis = {}, {}
+    for name, raw in table.items():
+        if not isinstance(raw, dict):
+            values[name] = raw
+            continue
+        for key in raw:
+            if key not in LIMIT_TABLE_KEYS:
+                problems.add(f"{where}.{name}.{key}", f"unknown key"
+                             f"{_did_you_mean(key, LIMIT_TABLE_KEYS)}")
+        if "value" not in raw:
+            problems.add(f"{where}.{name}.value", f"missing; a limit written as a table "
+                         f"needs its value (example: {name} = {{ value = ..., basis = "
+                         f"\"owner's specification\" }})")
+        else:
+            values[name] = raw["value"]
+        text = raw.get("basis")
+        if text is not None:
+            if not isinstance(text, str) or not text.strip():
+                problems.add(f"{where}.{name}.basis", f"expected non-empty text, found "
+                             f"{text!r}")
+            else:
+                basis[name] = text.strip()
+    return values, basis
 
 
 _COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits", "directions",
@@ -1039,6 +1078,43 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
     return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha, steps)
 
 
+def _read_fragility(table, systems, problems: _Problems) -> FragilitySpec | None:
+    where = "fragility"
+    table = _section(table, where, problems)
+    if table is None:
+        return None
+    spec = SECTIONS["fragility"]
+    levels = None
+    if "levels" not in table:
+        problems.add(f"{where}.levels", f"missing; expected a list of at least 2 levels "
+                     f"in g (example: levels = {spec['levels'].example})")
+    else:
+        levels = _number_list(table["levels"], f"{where}.levels", 0.0, problems,
+                              strict=True)
+        if levels is not None and not 2 <= len(levels) <= 50:
+            problems.add(f"{where}.levels", f"expected 2 to 50 different levels, found "
+                         f"{len(levels)}")
+            levels = None
+    measure = _read_value(table, spec["measure"], where, problems)
+    design = _read_value(table, spec["design_level"], where, problems)
+    _positive(design, f"{where}.design_level", "the design level", problems, "g")
+    known = [s.id for s in systems]
+    chosen = table.get("systems", [s.id for s in systems if s.limits.items()])
+    if not isinstance(chosen, list) or not chosen or \
+            not all(isinstance(i, str) for i in chosen):
+        problems.add(f"{where}.systems", f"expected a list of system ids, found {chosen!r}")
+        chosen = None
+    else:
+        for name in chosen:
+            if name not in known:
+                problems.add(f"{where}.systems", f"no system has id {name!r}; the ids are "
+                             f"{', '.join(known)}")
+                chosen = None
+    if levels is None or measure is None or chosen is None:
+        return None
+    return FragilitySpec(levels, measure, tuple(dict.fromkeys(chosen)), design)
+
+
 def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError, text_in: str) -> str:
     text = str(exc)
     match = re.search(r"\(at line (\d+), column (\d+)\)", text)
@@ -1121,6 +1197,7 @@ def load_project(path) -> Project:
     scaling = _read_scaling(document.get("scaling"), design, "design_spectrum" in document,
                             problems)
     inelastic = _read_inelastic(document.get("inelastic_spectra"), problems)
+    fragility = _read_fragility(document.get("fragility"), systems, problems)
     synthetic = _read_synthetic(synthetic_table, design if design_early is not None else
                                 None, problems)
     if synthetic is not None:
@@ -1136,4 +1213,5 @@ def load_project(path) -> Project:
     # Records in natural order of their ids (P1, P2, ... P10), wherever they are listed.
     records = sorted(records, key=lambda spec: natural_key(spec.id))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,
-                   tuple(records), tuple(systems), design, scaling, inelastic, synthetic)
+                   tuple(records), tuple(systems), design, scaling, inelastic, synthetic,
+                   fragility)

@@ -126,6 +126,16 @@ class ScalingSpec:
 
 
 @dataclass(frozen=True)
+class FragilitySpec:
+    """Optional multiple-stripe fragility: levels [g] of a measure, systems to run."""
+
+    levels_g: tuple[float, ...]
+    measure: str = "sa"
+    systems: tuple[str, ...] = ()
+    design_level_g: float | None = None
+
+
+@dataclass(frozen=True)
 class InelasticSpectraSpec:
     """Optional constant-ductility and constant-strength spectra of every record."""
 
@@ -149,6 +159,13 @@ class Limits:
     ductility: float | None = None
     residual_displacement_m: float | None = None
     bearing_displacement_m: float | None = None
+    #: (quantity, basis) for limits that state where they come from (a clause, the
+    #: owner's specification), in the order of :meth:`items`.
+    basis: tuple[tuple[str, str], ...] = ()
+
+    def basis_of(self, quantity: str) -> str | None:
+        """The stated basis of the limit on ``quantity``, or None."""
+        return dict(self.basis).get(quantity)
 
     def items(self) -> list[tuple[str, float]]:
         """(quantity, limit) pairs that are set, in a fixed order."""
@@ -209,6 +226,7 @@ class Project:
     scaling: ScalingSpec = field(default_factory=ScalingSpec)
     inelastic: InelasticSpectraSpec | None = None
     synthetic: SyntheticSpec | None = None
+    fragility: FragilitySpec | None = None
 
     @property
     def root(self) -> Path:

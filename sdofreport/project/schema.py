@@ -35,6 +35,9 @@ PERIOD_RANGE_OPTIONS = tuple(o.name for o in GENERIC_PERIOD_RANGES)
 #: Levels of the ASCE/SEI 7-16 target: MCE_R (the Chapter 16 target) or design.
 ASCE7_16_LEVEL_CHOICES = tuple(ASCE7_16_LEVELS)
 
+#: Intensity measures of the fragility stripes (sdofreport.jobs.stripe_job).
+FRAGILITY_MEASURES = ("sa", "pga")
+
 #: Components of a horizontal pair.
 COMPONENTS = ("H1", "H2", "V")
 
@@ -258,6 +261,22 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "looked for; the elastic force matches the exact elastic spectrum to "
                 "round-off at any setting.", default=8.0, example="8"),
     ),
+    "fragility": _keys(
+        KeySpec("levels", "list", "Intensity levels of the multiple-stripe analysis, in g "
+                "(at least 2; sorted): each record of the scaled suite is scaled again so "
+                "its measure equals each level, and every listed system is run at each "
+                "level (Baker 2015, Earthquake Spectra 31(1)).", required=True,
+                example="[0.1, 0.2, 0.3, 0.45, 0.6]"),
+        KeySpec("measure", "choice", "Intensity measure: sa, the "
+                "pseudo-spectral acceleration at the system's own period and damping; "
+                "pga, the peak ground acceleration.", default="sa",
+                choices=FRAGILITY_MEASURES, example='"sa"'),
+        KeySpec("systems", "list", "Ids of the systems to run (default: every system "
+                "with limits).", example='["pier"]'),
+        KeySpec("design_level", "number", "Level at which the probability of exceeding "
+                "each limit is stated, in g (default: the target spectrum at the "
+                "system's period, or at T = 0 for pga).", example="0.42"),
+    ),
     "records[]": _keys(
         KeySpec("id", "text", "Unique short name of the record.", required=True,
                 example='"rec01"'),
@@ -413,4 +432,4 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
 
 #: Top-level tables and arrays of tables of the project file.
 TOP_LEVEL = ("project", "analysis", "processing", "design_spectrum", "scaling",
-             "synthetic_records", "inelastic_spectra", "records", "systems")
+             "synthetic_records", "inelastic_spectra", "fragility", "records", "systems")

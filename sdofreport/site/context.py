@@ -13,6 +13,7 @@ from importlib import metadata
 import numpy as np
 
 from sdofreport import __version__, codes
+from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import VERDICT_EXCEEDS, VERDICT_UNSTABLE, Results
 from sdofreport.project.schema import HYSTERESIS_PARAMETER_KEYS
@@ -167,11 +168,61 @@ class SiteContext:
                     f" (governing: {c.governing_run} run)" if c.governing_run else ""),
                 "demand": self.display.check_value(c.quantity, c.demand),
                 "limit": self.display.check_value(c.quantity, c.limit),
+                "basis": system.limits.basis_of(c.quantity) or "not stated",
                 "ratio": f"{c.ratio:.3f}", "verdict": c.verdict,
                 "css": "exceeds" if c.verdict in (VERDICT_EXCEEDS, VERDICT_UNSTABLE)
                 else "within",
             })
         return rows
+
+    def _statistics_rows(self, checks) -> list[dict]:
+        """Demand statistics of each check (system page); ``governing`` marks the one
+        the verdict reads (the edition's statistic)."""
+        rows = []
+        for c in checks:
+            cells = []
+            for key in STATISTIC_KEYS:
+                value = c.statistics.get(key)
+                text = "–" if value is None else (
+                    number(value) if key == "beta" else
+                    self.display.check_value(c.quantity, value))
+                cells.append({"text": text, "governing": key == c.statistic})
+            rows.append({"label": CHECK_LABELS[c.quantity], "cells": cells})
+        return rows
+
+    def _fragility_bits(self, system) -> dict | None:
+        """The fragility section of a system page (None when the system has none)."""
+        found = [f for f in self.results.fragility if f.system_id == system.id]
+        if not found:
+            return None
+        measure = found[0].measure
+        symbol = (f"Sa(T = {number(system.period_s)} s, ζ = {100 * system.damping:.3g} %)"
+                  if measure == "sa" else "PGA")
+        design = found[0].design_level_g
+        rows, curves = [], []
+        for f in found:
+            fit, label = f.fit, CHECK_LABELS[f.quantity]
+            rows.append({
+                "label": label, "status": fit.status,
+                "median": "–" if fit.median is None else f"{number(fit.median)} g",
+                "beta": "–" if fit.beta is None else number(fit.beta),
+                "probability": "–" if f.design_probability is None else
+                f"{100 * f.design_probability:.1f} %",
+                "counts": ", ".join(f"{z}/{n}" for z, n in zip(fit.exceeding, fit.motions))})
+            curves.append({"label": label, "levels": list(fit.levels),
+                           "fractions": [z / n for z, n in zip(fit.exceeding, fit.motions)],
+                           "median": fit.median if fit.beta else None, "beta": fit.beta})
+        figure = self._figure(f"figures/system-{system.id}-fragility.svg",
+                              "fragility_figure", curves=curves, xlabel=f"{symbol} [g]",
+                              design_level=design)
+        return {"symbol": symbol, "rows": rows, "figure": figure,
+                "levels": ", ".join(f"{x:g}" for x in found[0].fit.levels),
+                "design": None if design is None else f"{number(design)} g",
+                "design_source": "as set in [fragility] design_level"
+                if self.project.fragility.design_level_g is not None else
+                f"the target spectrum, {_design_label(self.project.design_spectrum)}, at "
+                + (f"T = {number(system.period_s)} s" if measure == "sa" else "T = 0"),
+                "records": found[0].fit.motions[0]}
 
     def _statistic_bits(self) -> dict:
         return {"statistic": self.results.statistic,
@@ -645,6 +696,8 @@ class SiteContext:
                               "derivation": list(system.derivation)},
                    "properties": self._properties(system),
                    "checks": self._check_rows(checks), "nonlinear": nonlinear,
+                   "demand_statistics": self._statistics_rows(checks),
+                   "fragility": self._fragility_bits(system),
                    "mechanics_notes": _mechanics_cautions(system, responses, d),
                    "peaks": peaks, "histories": histories, "energies": energies,
                    "energy_flag": f"{100 * ENERGY_IMBALANCE_FLAG:g} %",

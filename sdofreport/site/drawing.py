@@ -21,7 +21,8 @@ from sdofreport.site.context import FigureSpec
 from sdofreport.site.tree import write_file
 
 #: Figure functions that write SVG directly (milliseconds each, not tenths of a second).
-DIRECT_SVG_FIGURES = frozenset({"histories_figure", "spectra_figure", "fourier_figure"})
+DIRECT_SVG_FIGURES = frozenset({"histories_figure", "spectra_figure", "fourier_figure",
+                                "fragility_figure"})
 #: Figures per task sent to a worker: small enough to balance the load, large enough
 #: that sending tasks costs little beside drawing them.
 FIGURE_CHUNK = 8

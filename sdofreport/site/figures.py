@@ -57,6 +57,7 @@ __all__ = [
     "checks_bar_figure",
     "decimate_minmax",
     "fourier_figure",
+    "fragility_figure",
     "histories_figure",
     "hysteresis_figure",
     "spectra_figure",
@@ -612,14 +613,7 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
     ylim = data_limits(arrays, log=logy,
                        bottom_zero=not logy and _all_non_negative(prepared, design_xy))
     markers = tuple((p, f" T = {_with_unit(p, x_unit or 's')}") for p in highlights)
-    margins = _single_axes_margins(title)
-    legend_in = (max(0.2, _legend_width_in([e.label for e in handles],
-                                           width=_figure_text_width_pt))
-                 if handles else 0.0)
-    layout = PanelLayout(width_in=FIGURE_WIDTH_IN, height_in=4.2, hspace_in=0.0,
-                         left_in=margins["left_in"],
-                         right_in=margins["right_in"] if not handles else 0.0,
-                         bottom_in=margins["bottom_in"], top_in=margins["top_in"])
+    layout, legend_in = _layout_with_legend(title, handles, 4.2)
     spec = AxesSpec(xlim=xlim, ylim=ylim, xlog=logx, ylog=logy, spans=tuple(spans),
                     bands=tuple(bands), curves=tuple(lines), markers=markers,
                     legend=tuple(handles), xlabel=xlabel, ylabel=ylabel,
@@ -631,6 +625,20 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
 def _single_axes_margins(title):
     return {"left_in": _LEFT_IN, "right_in": 0.25, "bottom_in": _BOTTOM_IN,
             "top_in": _TITLE_IN if title else 0.15}
+
+
+def _layout_with_legend(title, handles, height_in):
+    """(PanelLayout, legend width [in]) of a single-axes figure with a legend of
+    ``handles`` to the right (none when empty). [in]"""
+    margins = _single_axes_margins(title)
+    legend_in = (max(0.2, _legend_width_in([e.label for e in handles],
+                                           width=_figure_text_width_pt))
+                 if handles else 0.0)
+    layout = PanelLayout(width_in=FIGURE_WIDTH_IN, height_in=height_in, hspace_in=0.0,
+                         left_in=margins["left_in"],
+                         right_in=margins["right_in"] if not handles else 0.0,
+                         bottom_in=margins["bottom_in"], top_in=margins["top_in"])
+    return layout, legend_in
 
 
 def _all_non_negative(prepared, design_xy):
@@ -677,6 +685,62 @@ def fourier_figure(frequency_hz, amplitude, *, ylabel, title=None):
                     ylabel=ylabel, title=_shorten(title, 90) if title else None,
                     log_subs_y=(1.0,))
     return axes_svg(spec, layout, _PANEL_STYLE, text_width=_figure_text_width_pt)
+
+
+def fragility_figure(curves, *, xlabel, unit="g", design_level=None, title=None):
+    """
+    Fitted lognormal fragility curves over the observed fractions of exceeding runs.
+
+    Parameters
+    ----------
+    curves : sequence of dict
+        One per limit: ``label``, ``levels`` (increasing) and ``fractions`` (runs
+        exceeding / runs) [-], and ``median`` and ``beta`` of the fitted curve (None when
+        none was fitted: the fractions are drawn alone). [measure unit], [-]
+    xlabel : str
+        Abscissa label with the measure and its unit, e.g. ``"Sa(T₁) [g]"``.
+    unit : str
+        Unit of the levels, for the design-level marker.
+    design_level : float, optional
+        Level marked by a dotted line. [measure unit]
+    title : str, optional
+        Axes title.
+
+    Returns
+    -------
+    str
+        SVG text. Each observed fraction is a cross; the curve is Φ(ln(x/θ)/β) (Baker
+        2015, Earthquake Spectra 31(1)) drawn on 200 points from 0 to 1.25 × the highest
+        level or design level.
+    """
+    from scipy.special import ndtr
+
+    top = max([max(c["levels"]) for c in curves] + [design_level or 0.0]) * 1.25
+    x = np.linspace(top / 200.0, top, 200)
+    lines, handles = [], []
+    for k, c in enumerate(curves):
+        colour = _EMPHASIS_COLOURS[k % len(_EMPHASIS_COLOURS)]
+        dash = (None, "4,2", "1.5,1.5", "6,2,1.5,2")[k % 4]
+        if c.get("median") and c.get("beta"):
+            lines.append(Curve(x, ndtr(np.log(x / c["median"]) / c["beta"]), colour, 1.6,
+                               dash=dash))
+        for level, fraction in zip(c["levels"], c["fractions"]):
+            arm = 0.012 * top
+            lines.append(Curve(np.array([level - arm, level + arm]),
+                               np.array([fraction, fraction]), colour, 1.2))
+            lines.append(Curve(np.array([level, level]),
+                               np.array([fraction - 0.025, fraction + 0.025]), colour, 1.2))
+        handles.append(LegendEntry(wrap_label(c["label"], _MAX_LABEL_CHARS), colour, 1.6,
+                                   dash=dash))
+    markers = () if design_level is None else (
+        (design_level, f" design level {_with_unit(design_level, unit)}"),)
+    layout, legend_in = _layout_with_legend(title, handles, 3.8)
+    spec = AxesSpec(xlim=(0.0, top), ylim=(-0.04, 1.06), curves=tuple(lines),
+                    markers=markers, legend=tuple(handles), xlabel=xlabel,
+                    ylabel="P(exceeding the limit) [-]",
+                    title=_shorten(title, 90) if title else None)
+    return axes_svg(spec, layout, _PANEL_STYLE, text_width=_figure_text_width_pt,
+                    legend_width_in=legend_in)
 
 
 def checks_bar_figure(labels, ratios, *, title=None):

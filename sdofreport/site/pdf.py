@@ -7,10 +7,10 @@ relative path, and Chromium prints the document with the DevTools command
 ``Page.printToPDF``. Every PDF page carries the project in its header and the caution
 with "page X of Y" in its footer.
 
-Chromium and its chromedriver are system programs and ``selenium`` is an optional
-dependency (``pip install 'sdofreport[pdf]'``); when one is missing, :func:`write_pdf`
-raises :class:`~sdofreport.errors.BuildError` saying how to install it. The browser
-loads only ``file:`` URLs from the site and a temporary folder; it is started with
+Chromium and its chromedriver are system programs; ``selenium`` and ``pypdf`` are
+optional dependencies (extra ``pdf``: ``pip install 'selenium>=4.16' 'pypdf>=4.0'``); when
+one is missing, :func:`write_pdf` raises :class:`~sdofreport.errors.BuildError` saying how
+to install it. The browser loads only ``file:`` URLs from the site and a temporary folder; it is started with
 background networking, component updates, sync and extensions turned off.
 
 Determinism: Chromium writes the print time into the PDF's ``/CreationDate`` and
@@ -59,7 +59,7 @@ CHROMIUM_NAMES = ("chromium", "chromium-browser", "google-chrome", "google-chrom
 
 INSTALL_HINT = ("Install Chromium and its driver (Debian/Ubuntu: apt-get install chromium "
                 "chromium-driver) and the Python packages selenium and pypdf (pip install "
-                "'sdofreport[pdf]'), then run the command again.")
+                "'selenium>=4.16' 'pypdf>=4.0'), then run the command again.")
 
 #: A4 [in] and margins [in]; the bottom margin holds the three-line caution footer.
 PAPER_IN = (8.27, 11.69)

@@ -23,7 +23,7 @@ from sdofreport import __version__
 from sdofreport.engine import Results
 from sdofreport.errors import BuildError
 from sdofreport.jsontext import json_text as _json_text
-from sdofreport.results_json import peaks_csv, results_document, spectra_csv
+from sdofreport.results_json import checks_csv, peaks_csv, results_document, spectra_csv
 from sdofreport.site.context import SiteContext, dependency_versions, record_figures
 from sdofreport.site.drawing import FigureWriter
 from sdofreport.site.spreadsheet import results_workbook
@@ -165,6 +165,7 @@ def gather_site(results: Results, tree: StagedTree, *, jobs: int = 1, figure_cac
             put(path, data)
         put("data/spectra.csv", spectra_csv(results).encode("utf-8"))
         put("data/peaks.csv", peaks_csv(results).encode("utf-8"))
+        put("data/checks.csv", checks_csv(results).encode("utf-8"))
         put("data/results.xlsx", results_workbook(document))
         if early is not None:
             hashes.update(early.result())

@@ -12,6 +12,8 @@ import datetime
 import io
 import zipfile
 
+from sdofreport.core.fragility import STATISTIC_KEYS
+
 #: Member date of every entry of the re-packed workbook (the earliest a zip can hold).
 _ZIP_DATE = (1980, 1, 1, 0, 0, 0)
 
@@ -20,7 +22,10 @@ SHEETS = ("checks", "peaks", "spectra", "scaling")
 
 _CHECK_COLUMNS = (("system", "system"), ("quantity", "quantity"), ("unit", "unit"),
                   ("limit", "limit"), ("demand", "demand"), ("statistic", "statistic"),
-                  ("ratio", "ratio"), ("verdict", "verdict"))
+                  ("ratio", "ratio"), ("verdict", "verdict"), ("basis", "basis"))
+#: Statistics of the per-record peaks appended to each checks row (results.json
+#: ``checks[].statistics``; the ``statistic`` column names the governing one).
+_STATISTIC_COLUMNS = STATISTIC_KEYS
 _PEAK_COLUMNS = ("peak_displacement_m", "peak_drift_ratio", "peak_base_shear_n",
                  "peak_total_accel_g", "ductility", "residual_displacement_m")
 _SPECTRUM_COLUMNS = ("sd_m", "psa_g", "sa_g", "sv_m_s")
@@ -54,7 +59,9 @@ def _checks_rows(document: dict) -> list[list]:
     rows = []
     for system in document.get("systems", []):
         for check in system.get("checks", []):
-            rows.append([system["id"]] + [check.get(key) for _, key in _CHECK_COLUMNS[1:]])
+            statistics = check.get("statistics") or {}
+            rows.append([system["id"]] + [check.get(key) for _, key in _CHECK_COLUMNS[1:]]
+                        + [statistics.get(key) for key in _STATISTIC_COLUMNS])
     return rows
 
 
@@ -136,7 +143,8 @@ def results_workbook(document: dict) -> bytes:
     workbook.properties.modified = stamp
     workbook.properties.creator = str(document.get("generator", "sdofreport"))
     workbook.properties.title = str((document.get("project") or {}).get("title") or "")
-    _sheet(workbook, "checks", [label for label, _ in _CHECK_COLUMNS], _checks_rows(document))
+    _sheet(workbook, "checks", [label for label, _ in _CHECK_COLUMNS] +
+           list(_STATISTIC_COLUMNS), _checks_rows(document))
     _sheet(workbook, "peaks", ["system", "record", *_PEAK_COLUMNS], _peaks_rows(document))
     _sheet(workbook, "spectra", ["record", "damping", "period_s", *_SPECTRUM_COLUMNS],
            _spectra_rows(document))

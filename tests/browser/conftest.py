@@ -28,7 +28,7 @@ from tests.conftest import EXAMPLE
 def require_browser() -> None:
     """Skip the calling test when selenium, Chromium or chromedriver is missing."""
     pytest.importorskip("selenium", reason="selenium is not installed "
-                        "(pip install 'sdofreport[test]')")
+                        "(pip install -e '.[test]')")
     from sdofreport.site.pdf import find_browser
 
     try:

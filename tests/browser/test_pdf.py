@@ -22,7 +22,7 @@ def _words(text: str) -> str:
 def packet(example_site, tmp_path_factory):
     """The example's PDF, printed once with SOURCE_DATE_EPOCH unset."""
     pypdf = pytest.importorskip("pypdf", reason="pypdf is not installed "
-                                "(pip install 'sdofreport[test]')")
+                                "(pip install -e '.[test]')")
     output = tmp_path_factory.mktemp("pdf") / "packet.pdf"
     saved = os.environ.pop("SOURCE_DATE_EPOCH", None)
     try:
@@ -158,7 +158,7 @@ def test_source_date_epoch_wins_over_the_project_date(monkeypatch):
 
 def test_missing_chromium_is_a_build_error_with_install_hint(tmp_path):
     with pytest.raises(BuildError, match=r"apt-get install chromium chromium-driver.*"
-                       r"pip install 'sdofreport\[pdf\]'") as caught:
+                       r"pip install 'selenium>=4\.16'") as caught:
         write_pdf(tmp_path, tmp_path / "x.pdf", chromium=tmp_path / "no-chromium",
                   chromedriver=tmp_path / "no-driver")
     assert "is not an executable file" in caught.value.message
@@ -170,7 +170,7 @@ def test_missing_selenium_is_a_build_error_with_install_hint(tmp_path, monkeypat
     fake.chmod(0o755)
     monkeypatch.setitem(sys.modules, "selenium", None)  # import selenium → ImportError
     with pytest.raises(BuildError, match=r"selenium is not installed.*pip install "
-                       r"'sdofreport\[pdf\]'"):
+                       r"'selenium>=4\.16'"):
         write_pdf(tmp_path, tmp_path / "x.pdf", chromium=fake, chromedriver=fake)
     assert not (tmp_path / "x.pdf").exists()
 

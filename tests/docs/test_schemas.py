@@ -37,6 +37,10 @@ tl = "8 s"
 rule = "asce7-16"
 period = "0.5 s"
 
+[fragility]
+levels = [0.05, 0.5, 5.0]
+systems = ["pier", "s1"]
+
 [inelastic_spectra]
 ductility = [2]
 strength_reduction = [2]
@@ -196,6 +200,7 @@ def test_rich_project_validates_and_covers_optional_blocks(rich_site):
     assert _errors("manifest", manifest) == []
     # The optional blocks really were present, so the schema was exercised on them.
     assert {"design_spectrum", "scaling", "pairs", "inelastic_spectra"} <= set(results)
+    assert "fragility" in _system(results, "pier")["checks"][0]
     models = {s["id"]: s["model"] for s in results["systems"]}
     assert models == {"s1": "linear", "pier": "bilinear", "iso": "sliding-pendulum"}
     assert results["scaling"]["rule"] == "asce7-16" and results["scaling"]["criteria"]
@@ -222,6 +227,11 @@ RESULTS_MUTATIONS = {
     "text inside a spectrum": lambda d: d["spectra"]["r1"]["psa_g"][0].__setitem__(0, "x"),
     "negative time step": lambda d: d["records"][0].update(dt_s=-0.01),
     "pair without rotd100": lambda d: d["pairs"][0].pop("rotd100_psa_g"),
+    "check without statistics": lambda d: _system(d, "s1")["checks"][0].pop("statistics"),
+    "fragility count not whole": lambda d: _system(d, "pier")["checks"][0]["fragility"]
+    ["exceeding"].__setitem__(0, 0.5),
+    "fragility in other units": lambda d: _system(d, "pier")["checks"][0]["fragility"]
+    .update(unit="m/s2"),
 }
 
 

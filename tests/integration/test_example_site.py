@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import math
 import re
 from html.parser import HTMLParser
 from pathlib import Path
@@ -232,3 +233,83 @@ def test_symbols_render_as_subscripts_on_the_pages(built):
         text = " ".join(_parse(page).text)
         raw = [s for s in SYMBOLS if re.search(rf"(?<![\w/]){re.escape(s)}(?!\w)", text)]
         assert not raw, (page.name, raw)
+
+
+def test_demand_statistics_match_numpy_and_the_csv(built):
+    """checks[].statistics of every check equal numpy's statistics of the per-record
+    peaks in the same results.json; data/checks.csv carries the same numbers."""
+    import csv
+
+    import numpy as np
+
+    doc = json.loads((built[0] / "data" / "results.json").read_text())
+    keys = {"displacement": "peak_displacement_m", "drift_ratio": "peak_drift_ratio",
+            "base_shear": "peak_base_shear_n", "ductility": "ductility",
+            "residual_displacement": "residual_displacement_m",
+            "bearing_displacement": "peak_displacement_m"}
+    rows = list(csv.DictReader((built[0] / "data" / "checks.csv").open()))
+    assert len(rows) == sum(len(s["checks"]) for s in doc["systems"])
+    for system in doc["systems"]:
+        for check in system["checks"]:
+            if check["quantity"] == "total_accel":  # results.json peaks are in g
+                x = np.array([r["peak_total_accel_g"] for r in system["responses"]]) \
+                    * 9.80665
+            else:
+                x = np.abs([r[keys[check["quantity"]]] for r in system["responses"]])
+            stats = check["statistics"]
+            # numpy: mean, median, 84th percentile, std of ln (ddof 1), min, max.
+            assert [stats[k] for k in ("mean", "median", "p84", "beta", "min", "max")] \
+                == pytest.approx([np.mean(x), np.median(x), np.percentile(x, 84),
+                                  np.std(np.log(x), ddof=1), x.min(), x.max()], rel=1e-9)
+            # The governing statistic (the edition's) is the demand the verdict reads.
+            assert stats[check["statistic"]] == pytest.approx(check["demand"], rel=1e-15)
+            row = next(r for r in rows if (r["system"], r["quantity"]) ==
+                       (system["id"], check["quantity"]))
+            assert float(row["p84"]) == stats["p84"]
+            assert row["governing_statistic"] == check["statistic"]
+    html = (built[0] / "systems" / "pier.html").read_text()
+    assert 'id="demand-statistics"' in html and 'class="num governing"' in html
+
+
+def test_example_shows_one_fragility(built):
+    """The example's [fragility] (the pier): every pier check carries the stripes and
+    its fit; the probability at the design level is Φ(ln(x/θ)/β) (scipy.stats.norm);
+    the design level is the target spectrum at the pier's period."""
+    from scipy import stats
+
+    doc = json.loads((built[0] / "data" / "results.json").read_text())
+    with_fragility = {s["id"] for s in doc["systems"] for c in s["checks"]
+                      if "fragility" in c}
+    assert with_fragility == {"pier"}
+    pier = next(s for s in doc["systems"] if s["id"] == "pier")
+    # Published formula: ASCE/SEI 7-16 §11.4.6, Sa = S_D1 / T for T_S < T <= T_L; the
+    # MCE_R target is 1.5 × the design spectrum (from memory, see REFERENCES).
+    design = 1.5 * 0.42 / pier["period_s"]
+    fitted = 0
+    for check in pier["checks"]:
+        f = check["fragility"]
+        assert f["motions"] == [22] * len(f["levels"]) and f["unit"] == "g"
+        assert f["design_level"] == pytest.approx(design, rel=1e-12)
+        if f["status"] == "fitted":
+            fitted += 1
+            # scipy.stats: the lognormal CDF at the design level.
+            assert f["design_probability"] == pytest.approx(stats.norm.cdf(
+                math.log(design / f["median"]) / f["beta"]), rel=1e-9)
+    assert fitted >= 1
+    html = (built[0] / "systems" / "pier.html").read_text()
+    assert 'id="fragility"' in html and "only as good as the suite" in html
+    assert (built[0] / "figures" / "system-pier-fragility.svg").is_file()
+
+
+def test_limit_basis_is_a_column_of_the_checks_tables(built):
+    """The example's pier states the basis of two limits (its project file); the
+    summary's checks table and results.json carry them, 'not stated' elsewhere."""
+    site = built[0]
+    document = json.loads((site / "data" / "results.json").read_text("utf-8"))
+    pier = next(s for s in document["systems"] if s["id"] == "pier")
+    basis = {c["quantity"]: c["basis"] for c in pier["checks"]}
+    assert basis["residual_displacement"].endswith("§5.4") and basis["displacement"] is None
+    summary = (site / "index.html").read_text("utf-8")
+    assert "<th>Basis of the limit</th>" in summary
+    assert "owner&#39;s pipe-rack specification (invented) §5.4" in summary
+    assert "not stated" in summary

@@ -83,6 +83,16 @@ BAD_CASES = [
      ["analysis.periods", "expected 0 < min < max"]),
     ("bad statistic", '[analysis]\nstatistic = "median"\n',
      ["analysis.statistic", "expected one of auto, mean, max"]),
+    ("fragility without levels", '[fragility]\nmeasure = "sa"\n',
+     ["fragility.levels: missing; expected a list of at least 2 levels in g"]),
+    ("fragility level zero", '[fragility]\nlevels = [0.0, 0.2]\n',
+     ["fragility.levels: expected a list of numbers > 0, found [0.0, 0.2]"]),
+    ("fragility one level", '[fragility]\nlevels = [0.2]\n',
+     ["fragility.levels: expected 2 to 50 different levels, found 1"]),
+    ("fragility unknown system", '[fragility]\nlevels = [0.1, 0.2]\nsystems = ["s9"]\n',
+     ["fragility.systems: no system has id 's9'; the ids are s1"]),
+    ("fragility measure", '[fragility]\nlevels = [0.1, 0.2]\nmeasure = "pgv"\n',
+     ["fragility.measure: expected one of sa, pga, found 'pgv'"]),
 ]
 
 
@@ -246,3 +256,29 @@ def test_records_and_pairs_follow_natural_order(project_factory):
     assert [r.id for r in project.records] == ["r1", "r2", "r3", "r10"]
     assert [name for name, _ in motions(project)] == ["P2", "P10"]
     assert list(_pairs(project)) == ["P2", "P10"]
+
+
+def test_a_limit_may_state_its_basis(project_factory):
+    """`displacement = { value = "50 mm", basis = "..." }`: the value is read as a
+    plain limit (1 mm = 0.001 m by definition) and the basis kept beside it."""
+    system = ONE_SYSTEM.replace('displacement = "50 mm"',
+                                'displacement = { value = "50 mm", basis = "Spec §4" }')
+    assert system != ONE_SYSTEM
+    limits = load_project(project_factory(PROJECT_HEAD + "\n" + TWO_RECORDS + "\n"
+                                          + system)).systems[0].limits
+    assert limits.displacement_m == pytest.approx(0.050)
+    assert limits.basis_of("displacement") == "Spec §4"
+    assert limits.basis_of("drift_ratio") is None
+
+
+@pytest.mark.parametrize("written, fragment", [
+    ('{ basis = "Spec" }', "limits.displacement.value: missing"),
+    ('{ value = "50 mm", basis = "" }', "limits.displacement.basis: expected non-empty"),
+    ('{ value = "50 mm", source = "Spec" }',
+     "limits.displacement.source: unknown key; allowed keys: value, basis"),
+])
+def test_a_limit_table_names_its_problem(project_factory, written, fragment):
+    system = ONE_SYSTEM.replace('displacement = "50 mm"', f"displacement = {written}")
+    with pytest.raises(ProjectError) as caught:
+        load_project(project_factory(PROJECT_HEAD + "\n" + TWO_RECORDS + "\n" + system))
+    assert fragment in str(caught.value)
