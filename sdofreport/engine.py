@@ -772,11 +772,12 @@ def _stripe_plan(project: Project, scaled: dict[str, Record], base: dict) -> lis
     scaled again so its measure equals the level (sdofreport.jobs.stripe_job)."""
     spec = project.fragility
     plan = []
-    records = [scaled[r.id] for r in project.records]
-    accelerations = tuple(r.acceleration_m_s2 for r in records)
-    dts = tuple(r.dt_s for r in records)
-    shas = [_array_hash(a) for a in accelerations] if spec is not None else []
     for system in _fragility_systems(project):
+        # each system's own records (vertical or horizontal), one direction at a time
+        records = [scaled[r.id] for r in project.records_for(system)]
+        accelerations = tuple(r.acceleration_m_s2 for r in records)
+        dts = tuple(r.dt_s for r in records)
+        shas = [_array_hash(a) for a in accelerations]
         model = {**system_model(system), "system_id": system.id}
         for level in spec.levels_g:
             args = (accelerations, dts, model, project.analysis.method, spec.measure,
@@ -818,9 +819,10 @@ def _fragility_results(project: Project, outputs: list) -> list[FragilityResult]
     for system in _fragility_systems(project):
         stripes = outputs[position:position + len(spec.levels_g)]
         position += len(spec.levels_g)
-        responses = [[_response_result(system, r.id, {**raw, "time_s": np.zeros(0)}
+        responses = [[_biaxial_result(system, r.id, 0, raw) if "biaxial" in raw else
+                      _response_result(system, r.id, {**raw, "time_s": np.zeros(0)}
                                        if raw["model"] == "linear" else raw)
-                      for r, raw in zip(project.records, stripe["runs"])]
+                      for r, raw in zip(project.records_for(system), stripe["runs"])]
                      for stripe in stripes]
         design = _design_level_g(project, system)
         for quantity, limit in system.limits.items():

@@ -237,6 +237,11 @@ def _peaks_only(raw: dict) -> dict:
     empty = np.zeros(0)
     if raw["model"] == "linear":
         return {**raw, "displacement_m": empty, "total_accel_m_s2": empty}
+    if "biaxial" in raw:  # velocity-dependent friction: keep the (2, 0) shapes
+        flat = np.zeros((2, 0))
+        return {**raw, "biaxial": dataclasses.replace(
+            raw["biaxial"], time_s=empty, displacement_m=flat, velocity_m_s=flat,
+            total_accel_m_s2=flat, force_n=flat)}
     r = raw["response"]
     return {**raw, "response": dataclasses.replace(
         r, time_s=empty, displacement_m=empty, force_n=empty, energy_histories_j={},

@@ -237,3 +237,17 @@ def test_bad_vertical_inputs_exit_2(paired, text, fragment):
         load_project(paired(PROJECT_HEAD + text + ("" if "[[systems]]" in text else
                                                    TWO_D)))
     assert fragment in str(info.value)
+
+
+def test_fragility_stripes_of_vertical_and_friction_systems(paired):
+    # The stripes of a vertical system use the vertical records only, and a pendulum
+    # with velocity-dependent friction runs through the biaxial kernel in one direction
+    # (counts per level = the system's own records; Baker 2015 stripes).
+    fps = BOUNDED.replace("directions = 2\n", "").replace(
+        "property_factors = [0.6, 1.5]\n", "")
+    text = (PROJECT_HEAD + '[fragility]\nlevels = [0.1, 2.0]\nsystems = ["chiller", '
+            '"fps"]\n' + PAIR + VERTICAL + fps)
+    results = run_project(load_project(paired(text)), jobs=1, use_cache=False)
+    found = {f.system_id: f for f in results.fragility}
+    assert list(found["chiller"].fit.motions) == [1, 1]
+    assert list(found["fps"].fit.motions) == [2, 2]
