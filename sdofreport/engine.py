@@ -914,11 +914,17 @@ def warm_later_kernels(project: Project) -> None:
     if project.inelastic is not None:
         steps.append(lambda: run_job("inelastic", _inelastic_args(record,
                                                                   project.inelastic)))
-    nonlinear = [model for model in map(system_model, project.systems)
-                 if model["model"] != "linear"]
-    if nonlinear:
+    one = [m for m, s in zip(map(system_model, project.systems), project.systems)
+           if m["model"] != "linear" and s.directions == 1]
+    two = [m for m, s in zip(map(system_model, project.systems), project.systems)
+           if m["model"] != "linear" and s.directions == 2]
+    if one:
         steps.append(lambda: run_job("responses", (record.acceleration_m_s2, record.dt_s,
-                                                    nonlinear, project.analysis.method)))
+                                                    one, project.analysis.method)))
+    if two:  # the two-direction kernel (sdofreport.core.biaxial)
+        steps.append(lambda: run_job("biaxial", (record.acceleration_m_s2,
+                                                  record.acceleration_m_s2, record.dt_s,
+                                                  two, project.analysis.method)))
     for step in steps:
         try:
             step()

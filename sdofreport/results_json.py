@@ -159,6 +159,10 @@ def _bounds_entry(bounds: dict | None) -> dict:
         return {}
     return {"bounds": {run: {
         "peak_displacement_m": finite_or_none(r.peak_displacement_m),
+        "peak_drift_ratio": None if r.peak_drift_ratio is None else
+        finite_or_none(r.peak_drift_ratio),
+        "peak_base_shear_n": None if r.peak_base_shear_n is None else
+        finite_or_none(r.peak_base_shear_n),
         "peak_force_n": None if r.peak_force_n is None else finite_or_none(r.peak_force_n),
         "peak_total_accel_g": finite_or_none(r.peak_total_accel_m_s2 / G),
         "residual_displacement_m": None if r.residual_displacement_m is None else
