@@ -21,6 +21,22 @@ from sdofreport.site.tree import OutputLock, StagedTree, output_folder
 
 log = logging.getLogger("sdofreport.build")
 
+#: The earlier run's fingerprint, kept beside its results (COMPARE_TO_INPUT).
+_KEPT_FINGERPRINT = COMPARE_TO_INPUT.rsplit("/", 1)[0] + "/fingerprint.txt"
+
+
+def _old_fingerprint(old_run, compare_to) -> str:
+    """The earlier run's fingerprint: from its manifest, or, for kept results being
+    rebuilt, from the fingerprint file beside them; empty when neither exists."""
+    fingerprint = (old_run.manifest or {}).get("fingerprint")
+    if isinstance(fingerprint, str) and fingerprint:
+        return fingerprint
+    beside = Path(compare_to).parent / _KEPT_FINGERPRINT.rsplit("/", 1)[1]
+    if Path(compare_to).name == "results.json" and beside.is_file():
+        text = beside.read_text(encoding="ascii", errors="replace").strip()
+        return text if text.isalnum() and len(text) <= 64 else ""
+    return ""
+
 
 @dataclass(frozen=True)
 class BuildOutcome:
@@ -88,7 +104,8 @@ def _build_locked(project_file, output: Path, started: float, *, jobs, cache_dir
     if compare_to is not None:  # read it first: a bad OLD fails before any work
         from sdofreport.archive.compare import load_run
 
-        old = load_run(compare_to).results
+        old_run = load_run(compare_to)
+        old = old_run.results
     with contextlib.nullcontext() if use_cache else without_memo():
         project = load_project(project_file)  # --no-cache: no remembered unit strings
     _check_inside(project, allow_outside)
@@ -105,9 +122,13 @@ def _build_locked(project_file, output: Path, started: float, *, jobs, cache_dir
         from sdofreport.archive.compare import revision_page
 
         kept_inputs[COMPARE_TO_INPUT] = json_text(old).encode("utf-8")
+        old_fingerprint = _old_fingerprint(old_run, compare_to)
+        if old_fingerprint:  # kept beside the results, so a rerun shows it too
+            kept_inputs[_KEPT_FINGERPRINT] = old_fingerprint.encode("ascii")
 
         def extra(document, fingerprint):
-            return revision_page(old, document, fingerprint=fingerprint)
+            return revision_page(old, document, fingerprint=fingerprint,
+                                 old_fingerprint=old_fingerprint)
     workers = jobs or os.cpu_count() or 1
     with ExitStack() as stack:  # on leaving: stop any figure workers, then the tree
         staged: list[StagedTree] = []

@@ -81,6 +81,17 @@ def cli(ctx: click.Context, verbose: bool) -> None:
         format="%(levelname)s: %(message)s",
         stream=sys.stderr,
     )
+    _quiet_warnings(verbose)
+
+
+def _quiet_warnings(verbose: bool) -> None:
+    """
+    Python and numpy warnings (overflow, invalid value...) go to the debug log, never to
+    the terminal: a user sees our messages only, and ``-v`` shows the warnings too.
+    Worker processes forked later inherit this.
+    """
+    logging.captureWarnings(True)
+    logging.getLogger("py.warnings").setLevel(logging.DEBUG if verbose else logging.ERROR)
 
 
 def _record_options(func):
@@ -282,7 +293,10 @@ def main(argv: list[str] | None = None) -> None:
     except OSError as exc:
         if "-v" in (argv or sys.argv) or "--verbose" in (argv or sys.argv):
             raise
-        click.echo(f"Error: {exc.filename or ''}: {exc.strerror or exc}", err=True)
+        where = f"{exc.filename}: " if exc.filename else ""
+        click.echo(f"Error: {where}{exc.strerror or exc} (no file named by the system; "
+                   f"run with -v for details)" if not where else
+                   f"Error: {where}{exc.strerror or exc}", err=True)
         sys.exit(2)
 
 

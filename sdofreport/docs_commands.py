@@ -35,16 +35,22 @@ def new_command(folder):
 
 
 @click.command("schema")
-@click.argument("name", type=click.Choice(SCHEMA_NAMES))
+@click.argument("name", type=click.Choice(SCHEMA_NAMES), required=False)
 def schema_command(name):
-    """Print the JSON Schema (draft 2020-12) of data/results.json or manifest.json.
+    """Print a published JSON Schema (draft 2020-12): results (data/results.json),
+    manifest (manifest.json) or comparison (compare --format json). Without NAME, list
+    them.
 
     \b
     Example:
       sdofreport schema results > results.schema.json
     """
-    from sdofreport.schemas import schema_text
+    from sdofreport.schemas import load_schema, schema_text
 
+    if name is None:
+        for each in SCHEMA_NAMES:
+            click.echo(f"{each}: {load_schema(each).get('title', '')}")
+        return
     click.echo(schema_text(name), nl=False)
 
 

@@ -29,6 +29,7 @@ from typing import Callable
 import numpy as np
 
 from sdofreport import __version__
+from sdofreport.amplitude import check_results, header_unit_problem
 from sdofreport.cache import ResultCache, cache_key, default_cache_dir
 from sdofreport.core.fragility import (
     FITTED,
@@ -245,7 +246,8 @@ def _read_key(spec: RecordSpec, digest: str | None) -> str:
     """Cache key of a record file as parsed with its reading settings."""
     return cache_key({"version": __version__, "job": "read", "sha": digest,
                          "name": spec.path.name, "format": spec.file_format,
-                         "units": spec.units, "dt": spec.dt_s, "id": spec.id})
+                         "units": spec.units, "dt": spec.dt_s, "id": spec.id,
+                         "reader": "stated-units"})
 
 
 def _read_cached(spec: RecordSpec, cache: ResultCache | None, pending: list) -> Record:
@@ -271,7 +273,7 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
     records, problems, pending = [], [], []
     longest = max(project.systems, key=lambda system: system.period_s, default=None)
     for index, spec in enumerate(project.records):
-        where = f"records[{index + 1}] (id '{spec.id}')"
+        where = f"records[{spec.id}]"
         try:
             if spec.path is None:
                 records.append(synthetic_record(project, index, cache))
@@ -285,10 +287,18 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
                                         filter_order=settings.filter_order,
                                         taper_s=settings.taper_s)
             if spec.scale != 1.0:
-                record = _with_acceleration(record, record.acceleration_m_s2 * spec.scale,
+                with np.errstate(over="ignore"):  # an absurd result is refused below
+                    scaled = record.acceleration_m_s2 * spec.scale
+                record = _with_acceleration(record, scaled,
                                             f"scaled by {spec.scale:g} (as given)")
         except RecordError as exc:
             problems.append(f"{where}: {exc.message}")
+            continue
+        unit_problem = header_unit_problem(spec, record)
+        if unit_problem:
+            problems.append(unit_problem)
+        if (absurd := _absurd_after_scaling(spec, record, where)) is not None:
+            problems.append(absurd)
             continue
         if longest is not None and record.duration_s < longest.period_s:
             # A record shorter than the system's period cannot bring out its response:
@@ -299,6 +309,7 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
                             f"with zeros")
         records.append(record)
     _check_pair_steps(project, records, problems)
+    _check_periods(project, records, problems)
     if problems:
         count = len(problems)
         raise RecordError(f"{project.path.name} has {count} record problem"
@@ -306,6 +317,53 @@ def load_records(project: Project, cache: ResultCache | None = None) -> list[Rec
     for key, record in pending:
         cache.put(key, record)
     return records
+
+
+def _absurd_after_scaling(spec: RecordSpec, record: Record, where: str) -> str | None:
+    """A problem when the record as used (after ``scale``) peaks beyond any ground motion."""
+    from sdofreport.records.readers import ABSURD_PEAK_G
+
+    with np.errstate(all="ignore"):
+        peak_g = float(np.max(np.abs(record.acceleration_m_s2))) / G
+    if np.isfinite(peak_g) and peak_g <= ABSURD_PEAK_G:
+        return None
+    cause = (f"scale = {spec.scale:g} makes its peak {peak_g:.3g} g" if spec.scale != 1.0
+             else f"its peak is {peak_g:.3g} g")
+    return (f"{where}: {cause}, beyond any ground motion (at most {ABSURD_PEAK_G:g} g is "
+            f"accepted); check the scale factor, the values and the units")
+
+
+def _too_short(period_s: float, dt_s: float, spp: float) -> bool:
+    """True when ``period_s`` needs more sub-steps per sample than the kernels allow
+    (``dt · spp / T`` sub-steps, as :func:`sdofreport.core.spectra.substep_counts`)."""
+    from sdofreport.core.spectra import _MAX_SUBSTEPS
+
+    return not dt_s * spp / period_s <= _MAX_SUBSTEPS
+
+
+def _check_periods(project: Project, records: list[Record], problems: list[str]) -> None:
+    """Periods too short for the coarsest record step, named by system and key."""
+    from sdofreport.core.spectra import _MAX_SUBSTEPS, DEFAULT_STEPS_PER_PERIOD
+
+    if not records:
+        return
+    coarse = max(records, key=lambda record: record.dt_s)
+    method = project.analysis.method
+    # Yielding systems take ceil(dt / (T/100)) sub-steps (jobs._nonlinear_response): 100
+    # steps per period; linear ones the method's default steps per period.
+    tail = (f"too short for the time step {coarse.dt_s:g} s of record '{coarse.id}': it "
+            f"would need more than {_MAX_SUBSTEPS} integration sub-steps per sample; check "
+            f"the value and its unit, or use a record with a finer time step")
+    for index, system in enumerate(project.systems, start=1):
+        linear = (system.model or {}).get("model", "linear") == "linear"
+        spp = DEFAULT_STEPS_PER_PERIOD.get(method, 8.0) if linear else 100.0
+        if _too_short(system.period_s, coarse.dt_s, spp):
+            problems.append(f"systems[{index}] (id '{system.id}') period: "
+                            f"{system.period_s:.3g} s is {tail}")
+    shortest = min(project.analysis.periods_s)
+    if _too_short(shortest, coarse.dt_s, DEFAULT_STEPS_PER_PERIOD.get(method, 8.0)):
+        problems.append(f"analysis.periods: the shortest spectrum period {shortest:.3g} s "
+                        f"is {tail}")
 
 
 def _check_pair_steps(project: Project, records: list[Record], problems: list[str]) -> None:
@@ -596,6 +654,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     pair_results = [PairResult(name, h1, h2, _scaled_rotd(pair_outputs[name]["rotd"],
                                                           scaling.factors.get(h1, 1.0)))
                     for name, (h1, h2) in pairs.items()]
+    check_results(project.path.name, record_results, pairs=pair_results)  # PGA, finite
     if records_ready is not None:
         records_ready(record_results)
 
@@ -649,6 +708,7 @@ def run_project(project: Project, *, jobs: int | None = None,
         for system, raw in zip(two_d, group):
             for direction, rid in enumerate((h1, h2)):
                 responses[(system.id, rid)] = _biaxial_result(system, rid, direction, raw)
+    check_results(project.path.name, (), responses.values())
     statistic = project.statistic_used
     bounds = _split_bounds(responses)
     checks = _governing_checks(project, _checks(project, responses, statistic), responses,

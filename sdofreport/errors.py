@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from contextlib import contextmanager
+
 import click
 
 
@@ -24,3 +26,15 @@ class ProjectError(SdofreportError):
 
 class BuildError(SdofreportError):
     """The site could not be built or written."""
+
+
+@contextmanager
+def naming_path(path):
+    """Turn an ``OSError`` while writing ``path`` (a full disk says only "No space left on
+    device", naming no file) into a :class:`BuildError` that names ``path``."""
+    try:
+        yield
+    except OSError as exc:
+        raise BuildError(f"{path}: could not be written: {exc.strerror or exc}. Free some "
+                         f"space, or choose another output folder; nothing half-written "
+                         f"was kept.") from None

@@ -13,6 +13,7 @@ from sdofreport import __version__
 from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import Results
+from sdofreport.run_inputs import inputs_block
 from sdofreport.serialize import (
     array_to_list,
     finite_or_none,
@@ -142,6 +143,7 @@ def results_document(results: Results) -> dict:
                 "statistic": results.statistic, "records": records, "spectra": spectra,
                 "systems": systems}
     document.update(suite_blocks(results))
+    document["inputs"] = inputs_block(results)
     return document
 
 

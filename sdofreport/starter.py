@@ -28,7 +28,7 @@ import tempfile
 from dataclasses import dataclass
 from pathlib import Path
 
-from sdofreport.errors import SdofreportError
+from sdofreport.errors import SdofreportError, naming_path
 
 #: Name of the project file the starter writes.
 PROJECT_FILE = "sdofreport.toml"
@@ -279,6 +279,7 @@ def write_starter(folder: str | os.PathLike) -> list[Path]:
     for relative, data in files.items():
         target = folder / relative
         target.parent.mkdir(parents=True, exist_ok=True)
-        target.write_bytes(data)
+        with naming_path(target):
+            target.write_bytes(data)
         written.append(target)
     return written

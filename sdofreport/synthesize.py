@@ -22,7 +22,8 @@ import numpy as np
 from sdofreport.core.compatible import COMPATIBLE_ENVELOPES, spectrum_compatible_record
 from sdofreport.core.design_spectra import DESIGN_SPECTRUM_KINDS, design_spectrum
 from sdofreport.core.units import G
-from sdofreport.errors import SdofreportError
+from sdofreport.errors import SdofreportError, naming_path
+from sdofreport.project.bounds import MAX_SYNTHETIC_SAMPLES
 from sdofreport.records.writers import write_two_column
 
 __all__ = [
@@ -164,7 +165,28 @@ def _parse_project(path: Path) -> SynthesisTarget:
     if kind is None:
         raise SdofreportError(f"{path} [design_spectrum]: missing key 'kind'; allowed: "
                               f"{', '.join(DESIGN_SPECTRUM_KINDS)}.")
-    return _from_parameters(kind, values, f"{path} [design_spectrum]")
+    head = data.get("project")
+    plain_si = isinstance(head, dict) and head.get("plain_numbers") == "SI"
+    return _from_parameters(kind, _project_quantities(values, plain_si, path),
+                            f"{path} [design_spectrum]")
+
+
+def _project_quantities(values: dict, plain_si: bool, path: Path) -> dict:
+    """``values`` with dimensional keys (``tl = "8 s"``) converted to SI, read as the
+    project loader reads them (a bare number only with plain_numbers = "SI")."""
+    from sdofreport.project.quantities import QuantityError, parse_quantity
+    from sdofreport.project.schema import SECTIONS
+
+    out = dict(values)
+    for key, value in values.items():
+        spec = SECTIONS["design_spectrum"].get(key)
+        if spec is None or spec.type != "quantity":
+            continue
+        try:
+            out[key] = parse_quantity(value, spec.dimension, plain_si=plain_si, key=key)
+        except QuantityError as exc:
+            raise SdofreportError(f"{path} [design_spectrum] {key}: {exc}.") from None
+    return out
 
 
 def _parse_table_file(path: Path) -> SynthesisTarget:
@@ -253,6 +275,11 @@ def synthesize(target: SynthesisTarget, folder, *, count=1, duration_s=25.0, dt_
     if envelope not in COMPATIBLE_ENVELOPES:
         raise SdofreportError(f"--envelope {envelope!r}: allowed: "
                               f"{', '.join(COMPATIBLE_ENVELOPES)}.")
+    if dt_s > 0 and duration_s / dt_s > MAX_SYNTHETIC_SAMPLES:
+        raise SdofreportError(f"--duration {duration_s:g} s at --dt {dt_s:g} s makes "
+                              f"{duration_s / dt_s:.3g} samples per record; expected at most "
+                              f"{MAX_SYNTHETIC_SAMPLES:,} (shorten the duration or coarsen "
+                              f"dt).")
     zeta = damping if damping is not None else (target.damping or 0.05)
     folder = Path(folder)
     names = [record_file_name(i + 1) for i in range(count)] + [SUMMARY_FILE]
@@ -308,6 +335,11 @@ def synthesize(target: SynthesisTarget, folder, *, count=1, duration_s=25.0, dt_
     }
     text = json.dumps(summary, indent=2) + "\n"
     tmp = folder / f".{SUMMARY_FILE}.tmp"
-    tmp.write_text(text, encoding="utf-8")
-    os.replace(tmp, folder / SUMMARY_FILE)
+    try:
+        with naming_path(folder / SUMMARY_FILE):
+            tmp.write_text(text, encoding="utf-8")
+            os.replace(tmp, folder / SUMMARY_FILE)
+    except BaseException:
+        tmp.unlink(missing_ok=True)
+        raise
     return summaries

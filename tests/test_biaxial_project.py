@@ -114,7 +114,7 @@ def test_bad_directions_name_the_key(paired, extra, fragment):
         "directions = 2\n" + extra, 1)
     with pytest.raises(ProjectError) as info:
         load_project(paired(PROJECT_HEAD + PAIR + body))
-    assert "systems[1].directions" in str(info.value) and fragment in str(info.value)
+    assert "systems[tank].directions" in str(info.value) and fragment in str(info.value)
 
 
 BOUNDED = """\
@@ -175,7 +175,7 @@ def test_bad_isolator_keys_name_the_key(paired, extra, fragment):
                            "property_factors = [0.6, 1.5]\n", extra + "\n")
     with pytest.raises(ProjectError) as info:
         load_project(paired(PROJECT_HEAD + PAIR + body))
-    assert "systems[1]" in str(info.value) and fragment in str(info.value)
+    assert "systems[fps]" in str(info.value) and fragment in str(info.value)
 
 
 VERTICAL = """\

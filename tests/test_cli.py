@@ -137,7 +137,7 @@ def test_build_strict_exit_3_and_bad_project_exit_2(project_factory, valid_proje
     broken = project_factory(tight.replace("damping = 0.05", "damping = 7"), "bad.toml")
     result = CliRunner().invoke(cli, ["build", str(broken), "-o", str(out), "--quiet"])
     assert result.exit_code == 2
-    assert "systems[1].damping" in result.output
+    assert "systems[s1].damping" in result.output
     # Nothing half-written: the previous site is untouched and no staging folder remains.
     after = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
     assert after == before

@@ -110,6 +110,18 @@ def test_project_and_table_targets(tmp_path):
     np.testing.assert_array_equal(target.sa_g, [0.5, 0.8, 0.2])
 
 
+def test_project_target_reads_tl_with_its_unit(tmp_path):
+    # The bundled example writes tl = "8 s", as every dimensional key must be written.
+    project = tmp_path / "p.toml"
+    project.write_text('[design_spectrum]\nkind = "asce7-16"\nsds = 1.0\nsd1 = 0.6\n'
+                       'tl = "2 s"\n')
+    target = parse_target(str(project))
+    # Published formula: ASCE/SEI 7-16 Eq. (11.4-8), Sa = S_D1 T_L / T² beyond T_L:
+    # 0.6 × 2 / 3² at T = 3 s.
+    assert np.interp(3.0, target.periods_s, target.sa_g) == pytest.approx(0.6 * 2 / 9,
+                                                                          rel=1e-3)
+
+
 @pytest.mark.parametrize("files, target, message", [
     ({}, "asce7-16:sds=1.0,sd1=0.6", "kind 'asce7-16' needs key(s) tl"),
     ({}, "asce7-16:sds=1.0,sd2=0.6,tl=8", "unknown key 'sd2' for kind 'asce7-16' "
@@ -117,8 +129,11 @@ def test_project_and_table_targets(tmp_path):
     ({}, "nope.csv", "--target 'nope.csv': no such file"),
     ({"t.txt": "0.1 0.5\n0.2 abc\n"}, "t.txt", "t.txt line 2: expected two numbers"),
     ({"p.toml": "[project]\nname = 'x'\n"}, "p.toml", "p.toml: no [design_spectrum] section"),
-    ({"p.toml": "[design_spectrum]\nkind = 'asce7-16'\nsds = -1\nsd1 = 0.6\ntl = 8\n"},
+    ({"p.toml": "[design_spectrum]\nkind = 'asce7-16'\nsds = -1\nsd1 = 0.6\ntl = '8 s'\n"},
      "p.toml", "p.toml [design_spectrum]: sds_g must be a finite number > 0 [g]; got -1"),
+    # A project file's tl is read as the project loader reads it: a bare number is refused.
+    ({"p.toml": "[design_spectrum]\nkind = 'asce7-16'\nsds = 1.0\nsd1 = 0.6\ntl = 8\n"},
+     "p.toml", "p.toml [design_spectrum] tl: found the bare number 8"),
 ])
 def test_bad_targets_exit_2(tmp_path, monkeypatch, files, target, message):
     monkeypatch.chdir(tmp_path)

@@ -71,7 +71,7 @@ def test_synthetic_records_build_and_match(tmp_path):
 def test_records_and_synthetic_records_are_exclusive(tmp_path):
     (tmp_path / "r.txt").write_text("\n".join(["0.0"] * 20))
     path = tmp_path / "sdofreport.toml"
-    path.write_text(PROJECT + '\n[[records]]\nid = "r"\nfile = "r.txt"\ndt = 0.01\n')
+    path.write_text(PROJECT + '\n[[records]]\nid = "r"\nfile = "r.txt"\ndt = \"0.01 s\"\n')
     with pytest.raises(ProjectError, match="either \\[\\[records\\]\\] or"):
         load_project(path)
 

@@ -139,5 +139,5 @@ def test_the_two_warm_ups_load_every_kernel_the_build_uses_and_split_the_work():
                    "exact._exact_coefficients_into"):
         assert seen["later"][f"sdofreport.core.{kernel}"] == [], kernel
     # ... and it loads the nonlinear kernels the example uses.
-    for kernel in ("nonlinear._integrate", "inelastic_spectra._ductility_period"):
+    for kernel in ("hysteresis.integrate_model", "inelastic_spectra._ductility_period"):
         assert seen["later"][f"sdofreport.core.{kernel}"], kernel

@@ -106,7 +106,8 @@ _STATED_UNIT = re.compile(r"\bin (g|s|Hz)\b(?=[.,;)]| \()")
 def _units(spec: schema.KeySpec) -> str:
     if spec.type == "quantity" and spec.dimension:
         si_unit = DIMENSIONS[spec.dimension][1]
-        return f"{spec.dimension}: {si_unit} when a plain number"
+        return f"{spec.dimension}: text with a unit ({si_unit} for a plain number " \
+            f"with plain_numbers = \"SI\")"
     if spec.type == "ratio":
         return "fraction [-]"
     stated = _STATED_UNIT.search(spec.description)
@@ -171,11 +172,26 @@ def _system_kinds() -> list[str]:
 
 def _dimensions() -> list[str]:
     lines = ["## Units of quantities", "",
-             "A *quantity* is either a plain number, read in the SI unit of its dimension, "
-             "or text with a unit (read with pint), such as `\"120 t\"`, `\"4.2 MN/m\"`, "
-             "`\"26 kip/in\"`, `\"18 ft\"` or `\"0.35 g\"` (`g` is standard gravity, "
-             "9.80665 m/s²). A value of the wrong dimension is an error naming the key.",
-             "", "| dimension | SI unit (plain numbers) |", "| --- | --- |"]
+             "A *quantity* (a dimensional key: mass, stiffness, lengths, forces, periods "
+             "and times, moduli, inertias, accelerations of limits) is text with a unit, "
+             "read with pint, such as `\"120 t\"`, `\"4.2 MN/m\"`, `\"26 kip/in\"`, "
+             "`\"18 ft\"` or `\"0.35 g\"` (`g` is standard gravity, 9.80665 m/s²). A "
+             "bare number (`mass = 6`, or `\"6\"`) is an error naming the key, the "
+             "system or record by its id and the line, with the fix (`mass = \"6 t\"`): "
+             "6 meant as tonnes would otherwise become 6 kg. With `[project] "
+             "plain_numbers = \"SI\"` bare numbers are read in the SI unit of the "
+             "table below, and the provenance on the summary page says so. A value of "
+             "the wrong dimension is an error naming the key.",
+             "",
+             "Not dimensional, so plain numbers: ratios and fractions (`damping`, "
+             "`post_yield_ratio`, `friction`, `drift_ratio`, the `damping` lists), "
+             "factors (`scale`, `suite_factor`, `importance_factor`, `ductility`, "
+             "`strength_reduction`), values the standards define in g (`sds`, `sd1`, "
+             "`agr`, a table's `sa`), and keys whose unit is fixed by their name or "
+             "definition (`taper_s`, `bandpass_hz`, `period_range` and the period lists "
+             "and `{min, max, count}` tables in s).",
+             "", "| dimension | SI unit (plain numbers with plain_numbers = \"SI\") |",
+             "| --- | --- |"]
     for name, (_, si_unit) in DIMENSIONS.items():
         lines.append(f"| {name} | {si_unit} |")
     lines.append("")
@@ -199,6 +215,7 @@ def render_reference() -> str:
         "`site_examples/harbourview_cold_store/sdofreport.toml` uses all of them.",
         "",
         "Types: *text*; *number*; *integer*; *ratio* (a fraction, 0.05 for 5 %); "
+        "*true or false*; "
         "*quantity* (see [Units of quantities](#units-of-quantities)); *choice* (one of "
         "the listed values); *list* (a TOML array); *table* (an inline or nested TOML "
         "table).",

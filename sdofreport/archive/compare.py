@@ -25,6 +25,7 @@ from sdofreport.archive._sitefiles import (
 )
 from sdofreport.archive._zipfiles import read_zip
 from sdofreport.jsontext import json_text
+from sdofreport.site.display import DISPLAY_UNITS, Display, number
 from sdofreport.site.render import MANIFEST_NAME
 
 COMPARISON_SCHEMA = "sdofreport/comparison@1"
@@ -36,6 +37,14 @@ PROJECT_FIELDS = ("title", "reference", "revision", "date", "prepared_by", "chec
                   "display_units")
 #: Damping of the overlaid spectra on the revision page [-].
 REVISION_DAMPING = 0.05
+#: Paths of the inputs block that the settings section already compares.
+_IN_SETTINGS = ("processing.", "analysis.method", "analysis.damping", "analysis.statistic",
+                "analysis.periods.count", "analysis.periods.min_s", "analysis.periods.max_s")
+#: Key suffix of results.json -> dimension of the pages' display units, or a unit label
+#: for values the pages show as they are (longest suffixes first).
+_SUFFIX_UNITS = (("_n_m", "stiffness"), ("_m_s2", "acceleration"), ("_kg_m2", "kg·m²"),
+                 ("_m4", "m⁴"), ("_pa", "Pa"), ("_kg", "mass"), ("_n", "force"),
+                 ("_m", "length"), ("_hz", "Hz"), ("_s", "s"), ("_g", "g"))
 
 
 @dataclass
@@ -86,10 +95,67 @@ def relative_change(old: object, new: object) -> float | None:
     return None
 
 
-def _field_changes(identifier: str, old: dict, new: dict, fields) -> list[dict]:
+def shown(name: str, value: object, display: Display) -> str:
+    """``value`` of the results.json key ``name`` in the pages' display units, its unit
+    taken from the key's suffix (``yield_strength_n`` 300000 -> ``300.0 kN``)."""
+    if isinstance(value, list) and value and all(_is_number(v) for v in value):
+        return "[" + ", ".join(shown(name, v, display) for v in value) + "]"
+    if not _is_number(value):
+        return _value(value)
+    key = name.rsplit(".", 1)[-1]
+    for suffix, unit in _SUFFIX_UNITS:
+        if key.endswith(suffix):
+            if unit in DISPLAY_UNITS["SI"]:
+                return display.show(float(value), unit)
+            return f"{number(float(value))} {unit}"
+    return _value(value)
+
+
+def _display(document: dict) -> Display:
+    system = (document.get("project") or {}).get("display_units")
+    return Display(system if system in DISPLAY_UNITS else "SI")
+
+
+def _field_changes(identifier: str, old: dict, new: dict, fields,
+                   display: Display | None = None) -> list[dict]:
+    display = display or Display("SI")
     return [{"id": identifier, "field": name, "old": old.get(name), "new": new.get(name),
-             "relative": relative_change(old.get(name), new.get(name))}
+             "relative": relative_change(old.get(name), new.get(name)),
+             "old_shown": shown(name, old.get(name), display),
+             "new_shown": shown(name, new.get(name), display)}
             for name in fields if old.get(name) != new.get(name)]
+
+
+def _input_changes(old_doc: dict, new_doc: dict, group: str, identifier: str,
+                   covered, display: Display) -> list[dict]:
+    """Changes of ``inputs.<group>.<identifier>`` (a system's or record's whole input
+    set), leaving out keys the caller already compares (``covered``)."""
+    def flat(document):
+        entry = ((document.get("inputs") or {}).get(group) or {}).get(identifier)
+        return _flatten(entry) if isinstance(entry, dict) else {}
+
+    before, after = flat(old_doc), flat(new_doc)
+    if not before or not after:
+        return []
+    names = [name for name in sorted(set(before) | set(after))
+             if name.rsplit(".", 1)[-1] not in covered]
+    # A value used as given (model.yield_strength_n = given.yield_strength_n) shows once.
+    names = [name for name in names if not (
+        name.startswith("model.") and f"given.{name[6:]}" in names and
+        before.get(name) == before.get(f"given.{name[6:]}") and
+        after.get(name) == after.get(f"given.{name[6:]}"))]
+    return _field_changes(identifier, before, after, names, display)
+
+
+def _inputs_note(old_doc: dict, new_doc: dict) -> str:
+    missing = [side for side, doc in (("old", old_doc), ("new", new_doc))
+               if not isinstance(doc.get("inputs"), dict)]
+    if not missing:
+        return ""
+    return (f"The {' and '.join(missing)} run{'s' if len(missing) > 1 else ''} "
+            f"{'were' if len(missing) > 1 else 'was'} built by an sdofreport without the "
+            f"inputs block in results.json: changes of yield strength, friction, "
+            f"scaling options and other inputs not listed above cannot be shown.")
 
 
 def _by_id(items) -> dict[str, dict]:
@@ -156,12 +222,29 @@ def compare_runs(old: Run, new: Run) -> dict:
         for records, run in ((old_records, old), (new_records, new)):
             for rid, digest in _file_hashes(run.manifest, records).items():
                 records[rid] = {**records[rid], "file_sha256": digest}
+    display = _display(new_doc)
     record_changes = []
     for rid in sorted(set(old_records) & set(new_records)):
-        record_changes += _field_changes(rid, old_records[rid], new_records[rid], RECORD_FIELDS)
+        record_changes += _field_changes(rid, old_records[rid], new_records[rid],
+                                         RECORD_FIELDS, display)
+        record_changes += _input_changes(old_doc, new_doc, "records", rid, RECORD_FIELDS,
+                                         display)
     system_changes = []
     for sid in sorted(set(old_systems) & set(new_systems)):
-        system_changes += _field_changes(sid, old_systems[sid], new_systems[sid], SYSTEM_FIELDS)
+        system_changes += _field_changes(sid, old_systems[sid], new_systems[sid],
+                                         SYSTEM_FIELDS, display)
+        system_changes += _input_changes(old_doc, new_doc, "systems", sid, SYSTEM_FIELDS,
+                                         display)
+    old_inputs = _flatten({key: value for key, value in (old_doc.get("inputs") or {}).items()
+                           if key not in ("systems", "records")})
+    new_inputs = _flatten({key: value for key, value in (new_doc.get("inputs") or {}).items()
+                           if key not in ("systems", "records")})
+    inputs = []
+    if old_inputs and new_inputs:
+        paths = [path for path in sorted(set(old_inputs) | set(new_inputs))
+                 if not path.startswith(_IN_SETTINGS)]
+        inputs = [{**change, "path": change["field"]} for change in _field_changes(
+            "inputs", old_inputs, new_inputs, paths, display)]
     old_settings = _flatten({"settings": old_doc.get("settings"),
                              "statistic": old_doc.get("statistic")})
     new_settings = _flatten({"settings": new_doc.get("settings"),
@@ -181,8 +264,9 @@ def compare_runs(old: Run, new: Run) -> dict:
                     "removed": sorted(set(old_records) - set(new_records)),
                     "changed": record_changes},
         "settings": settings, "project": project,
+        "inputs": inputs, "inputs_note": _inputs_note(old_doc, new_doc),
     }
-    document["identical"] = not (document["checks"] or settings or project or any(
+    document["identical"] = not (document["checks"] or settings or project or inputs or any(
         document[group][kind] for group in ("systems", "records")
         for kind in ("added", "removed", "changed")))
     return document
@@ -226,6 +310,17 @@ def _change(old: object, new: object, relative: float | None = None) -> str:
     return f"{text} ({_percent(relative)})" if relative is not None else text
 
 
+def item_change(item: dict) -> str:
+    """Old → new of one changed field, numbers in the display units of the new run."""
+    old, new = item.get("old"), item.get("new")
+    if "old_shown" not in item or (isinstance(old, list) and isinstance(new, list) and not
+                                   all(_is_number(v) for v in old + new)):
+        return _change(old, new, item.get("relative"))
+    text = f"{item['old_shown']} → {item['new_shown']}"
+    relative = item.get("relative")
+    return f"{text} ({_percent(relative)})" if relative is not None else text
+
+
 def _run_line(header: dict) -> str:
     date = f", {header['date']}" if header.get("date") else ""
     fp = f", fingerprint {header['fingerprint']}" if header.get("fingerprint") else ""
@@ -249,7 +344,8 @@ def comparison_text(document: dict) -> str:
     """The comparison as plain text (one section per kind of change)."""
     lines = [f"Old: {_run_line(document['old'])}", f"New: {_run_line(document['new'])}"]
     if document["identical"]:
-        lines.append("No check, system, record, setting or project detail changed.")
+        lines.append("No check, system, record, input, setting or project detail "
+                     "changed.")
     if document["checks"]:
         lines.append(f"Checks changed ({len(document['checks'])}):")
         for row in document["checks"]:
@@ -264,9 +360,13 @@ def comparison_text(document: dict) -> str:
                 lines.append(f"{group.capitalize()} {kind}: {', '.join(section[kind])}")
         if section["changed"]:
             lines.append(f"{group.capitalize()} changed:")
-            lines += [f"  {item['id']} {item['field']}: "
-                      f"{_change(item['old'], item['new'], item['relative'])}"
+            lines += [f"  {item['id']} {item['field']}: {item_change(item)}"
                       for item in section["changed"]]
+    if document.get("inputs"):
+        lines.append("Inputs changed:")
+        lines += [f"  {item['path']}: {item_change(item)}" for item in document["inputs"]]
+    if document.get("inputs_note"):
+        lines.append(document["inputs_note"])
     if document["settings"]:
         lines.append("Settings changed:")
         lines += [f"  {item['path']}: {_change(item['old'], item['new'])}"
@@ -343,7 +443,8 @@ def _page_context(document: dict, figure_sources: dict[str, str], note: str) -> 
     return {"comparison": document, "check_rows": rows,
             "figures": [{"record": rid, "src": src} for rid, src in
                         sorted(figure_sources.items())],
-            "figure_note": note, "show": _value, "change": _change}
+            "figure_note": note, "show": _value, "change": _change,
+            "item_change": item_change}
 
 
 def _project_of(doc: dict) -> dict:
@@ -366,12 +467,16 @@ def comparison_html(document: dict, old_doc: dict, new_doc: dict) -> str:
 
 
 def revision_page(old_results_doc: dict, new_results_doc: dict, *,
-                  fingerprint: str = "") -> dict[str, bytes]:
+                  fingerprint: str = "", old_fingerprint: str = "") -> dict[str, bytes]:
     """
     Files of a revision page for the new run's site: ``revision.html`` (at the site's
     root) and ``figures/revision-<record>.svg`` for each changed record's spectra.
+    ``fingerprint`` and ``old_fingerprint`` are the two runs' fingerprints (manifest.json),
+    shown side by side.
     """
-    document = compare_results(old_results_doc, new_results_doc)
+    document = compare_runs(
+        Run("old", old_results_doc, {"fingerprint": old_fingerprint or None}),
+        Run("new", new_results_doc, {"fingerprint": fingerprint or None}))
     figures, note = spectra_overlays(old_results_doc, new_results_doc)
     files = {f"figures/revision-{rid}.svg": svg.encode("utf-8") for rid, svg in figures.items()}
     sources = {rid: f"figures/revision-{rid}.svg" for rid in figures}

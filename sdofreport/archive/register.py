@@ -3,6 +3,8 @@
 Every packed zip and site folder found under a folder (as CI leaves them) becomes one row:
 project, reference, revision, date, number of checks, worst demand / limit, verdicts,
 fingerprint and a link to the run, copied into ``runs/<name>/`` so links work offline.
+A run holding a page or figure that could run script is listed and marked, never copied
+(:mod:`sdofreport.archive._activecontent`).
 Each run is verified while the register is built; a run that fails is marked, never
 hidden. Rows are ordered by reference, revision and fingerprint; nothing depends on the
 time, so rebuilding after adding a run changes only what the new run adds.
@@ -18,6 +20,7 @@ from dataclasses import asdict, dataclass
 from pathlib import Path
 
 from sdofreport import __version__
+from sdofreport.archive._activecontent import unsafe_content
 from sdofreport.archive._pages import common_context, render, stylesheet
 from sdofreport.archive._sitefiles import (
     RESULTS_PATH,
@@ -161,7 +164,14 @@ def gather_register(folder: str | os.PathLike,
             message = " ".join(exc.message.replace(str(path), source).split())
             entries.append((_row(None, source, message), None))
             continue
-        entries.append((_row(run, source), run))
+        row = _row(run, source)
+        unsafe = unsafe_content(run.files)
+        if unsafe is not None:  # listed, marked, never copied where a click could run it
+            row.verified = False
+            row.verification = (f"NOT COPIED: {unsafe}, which could run script or leave "
+                                f"the site when opened ({row.verification})")
+            run = None
+        entries.append((row, run))
     entries.sort(key=lambda e: (_natural(e[0].reference), _natural(e[0].revision),
                                 e[0].fingerprint, e[0].source))
     rows = [row for row, _ in entries]

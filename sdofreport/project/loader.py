@@ -4,7 +4,9 @@ Validation runs in phases: TOML syntax (with the line), then every key of every 
 against :data:`~sdofreport.project.schema.SECTIONS` (unknown keys with a "did you mean"),
 then cross-checks (unique ids, files present, limits that need a mass or height). Each
 problem is ``(location, message)``; the location is a key path such as
-``systems[2].limits.drift_ratio`` (array positions count from 1, in file order).
+``systems[2].limits.drift_ratio`` (array positions count from 1, in file order), shown
+to the reader with the entry's id and the key's line (``line 31,
+systems[frame].limits.drift_ratio``, see :mod:`sdofreport.project.locate`).
 """
 
 from __future__ import annotations
@@ -39,6 +41,15 @@ from sdofreport.project.model import (
     RecordSpec,
     SystemSpec,
 )
+from sdofreport.project.locate import describe, entry_ids, key_lines
+from sdofreport.project.bounds import (
+    MAX_NETWORK_DEPTH,
+    MAX_PERIOD_S,
+    MAX_SCALE,
+    MAX_SPECTRAL_G,
+    MAX_SYNTHETIC_SAMPLES,
+)
+from sdofreport.project.ids import id_case_problems, id_problem
 from sdofreport.project.quantities import (
     QuantityError,
     parse_damper_coefficient,
@@ -56,14 +67,14 @@ from sdofreport.project.schema import (
 )
 from sdofreport.core.hysteresis import HYSTERESIS_MODELS
 
-_ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
-
 
 class _Problems:
     """Collects ``(location, message)`` pairs in the order they are found."""
 
-    def __init__(self) -> None:
+    def __init__(self, plain_si: bool = False) -> None:
         self.items: list[tuple[str, str]] = []
+        #: Whether bare numbers for dimensional keys are SI ([project] plain_numbers).
+        self.plain_si = plain_si
 
     def add(self, location: str, message: str) -> None:
         self.items.append((location, message))
@@ -132,7 +143,8 @@ def _read_value(table: dict, spec: KeySpec, location: str, problems: _Problems):
         return float(value) if spec.type != "integer" else int(value)
     if spec.type == "quantity":
         try:
-            return parse_quantity(value, spec.dimension)
+            return parse_quantity(value, spec.dimension, plain_si=problems.plain_si,
+                                  key=spec.name)
         except QuantityError as exc:
             problems.add(where, str(exc))
             return None
@@ -221,7 +233,7 @@ def _read_periods(value, problems: _Problems,
         for key in unknown:
             problems.add(f"{where}.{key}", f"unknown key"
                          f"{_did_you_mean(key, ('min', 'max', 'count'))}")
-        try:
+        try:  # bare numbers are seconds: the key is documented "in s"
             low = parse_quantity(value.get("min", 0.01), "time")
             high = parse_quantity(value.get("max", 10.0), "time")
         except QuantityError as exc:
@@ -268,6 +280,7 @@ def _read_analysis(table, problems: _Problems) -> AnalysisSettings:
             else:
                 damping.append(float(value))
     periods = _read_periods(table.get("periods", spec["periods"].default), problems)
+    _check_longest_period(periods, "analysis.periods", problems)
     return AnalysisSettings(method, tuple(sorted(set(damping))) or (0.05,), periods,
                             statistic)
 
@@ -299,6 +312,7 @@ def _read_info(table, project_path: Path, problems: _Problems) -> ProjectInfo:
         revision=values["revision"] or "", prepared_by=values["prepared_by"] or "",
         checked_by=values["checked_by"], date=date, notes_path=notes_path,
         notes_file=values["notes"], display_units=values["display_units"] or "SI",
+        plain_numbers=values["plain_numbers"],
         prepared_date=values["prepared_date"], checked_date=values["checked_date"],
         approved_by=values["approved_by"], approved_date=values["approved_date"],
         revisions=_read_revisions(values["revisions"], problems))
@@ -361,9 +375,9 @@ def _read_id(table: dict, where: str, seen: dict, problems: _Problems) -> str | 
     if value is None:
         problems.add(f"{where}.id", "missing; every entry needs a unique id")
         return None
-    if not isinstance(value, str) or not _ID_PATTERN.match(value):
-        problems.add(f"{where}.id", f"expected letters, digits, '-', '_' or '.' (up to 64, "
-                     f"starting with a letter or digit), found {value!r}")
+    problem = id_problem(value)
+    if problem is not None:
+        problems.add(f"{where}.id", problem)
         return None
     if value in seen:
         problems.add(f"{where}.id", f"duplicate id {value!r} (also {seen[value]})")
@@ -393,10 +407,12 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         _positive(dt_s, f"{where}.dt", "the time step", problems, "s")
         scale = _read_value(table, spec["scale"], where, problems)
         _positive(scale, f"{where}.scale", "the scale factor", problems, "")
+        _check_bounded(scale, f"{where}.scale", MAX_SCALE, "scale factor", problems)
         own = _read_processing(table.get("processing", {}), f"{where}.processing",
                                problems, processing)
-        pair = _read_value(table, spec["pair"], where, problems)
+        pair = _read_pair(table, spec["pair"], where, problems)
         component = _read_value(table, spec["component"], where, problems)
+        amplitude_ok = bool(_read_value(table, spec["amplitude_ok"], where, problems))
         if component == "V" and "pair" in table:
             problems.add(f"{where}.pair", "a vertical record (component = \"V\") stands "
                          "alone: give no pair")
@@ -406,9 +422,19 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         path = _input_file(root, file, f"{where}.file", problems) if file else None
         if record_id and file and path is not None:
             records.append(RecordSpec(record_id, path, file, fmt, units, dt_s,
-                                      scale if scale else 1.0, own, pair, component))
+                                      scale if scale else 1.0, own, pair, component,
+                                      amplitude_ok))
     _check_pairs(records, problems)
     return records
+
+
+def _read_pair(table: dict, spec: KeySpec, where: str, problems: _Problems) -> str | None:
+    """The pair name: it names a figure file, so it is an id like any other."""
+    pair = _read_value(table, spec, where, problems)
+    if pair is not None and (problem := id_problem(pair)) is not None:
+        problems.add(f"{where}.pair", problem)
+        return None
+    return pair
 
 
 def _check_pairs(records: list[RecordSpec], problems: _Problems) -> None:
@@ -499,7 +525,8 @@ def _network_to_si(node, path: str, problems: _Problems):
         for key, value in node.items():
             if key == "k":
                 try:
-                    out[key] = parse_quantity(value, "stiffness")
+                    out[key] = parse_quantity(value, "stiffness",
+                                              plain_si=problems.plain_si, key="k")
                 except QuantityError as exc:
                     problems.add(f"{path}.k", str(exc))
                     return None
@@ -601,7 +628,8 @@ def _damper(table, where: str, problems: _Problems):
                      f"2, found {alpha!r}")
         return None
     try:
-        coefficient = parse_damper_coefficient(table["coefficient"], float(alpha))
+        coefficient = parse_damper_coefficient(table["coefficient"], float(alpha),
+                                               plain_si=problems.plain_si)
         hy.damper(coefficient, float(alpha))
     except (QuantityError, ValueError) as exc:
         problems.add(f"{where}.coefficient", str(exc))
@@ -755,6 +783,8 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
                              f"({spec[key].description})")
             continue
         if key == "network":
+            if not _network_depth_ok(table[key], f"{where}.network", problems):
+                continue
             values[key] = _network_to_si(table[key], f"{where}.network", problems)
             continue
         if key in ("damper", "property_factors"):
@@ -1038,9 +1068,12 @@ def _read_synthetic(table, design, problems: _Problems) -> SyntheticSpec | None:
     count, duration, dt = values["count"], values["duration"], values["dt"]
     if count is not None and not 1 <= count <= 100:
         problems.add(f"{where}.count", f"expected 1 to 100 records, found {count}")
+        values["count"] = None  # never make (or list) that many records
     if duration is not None and dt is not None and not 0 < 20 * dt <= duration:
         problems.add(f"{where}.dt", f"expected 0 < dt and at least 20 steps in the "
                      f"duration, found dt {dt:g} s for {duration:g} s")
+    if not _synthetic_length_ok(duration, dt, where, problems):
+        values["duration"] = None
     period_range = _period_range(table, where, (0.05, 4.0), problems)
     if design is None:
         problems.add(where, "synthetic records need a [design_spectrum] section (their "
@@ -1064,6 +1097,7 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
                              f"{where}.strength_reduction", 1.0, problems)
     periods = _read_periods(table.get("periods", spec["periods"].default), problems,
                             f"{where}.periods")
+    _check_longest_period(periods, f"{where}.periods", problems)
     damping = _read_value(table, spec["damping"], where, problems)
     alpha = _read_value(table, spec["post_yield_ratio"], where, problems)
     steps = _read_value(table, spec["steps_per_period"], where, problems)
@@ -1077,6 +1111,89 @@ def _read_inelastic(table, problems: _Problems) -> InelasticSpectraSpec | None:
         return None
     return InelasticSpectraSpec(ductility, reduction, periods, damping, alpha, steps)
 
+
+def _without_bom(text: str) -> str:
+    """``text`` without a leading byte-order mark (some Windows editors write one)."""
+    return text.removeprefix("\ufeff")
+
+
+def _too_deep_message(path: Path, text: str) -> str:
+    """The message for TOML nested beyond what the parser (and Python) can follow."""
+    depth, deepest, line = 0, 0, 1
+    for number, row in enumerate(text.splitlines(), start=1):
+        for char in row:
+            depth += char in "[{"
+            depth -= char in "]}"
+            if depth > deepest:
+                deepest, line = depth, number
+    return (f"{path} line {line}: brackets and braces nested {deepest} deep, beyond what "
+            f"the TOML reader follows; expected a spring network of at most "
+            f"{MAX_NETWORK_DEPTH} levels of series and parallel groups.")
+
+
+def _check_bounded(value, where: str, limit: float, what: str, problems: _Problems) -> None:
+    """A problem when ``value`` (already > 0) exceeds ``limit``."""
+    if isinstance(value, (int, float)) and value > limit:
+        problems.add(where, f"expected a {what} of at most {limit:g}, found {value:g}")
+
+
+def _check_absurd_design(design: DesignSpectrumSpec | None, scaling: ScalingSpec,
+                         analysis: AnalysisSettings, problems: _Problems) -> None:
+    """Problems for a design spectrum beyond any real one, or an absurd suite factor."""
+    _check_bounded(scaling.suite_factor, "scaling.suite_factor", MAX_SCALE, "suite factor",
+                   problems)
+    if design is None:
+        return
+    # Zero period too: a huge plateau can lie entirely below the analysis periods.
+    periods = sorted({0.0, *analysis.periods_s, *(design.values.get("periods") or [])})
+    with np.errstate(all="ignore"):
+        peak = float(np.max(design.spectrum().sa_g(np.asarray(periods, dtype=float))))
+    if not (math.isfinite(peak) and peak <= MAX_SPECTRAL_G):
+        shown = ", ".join(f"{key} = {value!r}" for key, value in design.values.items())
+        problems.add("design_spectrum", f"the spectrum reaches {peak:.3g} g ({shown}); "
+                     f"expected at most {MAX_SPECTRAL_G:g} g: check the values and units")
+
+
+def _synthetic_length_ok(duration, dt, where: str, problems: _Problems) -> bool:
+    """False (with a problem) when a synthetic record would hold too many samples."""
+    if duration is None or dt is None or not dt > 0:
+        return True
+    samples = duration / dt
+    if samples <= MAX_SYNTHETIC_SAMPLES:
+        return True
+    problems.add(f"{where}.duration", f"duration {duration:g} s at dt {dt:g} s makes "
+                 f"{samples:.3g} samples per record; expected at most "
+                 f"{MAX_SYNTHETIC_SAMPLES:,} (shorten the duration or coarsen dt)")
+    return False
+
+
+def _check_longest_period(periods, where: str, problems: _Problems) -> None:
+    """A problem when a spectrum period exceeds :data:`MAX_PERIOD_S`."""
+    if periods and max(periods) > MAX_PERIOD_S:
+        problems.add(where, f"expected periods of at most {MAX_PERIOD_S:g} s, found "
+                     f"{max(periods):g} s")
+
+
+def _network_depth_ok(node, where: str, problems: _Problems) -> bool:
+    """False (with a problem) when a spring network nests deeper than allowed.
+
+    Measured without recursion, so a network hundreds of levels deep is a message, not
+    a RecursionError."""
+    deepest, stack = 0, [(node, 1)]
+    while stack:
+        item, depth = stack.pop()
+        deepest = max(deepest, depth)
+        if deepest > MAX_NETWORK_DEPTH:
+            problems.add(where, f"nested more than {MAX_NETWORK_DEPTH} levels deep; expected "
+                         f"a spring network of at most {MAX_NETWORK_DEPTH} levels of series "
+                         f"and parallel groups")
+            return False
+        children = item.values() if isinstance(item, dict) else (
+            item if isinstance(item, list) else ())
+        # A level is a node (a table); the lists between nodes do not count.
+        stack += [(child, depth + isinstance(child, dict)) for child in children
+                  if isinstance(child, (dict, list))]
+    return True
 
 def _read_fragility(table, systems, problems: _Problems) -> FragilitySpec | None:
     where = "fragility"
@@ -1128,11 +1245,15 @@ def _syntax_error_message(path: Path, exc: tomllib.TOMLDecodeError, text_in: str
             f"between key and value, and [section] headers.")
 
 
-def format_problems(path: Path, problems: list[tuple[str, str]]) -> str:
-    """One message listing every problem, each starting with where it is."""
+def format_problems(path: Path, problems: list[tuple[str, str]], text: str = "",
+                    document: dict | None = None) -> str:
+    """One message listing every problem, each starting with where it is: the key path
+    with array entries named by id, and the line of the key in ``text``."""
     count = len(problems)
     head = f"{path} has {count} problem{'s' if count != 1 else ''}:"
-    return "\n".join([head, *(f"  {where}: {message}" for where, message in problems)])
+    lines, names = key_lines(text), entry_ids(document or {})
+    return "\n".join([head, *(f"  {describe(where, lines, names)}: {message}"
+                              for where, message in problems)])
 
 
 def load_project(path) -> Project:
@@ -1161,7 +1282,7 @@ def load_project(path) -> Project:
                            f"sdofreport.toml.")
     raw = path.read_bytes()
     try:
-        text = raw.decode("utf-8")
+        text = _without_bom(raw.decode("utf-8"))
     except UnicodeDecodeError as exc:
         line = raw[:exc.start].count(b"\n") + 1
         raise ProjectError(f"{path} line {line}: not UTF-8 text (byte {exc.start}); save "
@@ -1170,9 +1291,13 @@ def load_project(path) -> Project:
         document = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ProjectError(_syntax_error_message(path, exc, text)) from None
+    except RecursionError:
+        raise ProjectError(_too_deep_message(path, text)) from None
     shown = path
     path = path.resolve()
-    problems = _Problems()
+    head = document.get("project")
+    problems = _Problems(plain_si=isinstance(head, dict) and
+                         head.get("plain_numbers") == "SI")
     for key in document:
         if key not in TOP_LEVEL:
             problems.add(key, f"unknown section{_did_you_mean(key, TOP_LEVEL)}")
@@ -1197,6 +1322,8 @@ def load_project(path) -> Project:
     scaling = _read_scaling(document.get("scaling"), design, "design_spectrum" in document,
                             problems)
     inelastic = _read_inelastic(document.get("inelastic_spectra"), problems)
+    _check_absurd_design(design, scaling, analysis, problems)
+
     fragility = _read_fragility(document.get("fragility"), systems, problems)
     synthetic = _read_synthetic(synthetic_table, design if design_early is not None else
                                 None, problems)
@@ -1208,8 +1335,10 @@ def load_project(path) -> Project:
     _check_two_directions(records, systems, problems)
     _check_directions_have_records(records, systems, problems)
     save_memo()  # unit strings pint converted, so the next read need not import it
+    for where, message in id_case_problems(document):
+        problems.add(where, message)
     if problems.items:
-        raise ProjectError(format_problems(shown, problems.items))
+        raise ProjectError(format_problems(shown, problems.items, text, document))
     # Records in natural order of their ids (P1, P2, ... P10), wherever they are listed.
     records = sorted(records, key=lambda spec: natural_key(spec.id))
     return Project(path, hashlib.sha256(raw).hexdigest(), info, analysis, processing,

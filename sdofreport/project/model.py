@@ -54,6 +54,7 @@ class ProjectInfo:
     notes_path: Path | None = None
     notes_file: str | None = None  # as written in the project file
     display_units: str = "SI"
+    plain_numbers: str | None = None  # "SI": bare numbers of dimensional keys are SI
     prepared_date: str | None = None
     checked_date: str | None = None
     approved_by: str | None = None
@@ -99,6 +100,7 @@ class RecordSpec:
     processing: ProcessingSettings = field(default_factory=ProcessingSettings)
     pair: str | None = None
     component: str | None = None  # "H1" | "H2"
+    amplitude_ok: bool = False  # PGA and header-unit checks acknowledged by the user
 
 
 @dataclass(frozen=True)

@@ -165,17 +165,39 @@ class QuantityError(ValueError):
     """A value that is not a number or a quantity of the expected dimension."""
 
 
-def parse_quantity(value: object, dimension: str) -> float:
+class BareNumberError(QuantityError):
+    """A plain number where a value with units is required."""
+
+
+def bare_number_message(key: str, number: float, dimension: str) -> str:
+    """Plain-English refusal of ``key = number`` with the fix written out."""
+    units = _FIX_UNITS[dimension]
+    shown = f"{number:g}"
+    fixes = " or ".join(f'{key} = "{shown} {unit}"' for unit in units)
+    return (f"found the bare number {shown}, which has no unit; write the {dimension} "
+            f"with its unit as text, for example {fixes} (or, if every bare number in "
+            f'this file is meant in SI units, state [project] plain_numbers = "SI", '
+            f"which reads this one as {shown} {DIMENSIONS[dimension][1]})")
+
+
+def parse_quantity(value: object, dimension: str, *, plain_si: bool = True,
+                   key: str | None = None) -> float:
     """
     Convert a project-file value to a float in SI units.
 
     Parameters
     ----------
     value : int, float or str
-        A number already in SI units, or a string such as ``"120 t"``, ``"4.2 MN/m"``,
-        ``"26 kip/in"``, ``"18 ft"`` or ``"0.35 g"``. [-]
+        A string such as ``"120 t"``, ``"4.2 MN/m"``, ``"26 kip/in"``, ``"18 ft"`` or
+        ``"0.35 g"``, or a plain number (taken as SI when ``plain_si``). [-]
     dimension : str
         One of :data:`DIMENSIONS`.
+    plain_si : bool, optional
+        Whether a plain number (``6`` or ``"6"``) is read in SI units; when False it is
+        refused with :class:`BareNumberError`, since ``mass = 6`` meant as tonnes would
+        silently become 6 kg.
+    key : str, optional
+        The key's name, used in the example of the fix.
 
     Returns
     -------
@@ -186,6 +208,8 @@ def parse_quantity(value: object, dimension: str) -> float:
     ------
     QuantityError
         With a message saying what was expected and what was found.
+    BareNumberError
+        For a plain number when ``plain_si`` is False.
     """
     si_unit = DIMENSIONS[dimension][1]
     if isinstance(value, bool):
@@ -195,19 +219,23 @@ def parse_quantity(value: object, dimension: str) -> float:
         number = float(value)
         if not math.isfinite(number):
             raise QuantityError(f"expected a finite {dimension}, found {value!r}")
+        if not plain_si:
+            raise BareNumberError(bare_number_message(key or dimension, number, dimension))
         return number
     if not isinstance(value, str):
         raise QuantityError(f"expected a {dimension} (number in {si_unit} or text with "
                             f"units such as '{_EXAMPLES[dimension]}'), found "
                             f"{type(value).__name__} {value!r}")
     text = value.strip()
-    try:  # a bare number written as text ("120") is an SI value
+    try:  # a bare number written as text ("120") is a bare number too
         number = float(text)
     except ValueError:
         pass
     else:
         if not math.isfinite(number):
             raise QuantityError(f"expected a finite {dimension}, found {value!r}")
+        if not plain_si:
+            raise BareNumberError(bare_number_message(key or dimension, number, dimension))
         return number
     if dimension == "acceleration":
         text = _BARE_G.sub("g_0", text)
@@ -254,7 +282,15 @@ def _convert(text: str, value: str, dimension: str) -> float:
     return number
 
 
-def parse_damper_coefficient(value: object, exponent: float) -> float:
+def _bare_damper(number: float, unit: str) -> str:
+    return (f"found the bare number {number:g}, which has no unit; write the damper "
+            f"coefficient with its unit as text, for example coefficient = "
+            f"\"{number:g} {unit}\" (or, if every bare number in this file is meant in SI "
+            f"units, state [project] plain_numbers = \"SI\")")
+
+
+def parse_damper_coefficient(value: object, exponent: float, *,
+                             plain_si: bool = True) -> float:
     """
     A damper coefficient C of ``F = C |v|^α sign(v)`` in SI, [N·(s/m)^α].
 
@@ -265,6 +301,9 @@ def parse_damper_coefficient(value: object, exponent: float) -> float:
         ``"40 kN*(s/m)**0.5"``. [-]
     exponent : float
         The velocity exponent α. [-]
+    plain_si : bool, optional
+        Whether a plain number is read in N·(s/m)^α; when False it is refused with
+        :class:`BareNumberError` (see :func:`parse_quantity`).
 
     Returns
     -------
@@ -282,6 +321,8 @@ def parse_damper_coefficient(value: object, exponent: float) -> float:
                             f"units), found {value!r}")
     if isinstance(value, (int, float)):
         number = float(value)
+        if not plain_si and math.isfinite(number):
+            raise BareNumberError(_bare_damper(number, unit))
     else:
         try:
             number = float(value.strip())
@@ -294,6 +335,9 @@ def parse_damper_coefficient(value: object, exponent: float) -> float:
                 raise QuantityError(f"expected a damper coefficient in units of force × "
                                     f"(time/length)^{exponent:g}, such as '{unit}', found "
                                     f"{value!r}") from None
+        else:  # a bare number written as text
+            if not plain_si and math.isfinite(number):
+                raise BareNumberError(_bare_damper(number, unit))
     if not math.isfinite(number):
         raise QuantityError(f"expected a finite damper coefficient, found {value!r}")
     return number
@@ -310,4 +354,18 @@ _EXAMPLES = {
     "second_moment": "8.5e-5 m**4",
     "inertia": "2400 kg*m**2",
     "frequency": "2 Hz",
+}
+
+#: Units offered in the fix of a bare number, most common first.
+_FIX_UNITS = {
+    "length": ("m", "mm"),
+    "mass": ("t", "kg"),
+    "time": ("s",),
+    "force": ("kN", "N"),
+    "stiffness": ("kN/m", "MN/m"),
+    "acceleration": ("g", "m/s**2"),
+    "pressure": ("GPa", "MPa"),
+    "second_moment": ("m**4", "mm**4"),
+    "inertia": ("kg*m**2", "t*m**2"),
+    "frequency": ("Hz",),
 }

@@ -88,6 +88,10 @@ SYSTEM_KIND_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
 #: Unit systems the pages may be shown in (results.json always stays SI).
 DISPLAY_UNITS = ("SI", "US")
 
+#: What a bare number for a dimensional key (type "quantity") may mean: only SI, and
+#: only when the project says so; otherwise it is refused.
+PLAIN_NUMBERS = ("SI",)
+
 
 @dataclass(frozen=True)
 class KeySpec:
@@ -153,6 +157,16 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("display_units", "choice", "Units shown on the pages: SI (mm, kN, m/s², "
                 "g) or US customary (in, kip, in/s², g). results.json stays SI.",
                 default="SI", choices=DISPLAY_UNITS, example='"SI"'),
+        KeySpec("plain_numbers", "choice", "Omit it, and every dimensional value (a key "
+                "whose type is quantity) must be text with its unit (mass = \"6 t\"): "
+                "a bare number is an error. State \"SI\" to read bare numbers for those "
+                "keys in SI units (kg, m, s, N, N/m, Pa, m/s²); the provenance on the summary "
+                "page then says so. Ratios, factors and the keys defined in g or "
+                "with their unit in the name (damping, post_yield_ratio, friction, "
+                "drift_ratio, ductility, sds, sd1, agr, scale, suite_factor, taper_s, "
+                "bandpass_hz, the period lists and ranges, given in seconds) are plain numbers in "
+                "either case.",
+                choices=PLAIN_NUMBERS, example='"SI"'),
     ),
     "analysis": _keys(
         KeySpec("method", "choice", "Integration method for spectra and histories.",
@@ -278,7 +292,9 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "system's period, or at T = 0 for pga).", example="0.42"),
     ),
     "records[]": _keys(
-        KeySpec("id", "text", "Unique short name of the record.", required=True,
+        KeySpec("id", "text", "Unique short name of the record; it names files, so letters, "
+                "digits, '-', '_' or '.', starting and ending with a letter or digit, "
+                "unique regardless of case.", required=True,
                 example='"rec01"'),
         KeySpec("file", "path", "Record file, relative to the project file.",
                 required=True, example='"records/rec01.txt"'),
@@ -293,16 +309,23 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("processing", "table", "Per-record overrides of [processing].",
                 example="{ baseline_order = 1 }"),
         KeySpec("pair", "text", "Name of the horizontal pair this record belongs to "
-                "(two records share it, one H1 and one H2).", example='"p1"'),
+                "(two records share it, one H1 and one H2); it names a figure file, so "
+                "the same characters as an id.", example='"p1"'),
         KeySpec("component", "choice", "Component: H1 or H2 of a horizontal pair (with "
                 "pair), or V for a vertical record (without pair; not scaled by the "
                 "suite rule, drives only systems with direction = \"vertical\").",
                 choices=COMPONENTS,
                 example='"H1"'),
+        KeySpec("amplitude_ok", "boolean", "Acknowledges an amplitude the build would "
+                "otherwise stop at: a PGA after scaling above 4 g or below 0.001 g, or a "
+                "file header that states a unit other than units. Set it only after "
+                "checking the record.", default=False, example="true"),
     ),
     "records[].processing": _PROCESSING_KEYS,
     "systems[]": _keys(
-        KeySpec("id", "text", "Unique short name of the system.", required=True,
+        KeySpec("id", "text", "Unique short name of the system; it names files, so letters, "
+                "digits, '-', '_' or '.', starting and ending with a letter or digit, "
+                "unique regardless of case.", required=True,
                 example='"frame"'),
         KeySpec("name", "text", "Descriptive name.", required=True,
                 example='"Cold-store portal frame"'),
@@ -396,8 +419,9 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("gravity_load", "quantity", "P-Δ: gravity load W carried on the height "
                 "(default W = m·g).", dimension="force", example='"650 kN"'),
         KeySpec("damper", "table", "Supplemental viscous damper F = C·|v|^α·sign(v): "
-                "coefficient C (a number in N·(s/m)^α or text with units, e.g. "
-                "\"120 kN*s/m\") and exponent α (0 < α <= 2; 1 is linear).",
+                "coefficient C, text with units such as \"120 kN*s/m\" (a bare number "
+                "in N·(s/m)^α only with plain_numbers = \"SI\"), and exponent α "
+                "(0 < α <= 2; 1 is linear).",
                 example='{ coefficient = "40 kN*(s/m)**0.5", exponent = 0.5 }'),
         KeySpec("direction", "choice", "horizontal (driven by the horizontal records) "
                 "or vertical (for example equipment on springs or a hanging item moving "

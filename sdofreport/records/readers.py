@@ -45,6 +45,7 @@ from sdofreport.core.units import (
     normalise_acceleration_unit,
 )
 from sdofreport.errors import RecordError
+from sdofreport.records.header_units import stated_units
 from sdofreport.records.record import Record
 
 #: Format names accepted by :func:`read_record` (the single registry; "auto" first).
@@ -69,6 +70,11 @@ MAX_FILE_BYTES = 16 * 1024 * 1024
 TIME_STEP_TOLERANCE = 1e-3
 #: Peaks outside this range [g] trigger an implausible-amplitude warning.
 PLAUSIBLE_PEAK_G = (1e-5, 10.0)
+#: Peak above which a record is refused, not only warned about [g]. Our bound (no
+#: source): a million times the strongest recorded ground motions (a few g, from
+#: memory) and above any unit mix-up the warning explains (a record in mm/s² read as
+#: g peaks near 1e4 "g"); below it nothing in the computation can overflow.
+ABSURD_PEAK_G = 1e6
 #: Range [g] a suggested alternative unit must bring the peak into.
 _SUGGESTED_PEAK_G = (0.01, 4.0)
 
@@ -152,6 +158,9 @@ _NOT_TEXT = (
 def _decode(data: bytes, path: str) -> str:
     if not data.strip():
         raise _fail(path, None, "is empty; expected acceleration values")
+    if not data.removeprefix(b"\xef\xbb\xbf").strip():
+        raise _fail(path, 1, "holds only a UTF-8 byte-order mark (0xef 0xbb 0xbf) and no "
+                    "values; expected acceleration values")
     for magic, message in _NOT_TEXT:
         if data.startswith(magic):
             raise _fail(path, 1, message)
@@ -181,6 +190,19 @@ def _split_lines(text: str) -> list[tuple[int, str]]:
 
 def _strip_comment(line: str) -> str:
     return line.split("#", 1)[0].strip()
+
+
+def _quoted_numbers(text: str, path: str) -> None:
+    """Refuse numbers written in quotes (``"0.01","0.25"``), naming the first such line."""
+    for number, line in enumerate(text.split("\n", 200)[:200], start=1):
+        if '"' not in line and "'" not in line:
+            continue
+        tokens = _tokens(line)
+        quoted = [t for t in tokens if len(t) >= 2 and t[0] == t[-1] and t[0] in "\"'"]
+        if quoted and all(_numeric_like(t.strip("\"'")) for t in tokens):
+            raise _fail(path, number, f"the numbers are in quotes ({quoted[0]}); expected "
+                        f"plain numbers: save the file without quotes around values "
+                        f"(a spreadsheet's CSV export option)")
 
 
 def _tokens(text: str) -> list[str]:
@@ -685,6 +707,17 @@ def _amplitude_warning(peak_raw: float, units: str) -> str | None:
     return f"{lead}; " + "; ".join(parts)
 
 
+def _refuse_absurd(acceleration, raw, units: str, path: str, line_of) -> None:
+    """A RecordError naming the line of the first value beyond :data:`ABSURD_PEAK_G`."""
+    over = np.flatnonzero(np.abs(acceleration) > ABSURD_PEAK_G * G)
+    if over.size:
+        index = int(over[0])
+        in_g = "" if units == "g" else f" ({abs(acceleration[index]) / G:.3g} g)"
+        raise _fail(path, line_of(index),
+                    f"the value {raw[index]:g} {units}{in_g} is beyond any ground motion "
+                    f"(at most {ABSURD_PEAK_G:g} g is accepted); check the values and units")
+
+
 def _parse(text, file_format, path, dt_given, fast):
     """(format, detection history, values, dt, history, line lookup) of the LF-ended
     ``text``; ``fast`` tries :func:`_clean_two_column` before the line-by-line path."""
@@ -723,6 +756,7 @@ def _read(path, file_format, units, dt_s, record_id, *, fast=True) -> Record:
     dt_given = _given_time_step(dt_s, path_text)
     data = _load_bytes(path_text)
     text = _normalise_line_ends(_decode(data, path_text))
+    _quoted_numbers(text, path_text)
     # ``fast=False`` keeps to the line-by-line path (the reference the tests compare with).
     chosen, history, raw, dt, steps, line_of = _parse(text, file_format, path_text,
                                                       dt_given, fast)
@@ -737,6 +771,7 @@ def _read(path, file_format, units, dt_s, record_id, *, fast=True) -> Record:
         raise _fail(path_text, line_of(index),
                     f"the value {raw[index]:g} becomes infinite when converted from "
                     f"{canonical_units} to m/s2; check the values and units")
+    _refuse_absurd(acceleration, raw, canonical_units, path_text, line_of)
     history.append(units_note or f"units: {canonical_units} (declared)")
     if factor != 1.0:
         history.append(f"converted from {canonical_units} to m/s2 (x {factor:g})")
@@ -752,6 +787,7 @@ def _read(path, file_format, units, dt_s, record_id, *, fast=True) -> Record:
         file_format=chosen,
         history=tuple(history),
         warnings=(warning,) if warning else (),
+        stated_units=stated_units(text),
     )
 
 
@@ -806,6 +842,7 @@ def read_headed(path, *, units=None, dt_s=None, record_id=None) -> Record:
 
 
 __all__ = [
+    "ABSURD_PEAK_G",
     "MIN_POINTS",
     "PLAUSIBLE_PEAK_G",
     "RECORD_FORMATS",

@@ -40,6 +40,9 @@ class Record:
         Human-readable steps from the file to these values, in order.
     warnings : tuple of str
         Things the user should look at (implausible amplitude, ...); not errors.
+    stated_units : tuple of (str, int, str)
+        Acceleration units the file's header lines state: (canonical unit, line, line
+        text) each (see :mod:`sdofreport.records.header_units`); empty when none.
     """
 
     id: str
@@ -51,6 +54,7 @@ class Record:
     file_format: str
     history: tuple[str, ...] = field(default=())
     warnings: tuple[str, ...] = field(default=())
+    stated_units: tuple[tuple[str, int, str], ...] = field(default=())
 
     def __post_init__(self) -> None:
         values = np.array(self.acceleration_m_s2, dtype=np.float64, copy=True)

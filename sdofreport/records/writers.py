@@ -27,6 +27,7 @@ from collections.abc import Iterable, Sequence
 import numpy as np
 
 from sdofreport.core.units import ACCELERATION_UNITS, normalise_acceleration_unit
+from sdofreport.errors import naming_path
 
 #: Comment line stating the units in a two-column file (``{units}`` is filled in).
 TWO_COLUMN_UNITS_LINE = "# acceleration units: {units}"
@@ -105,7 +106,7 @@ def _write_atomic(path, text: str) -> None:
             continue
         break
     try:
-        with os.fdopen(fd, "wb") as handle:
+        with naming_path(target), os.fdopen(fd, "wb") as handle:
             handle.write(data)
             handle.flush()
             os.fsync(handle.fileno())

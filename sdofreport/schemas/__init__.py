@@ -1,9 +1,10 @@
 """JSON Schemas (draft 2020-12) of the machine-readable outputs, shipped in the package.
 
-``results.schema.json`` describes ``data/results.json`` (tag ``sdofreport/results@1``)
-and ``manifest.schema.json`` describes ``manifest.json`` (tag ``sdofreport/manifest@1``).
-``sdofreport schema results|manifest`` prints them; the tests validate every document
-the test-suite builds against them.
+``results.schema.json`` describes ``data/results.json`` (tag ``sdofreport/results@1``),
+``manifest.schema.json`` describes ``manifest.json`` (tag ``sdofreport/manifest@1``) and
+``comparison.schema.json`` the document of ``sdofreport compare --format json`` (tag
+``sdofreport/comparison@1``). ``sdofreport schema NAME`` prints one; the tests validate
+the documents the test-suite builds against them.
 """
 
 from __future__ import annotations
@@ -17,6 +18,7 @@ from sdofreport.errors import SdofreportError
 SCHEMA_FILES: dict[str, str] = {
     "results": "results.schema.json",
     "manifest": "manifest.schema.json",
+    "comparison": "comparison.schema.json",
 }
 
 #: Schema names, in the order the CLI lists them.
@@ -29,7 +31,7 @@ def schema_text(name: str) -> str:
 
     Parameters
     ----------
-    name : {"results", "manifest"}
+    name : {"results", "manifest", "comparison"}
         Which schema. [-]
 
     Returns

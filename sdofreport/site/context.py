@@ -16,6 +16,8 @@ from sdofreport import __version__, codes
 from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import VERDICT_EXCEEDS, VERDICT_UNSTABLE, Results
+from sdofreport.errors import BuildError
+from sdofreport.project.ids import SAFE_ID, SAFE_ID_TEXT
 from sdofreport.project.schema import HYSTERESIS_PARAMETER_KEYS
 from sdofreport.site.display import CHECK_LABELS, Display, number
 from sdofreport.site.notes import render_notes
@@ -98,7 +100,36 @@ class Page:
 
 
 def page_name(identifier: str) -> str:
-    return f"{identifier}.html"
+    """File name of a record's or system's page (in records/ or systems/)."""
+    return f"{_checked_id(identifier)}.html"
+
+
+#: Separator between the parts of a figure name; ids cannot contain it
+#: (:data:`sdofreport.project.ids.SAFE_ID`), nor can the fixed figure kinds.
+FIGURE_SEPARATOR = "~"
+#: Figure kinds named after ids, and how many ids each takes (system, record or pair).
+FIGURE_KINDS = {"record-histories": 1, "record-psa": 1, "record-sd": 1,
+                "record-fourier": 1, "pair": 1, "system-response": 2, "system-loop": 2,
+                "system-spectra": 1}
+
+
+def _checked_id(identifier: str) -> str:
+    if not isinstance(identifier, str) or not SAFE_ID.match(identifier):
+        raise BuildError(f"id {identifier!r} cannot name a file of the site; expected "
+                         f"{SAFE_ID_TEXT}.")
+    return identifier
+
+
+def figure_path(kind: str, *ids: str) -> str:
+    """
+    ``figures/<kind>~<id>[~<id>].svg``: distinct (kind, system, record) never share a
+    name, since neither a kind nor an id may contain ``~`` (or ``/``); figures named
+    by the site alone (``summary-checks``, ``suite-psa``...) hold no ``~`` at all.
+    """
+    if FIGURE_KINDS.get(kind) != len(ids):
+        raise ValueError(f"figure kind {kind!r} takes {FIGURE_KINDS.get(kind)} ids; "
+                         f"got {len(ids)}")
+    return f"figures/{FIGURE_SEPARATOR.join([kind, *map(_checked_id, ids)])}.svg"
 
 
 def _suite_damping_index(results: Results) -> int:
@@ -123,6 +154,7 @@ class SiteContext:
         self.project = results.project
         self.display = Display(self.project.info.display_units)
         self.figures: list[FigureSpec] = []
+        self._figure_paths: set[str] = set()
         self.system_periods = [s.period_s for s in self.project.systems]
 
     # -- shared ----------------------------------------------------------------------
@@ -152,6 +184,10 @@ class SiteContext:
                 _design_label(design))
 
     def _figure(self, path: str, function: str, **kwargs) -> str:
+        if path in self._figure_paths:  # two figures must never share one file
+            raise BuildError(f"two figures of the site would both be written to {path}; "
+                             f"check that record, system and pair ids are distinct.")
+        self._figure_paths.add(path)
         self.figures.append(FigureSpec(path, function, kwargs))
         return path
 
@@ -288,6 +324,10 @@ class SiteContext:
             ("Suite statistic", f"{analysis.statistic} → {results.statistic}"),
             ("Default processing", _processing_text(self.project.processing)),
         ]
+        if self.project.info.plain_numbers:
+            settings.append(("Bare numbers", "read in SI units (kg, m, s, N, N/m) for "
+                             "dimensional keys, as the project states with [project] "
+                             f"plain_numbers = \"{self.project.info.plain_numbers}\""))
         context = {**self.common("", "Summary", "summary"), **self._statistic_bits(),
                    "checks": self._check_rows(checks), "checks_summary": summary_text,
                    "figures": {"checks": figure}, "systems": systems,
@@ -315,18 +355,18 @@ class SiteContext:
         sd = [{"label": label, "values": d.convert(1.0, "length") * spectrum.sd_m[i],
                "style": "emphasis"} for i, label in enumerate(damping_labels)]
         figures = {
-            "histories": self._figure(f"figures/record-{rid}-histories.svg",
+            "histories": self._figure(figure_path("record-histories", rid),
                                       "histories_figure", time_s=time, panels=panels),
-            "psa": self._figure(f"figures/record-{rid}-psa.svg", "spectra_figure",
+            "psa": self._figure(figure_path("record-psa", rid), "spectra_figure",
                                 periods_s=spectrum.periods_s, curves=psa,
                                 ylabel="Pseudo-spectral acceleration [g]",
                                 highlight_periods=self.system_periods,
                                 design=self._design(spectrum.periods_s)),
-            "sd": self._figure(f"figures/record-{rid}-sd.svg", "spectra_figure",
+            "sd": self._figure(figure_path("record-sd", rid), "spectra_figure",
                                periods_s=spectrum.periods_s, curves=sd,
                                ylabel=f"Spectral displacement [{d.unit('length')}]",
                                highlight_periods=self.system_periods),
-            "fourier": self._figure(f"figures/record-{rid}-fourier.svg", "fourier_figure",
+            "fourier": self._figure(figure_path("record-fourier", rid), "fourier_figure",
                                     frequency_hz=item.fourier_frequency_hz,
                                     amplitude=item.fourier_amplitude_m_s,
                                     ylabel="Fourier amplitude [m/s]"),
@@ -410,7 +450,7 @@ class SiteContext:
                 {"label": "RotD50", "values": rotd.rotd50_psa_g, "style": "emphasis"},
                 {"label": "RotD100", "values": rotd.rotd100_psa_g, "style": "mean"},
             ]
-            path = self._figure(f"figures/pair-{pair.name}.svg", "spectra_figure",
+            path = self._figure(figure_path("pair", pair.name), "spectra_figure",
                                 periods_s=periods, curves=curves,
                                 ylabel=f"PSA at ζ = {100 * rotd.damping:g} % [g]",
                                 design=self._design(periods))
@@ -634,13 +674,13 @@ class SiteContext:
                 ("Total acceleration", response.total_accel_m_s2 / G,
                  "Total acceleration [g]"),
             ]
-            path = self._figure(f"figures/system-{system.id}-{rid}.svg", "histories_figure",
+            path = self._figure(figure_path("system-response", system.id, rid), "histories_figure",
                                 time_s=response.time_s, panels=panels)
             item = {"record": rid, "file_html": page_name(rid), "figure": path,
                     "loop": None}
             if nonlinear:
                 item["loop"] = self._figure(
-                    f"figures/system-{system.id}-{rid}-loop.svg", "hysteresis_figure",
+                    figure_path("system-loop", system.id, rid), "hysteresis_figure",
                     displacement=d.convert(1.0, "length") * response.displacement_m,
                     force=d.convert(1.0, "force") * response.force_n,
                     xlabel=f"Displacement [{d.unit('length')}]",
@@ -681,7 +721,7 @@ class SiteContext:
         spectrum_curves = [{"label": item.record.id, "style": "record",
                             "values": item.spectrum.psa_m_s2[z_index] / G}
                            for item in results.records]
-        figure = self._figure(f"figures/system-{system.id}-spectra.svg", "spectra_figure",
+        figure = self._figure(figure_path("system-spectra", system.id), "spectra_figure",
                               periods_s=periods, curves=spectrum_curves,
                               ylabel=f"PSA at ζ = {100 * damping[z_index]:g} % [g]",
                               highlight_periods=[system.period_s] + (

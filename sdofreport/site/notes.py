@@ -1,43 +1,44 @@
-"""Markdown notes rendered safely: raw HTML is shown as text, links are restricted.
+"""Markdown notes rendered safely: raw HTML is shown as text, the result is sanitised.
 
-Only ``http:``, ``https:``, ``mailto:`` and relative links survive; any other scheme
-(``javascript:``, ``data:``, ``vbscript:``...) is dropped and the link text kept.
-Images are reduced to their alt text so a page never loads anything from elsewhere.
+Markdown turns the notes into HTML with raw HTML escaped and images reduced to their alt
+text (a page never loads anything from elsewhere). That HTML then goes through
+:func:`sdofreport.site.safehtml.clean_html` (nh3) on an allow-list of the tags Markdown
+writes: only ``http:``, ``https:``, ``mailto:`` and same-site relative links keep their
+``href``; any other scheme however it is spelt (``javascript&colon;``, ``&#106;avascript:``,
+a tab inside the word, ``data:``), ``//host`` and ``/\\host`` lose it and the link text
+stays, struck through by the stylesheet. No attribute that can carry script survives.
 """
 
 from __future__ import annotations
 
-import re
 import xml.etree.ElementTree as etree
 
 import markdown
 from markdown.extensions import Extension
+from markdown.extensions.tables import TableExtension
 from markdown.treeprocessors import Treeprocessor
 
-_ALLOWED_SCHEMES = ("http", "https", "mailto")
-_SCHEME = re.compile(r"^\s*([A-Za-z][A-Za-z0-9+.\-]*)\s*:")
-_CONTROL = re.compile(r"[\x00-\x20\x7f]+")
+from sdofreport.site.safehtml import clean_html, safe_url
+
+#: What Markdown (with the tables and sane_lists extensions) writes, and nothing else.
+NOTES_TAGS = frozenset({
+    "p", "h1", "h2", "h3", "h4", "h5", "h6", "ul", "ol", "li", "a", "em", "strong",
+    "code", "pre", "blockquote", "hr", "br", "table", "thead", "tbody", "tr", "th", "td",
+    "span"})
+NOTES_ATTRIBUTES = {"a": {"href", "title"}, "th": {"align"}, "td": {"align"},
+                    "ol": {"start"}}
 
 
 def safe_link(url: str) -> bool:
-    """True for http(s), mailto and relative links (no scheme at all)."""
-    cleaned = _CONTROL.sub("", url or "")
-    match = _SCHEME.match(cleaned)
-    if match is None:
-        return not cleaned.startswith("//")  # protocol-relative URLs go elsewhere
-    return match.group(1).lower() in _ALLOWED_SCHEMES
+    """True for http(s), mailto and same-site relative links (see :func:`safe_url`)."""
+    return safe_url(url)
 
 
-class _LinkFilter(Treeprocessor):
+class _ImagesAsText(Treeprocessor):
     def run(self, root: etree.Element) -> None:
         for parent in root.iter():
             for index, child in enumerate(list(parent)):
-                if child.tag == "a":
-                    if not safe_link(child.get("href", "")):
-                        child.attrib.pop("href", None)
-                        child.set("class", "removed-link")
-                    child.set("rel", "nofollow noopener")
-                elif child.tag == "img":
+                if child.tag == "img":
                     span = etree.Element("span")
                     span.text = f"[image: {child.get('alt', '')}]"
                     span.tail = child.tail
@@ -49,11 +50,12 @@ class _SafeExtension(Extension):
     def extendMarkdown(self, md: markdown.Markdown) -> None:  # noqa: N802 (API name)
         md.preprocessors.deregister("html_block")
         md.inlinePatterns.deregister("html")
-        md.treeprocessors.register(_LinkFilter(md), "sdofreport_links", 0)
+        md.treeprocessors.register(_ImagesAsText(md), "sdofreport_images", 0)
 
 
 def render_notes(text: str) -> str:
-    """HTML for Markdown ``text`` with raw HTML escaped and unsafe links removed."""
-    md = markdown.Markdown(extensions=[_SafeExtension(), "tables", "sane_lists"],
+    """HTML for Markdown ``text``: raw HTML escaped, then sanitised on an allow-list."""
+    md = markdown.Markdown(extensions=[_SafeExtension(), "sane_lists",
+                                       TableExtension(use_align_attribute=True)],
                            output_format="html")
-    return md.convert(text)
+    return clean_html(md.convert(text), tags=NOTES_TAGS, attributes=NOTES_ATTRIBUTES)

@@ -41,7 +41,7 @@ from urllib.parse import urlsplit
 from markupsafe import Markup
 
 from sdofreport import __version__
-from sdofreport.errors import BuildError
+from sdofreport.errors import BuildError, naming_path
 from sdofreport.site.context import CAUTION_FULL, CAUTION_SHORT
 
 log = logging.getLogger("sdofreport.site.pdf")
@@ -481,7 +481,7 @@ def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=N
     handle, partial = tempfile.mkstemp(prefix=f".{output_pdf.name}.", suffix=".part",
                                        dir=output_pdf.resolve().parent)
     try:
-        with os.fdopen(handle, "wb") as stream:
+        with naming_path(output_pdf), os.fdopen(handle, "wb") as stream:
             stream.write(pdf)
         os.chmod(partial, 0o644)
         os.replace(partial, output_pdf)

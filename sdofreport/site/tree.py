@@ -17,7 +17,7 @@ import shutil
 import tempfile
 from pathlib import Path
 
-from sdofreport.errors import BuildError
+from sdofreport.errors import BuildError, naming_path
 
 FOLDER_MODE = 0o755
 FILE_MODE = 0o644
@@ -45,15 +45,46 @@ def _exchange(a: Path, b: Path) -> bool:
     return result == 0
 
 
+def inside_parts(root: Path, relative: str) -> list[str]:
+    """
+    The parts of ``relative`` when it names a file inside ``root``; else a BuildError.
+
+    Refused: anything but a plain relative ``/``-separated path (absolute, empty parts,
+    ``.`` or ``..``, a backslash, a control character), and a path that resolves
+    outside ``root`` (through a symbolic link planted in the tree, say).
+    """
+    parts = relative.split("/") if isinstance(relative, str) else []
+    plain = bool(parts) and all(
+        part not in ("", ".", "..") and "\\" not in part and
+        not any(ord(c) < 32 or ord(c) == 127 for c in part) for part in parts)
+    if plain:
+        base = Path(os.path.realpath(root))
+        target = Path(os.path.realpath(Path(root, *parts)))
+        plain = target != base and target.is_relative_to(base)
+    if not plain:
+        raise BuildError(f"refusing to write {relative!r}: it resolves outside the site "
+                         f"folder being built ({root}); nothing was written there. An id "
+                         f"or name that reached a file name is not safe.")
+    return parts
+
+
 def write_file(root: Path, relative: str, data: bytes, made: set[str]) -> str:
     """
     Write ``data`` to ``root/relative`` (mode 644, folders 755) and return its SHA-256.
 
     ``made`` holds the relative folders this process already created, so each is made
     (and its mode set) once; another process creating the same folder is harmless.
-    Safe to call from several processes writing different files into one tree.
+    Safe to call from several processes writing different files into one tree. A path
+    that would leave ``root`` is refused before anything is made (:func:`inside_parts`);
+    the file itself is opened without following a symbolic link.
     """
-    parts = relative.split("/")
+    parts = inside_parts(root, relative)
+    with naming_path(root / relative):  # disk full, quota: say where, never a traceback
+        return _write_file(root, relative, parts, data, made)
+
+
+def _write_file(root: Path, relative: str, parts: list[str], data: bytes,
+                made: set[str]) -> str:
     for depth in range(1, len(parts)):
         folder = "/".join(parts[:depth])
         if folder not in made:
@@ -64,7 +95,8 @@ def write_file(root: Path, relative: str, data: bytes, made: set[str]) -> str:
                 pass
             os.chmod(path, FOLDER_MODE)
             made.add(folder)
-    descriptor = os.open(root / relative, os.O_WRONLY | os.O_CREAT | os.O_TRUNC, FILE_MODE)
+    flags = os.O_WRONLY | os.O_CREAT | os.O_TRUNC | getattr(os, "O_NOFOLLOW", 0)
+    descriptor = os.open(root / relative, flags, FILE_MODE)
     try:
         if hasattr(os, "fchmod"):
             os.fchmod(descriptor, FILE_MODE)  # the umask may have narrowed the mode

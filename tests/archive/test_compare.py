@@ -90,7 +90,7 @@ def test_run_against_itself_is_identical(group, sites):
     results = sites["rev0"] / "data" / "results.json"
     result = CliRunner().invoke(group, ["compare", str(results), str(sites["rev0"])])
     assert result.exit_code == 0, result.output
-    assert "No check, system, record, setting or project detail changed." in result.output
+    assert "No check, system, record, input, setting or project detail changed." in result.output
 
 
 def test_text_output_names_each_change(group, sites):
@@ -188,3 +188,18 @@ def test_verify_format_and_output_file(group, sites, tmp_path):
     old = CliRunner().invoke(group, ["verify", str(sites["rev0"]), "--output", "json"])
     assert old.exit_code == 0 and json.loads(old.stdout) == report
     assert "Deprecated" in old.stderr
+
+
+def test_comparison_document_follows_its_published_schema(group, sites):
+    """The JSON of 'compare --format json' validates against the shipped
+    comparison.schema.json (jsonschema, Draft 2020-12), both ways round."""
+    import jsonschema
+
+    from sdofreport.schemas import load_schema
+
+    validator = jsonschema.Draft202012Validator(load_schema("comparison"))
+    for old, new in (("rev0", "rev1"), ("rev1", "rev0"), ("rev0", "rev0")):
+        result = CliRunner().invoke(group, ["compare", str(sites[old]), str(sites[new]),
+                                            "--format", "json"])
+        assert result.exit_code == 0, result.output
+        validator.validate(json.loads(result.stdout))

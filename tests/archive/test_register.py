@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import hashlib
 import json
 import re
 import shutil
@@ -33,7 +34,7 @@ def artifacts(group, sites, tmp_path):
     assert result.exit_code == 0, result.output
     shutil.copytree(sites["rev1"], folder / "job2" / "_site")
     shutil.copytree(sites["rev0"], folder / "job3" / "_site")
-    flip_byte(folder / "job3" / "_site" / "figures" / "record-r1-psa.svg")
+    flip_byte(folder / "job3" / "_site" / "figures" / "record-psa~r1.svg")
     flip_byte(folder / "job3" / "_site" / "inputs" / "records" / "r2.txt")
     return folder
 
@@ -155,3 +156,52 @@ def test_register_has_the_site_header_and_breakable_file_names(group, artifacts,
     names = re.findall(r'<code class="file-name">(.*?)</code>', page)
     assert "job2/<wbr>_<wbr>site" in names
     assert all("<wbr>" in name for name in names)
+
+
+def _forge(site: Path, path: str, text_from, text_to) -> None:
+    """Edit one page of ``site`` and re-hash it in the manifest, as a forger (or an older
+    sdofreport that let a script-carrying link through) would leave it: it verifies."""
+    target = site / path
+    data = target.read_bytes()
+    assert text_from in data, path
+    target.write_bytes(data.replace(text_from, text_to, 1))
+    manifest = json.loads((site / "manifest.json").read_text("utf-8"))
+    manifest["files"][path] = hashlib.sha256(target.read_bytes()).hexdigest()
+    (site / "manifest.json").write_text(json.dumps(manifest), "utf-8")
+
+
+# Each payload is one class: a notes link that runs script once its character references
+# are resolved (HTML Living Standard, "character reference state"), an event handler, an
+# off-site link that a browser reads as '//host' (WHATWG URL Standard: '\' is '/'), a
+# script element, a meta refresh, and a figure that runs script when opened by itself.
+FORGED = [
+    ("index.html", b"<main>", b'<main><p><a href="jav&#x61;script:window.x=1">n</a></p>'),
+    ("index.html", b"<main>", b'<main><p onmouseover="window.x=1">n</p>'),
+    ("index.html", b"<main>", b'<main><a href="/\\evil.example/">n</a>'),
+    ("suite.html", b"<main>", b"<main><script>window.x=1</script>"),
+    ("index.html", b"<head>", b'<head><meta http-equiv="refresh" content="0;url=data:,x">'),
+    ("figures/record-psa~r1.svg", b"<svg ", b'<svg onload="window.x=1" '),
+]
+
+
+@pytest.mark.parametrize("path, before, after", FORGED)
+def test_run_with_script_is_listed_but_not_copied(group, sites, tmp_path, path, before,
+                                                   after):
+    folder = tmp_path / "artifacts"
+    shutil.copytree(sites["rev0"], folder / "clean" / "_site")
+    forged = folder / "forged" / "_site"
+    shutil.copytree(sites["rev1"], forged)
+    _forge(forged, path, before, after)
+    assert CliRunner().invoke(group, ["verify", str(forged)]).exit_code == 0
+    output = tmp_path / "register"
+    result = _register(group, folder, output)
+    assert result.exit_code == 4, result.output
+    rows = {r["source"]: r for r in
+            json.loads((output / "register.json").read_text("utf-8"))["runs"]}
+    bad = rows["forged/_site"]
+    assert bad["verified"] is False and bad["link"] is None
+    assert bad["verification"].startswith(f"NOT COPIED: '{path}' holds "), bad
+    assert not (output / "runs" / bad["name"]).exists()
+    assert after not in b"".join(p.read_bytes() for p in output.rglob("*") if p.is_file())
+    # The clean run beside it is copied as before.
+    assert rows["clean/_site"]["verified"] and (output / rows["clean/_site"]["link"]).is_file()

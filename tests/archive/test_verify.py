@@ -40,7 +40,7 @@ def test_clean_site_verifies_with_exit_0(group, sites):
 
 @pytest.mark.parametrize("path", ["index.html", "systems/s1.html", "inputs/records/r1.csv",
                                   "inputs/sdofreport.toml", "data/results.json",
-                                  "data/peaks.csv", "figures/record-r1-psa.svg",
+                                  "data/peaks.csv", "figures/record-psa~r1.svg",
                                   "static/style.css"])
 def test_one_byte_change_anywhere_is_caught(group, sites, copy_site, path):
     site = copy_site(sites["rev0"])
@@ -56,11 +56,11 @@ def test_one_byte_change_anywhere_is_caught(group, sites, copy_site, path):
 
 def test_removed_and_extra_files_are_caught(group, sites, copy_site):
     site = copy_site(sites["rev0"])
-    (site / "figures" / "record-r2-sd.svg").unlink()
+    (site / "figures" / "record-sd~r2.svg").unlink()
     (site / "notes.txt").write_text("added later\n", "utf-8")
     result = _verify(group, site)
     assert result.exit_code == 4
-    assert "missing: figures/record-r2-sd.svg" in result.output
+    assert "missing: figures/record-sd~r2.svg" in result.output
     assert "added (not in manifest.json): notes.txt" in result.output
 
 

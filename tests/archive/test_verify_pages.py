@@ -84,7 +84,7 @@ def test_rehashed_page_figure_and_table_edits_fail_rerun_naming_each(group, site
                                                                     copy_site):
     site = copy_site(sites["rev0"])
     _replace(site / "index.html", "within limit", "exceeds limit")          # a verdict
-    _replace(site / "figures/system-s1-r1.svg", 'stroke="#999999"', 'stroke="#999998"')
+    _replace(site / "figures/system-response~s1~r1.svg", 'stroke="#999999"', 'stroke="#999998"')
     peaks = site / "data/peaks.csv"                                         # a number
     lines = peaks.read_text("utf-8").splitlines(keepends=True)
     lines[1] = lines[1].replace(",0.", ",0.1", 1)
@@ -95,7 +95,7 @@ def test_rehashed_page_figure_and_table_edits_fail_rerun_naming_each(group, site
     assert _verify(group, site).exit_code == 0
     result = _verify(group, site, "--rerun", "-j", "1")
     assert result.exit_code == 4, result.output
-    for path in ("index.html", "figures/system-s1-r1.svg", "data/peaks.csv",
+    for path in ("index.html", "figures/system-response~s1~r1.svg", "data/peaks.csv",
                  "records/r1.html"):
         assert f"re-run: differs from the rebuild: {path}" in result.output
     assert "4 files differ from the rebuild" in result.output

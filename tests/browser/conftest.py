@@ -107,3 +107,11 @@ def artifacts(tmp_path) -> Path:
     folder = Path(os.environ.get("SDOFREPORT_ARTIFACTS") or tmp_path / "artifacts")
     folder.mkdir(parents=True, exist_ok=True)
     return folder
+
+
+def pytest_collection_modifyitems(config, items):
+    """Every test in this folder carries the ``browser`` marker (``-m "not browser"``)."""
+    here = Path(__file__).parent
+    for item in items:
+        if here in Path(str(item.fspath)).parents:
+            item.add_marker(pytest.mark.browser)

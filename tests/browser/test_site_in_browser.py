@@ -19,6 +19,7 @@ import pytest
 from sdofreport.site.context import CAUTION_SHORT
 from tests.browser.conftest import build_project, require_browser, serve
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD, TWO_RECORDS
+from tests.site.hostile_notes import HOSTILE_LINKS
 
 PAYLOAD_SCRIPT = "<script>window.__pwned=1</script>"
 PAYLOAD_IMG = '<img src=x onerror="window.__pwned=2">'
@@ -168,7 +169,8 @@ def _payload_project(project_factory, folder: Path) -> Path:
         f"# Notes {PAYLOAD_SCRIPT}", *PAYLOADS, f"- {PAYLOAD_IMG}\n- {PAYLOAD_MD_LINK}",
         f"| a | b |\n| --- | --- |\n| {PAYLOAD_MD_LINK} | {PAYLOAD_A} |",
         "[click](  JaVaScRiPt:window.__pwned=5)", "<div>\n" + PAYLOAD_SCRIPT + "\n</div>",
-        f"![x](javascript:window.__pwned=6) {PAYLOAD_MD_LINK}"]) + "\n"
+        f"![x](javascript:window.__pwned=6) {PAYLOAD_MD_LINK}",
+        *HOSTILE_LINKS.values()]) + "\n"
     (folder / "notes.md").write_text(notes, encoding="utf-8")
     return project_factory(head + "\n" + TWO_RECORDS + "\n" + system)
 
@@ -225,9 +227,18 @@ def test_injected_markup_never_runs(project_factory, tmp_path, browser):
             assert _caution_shown(info), page
             ran += _click_everything(browser, base + page, base)
         summary = _open(browser, base + "index.html")["text"]
+        notes_links = browser.execute_script(
+            "return Array.from(document.querySelectorAll('#notes a'))"
+            ".map(a => a.getAttribute('href'));")
         failed = sorted({(path, status) for path, status in responses if status >= 400})
     for payload in (PAYLOAD_IMG, PAYLOAD_A):
         assert payload in summary
+    # Every hostile notes link is still shown (as text), and none kept a target: a
+    # data:, file: or off-site ('//host', '/\\host') link runs nothing on a click but
+    # still leaves the site, so its href must be gone. (e21 tries to break out of a
+    # link title into an onclick; its https target is legitimate and stays.)
+    assert all(f"e{n}" in summary for n in range(1, 21))
+    assert [href for href in notes_links if href is not None] == ["https://ok.example"]
     assert not ran, "\n".join(ran)
     # An <img src=x> that became markup would have requested /x (and got a 404).
     assert not failed, f"the server answered with errors: {failed}"

@@ -61,7 +61,7 @@ def test_every_registry_key_is_documented_in_its_section(gen_reference):
 def test_quantities_show_their_si_unit(gen_reference):
     text = gen_reference.render_reference()
     row = next(line for line in text.splitlines() if line.startswith("| `stiffness` |"))
-    assert "stiffness: N/m when a plain number" in row
+    assert 'stiffness: text with a unit (N/m for a plain number with plain_numbers = "SI")' in row
     row = next(line for line in text.splitlines() if line.startswith("| `sds` |"))
     assert "| g |" in row  # "in g" in the description gives the unit column
 

@@ -146,8 +146,18 @@ def test_schema_is_valid_draft_2020_12(name):
 
 
 def test_schema_tags_match_the_writers():
+    from sdofreport.archive.compare import COMPARISON_SCHEMA
+
     assert load_schema("results")["properties"]["schema"]["const"] == RESULTS_SCHEMA
     assert load_schema("manifest")["properties"]["schema"]["const"] == MANIFEST_SCHEMA
+    assert load_schema("comparison")["properties"]["schema"]["const"] == COMPARISON_SCHEMA
+
+
+def test_schema_command_without_a_name_lists_every_published_schema(command_group):
+    result = invoke(command_group, "schema")
+    assert result.exit_code == 0, result.output
+    assert [line.split(":")[0] for line in result.output.splitlines()] == \
+        ["results", "manifest", "comparison"]
 
 
 def test_schema_enums_follow_the_registries():

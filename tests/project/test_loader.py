@@ -109,24 +109,24 @@ def test_bad_analysis_sections(project_factory, valid_project_text, name, extra,
 
 
 SYSTEM_CASES = [
-    ("zero mass", ('mass = "100 t"', 'mass = 0'),
-     ["systems[1].mass", "mass must be greater than 0"]),
+    ("zero mass", ('mass = "100 t"', 'mass = "0 t"'),
+     ["systems[s1].mass", "mass must be greater than 0"]),
     ("negative damping", ("damping = 0.05", "damping = -0.01"),
-     ["systems[1].damping", "expected a ratio from 0 up to (not including) 1"]),
+     ["systems[s1].damping", "expected a ratio from 0 up to (not including) 1"]),
     ("damping one", ("damping = 0.05", "damping = 1.0"),
-     ["systems[1].damping", "found 1.0"]),
+     ["systems[s1].damping", "found 1.0"]),
     ("period negative", ('period = "0.5 s"', 'period = "-0.5 s"'),
-     ["systems[1].period", "greater than 0"]),
+     ["systems[s1].period", "greater than 0"]),
     ("wrong dimension", ('mass = "100 t"', 'mass = "100 m"'),
-     ["systems[1].mass", "expected a mass", "'100 m'"]),
+     ["systems[s1].mass", "expected a mass", "'100 m'"]),
     ("unreadable units", ('mass = "100 t"', 'mass = "100 tonnez"'),
-     ["systems[1].mass", "cannot read '100 tonnez' as a mass"]),
+     ["systems[s1].mass", "cannot read '100 tonnez' as a mass"]),
     ("limit typo", ('displacement = "50 mm"', 'displacment = "50 mm"'),
-     ["systems[1].limits.displacment", "did you mean 'displacement'"]),
+     ["systems[s1].limits.displacment", "did you mean 'displacement'"]),
     ("drift without height", ('height = "4 m"\n', ''),
-     ["systems[1].limits.drift_ratio", "needs the system's height"]),
-    ("stiffness and period", ('period = "0.5 s"', 'period = "0.5 s"\nstiffness = 1e6'),
-     ["systems[1]", "expected mass + stiffness, mass + period, or period alone"]),
+     ["systems[s1].limits.drift_ratio", "needs the system's height"]),
+    ("stiffness and period", ('period = "0.5 s"', 'period = "0.5 s"\nstiffness = \"1 MN/m\"'),
+     ["systems[s1]", "expected mass + stiffness, mass + period, or period alone"]),
 ]
 
 
@@ -152,13 +152,13 @@ def test_every_problem_reported_at_once(project_factory):
         load_project(path)
     message = info.value.message
     assert "has 3 problems:" in message
-    assert "records[2].file: file 'records/missing.txt' not found" in message
-    assert "systems[1].damping" in message and "systems[1].mass" in message
+    assert "line 12, records[r2].file: file 'records/missing.txt' not found" in message
+    assert "systems[s1].damping" in message and "systems[s1].mass" in message
 
 
 def test_duplicate_ids(project_factory):
     records = TWO_RECORDS.replace('id = "r2"', 'id = "r1"')
-    with pytest.raises(ProjectError, match=r"records\[2\]\.id: duplicate id 'r1' "
+    with pytest.raises(ProjectError, match=r"line \d+, records\[2\]\.id: duplicate id 'r1' "
                                            r"\(also records\[1\]\)"):
         load_project(project_factory(PROJECT_HEAD + records + ONE_SYSTEM))
 
@@ -184,16 +184,108 @@ def test_not_utf8(project_factory, valid_project_text):
 
 def test_missing_required_keys(project_factory):
     head = PROJECT_HEAD.replace('prepared_by = "tester"\n', "")
-    with pytest.raises(ProjectError, match=r"project\.prepared_by: missing"):
+    with pytest.raises(ProjectError, match=r"line 1, project\.prepared_by: missing"):
         load_project(project_factory(head + TWO_RECORDS + ONE_SYSTEM))
 
 
 def test_base_shear_needs_mass(project_factory):
     system = ONE_SYSTEM.replace('mass = "100 t"\n', "").replace(
         'displacement = "50 mm"', 'base_shear = "100 kN"')
-    with pytest.raises(ProjectError, match=r"systems\[1\]\.limits\.base_shear: a "
+    with pytest.raises(ProjectError, match=r"line \d+, systems\[s1\]\.limits\.base_shear: a "
                                            r"base-shear limit needs the system's mass"):
         load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + system))
+
+
+# Issue 14 part 3: a bare number for a dimensional key. Before the fix ``mass = 6``
+# (meant as tonnes) was read as 6 kg, so the period came out 0.0099 s and the build
+# passed; now it is refused unless the project states plain_numbers = "SI".
+SKID = """\
+[[systems]]
+id = "skid"
+name = "Pump skid"
+damping = 0.05
+mass = 6
+stiffness = "2 MN/m"
+"""
+
+
+def test_bare_mass_is_refused_naming_key_id_line_and_fix(project_factory):
+    path = project_factory(PROJECT_HEAD + TWO_RECORDS + "\n" + SKID)
+    with pytest.raises(ProjectError) as info:
+        load_project(path)
+    message = info.value.message
+    assert info.value.exit_code == 2
+    # The file, the item by id, the key and its line (PROJECT_HEAD has 5 lines,
+    # TWO_RECORDS 7, a blank line, then mass is the 5th line of SKID: 5 + 7 + 1 + 5).
+    assert path.name in message
+    assert "line 18, systems[skid].mass: found the bare number 6" in message
+    assert 'mass = "6 t"' in message and 'plain_numbers = "SI"' in message
+
+
+@pytest.mark.parametrize("change, location", [
+    (('stiffness = "2 MN/m"', 'stiffness = "2000000"'), "systems[skid].stiffness"),
+    (('mass = 6', 'mass = "6 t"\nheight = 3'), "systems[skid].height"),
+    (('stiffness = "2 MN/m"', 'stiffness = "2 MN/m"\nlimits = { displacement = 40 }'),
+     "systems[skid].limits.displacement"),
+    (('stiffness = "2 MN/m"', 'kind = "springs"\nnetwork = { series = [{ k = 2e6 }] }'),
+     "systems[skid].network"),
+    (('stiffness = "2 MN/m"', 'stiffness = "2 MN/m"\n'
+                              'damper = { coefficient = 5000, exponent = 1 }'),
+     "systems[skid].damper.coefficient"),
+])
+def test_every_dimensional_key_refuses_bare_numbers(project_factory, change, location):
+    system = SKID.replace('mass = 6', 'mass = "6 t"') if change[0] != 'mass = 6' else SKID
+    system = system.replace(*change)
+    with pytest.raises(ProjectError) as info:
+        load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + "\n" + system))
+    assert location in info.value.message and "bare number" in info.value.message
+
+
+def test_record_dt_refuses_a_bare_number(project_factory):
+    records = TWO_RECORDS.replace('file = "records/r2.txt"',
+                                  'file = "records/r2.txt"\ndt = 0.005')
+    with pytest.raises(ProjectError, match=r"line 13, records\[r2\]\.dt: found the "
+                                           r"bare number 0\.005.*dt = \"0\.005 s\""):
+        load_project(project_factory(PROJECT_HEAD + records + ONE_SYSTEM))
+
+
+def test_plain_numbers_si_reads_bare_numbers_as_si(project_factory):
+    head = PROJECT_HEAD + 'plain_numbers = "SI"\n'
+    project = load_project(project_factory(head + TWO_RECORDS + "\n" + SKID))
+    system = project.systems[0]
+    assert project.info.plain_numbers == "SI"
+    # Definition of the SI base unit: a bare 6 is 6 kg; closed form T = 2π √(m/k).
+    assert system.mass_kg == pytest.approx(6.0)
+    assert system.period_s == pytest.approx(2 * math.pi * math.sqrt(6.0 / 2e6))
+
+
+def test_plain_numbers_accepts_only_si(project_factory):
+    head = PROJECT_HEAD + 'plain_numbers = "US"\n'
+    with pytest.raises(ProjectError, match=r"line 6, project\.plain_numbers: expected "
+                                           r"one of SI, found 'US'"):
+        load_project(project_factory(head + TWO_RECORDS + ONE_SYSTEM))
+
+
+def test_ratios_and_g_keys_stay_plain_numbers(project_factory):
+    # damping, drift_ratio, ductility, sds/sd1 (in g by ASCE/SEI 7-16 §11.4.5), scale:
+    # ratios or defined in g, so a plain number is what they take.
+    system = ONE_SYSTEM.replace('displacement = "50 mm"', 'drift_ratio = 0.01')
+    text = (PROJECT_HEAD + TWO_RECORDS.replace('file = "records/r1.csv"',
+                                               'file = "records/r1.csv"\nscale = 1.5')
+            + system + '[design_spectrum]\nkind = "asce7-16"\nsds = 1.0\nsd1 = 0.6\n'
+            'tl = "8 s"\n')
+    project = load_project(project_factory(text))
+    assert project.records[0].scale == 1.5
+    assert project.systems[0].limits.drift_ratio == 0.01
+
+
+def test_unknown_key_names_item_by_id_and_line(project_factory):
+    system = SKID.replace("damping = 0.05", "dampng = 0.05").replace("mass = 6",
+                                                                     'mass = "6 t"')
+    with pytest.raises(ProjectError) as info:
+        load_project(project_factory(PROJECT_HEAD + TWO_RECORDS + "\n" + system))
+    assert "line 17, systems[skid].dampng: unknown key; did you mean 'damping'?" in \
+        info.value.message
 
 
 def test_signoff_and_revisions_are_read(project_factory):

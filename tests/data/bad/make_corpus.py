@@ -114,6 +114,14 @@ RECORD_FILES: dict[str, bytes | str] = {
                                 "0.0100 0.0200 abc", *value_lines(20)[1:]),
     "values_without_dt.txt": text(*value_lines(40)),
     "good_two_column.csv": GOOD_TWO_COLUMN,   # valid; used with a wrong --dt
+    # issue 15 part 7: a value of 1e200 g on line 7; a UTF-8 byte-order mark and nothing
+    # else; every number in quotes (from line 2, after a quoted header)
+    "absurd_1e200g.csv": text("time_s,accel_g", *two_column_rows(5), "0.0500,1e200",
+                              *two_column_rows(30, start=6)),
+    "bom_only.csv": b"\xef\xbb\xbf",
+    "quoted_numbers.csv": text('"time_s","accel_g"',
+                               *(",".join(f'"{v}"' for v in row.split(","))
+                                 for row in two_column_rows(40))),
     # valid but only 0.19 s long: far shorter than a 5 s system period
     "short_record.csv": text("time_s,accel_g", *two_column_rows(20)),
 }
@@ -162,6 +170,15 @@ def sys_with(old: str, new: str) -> str:
     return SYSTEM.replace(old, new)
 
 
+def springs(levels: int) -> str:
+    """A system on a spring network nested ``levels`` series groups deep."""
+    node = '{ k = "1 MN/m" }'
+    for _ in range(levels):
+        node = f'{{ series = [{node}, {{ k = "2 MN/m" }}] }}'
+    return ('[[systems]]\nid = "s1"\nname = "Invented springs"\nkind = "springs"\n'
+            f'damping = 0.05\nmass = "10 t"\nnetwork = {node}\n')
+
+
 GOOD = project()
 _cut = GOOD.index('prepared_by = "sdofreport') + len('prepared_by = "sdofr')
 
@@ -182,7 +199,7 @@ PROJECT_FILES: dict[str, bytes | str] = {
     "record_is_folder.toml": project(records=one_record("records")),
     # the record entry names the project file itself
     "record_is_project.toml": project(records=one_record("record_is_project.toml",
-                                                         more="dt = 0.01\n")),
+                                                         more="dt = \"0.01 s\"\n")),
     "pair_missing_partner.toml": project(records=RECORDS_TWO.replace(
         'file = "records/r1.csv"', 'file = "records/r1.csv"\npair = "p1"\ncomponent = "H1"')),
     "pair_without_component.toml": project(records=RECORDS_TWO.replace(
@@ -213,7 +230,7 @@ PROJECT_FILES: dict[str, bytes | str] = {
     "unknown_section.toml": GOOD + "\n[sytems]\nid = \"s2\"\n",
     "empty.toml": "",
     "record_dt_negative.toml": project(records=one_record("records/r1.csv",
-                                                          more="dt = -0.01\n")),
+                                                          more="dt = \"-0.01 s\"\n")),
     "record_units_furlongs.toml": project(records=one_record(
         "records/r1.csv", more='units = "furlong/s2"\n')),
     "limit_in_kg.toml": project(system=sys_with('displacement = "50 mm"',
@@ -229,6 +246,45 @@ PROJECT_FILES: dict[str, bytes | str] = {
     "short_record.toml": project(records=one_record("bad/short_record.csv", "short"),
                                  system=sys_with('period = "0.5 s"',
                                                  'period = "5 s"\np_delta = false')),
+    # ids that reach file names (issue 15, part 2): a pair name climbing out of the site
+    # (line 10), a system id with '..' (line 16), ids differing only in case (line 12),
+    # a name Windows reserves (line 16), the figure-name separator '~' (line 8)
+    "pair_escapes_site.toml": project(records=RECORDS_TWO.replace(
+        'file = "records/r1.csv"\n', 'file = "records/r1.csv"\npair = "x/../../victim/evil"\n'
+        'component = "H1"\n').replace('file = "records/r2.txt"\n',
+                                       'file = "records/r2.txt"\npair = "x/../../victim/evil"\n'
+                                       'component = "H2"\n')),
+    "system_id_traversal.toml": project(system=sys_with('id = "s1"', 'id = "../s1"')),
+    "record_ids_case_twins.toml": project(records=RECORDS_TWO.replace('"r2"', '"R1"')),
+    "system_id_reserved.toml": project(system=sys_with('id = "s1"', 'id = "NUL"')),
+    "record_id_separator.toml": project(records=RECORDS_TWO.replace('"r1"', '"a~b"')),
+    # absurd inputs (issue 15, part 7): scale 1e300 (line 10), a spring network nested 40
+    # levels (line 20), one nested 400 levels (beyond the TOML reader, line 20), a period
+    # of 1e-6 s with a 0.01 s record, and a byte-order mark before a valid project
+    "scale_1e300.toml": project(records=RECORDS_TWO.replace(
+        'file = "records/r1.csv"\n', 'file = "records/r1.csv"\nscale = 1e300\n')),
+    "network_40_deep.toml": project(system=springs(40)),
+    "network_400_deep.toml": project(system=springs(400)),
+    "period_too_short.toml": project(system=sys_with('period = "0.5 s"',
+                                                     'period = "0.000001 s"')),
+    "bom_project.toml": b"\xef\xbb\xbf" + GOOD.encode("utf-8"),
+    "design_sds_1e200.toml": project(extra='[design_spectrum]\nkind = "asce7-16"\n'
+                                           'sds = 1e200\nsd1 = 0.5\ntl = "8 s"\n'),
+    "synthetic_1e9_s.toml": project(records="", extra='[design_spectrum]\n'
+                                    'kind = "asce7-16"\nsds = 1.0\nsd1 = 0.5\ntl = "8 s"\n\n'
+                                    '[synthetic_records]\ncount = 3\nduration = "1e9 s"\n'),
+    "synthetic_count_1e8.toml": project(records="", extra='[design_spectrum]\n'
+                                        'kind = "asce7-16"\nsds = 1.0\nsd1 = 0.5\n'
+                                        'tl = "8 s"\n\n[synthetic_records]\n'
+                                        'count = 100000000\n'),
+    "periods_max_1e300.toml": project(extra='[analysis]\nperiods = { min = "0.1 s", '
+                                            'max = "1e300 s", count = 20 }\n'),
+    "periods_min_1e-300.toml": project(extra='[analysis]\nperiods = { min = "1e-300 s", '
+                                             'max = "2 s", count = 20 }\n'),
+    "suite_factor_1e300.toml": project(extra='[design_spectrum]\nkind = "asce7-16"\n'
+                                             'sds = 1.0\nsd1 = 0.5\ntl = "8 s"\n\n'
+                                             '[scaling]\nrule = "fit"\n'
+                                             'suite_factor = 1e300\n'),
     # three problems at once: every one must be reported
     "several_problems.toml": project(records=RECORDS_TWO.replace('"r2"', '"r1"'),
                                      system=sys_with("damping = 0.05", "damping = 7")
