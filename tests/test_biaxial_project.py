@@ -103,6 +103,14 @@ def test_two_directions_need_pairs_exit_2(project_factory):
     assert info.value.exit_code == 2
 
 
+def _refused(paired, body: str, *fragments: str) -> None:
+    """Loading PROJECT_HEAD + body is refused (exit 2) with every fragment named."""
+    with pytest.raises(ProjectError) as info:
+        load_project(paired(PROJECT_HEAD + body))
+    assert info.value.exit_code == 2
+    assert all(fragment in str(info.value) for fragment in fragments), str(info.value)
+
+
 @pytest.mark.parametrize("extra, fragment", [
     ('directions = 3', "expected 1 or 2, found 3"),
     ('yield_strength = "50 kN"\nhysteresis = "takeda"',
@@ -112,9 +120,7 @@ def test_bad_directions_name_the_key(paired, extra, fragment):
     body = TWO_D.split("[[systems]]\nid = \"flat\"")[0].replace(
         "directions = 2", extra if extra.startswith("directions") else
         "directions = 2\n" + extra, 1)
-    with pytest.raises(ProjectError) as info:
-        load_project(paired(PROJECT_HEAD + PAIR + body))
-    assert "systems[tank].directions" in str(info.value) and fragment in str(info.value)
+    _refused(paired, PAIR + body, "systems[tank].directions", fragment)
 
 
 BOUNDED = """\
@@ -173,9 +179,7 @@ def test_bounds_order_govern_and_effective_properties(paired):
 def test_bad_isolator_keys_name_the_key(paired, extra, fragment):
     body = BOUNDED.replace("friction_slow = 0.05\nfriction_rate = \"25 s/m\"\n"
                            "property_factors = [0.6, 1.5]\n", extra + "\n")
-    with pytest.raises(ProjectError) as info:
-        load_project(paired(PROJECT_HEAD + PAIR + body))
-    assert "systems[fps]" in str(info.value) and fragment in str(info.value)
+    _refused(paired, PAIR + body, "systems[fps]", fragment)
 
 
 VERTICAL = """\
@@ -233,10 +237,7 @@ def test_vertical_systems_see_vertical_records_only(paired):
     (PAIR + "[[systems]]" + VERTICAL.split("[[systems]]")[1], "the suite has none"),
 ])
 def test_bad_vertical_inputs_exit_2(paired, text, fragment):
-    with pytest.raises(ProjectError) as info:
-        load_project(paired(PROJECT_HEAD + text + ("" if "[[systems]]" in text else
-                                                   TWO_D)))
-    assert fragment in str(info.value)
+    _refused(paired, text + ("" if "[[systems]]" in text else TWO_D), fragment)
 
 
 def test_fragility_stripes_of_vertical_and_friction_systems(paired):
