@@ -23,6 +23,7 @@ from sdofreport.serialize import (
     spectrum_csv_rows,
 )
 from sdofreport.site.display import CHECK_SI_UNITS
+from sdofreport.suite import usable_period_max_s
 
 RESULTS_SCHEMA = "sdofreport/results@1"
 
@@ -71,6 +72,8 @@ def results_document(results: Results) -> dict:
             "pair": spec.pair, "component": spec.component,
             "units": record.units, "format": record.file_format,
             "processing": list(record.history),
+            "provenance": dict(spec.provenance),
+            "usable_period_max_s": usable_period_max_s(spec),
             **intensity_to_dict(item.intensity),
         })
     spectra: dict = {}

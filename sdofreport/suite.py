@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from sdofreport import codes
+from sdofreport.core import processing as core_processing
 from sdofreport.core import scaling as core_scaling
 from sdofreport.core.design_spectra import design_spectrum, en1998_1_parameters
 from sdofreport.core.units import G
@@ -109,6 +110,15 @@ def motions(project) -> list[tuple[str, list[str]]]:
     return sorted(result, key=lambda motion: natural_key(motion[0]))
 
 
+def usable_period_max_s(spec) -> float | None:
+    """Longest usable period of a record [s]: 1/(1.25 f_c) of its high-pass corner
+    (:func:`sdofreport.core.processing.usable_period_max_s`), None without one."""
+    band = spec.processing.bandpass_hz
+    if not band or band[0] is None:
+        return None
+    return core_processing.usable_period_max_s(band[0])
+
+
 def damping_index(damping, target: float = SCALING_DAMPING) -> int:
     """Index of ``target`` in ``damping`` (exact), or ValueError."""
     values = np.asarray(damping, dtype=float)
@@ -146,6 +156,36 @@ def _target(project, edition, periods):
     return design_spectrum(design.kind, **parameters).sa_g(periods), level, cautions, notes
 
 
+def _usable_range(project, trange) -> tuple[tuple[float, float], str]:
+    """The period range cut at the shortest usable period of the suite (ordinates beyond
+    a record's usable period are left out of scaling), and the caution saying so; the
+    range unchanged when ``[scaling] beyond_usable = "include"`` (with a caution)."""
+    limits = [(usable_period_max_s(r), r.id) for r in project.records]
+    limits = [(t, rid) for t, rid in limits if t is not None]
+    if not limits:
+        return trange, ""
+    tmax, rid = min(limits)
+    if trange[1] <= tmax:
+        return trange, ""
+    rule = ("1/(1.25 × high-pass corner), the NGA-West2 rule (Ancheta et al. 2014, from "
+            "memory; common practice, not a code requirement)")
+    if project.scaling.beyond_usable == "include":
+        return trange, (f"The period range reaches {trange[1]:.4g} s, beyond the usable "
+                        f"period {tmax:.4g} s of record {rid} ({rule}); the project "
+                        f"includes those ordinates in scaling (beyond_usable = "
+                        f"\"include\").")
+    if tmax <= trange[0]:
+        return trange, (f"The whole period range {trange[0]:.4g} s to {trange[1]:.4g} s "
+                        f"lies beyond the usable period {tmax:.4g} s of record {rid} "
+                        f"({rule}): it is kept, but these ordinates are not reliable; "
+                        f"choose a lower high-pass corner or other records.")
+    return (trange[0], tmax), (
+        f"The period range the rule asks for ends at {trange[1]:.4g} s, but record {rid} "
+        f"is usable only up to {tmax:.4g} s ({rule}): scaling and its criteria use "
+        f"{trange[0]:.4g} s to {tmax:.4g} s, so the range above {tmax:.4g} s is not "
+        f"checked. Set [scaling] beyond_usable = \"include\" to override.")
+
+
 def compute_scaling(project, spectra: dict, pairs: dict) -> SuiteScaling:
     """
     Scale factors of every record.
@@ -172,6 +212,9 @@ def compute_scaling(project, spectra: dict, pairs: dict) -> SuiteScaling:
     z = damping_index(first.damping, zeta)
     target, level, cautions, notes = _target(project, edition, periods)
     trange, option, option_text = period_range(project)
+    trange, usable_caution = _usable_range(project, trange)
+    if usable_caution:
+        cautions.append(usable_caution)
     psa = np.array([np.asarray(spectra[i].psa_m_s2[z]) / G for i in ids])
     motion_rows = []
     for name, members in groups:

@@ -24,6 +24,7 @@ from sdofreport.core.design_spectra import DESIGN_SPECTRUM_KINDS, design_spectru
 from sdofreport.core.units import G
 from sdofreport.errors import SdofreportError, naming_path
 from sdofreport.project.bounds import MAX_SYNTHETIC_SAMPLES
+from sdofreport.project.schema import DESIGN_SPECTRUM_KEYS, OPTIONAL_DESIGN_KEYS
 from sdofreport.records.writers import write_two_column
 
 __all__ = [
@@ -58,6 +59,9 @@ TOML_KEYS: dict[str, dict[str, str]] = {
                  "ground_type": "ground_type", "spectrum_type": "spectrum_type",
                  "damping": "damping"},
     "table": {"periods": "table_periods_s", "sa": "table_sa_g"},
+    # the current editions read the project file's keys (sdofreport.project.schema)
+    "asce7-22": DESIGN_SPECTRUM_KEYS["asce7-22"],
+    "en1998-1-1": DESIGN_SPECTRUM_KEYS["en1998-1-1"],
 }
 
 # Periods at which a code spectrum is tabulated for the generator [s] (our choice: dense
@@ -103,7 +107,8 @@ def _from_parameters(kind: str, values: dict, where: str) -> SynthesisTarget:
                 f"allowed: {', '.join(keys)}."
             )
         params[keys[key]] = value
-    missing = [k for k, p in keys.items() if p not in params and k not in ("level", "damping")]
+    missing = [k for k, p in keys.items() if p not in params and k not in
+               ("level", "damping", *OPTIONAL_DESIGN_KEYS.get(kind, ()))]
     if missing:
         raise SdofreportError(f"{where}: kind {kind!r} needs key(s) {', '.join(missing)}.")
     try:
@@ -119,7 +124,7 @@ def _from_parameters(kind: str, values: dict, where: str) -> SynthesisTarget:
     shown = ", ".join(f"{k}={v}" for k, v in values.items() if k not in ("periods", "sa"))
     if kind == "table":
         shown = f"{periods.size} points from {periods[0]:g} to {periods[-1]:g} s"
-    damping = params.get("damping") if kind == "en1998-1" else None
+    damping = params.get("damping") if kind in ("en1998-1", "en1998-1-1") else None
     return SynthesisTarget(description=f"{kind}: {shown}", kind=kind, periods_s=periods,
                            sa_g=sa, damping=None if damping is None else float(damping))
 

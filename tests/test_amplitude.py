@@ -91,10 +91,37 @@ def test_amplitude_ok_acknowledges_and_builds(tmp_path, motion_cm_s2):
 
 
 def test_overflowed_values_never_reach_a_page(tmp_path):
-    # 1e200 g is finite, but its square (Arias intensity) overflows a double (IEEE 754).
+    # 1e200 g is finite, but its square (Arias intensity) would overflow a double
+    # (IEEE 754): the build refuses the record, names it and writes no site.
     _values_file(tmp_path / "rec.txt", np.full(800, 1e200))
     project = _project(tmp_path, 'id = "huge"\nfile = "rec.txt"\nformat = "values"\n'
                                  'dt = "0.01 s"\namplitude_ok = true')
     out = tmp_path / "site"
-    _assert_refused(_build(project, out), out, "records[huge]", "arias_m_s",
-                    "are not finite numbers")
+    _assert_refused(_build(project, out), out, "records[huge]", "1e+200 g")
+
+
+def test_a_non_finite_intensity_measure_is_a_problem():
+    """The last guard (sdofreport.amplitude.record_problems): any non-finite value of a
+    record as used is a problem naming the record, whatever amplitude_ok says (IEEE 754:
+    an overflowed square is inf)."""
+    import dataclasses
+    from types import SimpleNamespace
+
+    from sdofreport.amplitude import record_problems
+    from sdofreport.core.intensity import intensity_measures
+    from sdofreport.core.spectra import response_spectrum
+
+    acc = np.sin(np.linspace(0.0, 20.0, 500))
+    spectrum = response_spectrum(acc, 0.01, [0.5, 1.0], [0.05])
+    good = intensity_measures(acc, 0.01)
+    spec = SimpleNamespace(id="huge", file="rec.txt", units="m/s2", scale=1.0,
+                           amplitude_ok=True)
+    arrays = {"velocity_m_s": acc, "displacement_m": acc, "fourier_amplitude_m_s": acc}
+    ok = SimpleNamespace(spec=spec, intensity=good, spectrum=spectrum, scale_factor=1.0,
+                         **arrays)
+    assert record_problems(ok) == []
+    bad = SimpleNamespace(**{**vars(ok), "intensity": dataclasses.replace(
+        good, arias_m_s=float("inf"))})
+    (problem,) = record_problems(bad)
+    assert "records[huge]" in problem and "arias_m_s" in problem
+    assert "are not finite numbers" in problem

@@ -54,8 +54,8 @@ def _run(project_factory, text, name="sdofreport.toml"):
 # ------------------------------------------------------------------------ registry
 def test_registry_supplies_every_rule_of_each_edition():
     # Before: the rules lived in core/scaling.py, suite.py, schema.py and the site.
-    assert set(codes.EDITIONS) == {"asce7-16", "en1998-1"}
-    assert SCALING_RULES == ("asce7-16", "en1998-1", "fit", "none")
+    assert set(codes.EDITIONS) == {"asce7-16", "asce7-22", "en1998-1"}
+    assert SCALING_RULES == ("asce7-16", "asce7-22", "en1998-1", "fit", "none")
     asce, en = codes.EDITIONS["asce7-16"], codes.EDITIONS["en1998-1"]
     # From memory: ASCE/SEI 7-16 §16.2.2, not less than 11 motions; §16.2.1 MCE_R target;
     # §11.4 spectra 5 %-damped.

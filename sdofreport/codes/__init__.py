@@ -11,7 +11,7 @@ clause. Later editions plug in by adding a module and a line here.
 
 from __future__ import annotations
 
-from sdofreport.codes import asce7_16, en1998_1_2004
+from sdofreport.codes import asce7_16, asce7_22, en1998_1_2004
 from sdofreport.codes._edition import (
     Edition,
     PeriodRangeOption,
@@ -21,6 +21,7 @@ from sdofreport.codes._edition import (
 
 #: ``[scaling] rule`` -> edition.
 EDITIONS: dict[str, Edition] = {e.rule: e for e in (asce7_16.EDITION,
+                                                    asce7_22.EDITION,
                                                     en1998_1_2004.EDITION)}
 
 #: Period-range options of rules that name no edition ("fit").

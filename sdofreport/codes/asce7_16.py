@@ -72,6 +72,28 @@ def auto_statistic(motions: int) -> tuple[str, str]:
                     f"{'s' if motions != 1 else ''} counted")
 
 
+def scale_chapter16(inputs: ScalingInputs, amplitude_clause: str, minimum_clause: str,
+                    minimum_motions: int = MINIMUM_MOTIONS,
+                    required_ratio: float = REQUIRED_RATIO):
+    """The Chapter 16 amplitude-scaling rule (shared by the 7-16 and 7-22 editions):
+    :func:`scale` with the edition's clauses."""
+    result = core_scaling.scale_asce7_16(inputs.periods_s, inputs.motion_spectra_g,
+                                         inputs.target_sa_g, inputs.period_range_s)
+    low = float(result.ratio.min())
+    n = inputs.motions_counted
+    criteria = [
+        core_scaling.Criterion(
+            "suite mean RotD100 / target, minimum over the period range", required_ratio,
+            low, core_scaling.meets(low, required_ratio), "error", amplitude_clause),
+        core_scaling.Criterion(
+            "number of ground motions (a horizontal pair counts as one)",
+            float(minimum_motions), float(n), n >= minimum_motions, "error",
+            minimum_clause),
+        *[c for c in result.criteria if c.source.startswith("common practice")],
+    ]
+    return dataclasses.replace(result, criteria=criteria)
+
+
 def scale(inputs: ScalingInputs):
     """
     One factor per motion (pairs share one): each motion fitted to the target in
@@ -89,21 +111,7 @@ def scale(inputs: ScalingInputs):
     sdofreport.core.scaling.ScalingResult
         Factors per motion; criteria with their clauses.
     """
-    result = core_scaling.scale_asce7_16(inputs.periods_s, inputs.motion_spectra_g,
-                                         inputs.target_sa_g, inputs.period_range_s)
-    low = float(result.ratio.min())
-    n = inputs.motions_counted
-    criteria = [
-        core_scaling.Criterion(
-            "suite mean RotD100 / target, minimum over the period range", REQUIRED_RATIO,
-            low, core_scaling.meets(low, REQUIRED_RATIO), "error", _AMPLITUDE_CLAUSE),
-        core_scaling.Criterion(
-            "number of ground motions (a horizontal pair counts as one)",
-            float(MINIMUM_MOTIONS), float(n), n >= MINIMUM_MOTIONS, "error",
-            _MINIMUM_CLAUSE),
-        *[c for c in result.criteria if c.source.startswith("common practice")],
-    ]
-    return dataclasses.replace(result, criteria=criteria)
+    return scale_chapter16(inputs, _AMPLITUDE_CLAUSE, _MINIMUM_CLAUSE)
 
 
 EDITION = Edition(

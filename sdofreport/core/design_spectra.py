@@ -20,12 +20,17 @@ References
 from __future__ import annotations
 
 import difflib
-import math
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from sdofreport.core._checks import positive as _positive
+from sdofreport.core.spectra_current import (
+    asce7_22_spectrum,
+    check_multi_period,
+    damping_correction,
+    en1998_1_1_spectrum,
+)
 
 __all__ = [
     "DESIGN_SPECTRUM_KINDS",
@@ -44,13 +49,17 @@ __all__ = [
 ]
 
 #: Every design-spectrum kind accepted by :func:`design_spectrum`.
-DESIGN_SPECTRUM_KINDS = ("asce7-16", "en1998-1", "table")
+DESIGN_SPECTRUM_KINDS = ("asce7-16", "asce7-22", "en1998-1", "en1998-1-1", "table")
 
 #: Parameter names per kind: (required, optional). The validator and its messages read this.
 DESIGN_SPECTRUM_PARAMETERS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "asce7-16": (("sds_g", "sd1_g", "tl_s"), ("level",)),
     "en1998-1": (("agr_g", "importance_factor", "ground_type", "spectrum_type"),
                  ("damping", "soil_factor", "tb_s", "tc_s", "td_s")),
+    "asce7-22": (("site_class",), ("level", "mp_periods_s", "mp_sa_g", "sds_g", "sd1_g",
+                                   "tl_s")),
+    "en1998-1-1": (("s_alpha_rp_g", "s_beta_rp_g", "site_category"),
+                   ("damping", "f_alpha", "f_beta", "chi", "td_s", "plateau_ratio")),
     "table": (("table_periods_s", "table_sa_g"), ()),
 }
 
@@ -74,8 +83,6 @@ EN1998_1_TABLES: dict[int, dict[str, tuple[float, float, float, float]]] = {
         "D": (1.8, 0.10, 0.30, 1.2), "E": (1.6, 0.05, 0.25, 1.2)},
 }
 
-# Lower limit of the damping correction factor, EN 1998-1 Eq. (3.6).
-_ETA_MIN = 0.55
 
 
 # ---------------------------------------------------------------------------- checks
@@ -219,14 +226,7 @@ def en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type,
         )
     if isinstance(spectrum_type, bool) or spectrum_type not in EN1998_1_SPECTRUM_TYPES:
         raise ValueError(f"spectrum_type must be 1 or 2 [-]; got {spectrum_type!r}")
-    try:
-        xi = float(damping)
-    except (TypeError, ValueError):
-        xi = math.nan
-    if not (0.0 <= xi < 1.0):
-        raise ValueError(
-            f"damping must be a ratio in [0, 1) (0.05 for 5 %) [-]; got {damping!r}"
-        )
+    eta = damping_correction(damping)  # Eq. (3.6)
     soil, tb, tc, td = EN1998_1_TABLES[int(spectrum_type)][key]
     given = {"soil_factor": soil_factor, "tb_s": tb_s, "tc_s": tc_s, "td_s": td_s}
     for name, value in given.items():
@@ -238,7 +238,6 @@ def en1998_1_parameters(agr_g, importance_factor, ground_type, spectrum_type,
     if not tb < tc < td:
         raise ValueError(f"tb_s < tc_s < td_s must hold [s]; got T_B {tb!r}, T_C {tc!r}, "
                          f"T_D {td!r}")
-    eta = max(math.sqrt(10.0 / (5.0 + 100.0 * xi)), _ETA_MIN)  # Eq. (3.6)
     return EN1998Parameters(ag_g=agr * gamma_i, soil_factor=soil, tb_s=tb, tc_s=tc,
                             td_s=td, eta=eta)
 
@@ -382,7 +381,9 @@ class DesignSpectrum:
 
 _FUNCTIONS = {
     "asce7-16": asce7_16_spectrum,
+    "asce7-22": asce7_22_spectrum,
     "en1998-1": en1998_1_spectrum,
+    "en1998-1-1": en1998_1_1_spectrum,
     "table": table_spectrum,
 }
 
@@ -393,12 +394,14 @@ def design_spectrum(kind, **parameters) -> DesignSpectrum:
 
     Parameters
     ----------
-    kind : {"asce7-16", "en1998-1", "table"}
+    kind : {"asce7-16", "asce7-22", "en1998-1", "en1998-1-1", "table"}
         See :data:`DESIGN_SPECTRUM_KINDS`. [-]
     **parameters
         The kind's parameters, named as in :data:`DESIGN_SPECTRUM_PARAMETERS` (the
         arguments of :func:`asce7_16_spectrum`, :func:`en1998_1_spectrum` or
-        :func:`table_spectrum` after ``periods_s``).
+        :func:`table_spectrum`, or of
+        :mod:`sdofreport.core.spectra_current` for ASCE/SEI 7-22 and EN 1998-1-1:2024,
+        after ``periods_s``).
 
     Returns
     -------
@@ -436,6 +439,9 @@ def design_spectrum(kind, **parameters) -> DesignSpectrum:
     if kind == "table":
         tp, sa = _check_table(params["table_periods_s"], params["table_sa_g"])
         params = {"table_periods_s": tp.copy(), "table_sa_g": sa.copy()}
+    if kind == "asce7-22" and params.get("mp_periods_s") is not None:
+        tp, sa = check_multi_period(params["mp_periods_s"], params.get("mp_sa_g"))
+        params.update(mp_periods_s=tp.copy(), mp_sa_g=sa.copy())
     spectrum = DesignSpectrum(kind=kind, parameters=params)
     spectrum.sa_g(0.0)  # runs every value check of the kind's function
     return spectrum

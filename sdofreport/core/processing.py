@@ -119,7 +119,8 @@ def _check_corner(value, name: str) -> float | None:
     return corner
 
 
-def bandpass(acceleration_m_s2, time_step_s, low_hz, high_hz, order=4) -> np.ndarray:
+def bandpass(acceleration_m_s2, time_step_s, low_hz, high_hz, order=4,
+             keep_pads=False) -> np.ndarray:
     """
     Acausal (zero-phase) Butterworth band-pass with zero pads, per [1]_ and [2]_.
 
@@ -131,8 +132,10 @@ def bandpass(acceleration_m_s2, time_step_s, low_hz, high_hz, order=4) -> np.nda
     the low-cut; for a low-pass only the same rule is applied to the high corner (our
     choice: the sources address the low-cut). Half the pad goes at each end.
 
-    **The pads are removed after filtering**: the result has the input's length and
-    start time. [2]_ points out that the filtered pads carry part of the signal, and
+    With ``keep_pads=True`` (what :func:`sdofreport.records.process_record` uses) the
+    filtered pads are kept, as [2]_ recommends: the result is longer than the input by
+    :func:`pad_samples` samples at each end. With ``keep_pads=False`` **the pads are
+    removed after filtering**: the result has the input's length and start time. [2]_ points out that the filtered pads carry part of the signal, and
     that displacements computed from the trimmed record can drift; a user who needs
     consistent displacements should keep pads, which this function does not do.
 
@@ -197,12 +200,52 @@ def bandpass(acceleration_m_s2, time_step_s, low_hz, high_hz, order=4) -> np.nda
         sections.append(butter(order, high, btype="lowpass", output="sos", fs=fs))
     sos = np.vstack(sections)
 
-    pad_total_s = pad_length_s(low if low is not None else high, order)
-    half_pad = int(np.ceil(0.5 * pad_total_s / dt))
+    half_pad = pad_samples(low if low is not None else high, order, dt)
     padded = np.concatenate([np.zeros(half_pad), acc, np.zeros(half_pad)])
     # padtype=None: the zero pads above replace scipy's own odd-extension padding.
     filtered = sosfiltfilt(sos, padded, padtype=None)
+    if keep_pads:
+        return filtered
     return filtered[half_pad : half_pad + acc.size]
+
+
+def pad_samples(corner_hz, filter_order, time_step_s) -> int:
+    """Zero samples put at each end by :func:`bandpass`: ceil(Tpad / (2 Δt)). [-]"""
+    return int(np.ceil(0.5 * pad_length_s(corner_hz, filter_order) / float(time_step_s)))
+
+
+#: Lowest usable frequency as a multiple of the high-pass (low-cut) corner: 1.25, the
+#: rule of the NGA-West2 database (Ancheta et al. 2014, from memory). [-]
+USABLE_FREQUENCY_FACTOR = 1.25
+
+
+def usable_period_max_s(low_cut_hz) -> float:
+    """
+    Longest usable spectral period of a record high-passed at ``low_cut_hz``.
+
+    ``T_max = 1 / (1.25 f_c)``: the lowest usable frequency is 1.25 times the high-pass
+    corner, the rule applied to the NGA-West2 database [1]_ (written down from memory;
+    common practice rather than a code requirement).
+
+    Parameters
+    ----------
+    low_cut_hz : float
+        High-pass (low-cut) corner frequency f_c, > 0. [Hz]
+
+    Returns
+    -------
+    float
+        Longest usable period. [s]
+
+    References
+    ----------
+    .. [1] T. D. Ancheta et al., "NGA-West2 database," Earthquake Spectra, vol. 30,
+       no. 3, pp. 989-1005, 2014, doi:10.1193/070913EQS197M.
+    """
+    corner = _check_corner(low_cut_hz, "low_cut_hz")
+    if corner is None:
+        raise ValueError("low_cut_hz must be a finite number > 0 [Hz]; got None")
+    return 1.0 / (USABLE_FREQUENCY_FACTOR * corner)
 
 
 def cosine_taper(acceleration_m_s2, time_step_s, taper_s) -> np.ndarray:
@@ -262,4 +305,6 @@ __all__ = [
     "baseline_correction",
     "cosine_taper",
     "pad_length_s",
+    "pad_samples",
+    "usable_period_max_s",
 ]

@@ -60,6 +60,9 @@ from sdofreport.core.units import G
 from sdofreport.project.schema import (
     DESIGN_SPECTRUM_KEYS,
     HYSTERESIS_PARAMETER_KEYS,
+    OPTIONAL_DESIGN_KEYS,
+    PROVENANCE_KEYS,
+    PROVENANCE_RANGES,
     SECTIONS,
     SYSTEM_KIND_KEYS,
     TOP_LEVEL,
@@ -419,13 +422,36 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         elif ("pair" in table) != ("component" in table) and component != "V":
             problems.add(where, "a paired record needs both pair and component "
                          "(H1 or H2)")
+        provenance = _read_provenance(table, where, problems)
         path = _input_file(root, file, f"{where}.file", problems) if file else None
         if record_id and file and path is not None:
             records.append(RecordSpec(record_id, path, file, fmt, units, dt_s,
                                       scale if scale else 1.0, own, pair, component,
-                                      amplitude_ok))
+                                      amplitude_ok, provenance))
     _check_pairs(records, problems)
     return records
+
+
+def _read_provenance(table: dict, where: str, problems: _Problems) -> tuple:
+    """The record's provenance keys that are given, as ((key, value), ...) in
+    :data:`PROVENANCE_KEYS` order; numbers checked against plausible ranges."""
+    spec = SECTIONS["records[]"]
+    found = []
+    for key in PROVENANCE_KEYS:
+        if key not in table:
+            continue
+        value = _read_value(table, spec[key], where, problems)
+        if value is None:
+            continue
+        if key in PROVENANCE_RANGES:
+            low, high, inclusive = PROVENANCE_RANGES[key]
+            if not ((value >= low if inclusive else value > low) and value <= high):
+                relation = ">=" if inclusive else ">"
+                problems.add(f"{where}.{key}", f"expected a number {relation} {low:g} and "
+                             f"<= {high:g}, found {value:g}")
+                continue
+        found.append((key, value))
+    return tuple(found)
 
 
 def _read_pair(table: dict, spec: KeySpec, where: str, problems: _Problems) -> str | None:
@@ -956,7 +982,7 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
     count = len(problems.items)
     for key, name in mapping.items():
         if key not in table:
-            if key in _OPTIONAL_DESIGN_KEYS:
+            if key in OPTIONAL_DESIGN_KEYS.get(kind, ()):
                 continue
             if spec[key].default is None:
                 problems.add(f"{where}.{key}", f"missing; kind {kind!r} needs it "
@@ -974,6 +1000,11 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
                 continue
             value = [float(v) for v in raw]
         else:
+            if key in ("site_class", "site_category") and isinstance(table[key], str):
+                # accepted as text in any case: "cd" is site class CD
+                raw = table[key].strip()
+                table = {**table, key: raw.lower() if raw.lower() == "default" else
+                         raw.upper()}
             value = _read_value(table, spec[key], where, problems)
             if value is None:
                 continue
@@ -993,10 +1024,6 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
         problems.add(where, message)
         return None
     return DesignSpectrumSpec(kind, values, parameters)
-
-
-#: Design-spectrum keys that may be left out without a default (National-Annex values).
-_OPTIONAL_DESIGN_KEYS = ("soil_factor", "tb", "tc", "td")
 
 
 def _scaling_range(table: dict, where: str, rule: str, period, problems: _Problems):
@@ -1041,7 +1068,8 @@ def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
         kinds = " or ".join(f'kind = "{k}"' for k in edition.spectrum_kinds)
         problems.add(f"{where}.rule", f"rule {rule!r} ({edition.standard}) needs {kinds} "
                      f"in [design_spectrum], found {design.kind!r}")
-    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option)
+    beyond = _read_value(table, spec["beyond_usable"], where, problems) or "exclude"
+    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option, beyond)
 
 
 def _number_list(value, where: str, minimum: float, problems: _Problems,

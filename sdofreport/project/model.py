@@ -101,6 +101,9 @@ class RecordSpec:
     pair: str | None = None
     component: str | None = None  # "H1" | "H2"
     amplitude_ok: bool = False  # PGA and header-unit checks acknowledged by the user
+    #: provenance keys given in the project file, ((key, value), ...) in the order of
+    #: sdofreport.project.schema.PROVENANCE_KEYS (distance in km, Vs30 in m/s)
+    provenance: tuple[tuple[str, object], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -125,6 +128,9 @@ class ScalingSpec:
     suite_factor: float = 1.0
     #: named period-range option (sdofreport.codes), None when explicit
     period_range_option: str | None = None
+    #: "exclude": ordinates beyond a record's usable period are left out of scaling;
+    #: "include": the project overrides that
+    beyond_usable: str = "exclude"
 
 
 @dataclass(frozen=True)

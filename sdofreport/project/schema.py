@@ -18,6 +18,10 @@ from sdofreport.core.design_spectra import (
 )
 from sdofreport.core.hysteresis import HYSTERESIS_MODELS
 from sdofreport.core.spectra import SPECTRUM_METHODS
+from sdofreport.core.spectra_current import (
+    ASCE7_22_SITE_CLASSES,
+    EN1998_1_1_SITE_CATEGORIES,
+)
 from sdofreport.core.units import acceleration_unit_names
 from sdofreport.records import RECORD_FORMATS
 
@@ -35,6 +39,14 @@ PERIOD_RANGE_OPTIONS = tuple(o.name for o in GENERIC_PERIOD_RANGES)
 #: Levels of the ASCE/SEI 7-16 target: MCE_R (the Chapter 16 target) or design.
 ASCE7_16_LEVEL_CHOICES = tuple(ASCE7_16_LEVELS)
 
+#: Provenance keys of ``[[records]]`` in the order shown (all optional).
+PROVENANCE_KEYS = ("event", "station", "magnitude", "distance_km", "vs30_m_s", "mechanism",
+                   "source", "selection_note")
+
+#: Plausible ranges of the numeric provenance keys: (lowest, highest, inclusive low).
+PROVENANCE_RANGES = {"magnitude": (0.0, 10.0, True), "distance_km": (0.0, 20000.0, True),
+                     "vs30_m_s": (0.0, 10000.0, False)}
+
 #: Intensity measures of the fragility stripes (sdofreport.jobs.stripe_job).
 FRAGILITY_MEASURES = ("sa", "pga")
 
@@ -48,7 +60,21 @@ DESIGN_SPECTRUM_KEYS: dict[str, dict[str, str]] = {
                  "ground_type": "ground_type", "spectrum_type": "spectrum_type",
                  "damping": "damping", "soil_factor": "soil_factor", "tb": "tb_s",
                  "tc": "tc_s", "td": "td_s"},
+    "asce7-22": {"site_class": "site_class", "level": "level", "periods": "mp_periods_s",
+                 "sa": "mp_sa_g", "sds": "sds_g", "sd1": "sd1_g", "tl": "tl_s"},
+    "en1998-1-1": {"s_alpha_rp": "s_alpha_rp_g", "s_beta_rp": "s_beta_rp_g",
+                   "site_category": "site_category", "damping": "damping",
+                   "f_alpha": "f_alpha", "f_beta": "f_beta", "chi": "chi", "td": "td_s",
+                   "plateau_ratio": "plateau_ratio"},
     "table": {"periods": "table_periods_s", "sa": "table_sa_g"},
+}
+
+#: Design-spectrum keys each kind may leave out although they have no default
+#: (National-Annex values; the other form of ASCE/SEI 7-22).
+OPTIONAL_DESIGN_KEYS: dict[str, tuple[str, ...]] = {
+    "en1998-1": ("soil_factor", "tb", "tc", "td"),
+    "asce7-22": ("periods", "sa", "sds", "sd1", "tl"),
+    "en1998-1-1": ("f_alpha", "f_beta", "chi", "td", "plateau_ratio"),
 }
 
 #: How a system may be described (the builders of sdofreport.core.builders).
@@ -187,19 +213,30 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
     "processing": _PROCESSING_KEYS,
     "design_spectrum": _keys(
         KeySpec("kind", "choice", "Which design spectrum: ASCE/SEI 7-16 §11.4.6, "
-                "EN 1998-1 §3.2.2.2, or a table of (T, Sa) points for any other code.",
-                required=True, choices=DESIGN_SPECTRUM_KINDS, example='"asce7-16"'),
-        KeySpec("sds", "number", "asce7-16: S_DS, design short-period spectral "
-                "acceleration, in g.", example="1.0"),
-        KeySpec("sd1", "number", "asce7-16: S_D1, design 1-s spectral acceleration, in g.",
-                example="0.6"),
-        KeySpec("tl", "quantity", "asce7-16: long-period transition period T_L.",
+                "ASCE/SEI 7-22 (multi-period ordinates or the two-period form), "
+                "EN 1998-1:2004 §3.2.2.2, EN 1998-1-1:2024, or a table of (T, Sa) points "
+                "for any other code.",
+                required=True, choices=DESIGN_SPECTRUM_KINDS, example='"asce7-22"'),
+        KeySpec("sds", "number", "asce7-16, asce7-22 (two-period form): S_DS, design "
+                "short-period spectral acceleration, in g.", example="1.0"),
+        KeySpec("sd1", "number", "asce7-16, asce7-22 (two-period form): S_D1, design 1-s "
+                "spectral acceleration, in g.", example="0.6"),
+        KeySpec("tl", "quantity", "asce7-16, asce7-22: long-period transition period T_L "
+                "(asce7-22 multi-period: optional, the decay beyond the last ordinate).",
                 dimension="time", example='"8 s"'),
-        KeySpec("level", "choice", "asce7-16: the MCE_R spectrum (1.5 × design, the "
-                "target of ASCE/SEI 7-16 §16.2.1, from memory) or the design spectrum; "
-                "with level = \"design\" the pages caution that the suite is not scaled "
-                "to the chapter's target. \"mce\" is an older spelling of \"mce_r\".",
+        KeySpec("level", "choice", "asce7-16, asce7-22: the MCE_R spectrum (the target of "
+                "Chapter 16, §16.2.1, from memory; asce7-16: 1.5 × design; asce7-22: the "
+                "ordinates as given, or 1.5 × the two-period design spectrum) or the "
+                "design spectrum (2/3 of MCE_R); with level = \"design\" the pages caution "
+                "that the suite is not scaled to the chapter's target. \"mce\" is an "
+                "older spelling of \"mce_r\".",
                 default="mce_r", choices=ASCE7_16_LEVEL_CHOICES, example='"mce_r"'),
+        KeySpec("site_class", "choice", "asce7-22: site class of ASCE/SEI 7-22 §20.2 "
+                "(from memory), including BC, CD and DE; \"default\" for default site "
+                "conditions (§11.4.3). Shown on the pages; the ordinates or S_DS, S_D1 "
+                "carry its effect. Site class F needs a site response analysis: give "
+                "that spectrum as kind = \"table\".", choices=ASCE7_22_SITE_CLASSES,
+                example='"CD"'),
         KeySpec("agr", "number", "en1998-1: reference peak ground acceleration a_gR on "
                 "ground type A, in g.", example="0.25"),
         KeySpec("importance_factor", "number", "en1998-1: importance factor γ_I.",
@@ -208,8 +245,8 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 choices=EN1998_1_GROUND_TYPES, example='"B"'),
         KeySpec("spectrum_type", "choice", "en1998-1: spectrum type 1 or 2.",
                 choices=EN1998_1_SPECTRUM_TYPES, example="1"),
-        KeySpec("damping", "ratio", "en1998-1: viscous damping ratio for η "
-                "(Eq. 3.6).", default=0.05, example="0.05"),
+        KeySpec("damping", "ratio", "en1998-1, en1998-1-1: viscous damping ratio for η "
+                "(EN 1998-1:2004 Eq. 3.6).", default=0.05, example="0.05"),
         KeySpec("soil_factor", "number", "en1998-1: National-Annex soil factor S "
                 "(default: the recommended value of Table 3.2/3.3, from memory); shown "
                 "as a National-Annex value.", example="1.2"),
@@ -217,12 +254,32 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 dimension="time", example='"0.15 s"'),
         KeySpec("tc", "quantity", "en1998-1: National-Annex T_C (default: Table 3.2/3.3).",
                 dimension="time", example='"0.5 s"'),
-        KeySpec("td", "quantity", "en1998-1: National-Annex T_D (default: Table 3.2/3.3).",
-                dimension="time", example='"2 s"'),
-        KeySpec("periods", "list", "table: periods of the points, in s.",
+        KeySpec("td", "quantity", "en1998-1: National-Annex T_D (default: Table 3.2/3.3); "
+                "en1998-1-1: National-Annex T_D (default 2 s, recommended value from "
+                "memory).", dimension="time", example='"2 s"'),
+        KeySpec("s_alpha_rp", "number", "en1998-1-1: S_alpha,RP, reference spectral "
+                "acceleration of the plateau on site category A at the return period, in "
+                "g.", example="0.6"),
+        KeySpec("s_beta_rp", "number", "en1998-1-1: S_beta,RP, reference spectral "
+                "acceleration at T_beta = 1 s on site category A, in g.", example="0.2"),
+        KeySpec("site_category", "choice", "en1998-1-1: site category A to F "
+                "(EN 1998-1-1:2024 §5.1, from memory).",
+                choices=EN1998_1_1_SITE_CATEGORIES, example='"C"'),
+        KeySpec("f_alpha", "number", "en1998-1-1: National-Annex or site-specific site "
+                "factor F_alpha (default: the table value, from memory).", example="1.4"),
+        KeySpec("f_beta", "number", "en1998-1-1: National-Annex or site-specific site "
+                "factor F_beta (default: the table value, from memory).", example="2.0"),
+        KeySpec("chi", "number", "en1998-1-1: National-Annex χ in T_B = χ T_C (default "
+                "0.25, recommended value from memory).", example="0.25"),
+        KeySpec("plateau_ratio", "number", "en1998-1-1: National-Annex F_A, ratio of the "
+                "plateau to the zero-period value (default 2.5, from memory).",
+                example="2.5"),
+        KeySpec("periods", "list", "table: periods of the points, in s; asce7-22: the "
+                "periods of the multi-period MCE_R ordinates, from 0 s, increasing.",
                 example="[0.0, 0.2, 1.0, 4.0]"),
-        KeySpec("sa", "list", "table: spectral accelerations of the points, in g.",
-                example="[0.4, 1.0, 0.5, 0.1]"),
+        KeySpec("sa", "list", "table: spectral accelerations of the points, in g; "
+                "asce7-22: the multi-period MCE_R ordinates as copied from the official "
+                "source for the site class, in g.", example="[0.4, 1.0, 0.5, 0.1]"),
     ),
     "scaling": _keys(
         KeySpec("rule", "choice", "Suite scaling rule: " + "; ".join(
@@ -241,6 +298,12 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 example='"every-system"'),
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
+        KeySpec("beyond_usable", "choice", "Spectral ordinates beyond a record's usable "
+                "period, 1/(1.25 × its high-pass corner) (NGA-West2 rule, Ancheta et al. "
+                "2014, from memory; common practice): \"exclude\" cuts the scaling "
+                "period range at the shortest usable period of the suite, with a caution; "
+                "\"include\" keeps them, with a caution.", default="exclude",
+                choices=("exclude", "include"), example='"exclude"'),
     ),
     "synthetic_records": _keys(
         KeySpec("count", "integer", "Number of spectrum-compatible records to make "
@@ -320,6 +383,24 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "otherwise stop at: a PGA after scaling above 4 g or below 0.001 g, or a "
                 "file header that states a unit other than units. Set it only after "
                 "checking the record.", default=False, example="true"),
+        # provenance (all optional; shown on the record and suite pages and in
+        # results.json records[].provenance)
+        KeySpec("event", "text", "Provenance: the earthquake (name, date).",
+                example='"Invented Valley earthquake, 2031-04-02"'),
+        KeySpec("station", "text", "Provenance: the recording station.",
+                example='"Station VLY-03"'),
+        KeySpec("magnitude", "number", "Provenance: moment magnitude M_w (0 to 10).",
+                example="6.7"),
+        KeySpec("distance_km", "number", "Provenance: source-to-site distance in km "
+                "(state the measure, e.g. R_rup, in selection_note).", example="12.5"),
+        KeySpec("vs30_m_s", "number", "Provenance: time-averaged shear-wave velocity of "
+                "the top 30 m at the station, in m/s.", example="360"),
+        KeySpec("mechanism", "text", "Provenance: faulting mechanism.",
+                example='"reverse"'),
+        KeySpec("source", "text", "Provenance: database and record identifier, or DOI.",
+                example='"Example database, record 0042"'),
+        KeySpec("selection_note", "text", "Provenance: why this record was selected.",
+                example='"magnitude and distance near the deaggregation mode"'),
     ),
     "records[].processing": _PROCESSING_KEYS,
     "systems[]": _keys(

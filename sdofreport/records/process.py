@@ -4,7 +4,14 @@ from __future__ import annotations
 
 import dataclasses
 
-from sdofreport.core.processing import bandpass, baseline_correction, cosine_taper, pad_length_s
+from sdofreport.core.processing import (
+    bandpass,
+    baseline_correction,
+    cosine_taper,
+    pad_length_s,
+    pad_samples,
+    usable_period_max_s,
+)
 from sdofreport.errors import RecordError
 from sdofreport.records.record import Record
 
@@ -29,8 +36,9 @@ def process_record(record: Record, *, baseline_order=None, bandpass_hz=None, fil
     2. **taper** (``taper_s``): half-cosine ramps bring both ends to zero, so the zero
        pads of the filter join the record without a step (which would ring).
     3. **band-pass** (``bandpass_hz``): acausal Butterworth, applied last so the final
-       record keeps the stated pass band; pads are removed afterwards, so the record's
-       length is unchanged.
+       record keeps the stated pass band; the filtered pads are kept (Boore 2005), so
+       the record grows by the pad at each end and its time 0 is the start of the
+       front pad.
 
     This is the sequence discussed by Boore and Bommer (2005), doi:10.1016/j.soildyn.2004.10.007:
     remove offsets, taper, pad and filter.
@@ -84,16 +92,21 @@ def process_record(record: Record, *, baseline_order=None, bandpass_hz=None, fil
                 f"bandpass_hz must be a pair (low_hz, high_hz), either may be None [Hz]; "
                 f"got {bandpass_hz!r}")) from None
         try:
-            acc = bandpass(acc, dt, low_hz, high_hz, order=filter_order)
+            acc = bandpass(acc, dt, low_hz, high_hz, order=filter_order, keep_pads=True)
         except ValueError as exc:
             raise _fail(record, "band-pass", exc) from None
         corner = low_hz if low_hz is not None else high_hz
         pad_s = pad_length_s(corner, filter_order)
+        end_s = pad_samples(corner, filter_order, dt) * dt
         low_text = "none" if low_hz is None else f"{float(low_hz):g} Hz"
         high_text = "none" if high_hz is None else f"{float(high_hz):g} Hz"
+        usable = ("" if low_hz is None else
+                  f"; usable periods up to {usable_period_max_s(low_hz):.4g} s = "
+                  f"1/(1.25 × low-cut) (NGA-West2 rule, Ancheta et al. 2014, from memory)")
         history.append(
             f"band-pass: acausal Butterworth order {filter_order}, low-cut {low_text}, "
             f"high-cut {high_text}, run forward and backward over {pad_s:g} s of zero pads "
-            "in total; pads removed after filtering (record length unchanged)"
+            f"in total; the filtered pads are kept (Boore 2005): {end_s:g} s added at each "
+            f"end, time 0 is the start of the front pad{usable}"
         )
     return dataclasses.replace(record, acceleration_m_s2=acc, history=tuple(history))

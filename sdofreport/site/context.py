@@ -14,12 +14,15 @@ import numpy as np
 
 from sdofreport import __version__, codes
 from sdofreport.core.fragility import STATISTIC_KEYS
+from sdofreport.core.processing import pad_length_s
 from sdofreport.core.units import G
 from sdofreport.engine import VERDICT_EXCEEDS, VERDICT_UNSTABLE, Results
 from sdofreport.errors import BuildError
 from sdofreport.project.ids import SAFE_ID, SAFE_ID_TEXT
 from sdofreport.project.schema import HYSTERESIS_PARAMETER_KEYS
+from sdofreport.site import design_formulas, provenance
 from sdofreport.site.display import CHECK_LABELS, Display, number
+from sdofreport.suite import usable_period_max_s
 from sdofreport.site.notes import render_notes
 from sdofreport.results_json import signoff_block
 
@@ -277,7 +280,8 @@ class SiteContext:
                          "pgv": d.show(im.pgv_m_s, "velocity"),
                          "arias": f"{number(im.arias_m_s)} m/s",
                          "d5_95": f"{number(im.d5_95_s)} s",
-                         "mean_period": f"{number(im.mean_period_s)} s"})
+                         "mean_period": f"{number(im.mean_period_s)} s",
+                         "usable": _usable_short(usable_period_max_s(item.spec))})
         return rows
 
     # -- pages -----------------------------------------------------------------------
@@ -350,10 +354,12 @@ class SiteContext:
         ]
         spectrum = item.spectrum
         damping_labels = [f"ζ = {100 * z:g} %" for z in spectrum.damping]
-        psa = [{"label": label, "values": spectrum.psa_m_s2[i] / G, "style": "emphasis"}
-               for i, label in enumerate(damping_labels)]
+        usable = usable_period_max_s(item.spec)
+        psa = [{"label": label, "values": spectrum.psa_m_s2[i] / G, "style": "emphasis",
+                "usable_max_s": usable} for i, label in enumerate(damping_labels)]
         sd = [{"label": label, "values": d.convert(1.0, "length") * spectrum.sd_m[i],
-               "style": "emphasis"} for i, label in enumerate(damping_labels)]
+               "style": "emphasis", "usable_max_s": usable}
+              for i, label in enumerate(damping_labels)]
         figures = {
             "histories": self._figure(figure_path("record-histories", rid),
                                       "histories_figure", time_s=time, panels=panels),
@@ -397,7 +403,14 @@ class SiteContext:
                               "dt": number(record.dt_s), "duration": number(record.duration_s),
                               "units": record.units, **_factor_bits(item, d),
                               "history": list(record.history),
-                              "warnings": list(record.warnings)},
+                              "warnings": list(record.warnings),
+                              "provenance": provenance.record_rows(item.spec),
+                              "processing": _processing_text(item.spec.processing),
+                              "usable": _usable_text(usable, self.project.scaling),
+                              "beyond_usable": [
+                                  f"{system.name} ({system.id}, T = {system.period_s:.4g} s)"
+                                  for system in self.project.systems
+                                  if usable is not None and system.period_s > usable]},
                    "intensity": intensity, "figures": figures,
                    "method": self.project.analysis.method}
         return Page(f"records/{page_name(rid)}", "record.html", context)
@@ -418,9 +431,12 @@ class SiteContext:
                  f"Spectral displacement [{d.unit('length')}]")):
             stack = np.array([getattr(r.spectrum, attr)[index] * scale
                               for r in results.records])
+            curves = _suite_curves([r.record.id for r in results.records], stack)
+            for curve, item in zip(curves, results.records):
+                curve["usable_max_s"] = usable_period_max_s(item.spec)
             figures[key] = self._figure(
                 f"figures/suite-{key}.svg", "spectra_figure", periods_s=periods,
-                curves=_suite_curves([r.record.id for r in results.records], stack),
+                curves=curves,
                 ylabel=label, highlight_periods=self.system_periods,
                 design=self._design(periods) if key == "psa" else None,
                 shaded_range=shaded if key == "psa" else None)
@@ -468,7 +484,8 @@ class SiteContext:
                                   f"to {number(periods.max())} s",
                    "method": analysis.method, "design": self._design_block(),
                    "scaling": self._scaling_block(), "motion_figure": motion_figure,
-                   "motion_label": motion_label, "pairs": pair_rows}
+                   "motion_label": motion_label, "pairs": pair_rows,
+                   "provenance": provenance.suite_table(self.project.records)}
         return Page("suite.html", "suite.html", context)
 
     def _inelastic_block(self) -> dict | None:
@@ -514,7 +531,8 @@ class SiteContext:
         design = self.project.design_spectrum
         if design is None:
             return None
-        values = [(_DESIGN_KEY_LABELS.get(k, k), v if not isinstance(v, list) else
+        labels = {**_DESIGN_KEY_LABELS, **design_formulas.KEY_LABELS}
+        values = [(labels.get(k, k), v if not isinstance(v, list) else
                    ", ".join(f"{x:g}" for x in v)) for k, v in design.values.items()]
         if design.kind == "en1998-1":
             from sdofreport.core.design_spectra import en1998_1_parameters
@@ -527,7 +545,9 @@ class SiteContext:
                     continue  # given: labelled as a National-Annex value above
                 values.append((f"{label} (recommended, Table 3.{design.values['spectrum_type'] + 1}"
                                f", from memory)", f"{value:g}"))
-        return {"label": _design_label(design), "values": values}
+        derived, formula = design_formulas.details(design)
+        return {"label": _design_label(design), "values": values + derived,
+                "formula": formula}
 
     def _scaling_block(self) -> dict | None:
         scaling = self.results.scaling
@@ -956,6 +976,9 @@ def _factor_bits(item, display) -> dict:
 
 def _design_label(design) -> str:
     values = design.values
+    current = design_formulas.label(design)
+    if current is not None:
+        return current
     if design.kind == "asce7-16":
         level = "MCE_R" if values.get("level") in ("mce", "mce_r") else "design"
         return (f"ASCE/SEI 7-16 {level} spectrum (S_DS {values['sds']:g} g, S_D1 "
@@ -979,13 +1002,32 @@ def _suite_curves(names: list[str], stack: np.ndarray) -> list[dict]:
     return curves
 
 
+def _usable_short(usable: float | None) -> str:
+    return "all" if usable is None else f"≤ {usable:.4g} s"
+
+
+def _usable_text(usable: float | None, scaling) -> str:
+    """The record's usable period range in words, with the rule and what follows."""
+    if usable is None:
+        return "no high-pass filter: the whole period range is taken as usable"
+    use = ("left out of scaling (the scaling period range is cut there)"
+           if scaling.beyond_usable == "exclude" else
+           "kept in scaling, as the project asks (beyond_usable = \"include\")")
+    return (f"up to {usable:.4g} s = 1/(1.25 × high-pass corner), the NGA-West2 rule "
+            f"(Ancheta et al. 2014, from memory; common practice); spectral ordinates "
+            f"beyond it are drawn dashed and {use}")
+
+
 def _processing_text(settings) -> str:
     parts = []
     if settings.baseline_order is not None:
         parts.append(f"baseline order {settings.baseline_order}")
     if settings.bandpass_hz:
-        parts.append(f"band-pass {settings.bandpass_hz[0]:g}–{settings.bandpass_hz[1]:g} Hz "
-                     f"(order {settings.filter_order})")
+        low, high = settings.bandpass_hz
+        pad = pad_length_s(low, settings.filter_order)
+        parts.append(f"acausal Butterworth band-pass {low:g}–{high:g} Hz (order "
+                     f"{settings.filter_order}, forward and backward), zero pads of "
+                     f"{pad:g} s in total (1.5 n/f_c, Boore 2005), kept after filtering")
     if settings.taper_s:
         parts.append(f"taper {settings.taper_s:g} s")
     return ", ".join(parts) if parts else "none"

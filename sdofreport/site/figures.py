@@ -85,6 +85,8 @@ _DESIGN_COLOUR = PALETTE["vermillion"]
 _PASS_COLOUR = PALETTE["blue"]
 _FAIL_COLOUR = PALETTE["vermillion"]
 _GREY_RECORD = "#8c8c8c"
+#: Dash of a spectrum beyond its record's usable period [pt] (design spectrum: 9.6,4.8).
+_BEYOND_DASH = "2.4,2.4"
 _BAND_GREY = "#d0d0d0"
 _SHADE_GREY = "#f4efdb"  # very light warm tint: distinct from the grey ±1σ band
 
@@ -501,7 +503,8 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
     periods_s : array-like
         Periods common to all curves. [s]
     curves : sequence of dict
-        ``{"label": str, "values": array, "style": "record" | "mean" | "band" | "emphasis"}``;
+        ``{"label": str, "values": array, "style": "record" | "mean" | "band" | "emphasis"}``,
+        optionally ``"usable_max_s"``: a record or emphasis curve is dashed beyond it [s];
         style ``"band"`` also needs ``"lower"`` and ``"upper"`` arrays (filled between; legend
         ``label`` or ``"mean ± 1σ"`` when the label is empty). Values in the unit of ``ylabel``.
     ylabel : str
@@ -542,7 +545,8 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
         style = curve.get("style", "record")
         if style not in _STYLES:
             raise ValueError(f"curves[{i}] style must be one of {_STYLES}; got {style!r}")
-        item = {"label": str(curve.get("label") or ""), "style": style}
+        item = {"label": str(curve.get("label") or ""), "style": style,
+                "usable_max_s": curve.get("usable_max_s")}
         if style == "band":
             if "lower" not in curve or "upper" not in curve:
                 raise ValueError(f"curves[{i}] style 'band' needs 'lower' and 'upper' arrays")
@@ -577,13 +581,30 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
     for c in (c for c in prepared if c["style"] == "band"):
         bands.append(Band(x, c["lower"], c["upper"], _BAND_GREY))
         handles.append(LegendEntry(c["label"] or "mean ± 1σ", _BAND_GREY, patch=True))
+    dashed_beyond = []
+
+    def add_curve(c, colour, width, opacity=1.0):
+        """A curve, dashed beyond its usable period (``"usable_max_s"``) if it has one."""
+        tmax = c.get("usable_max_s")
+        if tmax is None or not np.any(x > tmax):
+            lines.append(Curve(x, c["values"], colour, width, opacity))
+            return
+        inside = x <= tmax
+        last = np.flatnonzero(inside)[-1] if inside.any() else 0
+        beyond = np.arange(x.size) >= last
+        lines.append(Curve(x, np.where(inside, c["values"], np.nan), colour, width,
+                           opacity))
+        lines.append(Curve(x, np.where(beyond, c["values"], np.nan), colour, width,
+                           opacity, dash=_BEYOND_DASH))
+        dashed_beyond.append(colour)
+
     for k, c in enumerate(records):
         if records_in_legend:
             colour = _RECORD_COLOURS[k % len(_RECORD_COLOURS)]
-            lines.append(Curve(x, c["values"], colour, 0.8, 0.75))
+            add_curve(c, colour, 0.8, 0.75)
             handles.append(LegendEntry(c["label"], colour, 0.8, 0.75))
         else:
-            lines.append(Curve(x, c["values"], _GREY_RECORD, 0.6, 0.55))
+            add_curve(c, _GREY_RECORD, 0.6, 0.55)
     if records and not records_in_legend:
         handles.append(LegendEntry(f"records (n = {len(records)})", _GREY_RECORD, 0.6, 0.55))
     for c in (c for c in prepared if c["style"] == "mean"):
@@ -591,9 +612,12 @@ def spectra_figure(periods_s, curves, *, ylabel, xlabel="Period T [s]", logx=Tru
         handles.append(LegendEntry(c["label"] or "mean", "#000000", 2.0))
     emphasis = [c for c in prepared if c["style"] == "emphasis"]
     for k, c in enumerate(emphasis):
-        lines.append(Curve(x, c["values"], _EMPHASIS_COLOURS[k % 4], 1.8))
+        add_curve(c, _EMPHASIS_COLOURS[k % 4], 1.8)
         if c["label"]:
             handles.append(LegendEntry(c["label"], _EMPHASIS_COLOURS[k % 4], 1.8))
+    if dashed_beyond:
+        handles.append(LegendEntry("beyond the usable period (dashed)", "#555555", 1.0,
+                                   dash=_BEYOND_DASH))
     if design_xy is not None:
         lines.append(Curve(design_xy[0], design_xy[1], _DESIGN_COLOUR, 1.6, dash="9.6,4.8"))
         handles.append(LegendEntry(design_xy[2], _DESIGN_COLOUR, 1.6, dash="9.6,4.8"))

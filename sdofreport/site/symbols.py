@@ -14,11 +14,15 @@ import textwrap
 import markupsafe
 
 #: Symbols whose subscript is set lowered and smaller: spectral parameters (ASCE/SEI
-#: 7-16 §11.4, EN 1998-1:2004 §3.2.2), corner periods, yield quantities, levels.
+#: 7-16 §11.4, EN 1998-1:2004 §3.2.2, ASCE/SEI 7-22, EN 1998-1-1:2024), corner
+#: periods, yield quantities, levels.
 SYMBOLS = ("S_DS", "S_D1", "S_MS", "S_M1", "S_S", "S_1", "S_a", "S_d", "S_v", "S_e",
            "T_L", "T_B", "T_C", "T_D", "T_0", "T_S", "T_n", "T_eff", "F_y", "u_y",
            "k_y", "k_eff", "MCE_R", "a_g", "a_gR", "v_s30", "V_s30", "β_eff", "ζ_eff",
-           "μ_fast", "μ_slow")
+           "μ_fast", "μ_slow",
+           # ASCE/SEI 7-22 and EN 1998-1-1:2024 (spectrum_current.py)
+           "S_α,RP", "S_β,RP", "S_α", "S_β", "F_α", "F_β", "F_A", "T_β", "T_lower",
+           "T_upper", "S_a,MCE_R", "M_w")
 
 _PATTERN = re.compile(r"(?<![\w/])(" + "|".join(
     re.escape(symbol) for symbol in sorted(SYMBOLS, key=len, reverse=True)) + r")(?![\w])")

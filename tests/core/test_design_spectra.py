@@ -182,7 +182,7 @@ def test_registry_matches_parameters_and_evaluates():
 
 
 @pytest.mark.parametrize("kind, params, match", [
-    ("asce7-10", {}, r"kind must be one of asce7-16, en1998-1, table; got 'asce7-10'"),
+    ("asce7-10", {}, r"kind must be one of asce7-16, asce7-22, en1998-1, en1998-1-1, table; got 'asce7-10'"),
     ("asce7-16", {"sds_g": 1.0, "sd1": 0.6, "tl_s": 8.0},
      r"unknown parameter 'sd1' for design spectrum 'asce7-16' \(did you mean 'sd1_g'\?\)"),
     ("asce7-16", {"sds_g": 1.0}, r"design spectrum 'asce7-16' is missing parameter\(s\) "

@@ -141,3 +141,14 @@ def test_new_refuses_a_file_and_accepts_an_empty_folder(command_group, tmp_path)
     ok = invoke(command_group, "new", empty)
     assert ok.exit_code == 0, ok.output
     assert (empty / "sdofreport.toml").is_file()
+
+
+def test_starter_targets_asce7_22(starter_site):
+    # The requirement: ASCE/SEI 7-22 is the starter's default target. Published
+    # formula (from memory): the two-period MCE_R spectrum is 1.5 × the design spectrum,
+    # so its plateau is 1.5 S_DS = 1.5 × 0.70 g (the starter's S_DS).
+    _, site = starter_site
+    results, _ = read_site(site)
+    design = results["design_spectrum"]
+    assert design["kind"] == "asce7-22" and design["parameters"]["site_class"] == "CD"
+    assert max(design["sa_g"]) == pytest.approx(1.5 * 0.70, rel=1e-12)

@@ -27,15 +27,23 @@ def test_steps_run_baseline_then_taper_then_bandpass():
                          filter_order=4)
     # Independent reference: the three core functions applied by hand in the documented order.
     expected = bandpass(cosine_taper(baseline_correction(record.acceleration_m_s2, 0.01, 1),
-                                     0.01, 2.0), 0.01, 0.1, 20.0, order=4)
+                                     0.01, 2.0), 0.01, 0.1, 20.0, order=4, keep_pads=True)
     np.testing.assert_allclose(out.acceleration_m_s2, expected, atol=1e-12)
     added = out.history[len(record.history):]
     assert [line.split(":")[0] for line in added] == ["baseline", "taper", "band-pass"]
     assert "order-1 polynomial removed" in added[0]
     assert "half-cosine ramps of 2 s" in added[1]
     # From memory: Boore (2005) total pad 1.5 n / fc = 1.5·4/0.1 = 60 s.
-    assert "60 s of zero pads" in added[2] and "record length unchanged" in added[2]
-    assert out.npts == record.npts and out.sha256 == record.sha256
+    assert "60 s of zero pads" in added[2] and "filtered pads are kept" in added[2]
+    # Boore (2005): the pads are kept after acausal filtering, 30 s (3000 samples) at
+    # each end; the record inside them is the one the pads-removed filter returns.
+    assert out.npts == record.npts + 2 * 3000 and out.sha256 == record.sha256
+    inner = bandpass(cosine_taper(baseline_correction(record.acceleration_m_s2, 0.01, 1),
+                                  0.01, 2.0), 0.01, 0.1, 20.0, order=4)
+    np.testing.assert_allclose(out.acceleration_m_s2[3000:-3000], inner, atol=1e-12)
+    # Usable periods up to 1/(1.25 f_c) = 8 s (NGA-West2 rule, Ancheta et al. 2014, from
+    # memory).
+    assert "usable periods up to 8 s" in added[2]
 
 
 def test_highpass_only_history_says_none():
