@@ -64,6 +64,7 @@ DATACLASSES = {
     "ConstantDuctilitySpectrum":
         "sdofreport.core.inelastic_spectra:ConstantDuctilitySpectrum",
     "NonlinearResponse": "sdofreport.core.nonlinear:NonlinearResponse",
+    "BiaxialResponse": "sdofreport.core.biaxial:BiaxialResponse",
 }
 #: numpy dtype kinds an entry may hold: booleans, integers, floats, complex numbers.
 ARRAY_KINDS = frozenset("biufc")

@@ -118,6 +118,11 @@ class ResponseResult:
     instability_limit_m: float | None = None
     #: peak damper force [N]; None without a damper
     peak_damper_force_n: float | None = None
+    #: 2 when the system moved in both horizontal directions under the record's pair;
+    #: the peaks are then of the resultant and the histories along this record
+    directions: int = 1
+    #: two-direction runs: peak |u| along H1 and along H2 [m]
+    peak_displacement_per_direction_m: tuple | None = None
 
 
 @dataclass(frozen=True)
@@ -136,6 +141,8 @@ class Check:
     #: mean, median, p84, beta, min, max of the per-record peaks (SI; beta [-]), see
     #: sdofreport.core.fragility.demand_statistics; ``statistic`` names the governing one
     statistics: dict = field(default_factory=dict)
+    #: with property_factors: the run whose demand governs (nominal, lower or upper)
+    governing_run: str | None = None
 
 
 @dataclass(frozen=True)
@@ -164,6 +171,12 @@ class Results:
     cache_hits: int = 0
     cache_misses: int = 0
     fragility: list[FragilityResult] = field(default_factory=list)
+    #: (system id, record id) -> {"lower": ResponseResult, "upper": ResponseResult} for
+    #: systems with property_factors (the nominal run is in ``responses``)
+    bounds: dict = field(default_factory=dict)
+    #: sliding pendulums: system id -> {run: EffectiveProperties} at the suite statistic
+    #: of the run's peak displacements (sdofreport.core.isolation)
+    effective: dict = field(default_factory=dict)
 
     def response(self, system_id: str, record_id: str) -> ResponseResult:
         return self.responses[(system_id, record_id)]
@@ -419,6 +432,43 @@ def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseR
         if model.get("damper") is not None else None)
 
 
+def _biaxial_result(system: SystemSpec, record_id: str, direction: int,
+                    raw: dict) -> ResponseResult:
+    """The response of a ``directions = 2`` system to the pair of ``record_id``: peaks of
+    the resultant, histories along the record's own direction (0: H1, 1: H2)."""
+    r = raw["biaxial"]
+    u_peak = float(r.peak_displacement_m)
+    drift = u_peak / system.height_m if system.height_m else None
+    common = dict(directions=2, peak_displacement_per_direction_m=tuple(
+        r.peak_displacement_per_direction_m), unstable=bool(r.unstable))
+    if raw.get("one_direction"):  # a one-direction run through the biaxial kernel
+        common.update(directions=1, peak_displacement_per_direction_m=None)
+    if raw["model"] == "linear":
+        return ResponseResult(system.id, record_id, u_peak, r.peak_velocity_m_s,
+                              r.peak_total_accel_m_s2, drift, r.peak_force_n, r.time_s,
+                              r.displacement_m[direction], r.total_accel_m_s2[direction],
+                              **common)
+    energy = dict(r.energy_j)
+    supplied = energy["input_j"]
+    total = sum(energy[k] for k in ("kinetic_j", "damping_j", "strain_j", "hysteretic_j"))
+    energy["imbalance"] = abs(supplied - total) / max(abs(supplied), 1e-300)
+    model = system.model or {}
+    yield_m = (model["yield_strength_n"] / model["stiffness_n_m"]
+               if "yield_strength_n" in model else None)
+    limit = model.get("instability_limit_m")
+    return ResponseResult(
+        system.id, record_id, u_peak, r.peak_velocity_m_s, r.peak_total_accel_m_s2, drift,
+        r.peak_force_n, r.time_s, r.displacement_m[direction],
+        r.total_accel_m_s2[direction], model=raw["model"], force_n=r.force_n[direction],
+        ductility=None if yield_m is None else u_peak / yield_m,
+        residual_displacement_m=float(np.hypot(*r.residual_displacement_m)),
+        peak_force_n=r.peak_force_n, energy=energy,
+        convergence={"converged": bool(r.converged),
+                     "max_iterations_used": int(r.max_iterations_used),
+                     "subdivided_steps": int(r.subdivided_steps)},
+        instability_limit_m=limit, **common)
+
+
 #: Check quantity -> ResponseResult attribute read for its per-record peak.
 CHECK_ATTRIBUTES = {
     "displacement": "peak_displacement_m", "drift_ratio": "peak_drift_ratio",
@@ -439,9 +489,10 @@ def _statistic(values: list[float], statistic: str) -> float:
 def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
     checks = []
     for system in project.systems:
+        records = project.records_for(system)
         for quantity, limit in system.limits.items():
             peaks = [getattr(responses[(system.id, r.id)], CHECK_ATTRIBUTES[quantity])
-                     for r in project.records]
+                     for r in records]
             peaks = [p for p in peaks if p is not None]
             if not peaks:
                 continue
@@ -449,7 +500,7 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
             demand = _statistic([abs(p) for p in peaks], statistic)
             ratio = demand / limit
             verdict = VERDICT_WITHIN if ratio <= 1.0 else VERDICT_EXCEEDS
-            if any(responses[(system.id, r.id)].unstable for r in project.records):
+            if any(responses[(system.id, r.id)].unstable for r in records):
                 verdict = VERDICT_UNSTABLE  # the demand of a runaway record means nothing
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
                                 verdict, absolute, demand_statistics(np.abs(peaks))))
@@ -548,6 +599,8 @@ def run_project(project: Project, *, jobs: int | None = None,
     base = {"version": __version__, "method": analysis.method}
     pairs = _pairs(project)
     total = len(records) + len(pairs) + len(records)
+    if any(system.directions == 2 for system in project.systems):
+        total += len(pairs)
     if project.inelastic is not None:
         total += len(records)
     phase = _Phase(cache, progress, total, {"workers": workers,
@@ -607,9 +660,13 @@ def run_project(project: Project, *, jobs: int | None = None,
 
     # Phase 3: every system's response to every (scaled) record, one job per record.
     plan = []
-    models = [{**system_model(system), "system_id": system.id}
-              for system in project.systems]
+    runs = list(project.systems) + _bound_systems(project)
+    one_d = [s for s in runs if s.directions == 1]
+    driven = {spec.id: [s for s in one_d if (s.direction == "vertical") ==
+                        (spec.component == "V")] for spec in project.records}
     for record in (scaled[r.id] for r in project.records):
+        models = [{**system_model(system), "system_id": system.id}
+                  for system in driven[record.id]]
         args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
         key = cache_key({**base, "job": "responses", "sha": _array_hash(args[0]),
                             "dt": record.dt_s, "models": models})
@@ -624,12 +681,16 @@ def run_project(project: Project, *, jobs: int | None = None,
                                     inelastic_spec)})
             plan.append((f"record {record.id} (inelastic spectra)", "inelastic", args,
                          key))
+    two_d = [s for s in runs if s.directions == 2]
+    biaxial_plan = _biaxial_plan(project, two_d, scaled, base)
     stripes = _stripe_plan(project, scaled, base)
     phase.total += len(stripes)
-    plan += stripes
+    plan += stripes + biaxial_plan
     outputs = phase.run(plan)
-    stripe_outputs = outputs[len(plan) - len(stripes):]
-    outputs = outputs[:len(plan) - len(stripes)]
+    biaxial_outputs = outputs[len(plan) - len(biaxial_plan):]
+    stripe_outputs = outputs[len(plan) - len(biaxial_plan) - len(stripes):
+                             len(plan) - len(biaxial_plan)]
+    outputs = outputs[:len(plan) - len(biaxial_plan) - len(stripes)]
     inelastic = {}
     if inelastic_spec is not None:
         tail = outputs[len(project.records):]
@@ -638,18 +699,123 @@ def run_project(project: Project, *, jobs: int | None = None,
     for spec, group in zip(project.records, outputs[:len(project.records)]):
         record = scaled[spec.id]
         time_s = np.arange(record.npts) * record.dt_s
-        for system, raw in zip(project.systems, group):
+        for system, raw in zip(driven[spec.id], group):
             if raw["model"] == "linear":  # linear jobs send no time axis: it is n · dt
                 raw = {**raw, "time_s": time_s}
-            responses[(system.id, spec.id)] = _response_result(system, spec.id, raw)
+            responses[(system.id, spec.id)] = _biaxial_result(system, spec.id, 0, raw) \
+                if "biaxial" in raw else _response_result(system, spec.id, raw)
+    for (h1, h2), group in zip(_pairs(project).values() if two_d else (), biaxial_outputs):
+        for system, raw in zip(two_d, group):
+            for direction, rid in enumerate((h1, h2)):
+                responses[(system.id, rid)] = _biaxial_result(system, rid, direction, raw)
     check_results(project.path.name, (), responses.values())
     statistic = project.statistic_used
-    checks = _checks(project, responses, statistic)
+    bounds = _split_bounds(responses)
+    checks = _governing_checks(project, _checks(project, responses, statistic), responses,
+                               bounds, statistic)
     return Results(project, record_results, responses, checks, statistic, scaling,
                    pair_results, inelastic,
                    {"read_s": read_time, "compute_s": phase.seconds,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses,
-                   _fragility_results(project, stripe_outputs))
+                   _fragility_results(project, stripe_outputs),
+                   bounds=bounds,
+                   effective=_effective_properties(project, responses, bounds, statistic))
+
+
+#: The bound analyses of systems with property_factors, in the factors' order.
+BOUND_RUNS = ("lower", "upper")
+
+
+def _bound_systems(project: Project) -> list[SystemSpec]:
+    """The lower- and upper-bound variants (ids ``<id>@lower``, ``<id>@upper``; ``@`` is
+    not allowed in ids) of systems with ``property_factors``: the friction coefficients
+    multiplied by the factor (ASCE/SEI 7-16 §17.2.8.4, from memory)."""
+    out = []
+    for system in project.systems:
+        factors = (system.model or {}).get("property_factors")
+        for name, factor in zip(BOUND_RUNS, factors or ()):
+            model = {k: v for k, v in system.model.items() if k != "property_factors"}
+            for key in ("friction", "friction_slow"):
+                if key in model:
+                    model[key] = model[key] * factor
+            out.append(dataclasses.replace(system, id=f"{system.id}@{name}", model=model))
+    return out
+
+
+def _split_bounds(responses: dict) -> dict:
+    """Move the bound runs out of ``responses``: (system id, record id) -> {run: result}."""
+    bounds: dict = {}
+    for (sid, rid) in [key for key in responses if "@" in key[0]]:
+        system_id, run = sid.split("@")
+        bounds.setdefault((system_id, rid), {})[run] = dataclasses.replace(
+            responses.pop((sid, rid)), system_id=system_id)
+    return bounds
+
+
+def _governing_checks(project: Project, checks: list[Check], responses: dict,
+                      bounds: dict, statistic: str) -> list[Check]:
+    """With bound runs: each check of such a system takes the run of the largest demand
+    ratio (an unstable run governs), naming it in ``governing_run``."""
+    if not bounds:
+        return checks
+    bounded = {sid for sid, _ in bounds}
+    per_run = {run: _checks(project, {**responses, **{k: v[run] for k, v in
+                                                      bounds.items()}}, statistic)
+               for run in BOUND_RUNS}
+    out = []
+    for i, check in enumerate(checks):
+        if check.system_id not in bounded:
+            out.append(check)
+            continue
+        options = [("nominal", check)] + [(run, per_run[run][i]) for run in BOUND_RUNS]
+        run, best = max(options, key=lambda o: (o[1].verdict == VERDICT_UNSTABLE,
+                                                 o[1].ratio))
+        out.append(dataclasses.replace(best, governing_run=run))
+    return out
+
+
+def _effective_properties(project: Project, responses: dict, bounds: dict,
+                          statistic: str) -> dict:
+    """Effective period and damping of each sliding pendulum, per run, at the suite
+    statistic of that run's peak (resultant) displacements."""
+    from sdofreport.core.isolation import pendulum_effective_properties
+
+    out = {}
+    for system in project.systems:
+        model = system.model or {}
+        if system.model_name != "sliding-pendulum" or math.isinf(model["radius_m"]):
+            continue
+        factors = dict(zip(BOUND_RUNS, model.get("property_factors") or ()))
+        runs = {}
+        for run, factor in [("nominal", 1.0), *factors.items()]:
+            peaks = [(responses[(system.id, r.id)] if run == "nominal" else
+                      bounds[(system.id, r.id)][run]).peak_displacement_m
+                     for r in project.records_for(system)]
+            demand = _statistic(peaks, statistic)
+            if demand > 0:
+                runs[run] = pendulum_effective_properties(
+                    model["weight_n"], model["radius_m"], model["friction"] * factor,
+                    demand)
+        out[system.id] = runs
+    return out
+
+
+def _biaxial_plan(project: Project, systems: list, scaled: dict, base: dict) -> list:
+    """One job per horizontal pair for the systems with ``directions = 2`` (scaled
+    records; the loader has checked that every record belongs to a pair)."""
+    models = [{**system_model(system), "system_id": system.id,
+               "stiffness_n_m": system.stiffness_n_m} for system in systems]
+    if not models:
+        return []
+    plan = []
+    for name, (h1, h2) in _pairs(project).items():
+        a1, a2 = scaled[h1].acceleration_m_s2, scaled[h2].acceleration_m_s2
+        args = (a1, a2, scaled[h1].dt_s, models, project.analysis.method)
+        key = cache_key({**base, "job": "biaxial", "sha1": _array_hash(a1),
+                         "sha2": _array_hash(a2), "dt": scaled[h1].dt_s, "models": models})
+        plan.append((f"pair {name} (two-direction responses of {len(models)} systems)",
+                     "biaxial", args, key))
+    return plan
 
 
 # ---------------------------------------------------------------------------------------
@@ -666,11 +832,12 @@ def _stripe_plan(project: Project, scaled: dict[str, Record], base: dict) -> lis
     scaled again so its measure equals the level (sdofreport.jobs.stripe_job)."""
     spec = project.fragility
     plan = []
-    records = [scaled[r.id] for r in project.records]
-    accelerations = tuple(r.acceleration_m_s2 for r in records)
-    dts = tuple(r.dt_s for r in records)
-    shas = [_array_hash(a) for a in accelerations] if spec is not None else []
     for system in _fragility_systems(project):
+        # each system's own records (vertical or horizontal), one direction at a time
+        records = [scaled[r.id] for r in project.records_for(system)]
+        accelerations = tuple(r.acceleration_m_s2 for r in records)
+        dts = tuple(r.dt_s for r in records)
+        shas = [_array_hash(a) for a in accelerations]
         model = {**system_model(system), "system_id": system.id}
         for level in spec.levels_g:
             args = (accelerations, dts, model, project.analysis.method, spec.measure,
@@ -712,9 +879,10 @@ def _fragility_results(project: Project, outputs: list) -> list[FragilityResult]
     for system in _fragility_systems(project):
         stripes = outputs[position:position + len(spec.levels_g)]
         position += len(spec.levels_g)
-        responses = [[_response_result(system, r.id, {**raw, "time_s": np.zeros(0)}
+        responses = [[_biaxial_result(system, r.id, 0, raw) if "biaxial" in raw else
+                      _response_result(system, r.id, {**raw, "time_s": np.zeros(0)}
                                        if raw["model"] == "linear" else raw)
-                      for r, raw in zip(project.records, stripe["runs"])]
+                      for r, raw in zip(project.records_for(system), stripe["runs"])]
                      for stripe in stripes]
         design = _design_level_g(project, system)
         for quantity, limit in system.limits.items():
@@ -806,11 +974,17 @@ def warm_later_kernels(project: Project) -> None:
     if project.inelastic is not None:
         steps.append(lambda: run_job("inelastic", _inelastic_args(record,
                                                                   project.inelastic)))
-    nonlinear = [model for model in map(system_model, project.systems)
-                 if model["model"] != "linear"]
-    if nonlinear:
+    one = [m for m, s in zip(map(system_model, project.systems), project.systems)
+           if m["model"] != "linear" and s.directions == 1]
+    two = [m for m, s in zip(map(system_model, project.systems), project.systems)
+           if m["model"] != "linear" and s.directions == 2]
+    if one:
         steps.append(lambda: run_job("responses", (record.acceleration_m_s2, record.dt_s,
-                                                    nonlinear, project.analysis.method)))
+                                                    one, project.analysis.method)))
+    if two:  # the two-direction kernel (sdofreport.core.biaxial)
+        steps.append(lambda: run_job("biaxial", (record.acceleration_m_s2,
+                                                  record.acceleration_m_s2, record.dt_s,
+                                                  two, project.analysis.method)))
     for step in steps:
         try:
             step()

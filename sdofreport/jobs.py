@@ -110,6 +110,10 @@ def response_job(acceleration, dt_s, model: dict, method: str) -> dict:
     """Response of one system (``model`` dict, see the engine) to one record."""
     if model["model"] == "linear":
         return _linear_response(acceleration, dt_s, model, method)
+    if "friction_slow" in model:  # velocity-dependent friction: the biaxial kernel
+        return {"model": model["model"], "one_direction": True, "biaxial":
+                _biaxial_response(acceleration, np.zeros_like(acceleration), dt_s, model,
+                                  method)}
     return _nonlinear_response(acceleration, dt_s, model)
 
 
@@ -166,6 +170,57 @@ def responses_job(acceleration, dt_s, models: list, method: str) -> list:
     return outputs
 
 
+def _biaxial_response(acc_h1, acc_h2, dt_s, model: dict, method: str):
+    """Two-direction response of one system (``directions = 2``) to a pair."""
+    from sdofreport.core import biaxial, hysteresis
+    from sdofreport.core.units import G
+
+    name = model["model"]
+    if name == "linear":
+        return biaxial.biaxial_elastic(acc_h1, acc_h2, dt_s, model["period_s"],
+                                       model["damping"],
+                                       stiffness_n_m=model.get("stiffness_n_m"),
+                                       method=method)
+    substeps = max(1, int(np.ceil(dt_s / (model["period_s"] / 100.0))))
+    if name == "sliding-pendulum":
+        w = model["weight_n"]
+        m = w / G
+        mu = model["friction"]
+        k_p = mu * w / model["slip_displacement_m"] if mu > 0 else 0.0
+        k_lin = w / model["radius_m"]
+        slow = model.get("friction_slow")
+        return biaxial.biaxial_plastic(
+            acc_h1, acc_h2, dt_s, mass_kg=m,
+            damping_coefficient=2.0 * model["damping"] * np.sqrt(m * k_lin),
+            linear_stiffness_n_m=k_lin, element_stiffness_n_m=k_p, yield_force_n=mu * w,
+            stick_damping=2.0 * hysteresis.STICK_DAMPING_RATIO * np.sqrt(m * k_p),
+            friction=None if slow is None else (mu, slow, model["friction_rate_s_m"]),
+            weight_n=w, substeps=substeps)
+    k, fy, alpha = model["stiffness_n_m"], model["yield_strength_n"], \
+        model["post_yield_ratio"]
+    m, k_geo = model["mass_kg"], model.get("gravity_stiffness_n_m", 0.0)
+    limit = model.get("instability_limit_m")
+    return biaxial.biaxial_plastic(
+        acc_h1, acc_h2, dt_s, mass_kg=m,
+        damping_coefficient=2.0 * model["damping"] * np.sqrt(m * (k - k_geo)),
+        linear_stiffness_n_m=alpha * k, element_stiffness_n_m=(1.0 - alpha) * k,
+        yield_force_n=(1.0 - alpha) * fy, gravity_stiffness_n_m=k_geo,
+        substeps=substeps, instability_limit_m=np.inf if limit is None else limit)
+
+
+def biaxial_job(acc_h1, acc_h2, dt_s, models: list, method: str) -> list:
+    """Two-direction responses of several systems to one horizontal pair."""
+    outputs = []
+    for i, model in enumerate(models):
+        try:
+            outputs.append({"model": model["model"], "biaxial": _biaxial_response(
+                acc_h1, acc_h2, dt_s, model, method)})
+        except ValueError as exc:
+            raise ValueError(f"system {model.get('system_id', i)}: {exc}") from None
+    return outputs
+
+
+
 def stripe_intensity(acceleration, dt_s, model: dict, measure: str, method: str) -> float:
     """A record's intensity measure for the fragility stripes [m/s²]: ``sa``, the
     pseudo-spectral acceleration ω²·SD at the system's period and damping, or ``pga``."""
@@ -182,6 +237,11 @@ def _peaks_only(raw: dict) -> dict:
     empty = np.zeros(0)
     if raw["model"] == "linear":
         return {**raw, "displacement_m": empty, "total_accel_m_s2": empty}
+    if "biaxial" in raw:  # velocity-dependent friction: keep the (2, 0) shapes
+        flat = np.zeros((2, 0))
+        return {**raw, "biaxial": dataclasses.replace(
+            raw["biaxial"], time_s=empty, displacement_m=flat, velocity_m_s=flat,
+            total_accel_m_s2=flat, force_n=flat)}
     r = raw["response"]
     return {**raw, "response": dataclasses.replace(
         r, time_s=empty, displacement_m=empty, force_n=empty, energy_histories_j={},
@@ -215,7 +275,7 @@ def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
 
 
 JOBS = {"record": record_job, "pair": pair_job, "responses": responses_job,
-        "inelastic": inelastic_job, "stripe": stripe_job}
+        "inelastic": inelastic_job, "stripe": stripe_job, "biaxial": biaxial_job}
 
 
 def run_job(kind: str, args: tuple) -> dict:

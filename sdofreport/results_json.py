@@ -92,7 +92,7 @@ def results_document(results: Results) -> dict:
     systems = []
     for system in project.systems:
         responses = []
-        for spec in project.records:
+        for spec in project.records_for(system):
             response = results.response(system.id, spec.id)
             entry = {
                 "record": spec.id,
@@ -119,19 +119,24 @@ def results_document(results: Results) -> dict:
                 if response.peak_damper_force_n is not None:
                     entry["peak_damper_force_n"] = finite_or_none(
                         response.peak_damper_force_n)
+            entry.update(_directions_entry(response))
+            entry.update(_bounds_entry(results.bounds.get((system.id, spec.id))))
             responses.append(entry)
         checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
                    "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute,
                    "basis": system.limits.basis_of(c.quantity),
                    "statistics": statistics_block(c),
-                   **fragility_block(results, c)}
+                   **fragility_block(results, c),
+                   **({"governing_run": c.governing_run} if c.governing_run else {})}
                   for c in results.checks if c.system_id == system.id]
         systems.append({
             "id": system.id, "name": system.name, "mass_kg": system.mass_kg,
             "stiffness_n_m": system.stiffness_n_m, "period_s": system.period_s,
             "frequency_hz": system.frequency_hz, "damping": system.damping,
             "height_m": system.height_m, "kind": system.kind, "model": system.model_name,
+            "directions": system.directions,
+            **_isolation_block(system, results),
             "derivation": "; ".join(system.derivation),
             **_mechanics_block(system),
             "responses": responses, "checks": checks,
@@ -143,6 +148,44 @@ def results_document(results: Results) -> dict:
     document.update(suite_blocks(results))
     document["inputs"] = inputs_block(results)
     return document
+
+
+def _directions_entry(response) -> dict:
+    """Two-direction runs: the peaks are of the resultant; the per-direction peaks."""
+    if response.directions == 1:
+        return {}
+    return {"directions": 2, "peak_displacement_per_direction_m": [
+        finite_or_none(v) for v in response.peak_displacement_per_direction_m]}
+
+
+def _bounds_entry(bounds: dict | None) -> dict:
+    """The lower- and upper-bound runs' peaks of one record (property_factors)."""
+    if not bounds:
+        return {}
+    return {"bounds": {run: {
+        "peak_displacement_m": finite_or_none(r.peak_displacement_m),
+        "peak_drift_ratio": None if r.peak_drift_ratio is None else
+        finite_or_none(r.peak_drift_ratio),
+        "peak_base_shear_n": None if r.peak_base_shear_n is None else
+        finite_or_none(r.peak_base_shear_n),
+        "peak_force_n": None if r.peak_force_n is None else finite_or_none(r.peak_force_n),
+        "peak_total_accel_g": finite_or_none(r.peak_total_accel_m_s2 / G),
+        "residual_displacement_m": None if r.residual_displacement_m is None else
+        finite_or_none(r.residual_displacement_m)} for run, r in sorted(bounds.items())}}
+
+
+def _isolation_block(system, results) -> dict:
+    """Property factors and effective properties of a sliding pendulum (when any)."""
+    block: dict = {}
+    model = system.model or {}
+    if model.get("property_factors"):
+        block["property_factors"] = list(model["property_factors"])
+    runs = results.effective.get(system.id)
+    if runs:
+        block["effective_properties"] = {run: {
+            "displacement_m": e.displacement_m, "stiffness_n_m": e.stiffness_n_m,
+            "period_s": e.period_s, "damping": e.damping} for run, e in runs.items()}
+    return block
 
 
 def statistics_block(check) -> dict:
@@ -290,7 +333,7 @@ PEAKS_CSV_HEADER = ["system", "record", "peak_displacement_m", "peak_drift_ratio
 def peaks_csv(results: Results) -> str:
     rows: list[list] = [PEAKS_CSV_HEADER]
     for system in results.project.systems:
-        for spec in results.project.records:
+        for spec in results.project.records_for(system):
             r = results.response(system.id, spec.id)
             rows.append([system.id, spec.id, r.peak_displacement_m,
                          "" if r.peak_drift_ratio is None else r.peak_drift_ratio,

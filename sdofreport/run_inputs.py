@@ -22,7 +22,8 @@ from sdofreport.project.schema import SECTIONS
 #: Key suffix of each dimension's SI unit (results.json naming).
 SUFFIXES = {"length": "_m", "mass": "_kg", "time": "_s", "force": "_n",
             "stiffness": "_n_m", "acceleration": "_m_s2", "pressure": "_pa",
-            "second_moment": "_m4", "inertia": "_kg_m2", "frequency": "_hz"}
+            "second_moment": "_m4", "inertia": "_kg_m2", "frequency": "_hz",
+            "slowness": "_s_m"}
 assert set(SUFFIXES) == set(DIMENSIONS)
 
 

@@ -96,6 +96,8 @@ def motions(project) -> list[tuple[str, list[str]]]:
     of their names (P1, P2, ... P10)."""
     seen, result = set(), []
     for spec in project.records:
+        if spec.component == "V":  # vertical records are no horizontal motion
+            continue
         if spec.pair:
             if spec.pair in seen:
                 continue
@@ -198,7 +200,7 @@ def compute_scaling(project, spectra: dict, pairs: dict) -> SuiteScaling:
         Pair name -> :class:`~sdofreport.core.rotd.RotDSpectrum` at that damping.
     """
     spec = project.scaling
-    ids = [r.id for r in project.records]
+    ids = [r.id for r in project.records if r.component != "V"]  # vertical: not scaled
     groups = motions(project)
     if spec.rule == "none" or project.design_spectrum is None:
         return SuiteScaling("none", {i: 1.0 for i in ids}, None, motions=groups,

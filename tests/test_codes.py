@@ -66,7 +66,7 @@ def test_registry_supplies_every_rule_of_each_edition():
     assert (en.minimum_motions, en.target_levels, en.target_damping) == (3, (), 0.05)
     for edition in (asce, en):
         assert "from memory" in edition.memory_note
-        assert edition.period_range_names == ("governing-period", "every-system")
+        assert edition.period_range_names[:2] == ("governing-period", "every-system")
         assert edition.required_ratio == 0.9  # both clauses: 90 % of the target
 
 
@@ -205,8 +205,8 @@ def test_en_national_annex_values_and_beyond_4_s_caution(project_factory):
     (EN + "soil_factor = -1\n", "design_spectrum: soil_factor must be a finite number > 0"),
     (ASCE + 'level = "mce2"\n', "design_spectrum.level: expected one of mce_r, design"),
     (ASCE + '[scaling]\nrule = "asce7-16"\nperiod_range = "widest"\n',
-     "scaling.period_range: expected one of governing-period, every-system or [low, "
-     "high] in s, found 'widest'"),
+     "scaling.period_range: expected one of governing-period, every-system, "
+     "isolated-system or [low, high] in s, found 'widest'"),
     (ASCE + '[scaling]\nrule = "asce7-16"\nperiod_range = "governing-period"\n',
      "scaling.period_range: option 'governing-period' needs [scaling] period"),
     (EN.replace('"en1998-1"', '"asce7-16"', 1).split("agr")[0] +
@@ -235,6 +235,18 @@ def test_named_period_range_options(project_factory):
                                                         "governing-period"), "g.toml"))
     assert period_range(project)[:2] == (pytest.approx((0.1, 1.0), rel=1e-12),
                                          "governing-period")
+
+
+def test_isolated_system_period_range(project_factory):
+    # From memory: ASCE/SEI 7-16 §17.3.3, isolated structures are scaled over 0.75 T_M
+    # to 1.25 T_M; EN 1998-1:2004 has no such named option here.
+    text = PROJECT_HEAD + ASCE + '[scaling]\nrule = "asce7-16"\nperiod = "2.4 s"\n' \
+        'period_range = "isolated-system"\n' + _pairs(1) + ONE_SYSTEM
+    project = load_project(project_factory(text))
+    rng, option, words = period_range(project)
+    assert option == "isolated-system" and "§17.3.3" in words
+    assert rng == pytest.approx((0.75 * 2.4, 1.25 * 2.4), rel=1e-12)
+    assert "isolated-system" not in codes.EDITIONS["en1998-1"].period_range_names
 
 
 # -------------------------------------------------------------------- the pages

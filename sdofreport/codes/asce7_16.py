@@ -25,7 +25,12 @@ from __future__ import annotations
 
 import dataclasses
 
-from sdofreport.codes._edition import Edition, ScalingInputs, period_range_options
+from sdofreport.codes._edition import (
+    Edition,
+    PeriodRangeOption,
+    ScalingInputs,
+    period_range_options,
+)
 from sdofreport.core import scaling as core_scaling
 
 #: Edition and chapter, as text.
@@ -47,6 +52,17 @@ _MINIMUM_CLAUSE = "ASCE/SEI 7-16 §16.2.2 (clause number from memory)"
 _AMPLITUDE_CLAUSE = "ASCE/SEI 7-16 §16.2.3.2 (clause number from memory)"
 _RANGE_CLAUSE = "ASCE/SEI 7-16 §16.2.3.1, from memory"
 _ACCEPTANCE_CLAUSE = "§16.4, clause number from memory"
+
+
+#: Scaling period range of seismically isolated structures (ASCE/SEI 7-16 §17.3.3, from
+#: memory): 0.75 T_M to 1.25 T_M, T_M the effective period of the isolation system at
+#: the maximum displacement, given as ``[scaling] period``. The clause takes the lower
+#: end with upper-bound and the upper end with lower-bound properties (from memory); a
+#: single T_M is used here for both ends.
+ISOLATION_RANGE = PeriodRangeOption(
+    "isolated-system", "0.75 T_M to 1.25 T_M of the isolation system's effective period "
+    "T_M = [scaling] period (ASCE/SEI 7-16 §17.3.3, from memory; the clause takes 0.75 "
+    "T_M with upper-bound and 1.25 T_M with lower-bound properties)", 0.75, 1.25, True)
 
 
 def auto_statistic(motions: int) -> tuple[str, str]:
@@ -113,7 +129,7 @@ EDITION = Edition(
     counting="a horizontal pair (H1, H2) is one motion; an unpaired record is one motion",
     factor_per="motion",
     required_ratio=REQUIRED_RATIO,
-    period_ranges=period_range_options(_RANGE_CLAUSE, "T"),
+    period_ranges=period_range_options(_RANGE_CLAUSE, "T") + (ISOLATION_RANGE,),
     auto_statistic=auto_statistic,
     scale=scale,
     rule_text=("ASCE/SEI 7-16 §16.2.3.2 (from memory): one factor per motion (pairs share "

@@ -416,7 +416,10 @@ def _read_records(items, root: Path, processing: ProcessingSettings,
         pair = _read_pair(table, spec["pair"], where, problems)
         component = _read_value(table, spec["component"], where, problems)
         amplitude_ok = bool(_read_value(table, spec["amplitude_ok"], where, problems))
-        if ("pair" in table) != ("component" in table):
+        if component == "V" and "pair" in table:
+            problems.add(f"{where}.pair", "a vertical record (component = \"V\") stands "
+                         "alone: give no pair")
+        elif ("pair" in table) != ("component" in table) and component != "V":
             problems.add(where, "a paired record needs both pair and component "
                          "(H1 or H2)")
         provenance = _read_provenance(table, where, problems)
@@ -537,7 +540,8 @@ def _limits_and_basis(table: dict, where: str, problems: _Problems) -> tuple[dic
     return values, basis
 
 
-_COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits")
+_COMMON_SYSTEM_KEYS = ("id", "name", "kind", "damping", "height", "limits", "directions",
+                       "direction")
 
 
 def _network_to_si(node, path: str, problems: _Problems):
@@ -709,7 +713,8 @@ def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damp
     if kind == "sliding-pendulum":
         return {"model": "sliding-pendulum", "weight_n": values["weight"],
                 "radius_m": values["radius"], "friction": values["friction"],
-                "slip_displacement_m": values.get("slip_displacement", 0.25e-3), **extras}
+                "slip_displacement_m": values.get("slip_displacement", 0.25e-3), **extras,
+                **_isolator_keys(values, table, where, problems)}
     k_geo = pdelta["gravity_stiffness_n_m"] if pdelta else 0.0
     extras.update({"gravity_stiffness_n_m": k_geo,
                    "instability_limit_m": pdelta["height_m"] if pdelta else None})
@@ -751,6 +756,37 @@ def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damp
             **extras}
 
 
+def _isolator_keys(values: dict, table: dict, where: str, problems: _Problems) -> dict:
+    """Velocity-dependent friction and the property factors of a sliding pendulum (only
+    the keys given, so models without them keep their cache keys)."""
+    out: dict = {}
+    if ("friction_slow" in values) != ("friction_rate" in values):
+        problems.add(where, "velocity-dependent friction needs both friction_slow and "
+                     "friction_rate")
+    elif "friction_slow" in values:
+        if values["friction_slow"] > values["friction"]:
+            problems.add(f"{where}.friction_slow", f"expected at most friction (μ_fast = "
+                         f"{values['friction']:g}), found {values['friction_slow']:g}")
+        if "damper" in table:
+            problems.add(f"{where}.friction_slow", "velocity-dependent friction and a "
+                         "damper together are not supported; give one of them")
+        out.update(friction_slow=values["friction_slow"],
+                   friction_rate_s_m=values["friction_rate"])
+    if "property_factors" in table:
+        raw = table["property_factors"]
+        if not (isinstance(raw, list) and len(raw) == 2 and all(
+                isinstance(v, (int, float)) and not isinstance(v, bool) and
+                math.isfinite(v) for v in raw) and 0 < raw[0] <= 1 <= raw[1]):
+            problems.add(f"{where}.property_factors", f"expected [lower, upper] with "
+                         f"0 < lower <= 1 <= upper, found {raw!r}")
+        elif max(raw[1] * values["friction"], 0.0) >= 1.0:
+            problems.add(f"{where}.property_factors", f"the upper-bound friction "
+                         f"{raw[1]:g} × {values['friction']:g} is not below 1")
+        else:
+            out["property_factors"] = [float(raw[0]), float(raw[1])]
+    return out
+
+
 def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
     spec = SECTIONS["systems[]"]
     _check_unknown(table, "systems[]", where, problems)
@@ -777,8 +813,8 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
                 continue
             values[key] = _network_to_si(table[key], f"{where}.network", problems)
             continue
-        if key == "damper":
-            continue  # read by _damper below
+        if key in ("damper", "property_factors"):
+            continue  # read by _damper and _isolator_keys
         if key in HYSTERESIS_PARAMETER_KEYS:
             value = _read_value(table, spec[key], where, problems)
             if value is not None:
@@ -835,8 +871,56 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
         gamma = values["mass"] * values["pivot_to_centre"] ** 2 / values["pivot_inertia"]
         model = {"model": "linear", "participation": gamma}
     inputs = {k: v for k, v in values.items() if not k.startswith("_")}
+    directions = _read_directions(table, kind, model, where, problems)
+    direction = _read_value(table, spec["direction"], where, problems) or "horizontal"
+    if direction == "vertical" and directions == 2:
+        problems.add(f"{where}.directions", "directions = 2 applies to horizontal "
+                     "systems; this system has direction = \"vertical\"")
     return SystemSpec(system_id, name, damping, derived.period_s, mass, stiffness, height,
-                      limits, tuple(derived.derivation), kind, model, inputs, pdelta)
+                      limits, tuple(derived.derivation), kind, model, inputs, pdelta,
+                      directions, direction)
+
+
+def _read_directions(table: dict, kind: str, model, where: str, problems: _Problems) -> int:
+    """``directions`` (1 or 2) and what two-direction runs support (sdofreport.core.biaxial):
+    elastic systems, bilinear yielding systems and the sliding pendulum, without a
+    damper; a hanging item swings as a compound pendulum in its own plane only."""
+    value = _read_value(table, SECTIONS["systems[]"]["directions"], where, problems)
+    if value is None or value == 1:
+        return 1
+    if value != 2:
+        problems.add(f"{where}.directions", f"expected 1 or 2, found {table['directions']!r}")
+        return 1
+    name = (model or {}).get("model", "linear")
+    if kind == "hanging" or name not in ("linear", "bilinear", "sliding-pendulum") or \
+            (model or {}).get("damper") is not None:
+        what = "kind 'hanging'" if kind == "hanging" else (
+            "a damper" if (model or {}).get("damper") is not None else f"model {name!r}")
+        problems.add(f"{where}.directions", "directions = 2 supports elastic systems, "
+                     f"bilinear yielding systems and the sliding pendulum without a "
+                     f"damper; this system has {what}")
+    return 2
+
+
+def _check_directions_have_records(records: list, systems: list,
+                                   problems: _Problems) -> None:
+    """Every system has records of its direction (vertical: component V)."""
+    for system in systems:
+        vertical = system.direction == "vertical"
+        wanted = 'vertical (component = "V")' if vertical else "horizontal"
+        if records and not any((r.component == "V") == vertical for r in records):
+            problems.add(f"systems {system.id}", f"direction = {system.direction!r} needs "
+                         f"{wanted} records; the suite has none")
+
+
+def _check_two_directions(records: list, systems: list, problems: _Problems) -> None:
+    """A system with ``directions = 2`` needs every record in a horizontal pair."""
+    two = [s.id for s in systems if s.directions == 2]
+    lone = [r.id for r in records if not r.pair and r.component != "V"]
+    if two and (lone or not records):
+        problems.add(f"systems {', '.join(two)}", "directions = 2 needs every record in "
+                     "a horizontal pair (pair and component H1/H2); unpaired: "
+                     f"{', '.join(lone) or 'no [[records]] given'}")
 
 
 def _read_systems(items, problems: _Problems) -> list[SystemSpec]:
@@ -1276,6 +1360,8 @@ def load_project(path) -> Project:
                               f"synthetic (seed {synthetic.seed + i})", "synthetic", "g",
                               synthetic.dt_s, 1.0, processing)
                    for i in range(synthetic.count)]
+    _check_two_directions(records, systems, problems)
+    _check_directions_have_records(records, systems, problems)
     save_memo()  # unit strings pint converted, so the next read need not import it
     for where, message in id_case_problems(document):
         problems.add(where, message)

@@ -204,6 +204,11 @@ class SystemSpec:
     #: P-Δ when on: gravity_load_n, height_m, gravity_stiffness_n_m, stability_coefficient
     #: θ = W/(k h), period_s (elastic, with P-Δ: T/√(1−θ)), weight_given
     p_delta: dict | None = None
+    #: 1: each record drives its own one-direction oscillator; 2: each horizontal pair
+    #: drives one oscillator in both directions (sdofreport.core.biaxial)
+    directions: int = 1
+    #: "horizontal" (driven by the horizontal records) or "vertical" (by component V)
+    direction: str = "horizontal"
 
     @property
     def frequency_hz(self) -> float:
@@ -235,11 +240,19 @@ class Project:
     def root(self) -> Path:
         return self.path.parent
 
+    def records_for(self, system) -> tuple:
+        """The records that drive ``system``: component V for a vertical system, the
+        others for a horizontal one."""
+        vertical = system.direction == "vertical"
+        return tuple(r for r in self.records if (r.component == "V") == vertical)
+
     @property
     def motions_counted(self) -> int:
-        """Ground motions as the standards count them: a horizontal pair is one."""
+        """Ground motions as the standards count them: a horizontal pair is one
+        (vertical records are not counted)."""
         pairs = {r.pair for r in self.records if r.pair}
-        return len(pairs) + sum(1 for r in self.records if not r.pair)
+        return len(pairs) + sum(1 for r in self.records if not r.pair and
+                                r.component != "V")
 
     @property
     def statistic_used(self) -> str:

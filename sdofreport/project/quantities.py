@@ -40,6 +40,7 @@ DIMENSIONS: dict[str, tuple[str, str]] = {
     "second_moment": ("[length] ** 4", "m⁴"),
     "inertia": ("[mass] * [length] ** 2", "kg·m²"),
     "frequency": ("1 / [time]", "Hz"),
+    "slowness": ("[time] / [length]", "s/m"),
 }
 
 _BARE_G = re.compile(r"(?<![A-Za-z_0-9])g(?![A-Za-z_0-9])")

@@ -51,7 +51,7 @@ PROVENANCE_RANGES = {"magnitude": (0.0, 10.0, True), "distance_km": (0.0, 20000.
 FRAGILITY_MEASURES = ("sa", "pga")
 
 #: Components of a horizontal pair.
-COMPONENTS = ("H1", "H2")
+COMPONENTS = ("H1", "H2", "V")
 
 #: Design-spectrum keys of the project file per kind: TOML key -> core parameter name.
 DESIGN_SPECTRUM_KEYS: dict[str, dict[str, str]] = {
@@ -105,7 +105,9 @@ SYSTEM_KIND_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "springs": (("network", "mass"), _HYSTERETIC_KEYS),
     "static-deflection": (("weight", "deflection"), ()),
     "sliding-pendulum": (("weight", "radius", "friction"), ("slip_displacement",
-                                                            "damper")),
+                                                            "damper", "friction_slow",
+                                                            "friction_rate",
+                                                            "property_factors")),
     "hanging": (("mass", "pivot_inertia", "pivot_to_centre"), ()),
 }
 
@@ -290,8 +292,10 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("period_range", "list", "Period range of the scaling: a named option, "
                 "\"governing-period\" (0.2 T to 2 T of period) or \"every-system\" "
                 "(0.2 × the shortest to 2 × the longest system period), or explicit "
-                "[low, high] in s. Default: governing-period when period is given, "
-                "otherwise every-system.", example='"every-system"'),
+                "[low, high] in s; with rule asce7-16 also \"isolated-system\" (0.75 T_M "
+                "to 1.25 T_M, T_M = period, ASCE/SEI 7-16 §17.3.3, from memory). Default: "
+                "governing-period when period is given, otherwise every-system.",
+                example='"every-system"'),
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
         KeySpec("beyond_usable", "choice", "Spectral ordinates beyond a record's usable "
@@ -370,7 +374,10 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("pair", "text", "Name of the horizontal pair this record belongs to "
                 "(two records share it, one H1 and one H2); it names a figure file, so "
                 "the same characters as an id.", example='"p1"'),
-        KeySpec("component", "choice", "Component of the pair.", choices=COMPONENTS,
+        KeySpec("component", "choice", "Component: H1 or H2 of a horizontal pair (with "
+                "pair), or V for a vertical record (without pair; not scaled by the "
+                "suite rule, drives only systems with direction = \"vertical\").",
+                choices=COMPONENTS,
                 example='"H1"'),
         KeySpec("amplitude_ok", "boolean", "Acknowledges an amplitude the build would "
                 "otherwise stop at: a PGA after scaling above 4 g or below 0.001 g, or a "
@@ -442,6 +449,18 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "before sliding, which regularises friction (default 0.25 mm: common "
                 "practice, no source).", dimension="length", default=0.25e-3,
                 example='"0.25 mm"'),
+        KeySpec("friction_slow", "ratio", "sliding-pendulum: friction coefficient at "
+                "very low sliding speed μ_slow; with it friction depends on the speed, "
+                "μ = μ_fast − (μ_fast − μ_slow)·exp(−a|v|) with μ_fast = friction "
+                "(Constantinou, Mokha & Reinhorn 1990). Needs friction_rate.",
+                example="0.03"),
+        KeySpec("friction_rate", "quantity", "sliding-pendulum: rate parameter a of the "
+                "velocity-dependent friction (for example \"20 s/m\").",
+                dimension="slowness", example='"20 s/m"'),
+        KeySpec("property_factors", "list", "sliding-pendulum: [lower, upper] factors on "
+                "the friction coefficients for the lower- and upper-bound analyses beside "
+                "the nominal one; each check takes the governing run (ASCE/SEI 7-16 "
+                "§17.2.8.4, from memory).", example="[0.8, 1.3]"),
         KeySpec("pivot_inertia", "quantity", "hanging: moment of inertia about the pivot.",
                 dimension="inertia", example='"2400 kg*m**2"'),
         KeySpec("pivot_to_centre", "quantity", "hanging: distance from the pivot to the "
@@ -485,6 +504,16 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
                 "in N·(s/m)^α only with plain_numbers = \"SI\"), and exponent α "
                 "(0 < α <= 2; 1 is linear).",
                 example='{ coefficient = "40 kN*(s/m)**0.5", exponent = 0.5 }'),
+        KeySpec("direction", "choice", "horizontal (driven by the horizontal records) "
+                "or vertical (for example equipment on springs or a hanging item moving "
+                "up and down: driven by the component = \"V\" records only).",
+                default="horizontal", choices=("horizontal", "vertical"),
+                example='"vertical"'),
+        KeySpec("directions", "integer", "1: each record drives its own one-direction "
+                "oscillator; 2: each horizontal pair drives one isotropic oscillator in "
+                "both directions and the peaks are of the resultant (needs every record "
+                "in a pair; elastic, bilinear and sliding-pendulum systems).", default=1,
+                example="2"),
         KeySpec("limits", "table", "Limits checked against the demands.",
                 example="{ displacement = \"40 mm\" }"),
     ),

@@ -203,7 +203,8 @@ class SiteContext:
                 "system_file": page_name(c.system_id),
                 "label": CHECK_LABELS[c.quantity] + (
                     f" ({STATISTIC_TEXT[c.statistic]} of |{CHECK_LABELS[c.quantity].lower()}"
-                    f"| over the records)" if c.absolute else ""),
+                    f"| over the records)" if c.absolute else "") + (
+                    f" (governing: {c.governing_run} run)" if c.governing_run else ""),
                 "demand": self.display.check_value(c.quantity, c.demand),
                 "limit": self.display.check_value(c.quantity, c.limit),
                 "basis": system.limits.basis_of(c.quantity) or "not stated",
@@ -306,7 +307,7 @@ class SiteContext:
         systems = []
         for s in self.project.systems:
             peaks = [results.response(s.id, r.id).peak_displacement_m
-                     for r in self.project.records]
+                     for r in self.project.records_for(s)]
             demand = float(np.mean(peaks)) if results.statistic == "mean" else max(peaks)
             systems.append({"id": s.id, "name": s.name, "file": page_name(s.id),
                             "period": f"{number(s.period_s)} s",
@@ -653,7 +654,8 @@ class SiteContext:
             rows.append({"name": "Participation Γ", "value": number(model["participation"]),
                          "basis": "Γ = m d²/I: the centre of mass obeys ü + 2ζωu̇ + ω²u "
                                   "= −Γ üg (linearised compound pendulum)"})
-        rows += _p_delta_rows(system, d) + _damper_rows(model)
+        rows += _p_delta_rows(system, d) + _damper_rows(model) + _directions_rows(system)
+        rows += _isolation_rows(system, self.results, d)
         return rows
 
     def system_page(self, system) -> Page:
@@ -661,7 +663,8 @@ class SiteContext:
         nonlinear = system.model_name != "linear"
         checks = [c for c in results.checks if c.system_id == system.id]
         peaks, histories, energies = [], [], []
-        responses = [results.response(system.id, r.id) for r in self.project.records]
+        responses = [results.response(system.id, r.id)
+                     for r in self.project.records_for(system)]
         for response in responses:
             rid = response.record_id
             row = {"record": rid, "file_html": page_name(rid), "summary": False,
@@ -669,6 +672,10 @@ class SiteContext:
                    "drift": number(response.peak_drift_ratio),
                    "shear": d.show(response.peak_base_shear_n, "force"),
                    "accel": d.show(response.peak_total_accel_m_s2, "acceleration")}
+            if response.directions == 2:
+                h1, h2 = response.peak_displacement_per_direction_m
+                row["displacement"] += (f" (resultant; H1 {d.show(h1, 'length')}, "
+                                        f"H2 {d.show(h2, 'length')})")
             if nonlinear:
                 residual = response.residual_displacement_m
                 row.update({"ductility": number(response.ductility),
@@ -814,12 +821,15 @@ _INPUT_LABELS = {
     "weight": "Weight W", "deflection": "Static deflection δ", "radius": "Radius R",
     "friction": "Friction coefficient μ", "pivot_inertia": "Inertia about the pivot I",
     "pivot_to_centre": "Pivot to centre of mass d",
+    "friction_slow": "Friction at low speed μ_slow",
+    "friction_rate": "Friction rate parameter a [s/m]",
 }
 
 _INPUT_DIMENSIONS = {
     "count": None, "elastic_modulus": "pressure", "second_moment": "second_moment",
     "weight": "force", "deflection": "length", "radius": "length", "friction": None,
-    "pivot_inertia": "inertia", "pivot_to_centre": "length",
+    "pivot_inertia": "inertia", "pivot_to_centre": "length", "friction_slow": None,
+    "friction_rate": None,
 }
 
 _SI_LABELS = {"pressure": "Pa", "second_moment": "m⁴", "inertia": "kg·m²"}
@@ -1021,3 +1031,51 @@ def _processing_text(settings) -> str:
     if settings.taper_s:
         parts.append(f"taper {settings.taper_s:g} s")
     return ", ".join(parts) if parts else "none"
+
+
+def _directions_rows(system) -> list[dict]:
+    """The two-direction row of a system's properties (none for one direction)."""
+    if system.directions == 1:
+        return []
+    return [{"name": "Directions", "value": "2 (both horizontal directions at once)",
+             "basis": "each horizontal pair drives one isotropic oscillator along H1 and "
+                      "H2 at once; peaks are of the resultant (elastic: the pair's RotD100 "
+                      "at T, Boore 2010); friction along the sliding velocity (Mokha, "
+                      "Constantinou & Reinhorn 1993); yielding: a circular yield surface; "
+                      "histories are shown along each record's own direction"}]
+
+
+def _isolation_rows(system, results, d) -> list[dict]:
+    """Velocity-dependent friction, bound runs and effective properties of a sliding
+    pendulum, each with its formula and source."""
+    model = system.model or {}
+    rows = []
+    if "friction_slow" in model:
+        rows.append({"name": "Velocity-dependent friction", "value": "μ(v)",
+                     "basis": "μ = μ_fast − (μ_fast − μ_slow)·exp(−a|v|), μ_fast = μ "
+                              "(Constantinou, Mokha & Reinhorn 1990); |v| at the start of "
+                              "each integration sub-step"})
+    factors = model.get("property_factors")
+    if factors:
+        peaks = {}
+        for run in ("lower", "upper"):
+            values = [results.bounds[(system.id, r.id)][run].peak_displacement_m
+                      for r in results.project.records_for(system)]
+            reduce = np.mean if results.statistic == "mean" else np.max
+            peaks[run] = d.show(float(reduce(values)), "length")
+        rows.append({"name": "Property factors (lower, upper)",
+                     "value": f"{number(factors[0])}, {number(factors[1])}",
+                     "basis": "friction × factor for two more runs per record beside the "
+                              "nominal one; each check takes the governing run (ASCE/SEI "
+                              f"7-16 §17.2.8.4, from memory); {STATISTIC_TEXT[results.statistic]}"
+                              " peak displacement: lower "
+                              f"{peaks['lower']}, upper {peaks['upper']}"})
+    for run, e in results.effective.get(system.id, {}).items():
+        rows.append({"name": f"Effective period T_eff, damping β_eff ({run})",
+                     "value": f"{number(e.period_s)} s, {100 * e.damping:.3g} %",
+                     "basis": f"at D = {d.show(e.displacement_m, 'length')} "
+                              f"({STATISTIC_TEXT[results.statistic]} peak): k_eff = W/R + "
+                              "μW/D, T_eff = 2π√(W/(g k_eff)), β_eff = (2/π)·μ/(μ + D/R) "
+                              "(Zayas, Low & Mahin 1990; definitions of ASCE/SEI 7-16 "
+                              "§17.8.5, from memory)"})
+    return rows
