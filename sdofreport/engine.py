@@ -960,32 +960,69 @@ def warm_kernels(project: Project) -> None:
         log.debug("warm-up stopped: %s", exc)
 
 
-def warm_later_kernels(project: Project) -> None:
+#: Rough CPU seconds numba takes to compile each warm-up step on a fresh machine
+#: (measured on the 2-core development machine, 2026-12, for the bundled example): used
+#: only to share the later kernels between the build process and the reader process.
+_COMPILE_COST_S = {"linear": 3.6, "inelastic": 2.7, "responses": 4.3, "biaxial": 4.0}
+
+
+def _later_steps(project: Project) -> list[tuple[str, object]]:
+    """(name, call) of each nonlinear warm-up step ``project`` needs, in order."""
+    record = _made_up_record()
+    steps: list[tuple[str, object]] = []
+    if project.inelastic is not None:
+        steps.append(("inelastic", lambda: run_job("inelastic", _inelastic_args(
+            record, project.inelastic))))
+    one = [m for m, s in zip(map(system_model, project.systems), project.systems)
+           if m["model"] != "linear" and s.directions == 1]
+    two = [m for m, s in zip(map(system_model, project.systems), project.systems)
+           if m["model"] != "linear" and s.directions == 2]
+    if one:
+        steps.append(("responses", lambda: run_job("responses", (
+            record.acceleration_m_s2, record.dt_s, one, project.analysis.method))))
+    if two:  # the two-direction kernel (sdofreport.core.biaxial)
+        steps.append(("biaxial", lambda: run_job("biaxial", (
+            record.acceleration_m_s2, record.acceleration_m_s2, record.dt_s, two,
+            project.analysis.method))))
+    return steps
+
+
+def later_shares(names: list[str]) -> tuple[list[str], list[str]]:
+    """
+    Split the later warm-up steps ``names`` between the reader process (first) and the
+    build process (second), which compiles the linear kernels before its share: trailing
+    steps move to the build process while that shortens the longer of the two.
+    """
+    reader, builder = list(names), []
+    while len(reader) > 1:
+        step = reader[-1]
+        cost = _COMPILE_COST_S.get(step, 1.0)
+        reader_total = sum(_COMPILE_COST_S.get(n, 1.0) for n in reader)
+        builder_total = _COMPILE_COST_S["linear"] + sum(
+            _COMPILE_COST_S.get(n, 1.0) for n in builder)
+        if max(reader_total - cost, builder_total + cost) >= max(reader_total,
+                                                                  builder_total):
+            break
+        builder.insert(0, reader.pop())
+    return reader, builder
+
+
+def warm_later_kernels(project: Project, part: str = "all") -> None:
     """
     Compile, or load, the nonlinear kernels ``project`` needs: the inelastic-spectrum
     kernels (an ``[inelastic_spectra]`` table; first, the costliest to compile) and the
     hysteresis kernels (nonlinear systems), by running those jobs on a made-up record
     while :func:`warm_kernels` compiles the linear path in another process; only what
     the project uses. Compiled kernels go to numba's cache on disk, where the build
-    process and its workers load them in milliseconds.
+    process and its workers load them in milliseconds. ``part`` is ``"all"``, or the
+    ``"reader"`` or ``"builder"`` share of :func:`later_shares`.
     """
-    record = _made_up_record()
-    steps = []
-    if project.inelastic is not None:
-        steps.append(lambda: run_job("inelastic", _inelastic_args(record,
-                                                                  project.inelastic)))
-    one = [m for m, s in zip(map(system_model, project.systems), project.systems)
-           if m["model"] != "linear" and s.directions == 1]
-    two = [m for m, s in zip(map(system_model, project.systems), project.systems)
-           if m["model"] != "linear" and s.directions == 2]
-    if one:
-        steps.append(lambda: run_job("responses", (record.acceleration_m_s2, record.dt_s,
-                                                    one, project.analysis.method)))
-    if two:  # the two-direction kernel (sdofreport.core.biaxial)
-        steps.append(lambda: run_job("biaxial", (record.acceleration_m_s2,
-                                                  record.acceleration_m_s2, record.dt_s,
-                                                  two, project.analysis.method)))
-    for step in steps:
+    steps = _later_steps(project)
+    if part != "all":
+        reader, builder = later_shares([name for name, _ in steps])
+        wanted = set(reader if part == "reader" else builder)
+        steps = [(name, call) for name, call in steps if name in wanted]
+    for _, step in steps:
         try:
             step()
         except Exception as exc:  # only a warm-up: the real jobs report any problem
@@ -1017,7 +1054,7 @@ def _read_inherited() -> list[Record]:
 
 
 def _warm_inherited() -> None:
-    warm_later_kernels(_TO_READ[0])
+    warm_later_kernels(_TO_READ[0], "reader")
 
 
 def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]:
@@ -1025,9 +1062,10 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
     :func:`load_records` in a forked process while this one runs :func:`warm_kernels`:
     the two one-off costs of a build that computes overlap. The records (and any error
     about them) are the same as read here; if the reader dies, they are read here. The
-    forked process then runs :func:`warm_later_kernels`, and this one waits for it, so
-    on a fresh machine the nonlinear kernels are compiled beside the linear ones rather
-    than after them.
+    forked process then runs its share of :func:`warm_later_kernels`, this one its own
+    share after the linear kernels (:func:`later_shares`), and this one waits for the
+    reader, so on a fresh machine the nonlinear kernels are compiled beside the linear
+    ones rather than after them.
     """
     from concurrent.futures.process import BrokenProcessPool
 
@@ -1038,6 +1076,7 @@ def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]
             future = pool.submit(_read_inherited)
             later = pool.submit(_warm_inherited)  # after the reading, in that process
             warm_kernels(project)
+            warm_later_kernels(project, "builder")  # this process's share, if any
             try:
                 records = future.result()
             except (BrokenProcessPool, OSError) as exc:

@@ -141,3 +141,24 @@ def test_the_two_warm_ups_load_every_kernel_the_build_uses_and_split_the_work():
     # ... and it loads the nonlinear kernels the example uses.
     for kernel in ("hysteresis.integrate_model", "inelastic_spectra._ductility_period"):
         assert seen["later"][f"sdofreport.core.{kernel}"], kernel
+
+
+def test_later_warm_up_shares_cover_every_step_once_and_shorten_the_longer():
+    """later_shares: every step in exactly one share, in order, and the longer of the
+    two compile times is never longer than with every step in the reader (our own
+    scheduling rule; the costs are the measured constants in sdofreport.engine)."""
+    from itertools import combinations
+
+    from sdofreport.engine import _COMPILE_COST_S, later_shares
+
+    names = ["inelastic", "responses", "biaxial"]
+    for size in range(len(names) + 1):
+        for chosen in combinations(names, size):
+            reader, builder = later_shares(list(chosen))
+            assert reader + builder == list(chosen)
+            alone = sum(_COMPILE_COST_S[n] for n in chosen)
+            shared = max(sum(_COMPILE_COST_S[n] for n in reader),
+                         _COMPILE_COST_S["linear"] + sum(_COMPILE_COST_S[n] for n in builder))
+            assert shared <= max(alone, _COMPILE_COST_S["linear"])
+    # The bundled example's three steps: the two-direction kernel moves to the builder.
+    assert later_shares(names) == (["inelastic", "responses"], ["biaxial"])
