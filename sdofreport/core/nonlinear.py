@@ -29,7 +29,8 @@ increment as in the algorithm of [2]_ §5.7 (Table 5.7.1). The residual
 does not converge within ``max_iterations``, the whole record step is redone with 2, 4,
 ... equal sub-steps (up to ``max_halvings`` halvings) under linearly interpolated ground
 acceleration; if even the finest split fails, the last iterate is accepted and
-``converged`` is False.
+``converged`` is False. The compiled loop is
+:func:`sdofreport.core.hysteresis.integrate_model`, shared by every hysteresis model.
 
 Energy (relative formulation, Uang and Bertero [4]_): input ``−∫ m üg du``, damping
 ``∫ c u̇ du``, restoring work ``∫ F du``, all by the trapezoidal rule over each step, and
@@ -59,7 +60,6 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from sdofreport.core._jit import JIT_OPTIONS, njit
 from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
 from sdofreport.core.units import G
 
@@ -73,7 +73,6 @@ __all__ = [
     "SlidingPendulum",
     "bilinear",
     "nonlinear_response",
-    "peak_ductilities",
     "sliding_pendulum_model",
 ]
 
@@ -221,187 +220,6 @@ def sliding_pendulum_model(weight_n, radius_m, friction,
         raise ValueError(f"friction must be in [0, 1) [-]; got {friction!r}")
     uy = _positive(yield_displacement_m, "yield_displacement_m", "m")
     return SlidingPendulum(weight_n=w, radius_m=r, friction=mu, yield_displacement_m=uy)
-
-
-# ------------------------------------------------------------------------ kernels
-@njit(**JIT_OPTIONS)
-def _state(u, up_c, k_lin, k_p, f_p):
-    """Force, plastic displacement and tangent at u from committed ``up_c``."""
-    fe = k_p * (u - up_c)
-    if fe > f_p:
-        return k_lin * u + f_p, u - f_p / k_p, k_lin
-    if fe < -f_p:
-        return k_lin * u - f_p, u + f_p / k_p, k_lin
-    return k_lin * u + fe, up_c, k_lin + k_p
-
-
-@njit(**JIT_OPTIONS)
-def _integrate(ag, dt, n_sub, m, c, k_lin, k_p, f_p, u_init, v_init, tol_force,
-               max_iter, max_halvings, u_stop, store, hist, stats):
-    """
-    Newmark average acceleration + Newton–Raphson through one record.
-
-    ``hist`` (8, npts) receives u, v, total acceleration, F, E_input, E_damping, E_F
-    (cumulative) and the plastic displacement at the record's samples when ``store``.
-    ``stats`` (12,) receives: peak|u|, final u, final v, final F, peak|F|, max iterations,
-    subdivided record steps, all converged (1/0), E_input, E_damping, E_F, final u_p.
-    The run stops early (after the step in which it happens) once |u| >= ``u_stop``.
-    """
-    npts = ag.size
-    u = u_init
-    v = v_init
-    up = 0.0
-    f = _state(u, up, k_lin, k_p, f_p)[0]
-    a = (-m * ag[0] - c * v - f) / m
-    e_in = 0.0
-    e_d = 0.0
-    e_f = 0.0
-    peak_u = abs(u)
-    peak_f = abs(f)
-    iters_max = 0
-    n_split = 0
-    all_ok = 1
-    if store:
-        hist[0, 0] = u
-        hist[1, 0] = v
-        hist[2, 0] = a + ag[0]
-        hist[3, 0] = f
-        hist[4, 0] = 0.0
-        hist[5, 0] = 0.0
-        hist[6, 0] = 0.0
-        hist[7, 0] = up
-    for i in range(npts - 1):
-        g_lo = ag[i]
-        g_hi = ag[i + 1]
-        n_try = n_sub
-        for attempt in range(max_halvings + 1):
-            last = attempt == max_halvings
-            tu = u
-            tv = v
-            ta = a
-            tf = f
-            tup = up
-            t_in = e_in
-            t_d = e_d
-            t_f = e_f
-            t_pu = peak_u
-            t_pf = peak_f
-            t_it = iters_max
-            ok = True
-            h = dt / n_try
-            kdyn = 4.0 * m / (h * h) + 2.0 * c / h
-            for s in range(n_try):
-                g0 = g_lo + (g_hi - g_lo) * s / n_try
-                g1 = g_lo + (g_hi - g_lo) * (s + 1) / n_try
-                p1 = -m * g1
-                # Newton–Raphson on r(u1) = p1 − m ü1 − c u̇1 − F(u1) with Newmark γ=½,
-                # β=¼: ü1 = 4(u1−u0)/h² − 4u̇0/h − ü0, u̇1 = 2(u1−u0)/h − u̇0, so
-                # −dr/du1 = 4m/h² + 2c/h + k_t ([2] Table 5.7.1).
-                # The unknown is the increment du (incremental form, as in [2]): ü1 and
-                # u̇1 then carry no cancellation error from a large total displacement.
-                du = 0.0
-                it = 0
-                conv = False
-                while True:
-                    u1 = tu + du
-                    a1 = 4.0 * du / (h * h) - 4.0 * tv / h - ta
-                    v1 = 2.0 * du / h - tv
-                    f1, up1, kt1 = _state(u1, tup, k_lin, k_p, f_p)
-                    r = p1 - m * a1 - c * v1 - f1
-                    if abs(r) <= tol_force:
-                        conv = True
-                        break
-                    if it == max_iter:
-                        break
-                    du = du + r / (kdyn + kt1)
-                    it += 1
-                if it > t_it:
-                    t_it = it
-                if not conv:
-                    ok = False
-                    if not last:
-                        break
-                t_in += -m * 0.5 * (g0 + g1) * du
-                t_d += c * 0.5 * (tv + v1) * du
-                t_f += 0.5 * (tf + f1) * du
-                tu = u1
-                tv = v1
-                ta = a1
-                tf = f1
-                tup = up1
-                if abs(u1) > t_pu:
-                    t_pu = abs(u1)
-                if abs(f1) > t_pf:
-                    t_pf = abs(f1)
-            if ok or last:
-                if attempt > 0:
-                    n_split += 1
-                if not ok:
-                    all_ok = 0
-                u = tu
-                v = tv
-                a = ta
-                f = tf
-                up = tup
-                e_in = t_in
-                e_d = t_d
-                e_f = t_f
-                peak_u = t_pu
-                peak_f = t_pf
-                iters_max = t_it
-                break
-            n_try *= 2
-        if store:
-            hist[0, i + 1] = u
-            hist[1, i + 1] = v
-            hist[2, i + 1] = a + g_hi
-            hist[3, i + 1] = f
-            hist[4, i + 1] = e_in
-            hist[5, i + 1] = e_d
-            hist[6, i + 1] = e_f
-            hist[7, i + 1] = up
-        if peak_u >= u_stop:
-            break
-    stats[0] = peak_u
-    stats[1] = u
-    stats[2] = v
-    stats[3] = f
-    stats[4] = peak_f
-    stats[5] = iters_max
-    stats[6] = n_split
-    stats[7] = all_ok
-    stats[8] = e_in
-    stats[9] = e_d
-    stats[10] = e_f
-    stats[11] = up
-
-
-@njit(**JIT_OPTIONS)
-def _peak_displacement(ag, dt, n_sub, c, k, fy, alpha, u_stop, tol_rel, max_iter,
-                       max_halvings):
-    """Peak |u| of a unit-mass bilinear system at rest; stops once |u| >= u_stop."""
-    stats = np.empty(12)
-    hist = np.empty((8, 1))
-    pga = 0.0
-    for x in ag:
-        if abs(x) > pga:
-            pga = abs(x)
-    f_p = (1.0 - alpha) * fy
-    scale = pga if pga > 0.0 else 1.0
-    _integrate(ag, dt, n_sub, 1.0, c, alpha * k, (1.0 - alpha) * k, f_p, 0.0, 0.0,
-               tol_rel * scale, max_iter, max_halvings, u_stop, False, hist, stats)
-    return stats[0], stats[7]
-
-
-@njit(**JIT_OPTIONS)
-def _peak_grid(ag, dt, n_sub, c, k, fy, alpha, tol_rel, max_iter, max_halvings, out,
-               ok):
-    """Peak |u| for each (period j, strength i) pair: ``fy[j, i]``; fills ``out``, ``ok``."""
-    for j in range(fy.shape[0]):
-        for i in range(fy.shape[1]):
-            out[j, i], ok[j, i] = _peak_displacement(
-                ag, dt, n_sub[j], c[j], k[j], fy[j, i], alpha, np.inf, tol_rel,
-                max_iter, max_halvings)
 
 
 # ------------------------------------------------------------------------ results
@@ -735,81 +553,3 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
         unstable=unstable,
         instability_limit_m=float(bound),
     )
-
-
-def peak_ductilities(ground_acceleration, time_step, periods_s, damping_ratio,
-                     yield_strengths_m_s2, hardening_ratio=0.0, *, substeps=None,
-                     tolerance=DEFAULT_TOLERANCE, max_iterations=DEFAULT_MAX_ITERATIONS,
-                     max_halvings=DEFAULT_MAX_HALVINGS, workers=1):
-    """
-    Peak displacements of many unit-mass bilinear systems in one compiled call.
-
-    Parameters
-    ----------
-    ground_acceleration : array-like
-        Equally spaced base acceleration, linear between samples. [m/s²]
-    time_step : float
-        Sampling interval, > 0. [s]
-    periods_s : array-like
-        Initial (elastic) periods, shape (nT,), each > 0. [s]
-    damping_ratio : float
-        Viscous damping ratio in [0, 1), on the initial stiffness. [-]
-    yield_strengths_m_s2 : array-like
-        Yield strength per unit mass Fy/m, shape (nT, nS), each > 0 (inf: linear). [m/s²]
-    hardening_ratio : float, optional
-        Post-yield stiffness ratio α in [0, 1). [-]
-    substeps : array-like of int or None, optional
-        Integration steps per record step for each period (None: 1). [-]
-    tolerance, max_iterations, max_halvings : optional
-        Newton–Raphson settings as in :func:`nonlinear_response`. [-]
-    workers : int or None, optional
-        Threads running periods side by side (None: every available core). [-]
-
-    Returns
-    -------
-    tuple of numpy.ndarray
-        Peak |u| [m] and ductility max|u|/u_y [-], each (nT, nS); and a boolean array
-        (nT, nS), True where every step converged.
-    """
-    ag = _check_ground_acceleration(ground_acceleration)
-    dt = _check_time_step(time_step)
-    zeta = _check_damping(damping_ratio)
-    periods = np.atleast_1d(np.asarray(periods_s, dtype=np.float64))
-    if (periods.ndim != 1 or periods.size == 0 or not np.all(np.isfinite(periods))
-            or np.any(periods <= 0.0)):
-        raise ValueError(
-            f"periods_s must be a 1-D list of finite periods > 0 [s]; got {periods_s!r}"
-        )
-    fy = np.asarray(yield_strengths_m_s2, dtype=np.float64)
-    if fy.ndim != 2 or fy.shape[0] != periods.size or fy.shape[1] == 0:
-        raise ValueError(
-            f"yield_strengths_m_s2 must have shape (n_periods, n_strengths) = "
-            f"({periods.size}, ...) [m/s²]; got shape {fy.shape}"
-        )
-    if np.any(~(fy > 0.0)):
-        raise ValueError("yield_strengths_m_s2 must all be > 0 [m/s²]; got a value <= 0 or nan")
-    a = _number(hardening_ratio, "hardening_ratio", "-")
-    if not (0.0 <= a < 1.0):
-        raise ValueError(f"hardening_ratio must be in [0, 1) [-]; got {hardening_ratio!r}")
-    tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
-    if substeps is None:
-        n_sub = np.ones(periods.size, dtype=np.int64)
-    else:
-        n_sub = np.broadcast_to(np.asarray(substeps, dtype=np.int64), periods.shape).copy()
-        if np.any(n_sub < 1):
-            raise ValueError(f"substeps must be integers >= 1 [-]; got {substeps!r}")
-    w = 2.0 * np.pi / periods
-    k = w * w
-    c = 2.0 * zeta * w
-    n_workers = _check_workers(workers)
-    fy = np.ascontiguousarray(fy)
-    out = np.empty(fy.shape)
-    ok = np.empty(fy.shape)
-
-    def work(j):
-        _peak_grid(ag, dt, n_sub[j:j + 1], c[j:j + 1], k[j:j + 1], fy[j:j + 1], a, tol,
-                   max_iter, max_halv, out[j:j + 1], ok[j:j + 1])
-
-    _for_each_period(periods.size, n_workers, work)
-    uy = fy / k[:, None]
-    return out, out / uy, ok.astype(bool)

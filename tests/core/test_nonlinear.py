@@ -12,7 +12,6 @@ from sdofreport.core.nonlinear import (
     DEFAULT_FRICTION_YIELD_DISPLACEMENT_M,
     bilinear,
     nonlinear_response,
-    peak_ductilities,
     sliding_pendulum_model,
 )
 from sdofreport.core.spectra import oscillator_histories
@@ -242,20 +241,6 @@ def test_step_subdivision_path():
     # Hand calculation: with one update per step a yield crossing never meets the
     # tolerance, however fine the split, so this is reported as unconverged.
     assert one_update.subdivided_steps > 0 and not one_update.converged
-
-
-def test_peak_ductilities_matches_single_runs():
-    ag, dt = enveloped_noise(0.01, seed=8), 0.01
-    periods = np.array([0.2, 1.0])
-    fy = np.array([[0.5, 2.0], [0.3, math.inf]])
-    peaks, mu, ok = peak_ductilities(ag, dt, periods, 0.05, fy, 0.02, workers=2)
-    for j, period in enumerate(periods):
-        for i in range(2):
-            one = nonlinear_response(ag, dt, bilinear(_k(period), yield_strength_n=fy[j, i],
-                                                      hardening_ratio=0.02), 0.05)
-            # Consistency (same kernel, two entry points): identical to round-off.
-            assert peaks[j, i] == pytest.approx(one.peak_displacement_m, rel=1e-12)
-    assert ok.all() and mu[1, 1] == 0.0
 
 
 # ------------------------------------------------------------------ bad input
