@@ -40,32 +40,6 @@ def id_problem(value) -> str | None:
     return None
 
 
-def line_of(text: str, key: str, value: str | None, section: str | None = None,
-            index: int = 1) -> int | None:
-    """
-    The line (1-based) of project ``text`` that sets ``key`` to ``value`` (to anything
-    when ``value`` is None): inside the
-    ``index``-th ``[[section]]`` table when that header is found, else the first such line.
-    """
-    pattern = re.compile(rf"^\s*{re.escape(key)}\s*=\s*(['\"]){re.escape(value)}\1"
-                         if value is not None else rf"^\s*{re.escape(key)}\s*=")
-    header = re.compile(rf"^\s*\[\[\s*{re.escape(section or '')}\s*\]\]")
-    lines = text.splitlines()
-    start, stop = 0, len(lines)
-    if section is not None:
-        starts = [n for n, line in enumerate(lines) if header.match(line)]
-        if len(starts) >= index:
-            start = starts[index - 1]
-            later = [n for n, line in enumerate(lines) if n > start and
-                     re.match(r"^\s*\[", line) and not line.strip().startswith(
-                         f"[{section}.")]
-            stop = later[0] if later else len(lines)
-    for number in range(start, stop):
-        if pattern.match(lines[number]):
-            return number + 1
-    return line_of(text, key, value) if (start, stop) != (0, len(lines)) else None
-
-
 def case_twins(ids: list[tuple[str, str]]) -> list[tuple[str, str]]:
     """``(where, message)`` for each id of ``(where, id)`` whose lower case repeats."""
     seen: dict[str, tuple[str, str]] = {}
