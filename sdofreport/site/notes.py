@@ -18,7 +18,7 @@ from markdown.extensions import Extension
 from markdown.extensions.tables import TableExtension
 from markdown.treeprocessors import Treeprocessor
 
-from sdofreport.site.safehtml import clean_html, safe_url
+from sdofreport.site.safehtml import clean_html
 
 #: What Markdown (with the tables and sane_lists extensions) writes, and nothing else.
 NOTES_TAGS = frozenset({
@@ -27,11 +27,6 @@ NOTES_TAGS = frozenset({
     "span"})
 NOTES_ATTRIBUTES = {"a": {"href", "title"}, "th": {"align"}, "td": {"align"},
                     "ol": {"start"}}
-
-
-def safe_link(url: str) -> bool:
-    """True for http(s), mailto and same-site relative links (see :func:`safe_url`)."""
-    return safe_url(url)
 
 
 class _ImagesAsText(Treeprocessor):
