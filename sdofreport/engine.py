@@ -182,9 +182,14 @@ class Results:
         return self.responses[(system_id, record_id)]
 
     @property
+    def not_within(self) -> list[Check]:
+        """Checks whose verdict is not "within limit": exceeding, or unstable."""
+        return [check for check in self.checks
+                if check.verdict in (VERDICT_EXCEEDS, VERDICT_UNSTABLE)]
+
+    @property
     def exceeds(self) -> bool:
-        return any(check.verdict in (VERDICT_EXCEEDS, VERDICT_UNSTABLE)
-                   for check in self.checks)
+        return bool(self.not_within)
 
 
 # ---------------------------------------------------------------------------------------

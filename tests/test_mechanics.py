@@ -169,6 +169,21 @@ def test_unstable_system_verdict_page_and_json(project_factory):
     assert "Dynamic instability" in notes
 
 
+def test_strict_build_exits_3_on_an_unstable_check(project_factory, tmp_path):
+    """An unstable verdict is never "within limit": `build --strict` exits 3 and the
+    summary line counts it (the same system as above, Chopra 2017 §7.11: negative
+    post-yield stiffness under P-Δ). Before, only "exceeds limit" was counted: exit 0."""
+    path = project_factory(_text('mass = "10 t"\nperiod = "1.0 s"\nheight = "3 m"\n'
+                                 'yield_strength = "1.96 kN"\npost_yield_ratio = 0.0\n'
+                                 'gravity_load = "295.8 kN"\n[systems.limits]\n'
+                                 'displacement = "1 m"'))
+    result = CliRunner().invoke(cli, ["build", str(path), "-o", str(tmp_path / "site"),
+                                      "--strict", "--no-cache"])
+    assert result.exit_code == 3, result.output
+    assert "1 exceeding the stated limit or unstable" in result.output
+    assert "exceed the stated limit or are unstable" in result.output
+
+
 @pytest.mark.parametrize("model, extra", [
     ("clough", ""), ("takeda", "unloading_exponent = 0.5\n"),
     ("takeda", "deterioration_capacity = 200\ndeterioration_exponent = 1.2\n"),
