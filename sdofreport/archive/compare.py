@@ -437,8 +437,8 @@ def _page_context(document: dict, figure_sources: dict[str, str], note: str) -> 
     rows = []
     for row in document["checks"]:
         cells = _check_cells(row)
-        css = ("exceeds" if (row["new"] or {}).get("verdict") == "exceeds limit" else
-               "within")
+        verdict = (row["new"] or {}).get("verdict")
+        css = "exceeds" if verdict not in (None, "within limit") else "within"
         rows.append({**row, **cells, "css": css})
     return {"comparison": document, "check_rows": rows,
             "figures": [{"record": rid, "src": src} for rid, src in

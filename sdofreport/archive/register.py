@@ -15,7 +15,6 @@ from __future__ import annotations
 import hashlib
 import json
 import os
-import re
 from dataclasses import asdict, dataclass
 from pathlib import Path
 
@@ -33,6 +32,7 @@ from sdofreport.archive._sitefiles import (
 )
 from sdofreport.archive.verify import verify_files
 from sdofreport.jsontext import json_text
+from sdofreport.project.model import natural_key
 from sdofreport.site.render import MANIFEST_NAME
 from sdofreport.site.tree import write_tree
 
@@ -102,12 +102,6 @@ def find_runs(folder: Path, exclude: Path | None = None) -> list[Path]:
     return sorted(found)
 
 
-def _natural(text: str) -> tuple:
-    """Sort key that puts revision '9' before '10' and 'A' before 'B'."""
-    return tuple((0, int(part), "") if part.isdigit() else (1, 0, part.lower())
-                 for part in re.split(r"(\d+)", text or "") if part)
-
-
 def _results_summary(files: dict[str, bytes]) -> dict:
     try:
         document = parse_results(files[RESULTS_PATH], RESULTS_PATH)
@@ -116,7 +110,9 @@ def _results_summary(files: dict[str, bytes]) -> dict:
         ratios = [c["ratio"] for c in checks if isinstance(c.get("ratio"), (int, float))]
         return {"checks": len(checks), "worst_ratio": max(ratios) if ratios else None,
                 "within": sum(c.get("verdict") == "within limit" for c in checks),
-                "exceeding": sum(c.get("verdict") == "exceeds limit" for c in checks)}
+                # Anything but "within limit" (exceeding, unstable, unknown) is counted
+                # as not within: a register never reads safer than its runs.
+                "exceeding": sum(c.get("verdict") != "within limit" for c in checks)}
     except (KeyError, AttributeError, TypeError, ArchiveError):
         return {"checks": None, "worst_ratio": None, "within": None, "exceeding": None}
 
@@ -172,8 +168,9 @@ def gather_register(folder: str | os.PathLike,
                                 f"the site when opened ({row.verification})")
             run = None
         entries.append((row, run))
-    entries.sort(key=lambda e: (_natural(e[0].reference), _natural(e[0].revision),
-                                e[0].fingerprint, e[0].source))
+    entries.sort(key=lambda e: (natural_key(e[0].reference or ""),
+                                natural_key(e[0].revision or ""),
+                                e[0].fingerprint or "", e[0].source))
     rows = [row for row, _ in entries]
     _unique_names(rows)
     files: dict[str, bytes] = {}

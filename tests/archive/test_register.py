@@ -205,3 +205,17 @@ def test_run_with_script_is_listed_but_not_copied(group, sites, tmp_path, path, 
     assert after not in b"".join(p.read_bytes() for p in output.rglob("*") if p.is_file())
     # The clean run beside it is copied as before.
     assert rows["clean/_site"]["verified"] and (output / rows["clean/_site"]["link"]).is_file()
+
+
+def test_unstable_and_unknown_verdicts_are_not_counted_as_within():
+    """A register row never reads safer than its run: every verdict other than
+    "within limit" (exceeding, unstable, anything unknown) is counted as not within
+    (our own rule: fail closed)."""
+    from sdofreport.archive.register import _results_summary
+    from sdofreport.archive.verify import RESULTS_PATH
+
+    verdicts = ["within limit", "exceeds limit", "unstable", "something else"]
+    checks = [{"ratio": 0.5 + i, "verdict": v} for i, v in enumerate(verdicts)]
+    document = {"schema": "sdofreport/results@1", "systems": [{"checks": checks}]}
+    summary = _results_summary({RESULTS_PATH: json.dumps(document).encode("utf-8")})
+    assert (summary["checks"], summary["within"], summary["exceeding"]) == (4, 1, 3)
