@@ -151,3 +151,21 @@ def test_adding_a_quantity_needs_only_its_registry_entry(project_factory):
     assert found["label"] == "Peak restoring force"
     assert found["shown"] == "350.0 kN"
     assert found["documented"] is True
+
+
+@pytest.mark.parametrize("module, forbidden", [
+    # results.json is written below the site: it reads the registry, not site.display.
+    ("sdofreport.results_json", ("sdofreport.site", "sdofreport.archive")),
+    # The core and the records (with the number rule) read nothing above them.
+    ("sdofreport.core.builders", ("sdofreport.project", "sdofreport.site",
+                                  "sdofreport.records")),
+    ("sdofreport.records", ("sdofreport.project", "sdofreport.site")),
+])
+def test_lower_layers_import_nothing_above_them(module, forbidden):
+    # Dependencies point one way (DEVELOPERS.md, "Layout"); checked in a fresh interpreter.
+    code = (f"import sys, {module}; print('\\n'.join(m for m in sys.modules "
+            f"if m.startswith({forbidden!r})))")
+    run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=False)
+    assert run.returncode == 0, run.stderr
+    assert run.stdout.split() == []
