@@ -191,11 +191,13 @@ def test_spectra_csv_matches_stdlib_csv_writer_on_any_floats(values, record_id):
 # ------------------------------------------------------------------------------ example
 
 @pytest.fixture(scope="module")
-def example_results():
+def example_results(built_example):
+    """The example's results, from the result cache of the session's shared build."""
     from sdofreport.engine import run_project
     from sdofreport.project import load_project
 
-    return run_project(load_project(EXAMPLE / "sdofreport.toml"), jobs=1, use_cache=False)
+    return run_project(load_project(EXAMPLE / "sdofreport.toml"), jobs=1,
+                       cache_dir=built_example.cache)
 
 
 def test_example_results_document_reads_back_with_stdlib_json(example_results):
