@@ -11,6 +11,7 @@ systems[frame].limits.drift_ratio``, see :mod:`sdofreport.project.locate`).
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import hashlib
 import math
@@ -721,7 +722,8 @@ def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damp
     strength = values.get("yield_strength")
     displacement = values.get("yield_displacement")
     if strength is None and displacement is None:
-        for key in ("post_yield_ratio", "hysteresis", *HYSTERESIS_PARAMETER_KEYS):
+        for key in ("post_yield_ratio", "hysteresis", *HYSTERESIS_PARAMETER_KEYS,
+                    "property_factors"):
             if key in table:
                 problems.add(f"{where}.{key}", "applies only with yield_strength or "
                              "yield_displacement")
@@ -753,7 +755,7 @@ def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damp
             "yield_strength_n": strength, "post_yield_ratio": alpha,
             "mass_kg": derived.mass_kg, "parameters": parameters,
             "collapse_displacement_m": None if math.isinf(collapse) else collapse,
-            **extras}
+            **extras, **_bilinear_factors(name, alpha, table, where, problems)}
 
 
 def _isolator_keys(values: dict, table: dict, where: str, problems: _Problems) -> dict:
@@ -773,18 +775,43 @@ def _isolator_keys(values: dict, table: dict, where: str, problems: _Problems) -
         out.update(friction_slow=values["friction_slow"],
                    friction_rate_s_m=values["friction_rate"])
     if "property_factors" in table:
-        raw = table["property_factors"]
-        if not (isinstance(raw, list) and len(raw) == 2 and all(
-                isinstance(v, (int, float)) and not isinstance(v, bool) and
-                math.isfinite(v) for v in raw) and 0 < raw[0] <= 1 <= raw[1]):
-            problems.add(f"{where}.property_factors", f"expected [lower, upper] with "
-                         f"0 < lower <= 1 <= upper, found {raw!r}")
-        elif max(raw[1] * values["friction"], 0.0) >= 1.0:
+        factors = _property_factors(table, where, problems)
+        if factors is not None and factors[1] * values["friction"] >= 1.0:
             problems.add(f"{where}.property_factors", f"the upper-bound friction "
-                         f"{raw[1]:g} × {values['friction']:g} is not below 1")
-        else:
-            out["property_factors"] = [float(raw[0]), float(raw[1])]
+                         f"{factors[1]:g} × {values['friction']:g} is not below 1")
+        elif factors is not None:
+            out["property_factors"] = factors
     return out
+
+
+def _property_factors(table: dict, where: str, problems: _Problems) -> list | None:
+    """``property_factors = [lower, upper]`` with 0 < lower <= 1 <= upper, or None."""
+    raw = table["property_factors"]
+    if not (isinstance(raw, list) and len(raw) == 2 and all(
+            isinstance(v, (int, float)) and not isinstance(v, bool) and
+            math.isfinite(v) for v in raw) and 0 < raw[0] <= 1 <= raw[1]):
+        problems.add(f"{where}.property_factors", f"expected [lower, upper] with "
+                     f"0 < lower <= 1 <= upper, found {raw!r}")
+        return None
+    return [float(raw[0]), float(raw[1])]
+
+
+def _bilinear_factors(name: str, alpha: float, table: dict, where: str,
+                      problems: _Problems) -> dict:
+    """``property_factors`` of a yielding system: bilinear only, with λ_upper α < 1."""
+    if "property_factors" not in table:
+        return {}
+    if name != "bilinear":
+        problems.add(f"{where}.property_factors", f"applies to a sliding pendulum or a "
+                     f"bilinear isolator (hysteresis = \"bilinear\"); this system has "
+                     f"hysteresis {name!r}")
+        return {}
+    factors = _property_factors(table, where, problems)
+    if factors is not None and factors[1] * alpha >= 1.0:
+        problems.add(f"{where}.property_factors", f"the upper-bound post-yield ratio "
+                     f"{factors[1]:g} × {alpha:g} is not below 1")
+        return {}
+    return {} if factors is None else {"property_factors": factors}
 
 
 def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
@@ -1036,7 +1063,7 @@ def _scaling_range(table: dict, where: str, rule: str, period, problems: _Proble
             problems.add(f"{where}.period_range", f"expected one of {', '.join(names)} "
                          f"or [low, high] in s, found {raw!r}")
             return None, None
-        if option.needs_period and period is None:
+        if option.needs_period and period is None and option.damping_coefficient is None:
             problems.add(f"{where}.period_range", f"option {raw!r} needs [scaling] "
                          f"period, the governing period (example: period = \"0.8 s\")")
         return None, raw
@@ -1069,7 +1096,44 @@ def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
         problems.add(f"{where}.rule", f"rule {rule!r} ({edition.standard}) needs {kinds} "
                      f"in [design_spectrum], found {design.kind!r}")
     beyond = _read_value(table, spec["beyond_usable"], where, problems) or "exclude"
-    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option, beyond)
+    isolator = _read_value(table, spec["isolator"], where, problems)
+    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option, beyond,
+                       isolator)
+
+
+def _resolve_isolator(scaling: ScalingSpec, systems: list,
+                      problems: _Problems) -> ScalingSpec:
+    """The isolator system of ``period_range = "isolated-system"`` (named, or the only
+    one when no period is given), checked; ``isolator`` applies only to that option."""
+    where = "scaling.isolator"
+    named = scaling.isolator
+    option = codes.period_range_option(scaling.rule, scaling.period_range_option or "")
+    if option is None or option.damping_coefficient is None:
+        if named is not None:
+            problems.add(where, f"applies only with period_range = \"isolated-system\" "
+                         f"(rule asce7-16 or asce7-22), found period_range = "
+                         f"{scaling.period_range_option or list(scaling.period_range_s or ())!r}")
+        return scaling
+    isolators = [s.id for s in systems if s.is_isolator]
+    if named is None:
+        if scaling.period_s is not None:
+            return scaling  # T_M = period at both ends, as given
+        if len(isolators) != 1:
+            problems.add("scaling.period_range", "option 'isolated-system' needs [scaling] "
+                         "period (T_M) or one isolator system (a sliding pendulum or a "
+                         "bilinear system); " + (f"name one with isolator, of "
+                                                 f"{', '.join(isolators)}" if isolators
+                                                 else "the project has none"))
+            return scaling
+        named = isolators[0]
+    elif named not in isolators:
+        known = [s.id for s in systems]
+        problems.add(where, f"expected the id of an isolator system (a sliding pendulum "
+                     f"or a bilinear system: {', '.join(isolators) or 'none here'}), "
+                     f"found {named!r}" + ("" if named in known else
+                                           f"; the system ids are {', '.join(known)}"))
+        return scaling
+    return dataclasses.replace(scaling, isolator=named)
 
 
 def _number_list(value, where: str, minimum: float, problems: _Problems,
@@ -1360,6 +1424,7 @@ def load_project(path) -> Project:
                               f"synthetic (seed {synthetic.seed + i})", "synthetic", "g",
                               synthetic.dt_s, 1.0, processing)
                    for i in range(synthetic.count)]
+    scaling = _resolve_isolator(scaling, systems, problems)
     _check_two_directions(records, systems, problems)
     _check_directions_have_records(records, systems, problems)
     save_memo()  # unit strings pint converted, so the next read need not import it

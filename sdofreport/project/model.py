@@ -131,6 +131,9 @@ class ScalingSpec:
     #: "exclude": ordinates beyond a record's usable period are left out of scaling;
     #: "include": the project overrides that
     beyond_usable: str = "exclude"
+    #: period_range "isolated-system": id of the isolator system whose T_M is computed
+    #: at its bounds; None: T_M = period
+    isolator: str | None = None
 
 
 @dataclass(frozen=True)
@@ -219,6 +222,14 @@ class SystemSpec:
         """``linear``, ``elastic`` (with a damper), a hysteresis model name or
         ``sliding-pendulum``."""
         return (self.model or {}).get("model", "linear")
+
+    @property
+    def is_isolator(self) -> bool:
+        """A sliding pendulum of finite radius, or a bilinear yielding system (an
+        isolator whose bounds and T_M sdofreport.isolation_bounds computes)."""
+        if self.model_name == "sliding-pendulum":
+            return self.model["radius_m"] != float("inf")
+        return self.model_name == "bilinear"
 
 
 @dataclass(frozen=True)

@@ -85,7 +85,8 @@ SYSTEM_KINDS = ("lumped", "columns", "springs", "static-deflection", "sliding-pe
 _HYSTERETIC_KEYS = ("yield_strength", "yield_displacement", "post_yield_ratio",
                     "hysteresis", "unloading_exponent", "bouc_wen_exponent",
                     "bouc_wen_beta", "dissipation_ratio", "deterioration_capacity",
-                    "deterioration_exponent", "p_delta", "gravity_load", "damper")
+                    "deterioration_exponent", "p_delta", "gravity_load", "damper",
+                    "property_factors")
 
 #: Hysteresis-model parameters and the models each applies to.
 HYSTERESIS_PARAMETER_KEYS: dict[str, tuple[str, ...]] = {
@@ -292,10 +293,20 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("period_range", "list", "Period range of the scaling: a named option, "
                 "\"governing-period\" (0.2 T to 2 T of period) or \"every-system\" "
                 "(0.2 × the shortest to 2 × the longest system period), or explicit "
-                "[low, high] in s; with rule asce7-16 also \"isolated-system\" (0.75 T_M "
-                "to 1.25 T_M, T_M = period, ASCE/SEI 7-16 §17.3.3, from memory). Default: "
+                "[low, high] in s; with rule asce7-16 or asce7-22 also \"isolated-system\" "
+                "(0.75 T_M at the upper-bound to 1.25 T_M at the lower-bound properties "
+                "of the isolator system, see isolator, or T_M = period at both ends; "
+                "ASCE/SEI 7-16/7-22 §17.3.3, from memory). Default: "
                 "governing-period when period is given, otherwise every-system.",
                 example='"every-system"'),
+        KeySpec("isolator", "text", "period_range = \"isolated-system\": id of the "
+                "isolator system (a sliding pendulum, or a bilinear system) whose "
+                "effective period T_M at the maximum displacement is computed at its "
+                "upper-bound properties (for 0.75 T_M) and at its lower-bound properties "
+                "(for 1.25 T_M) from property_factors and the MCE_R target (ASCE/SEI "
+                "7-16/7-22 §17.3.3, §17.5.3, from memory). Default: the project's only "
+                "isolator system when [scaling] period is not given; with period and no "
+                "isolator, T_M = period at both ends.", example='"fps"'),
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
         KeySpec("beyond_usable", "choice", "Spectral ordinates beyond a record's usable "
@@ -457,10 +468,14 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("friction_rate", "quantity", "sliding-pendulum: rate parameter a of the "
                 "velocity-dependent friction (for example \"20 s/m\").",
                 dimension="slowness", example='"20 s/m"'),
-        KeySpec("property_factors", "list", "sliding-pendulum: [lower, upper] factors on "
-                "the friction coefficients for the lower- and upper-bound analyses beside "
-                "the nominal one; each check takes the governing run (ASCE/SEI 7-16 "
-                "§17.2.8.4, from memory).", example="[0.8, 1.3]"),
+        KeySpec("property_factors", "list", "sliding-pendulum, and a bilinear yielding "
+                "system used as an isolator (hysteresis = \"bilinear\"): [lower, upper] "
+                "property modification factors for the lower- and upper-bound analyses "
+                "beside the nominal one: the friction coefficients, or the characteristic "
+                "strength Q_d = (1 − α) F_y and the post-yield stiffness k_d = α k (the "
+                "elastic stiffness kept), are multiplied by each factor; each check takes "
+                "the governing run (ASCE/SEI 7-16 §17.2.8.4, from memory).",
+                example="[0.8, 1.3]"),
         KeySpec("pivot_inertia", "quantity", "hanging: moment of inertia about the pivot.",
                 dimension="inertia", example='"2400 kg*m**2"'),
         KeySpec("pivot_to_centre", "quantity", "hanging: distance from the pivot to the "
