@@ -49,6 +49,7 @@ from sdofreport.project.model import Project, RecordSpec, SystemSpec, natural_ke
 from sdofreport.records import Record, process_record, read_record
 from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling, \
     scaling_damping
+from sdofreport.vertical_suite import attach_vertical
 
 log = logging.getLogger("sdofreport.engine")
 
@@ -644,6 +645,8 @@ def run_project(project: Project, *, jobs: int | None = None,
     scaling = compute_scaling(project, {r.id: o["spectrum"] for r, o in
                                         zip(records, record_outputs)},
                               {name: o["rotd"] for name, o in pair_outputs.items()})
+    attach_vertical(scaling, project, {r.id: o["spectrum"] for r, o in
+                                       zip(records, record_outputs)})
     record_results, scaled = [], {}
     for record, spec, output in zip(records, project.records, record_outputs):
         if damping != tuple(analysis.damping):
@@ -652,7 +655,7 @@ def run_project(project: Project, *, jobs: int | None = None,
         factor = scaling.factors.get(record.id, 1.0)
         if factor != 1.0:
             record = _with_acceleration(record, np.asarray(record.acceleration_m_s2) * factor,
-                                        f"suite scaling ({scaling.rule}): × {factor:.6g}")
+                                        scaling.history_note(record.id, factor))
             output = {**output, **record_products(record.acceleration_m_s2, record.dt_s),
                       "spectrum": _scaled_spectrum(output["spectrum"], factor)}
         scaled[record.id] = record

@@ -63,6 +63,13 @@ class SuiteScaling:
     #: the vertical target and the vertical records' scaling (sdofreport.vertical_suite)
     vertical: object | None = None
 
+    def history_note(self, record_id: str, factor: float) -> str:
+        """The processing-history line of a record scaled by ``factor``."""
+        if self.vertical is not None and record_id in self.vertical.factors:
+            return (f"vertical scaling to the {self.vertical.kind} vertical target (log "
+                    f"fit, common practice): × {factor:.6g}")
+        return f"suite scaling ({self.rule}): × {factor:.6g}"
+
     @property
     def complies(self) -> bool | None:
         """True when every error criterion passed; None when nothing was checked."""
@@ -142,8 +149,10 @@ def damping_index(damping, target: float = SCALING_DAMPING) -> int:
 def scaling_damping(project) -> float | None:
     """Damping ratio of the spectra suite scaling reads, or None when nothing is scaled."""
     rule = project.scaling.rule
-    if rule == "none" or project.design_spectrum is None:
+    if project.design_spectrum is None:
         return None
+    if rule == "none":  # the vertical target is shown at 5 % even when nothing is scaled
+        return SCALING_DAMPING if project.design_spectrum.vertical is not None else None
     edition = codes.edition(rule)
     return edition.target_damping if edition else SCALING_DAMPING
 

@@ -29,6 +29,7 @@ from sdofreport.errors import ProjectError
 from sdofreport.project.model import (
     AnalysisSettings,
     DesignSpectrumSpec,
+    VerticalSpectrumSpec,
     FragilitySpec,
     InelasticSpectraSpec,
     SyntheticSpec,
@@ -1002,7 +1003,7 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
         return None
     mapping = DESIGN_SPECTRUM_KEYS[kind]
     for key in table:
-        if key != "kind" and key in spec and key not in mapping:
+        if key not in ("kind", "vertical") and key in spec and key not in mapping:
             problems.add(f"{where}.{key}", f"does not apply to kind {kind!r}; its keys are "
                          f"{', '.join(mapping)}")
     values, parameters = {}, {}
@@ -1050,7 +1051,95 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
                 message = re.sub(rf"\b{re.escape(name)}\b", key, message)
         problems.add(where, message)
         return None
-    return DesignSpectrumSpec(kind, values, parameters)
+    vertical = _read_vertical(table.get("vertical"), kind, values, problems)
+    return DesignSpectrumSpec(kind, values, parameters, vertical)
+
+
+def _read_vertical(table, kind: str, horizontal: dict,
+                   problems: _Problems) -> VerticalSpectrumSpec | None:
+    """``[design_spectrum.vertical]``: the vertical target, its missing values taken from
+    the horizontal spectrum where the standard relates them (each row says so)."""
+    from sdofreport.core.vertical_spectra import EN1998_VERTICAL_TABLE_3_4
+
+    where = "design_spectrum.vertical"
+    table = _section(table, where, problems) if table is not None else None
+    if table is None:
+        return None
+    spec = SECTIONS[where]
+    vkind = _read_value(table, spec["kind"], where, problems)
+    if vkind is None:
+        return None
+    own = {"en1998-1": ("spectrum_type", "avg", "tb", "tc", "td"),
+           "asce7-16": ("sms", "site_class", "level")}[vkind]
+    count = len(problems.items)
+    for key in table:
+        if key not in ("kind", "period_range") + own and key in spec:
+            problems.add(f"{where}.{key}", f"does not apply to kind {vkind!r}; its keys "
+                         f"are {', '.join(own + ('period_range',))}")
+    if isinstance(table.get("site_class"), str):  # "d" is site class D
+        table = {**table, "site_class": table["site_class"].strip().upper()}
+    if isinstance(table.get("spectrum_type"), bool):
+        table = {**table, "spectrum_type": str(table["spectrum_type"]).lower()}
+    got = {key: _read_value(table, spec[key], where, problems) for key in own
+           if key in table}
+    rows, parameters = [], {}
+
+    def inherit(key: str, label: str, source_key: str, derive, basis: str):
+        """The value as given, else derived from the horizontal spectrum, else missing."""
+        if got.get(key) is not None:
+            rows.append((label, got[key], "as given"))
+            return got[key]
+        if kind == vkind and horizontal.get(source_key) is not None:
+            value = derive(horizontal[source_key])
+            rows.append((label, value, basis))
+            return value
+        if key not in table:
+            problems.add(f"{where}.{key}", f"missing; the horizontal spectrum (kind "
+                         f"{kind!r}) does not give it ({spec[key].description})")
+        return None
+
+    if vkind == "en1998-1":
+        stype = inherit("spectrum_type", "spectrum type", "spectrum_type", int,
+                        "the horizontal spectrum's type")
+        if stype is None:
+            return None
+        ratio = EN1998_VERTICAL_TABLE_3_4[stype]
+        ag = horizontal.get("agr", 0.0) * horizontal.get("importance_factor", 1.0)
+        avg = inherit("avg", "a_vg [g]", "agr", lambda _: ratio[0] * ag,
+                      f"a_vg/a_g = {ratio[0]:g} (Table 3.4, from memory) × a_g = γ_I a_gR "
+                      f"= {ag:g} g")
+        periods = []
+        for key, default in zip(("tb", "tc", "td"), ratio[1:]):
+            value = got.get(key) if key in table else default
+            rows.append((f"T_{key[1].upper()} [s]", value, "National Annex, as given"
+                         if key in table else "Table 3.4 (from memory)"))
+            periods.append(value)
+        if None not in periods and not 0 < periods[0] < periods[1] < periods[2]:
+            problems.add(where, f"tb < tc < td must hold [s]; got T_B {periods[0]:g}, "
+                         f"T_C {periods[1]:g}, T_D {periods[2]:g}")
+        _positive(avg, f"{where}.avg", "a_vg", problems, "g")
+        parameters = {"avg_g": avg, "tb_s": periods[0], "tc_s": periods[1],
+                      "td_s": periods[2], "damping": 0.05}
+    else:
+        sms = inherit("sms", "S_MS [g]", "sds", lambda sds: 1.5 * sds,
+                      "1.5 × S_DS of the horizontal spectrum (S_DS = 2/3 S_MS, "
+                      "§11.4.5, from memory)")
+        _positive(sms, f"{where}.sms", "S_MS", problems, "g")
+        site = got.get("site_class")
+        if site is None and "site_class" not in table:
+            problems.add(f"{where}.site_class", f"missing; kind 'asce7-16' needs it "
+                         f"({spec['site_class'].description})")
+        rows.append(("site class", site, "as given"))
+        level = got.get("level") or ("mce_r" if horizontal.get("level") in (None, "mce")
+                                     else horizontal["level"])
+        rows.append(("level", level, "as given" if "level" in got else
+                     "the horizontal spectrum's level" if "level" in horizontal else
+                     "default"))
+        parameters = {"sms_g": sms, "site_class": site, "level": level}
+    period_range = _period_range(table, where, None, problems)
+    if len(problems.items) > count:
+        return None
+    return VerticalSpectrumSpec(vkind, tuple(rows), parameters, period_range)
 
 
 def _scaling_range(table: dict, where: str, rule: str, period, problems: _Problems):
@@ -1099,6 +1188,20 @@ def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
     isolator = _read_value(table, spec["isolator"], where, problems)
     return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option, beyond,
                        isolator)
+
+
+def _check_vertical_range(design, records: list, systems: list,
+                          problems: _Problems) -> None:
+    """The vertical target's fitting range needs vertical systems, or to be given."""
+    vertical = design.vertical if design is not None else None
+    if vertical is None or vertical.period_range_s is not None:
+        return
+    if any(r.component == "V" for r in records) and \
+            not any(s.direction == "vertical" for s in systems):
+        problems.add("design_spectrum.vertical.period_range", "missing; no system has "
+                     "direction = \"vertical\", so the default range (0.2 × the "
+                     "shortest to 2 × the longest vertical period) is not defined; give "
+                     "period_range = [low, high] in s")
 
 
 def _resolve_isolator(scaling: ScalingSpec, systems: list,
@@ -1425,6 +1528,7 @@ def load_project(path) -> Project:
                               synthetic.dt_s, 1.0, processing)
                    for i in range(synthetic.count)]
     scaling = _resolve_isolator(scaling, systems, problems)
+    _check_vertical_range(design, records, systems, problems)
     _check_two_directions(records, systems, problems)
     _check_directions_have_records(records, systems, problems)
     save_memo()  # unit strings pint converted, so the next read need not import it

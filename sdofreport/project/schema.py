@@ -23,6 +23,7 @@ from sdofreport.core.spectra_current import (
     EN1998_1_1_SITE_CATEGORIES,
 )
 from sdofreport.core.units import acceleration_unit_names
+from sdofreport.core.vertical_spectra import VERTICAL_SITE_CLASSES, VERTICAL_SPECTRUM_KINDS
 from sdofreport.records import RECORD_FORMATS
 
 #: Ways the suite statistic may be chosen. ``auto``: the governing edition's rule
@@ -281,6 +282,47 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("sa", "list", "table: spectral accelerations of the points, in g; "
                 "asce7-22: the multi-period MCE_R ordinates as copied from the official "
                 "source for the site class, in g.", example="[0.4, 1.0, 0.5, 0.1]"),
+        KeySpec("vertical", "table", "The vertical target, written as the table "
+                "[design_spectrum.vertical] (see that section): vertical records "
+                "(component = \"V\") are scaled to it and shown against it, and the "
+                "vertical systems run under the scaled records. Without it vertical "
+                "records are used as given and the suite page says no vertical target "
+                "was given.", example='{ kind = "en1998-1", spectrum_type = 1 }'),
+    ),
+    "design_spectrum.vertical": _keys(
+        KeySpec("kind", "choice", "Which vertical spectrum: EN 1998-1:2004 §3.2.2.3 "
+                "(Eqs. 3.8-3.11, Table 3.4) or ASCE/SEI 7-16 §11.9 (Eqs. 11.9-1 to "
+                "11.9-4, Table 11.9-1); table values and clause numbers from memory.",
+                required=True, choices=VERTICAL_SPECTRUM_KINDS, example='"en1998-1"'),
+        KeySpec("spectrum_type", "choice", "en1998-1: spectrum type 1 or 2 of Table 3.4 "
+                "(default: the horizontal en1998-1 spectrum's type).",
+                choices=EN1998_1_SPECTRUM_TYPES, example="1"),
+        KeySpec("avg", "number", "en1998-1: design vertical ground acceleration a_vg, in "
+                "g (default: a_vg/a_g of Table 3.4, 0.90 for type 1 and 0.45 for type 2, "
+                "from memory, times a_g = γ_I a_gR of the horizontal en1998-1 spectrum).",
+                example="0.3"),
+        KeySpec("tb", "quantity", "en1998-1: National-Annex T_B (default 0.05 s, Table "
+                "3.4, from memory).", dimension="time", example='"0.05 s"'),
+        KeySpec("tc", "quantity", "en1998-1: National-Annex T_C (default 0.15 s).",
+                dimension="time", example='"0.15 s"'),
+        KeySpec("td", "quantity", "en1998-1: National-Annex T_D (default 1.0 s).",
+                dimension="time", example='"1 s"'),
+        KeySpec("sms", "number", "asce7-16: S_MS, MCE_R short-period spectral "
+                "acceleration, in g (default: 1.5 × sds of the horizontal asce7-16 "
+                "spectrum, S_DS = 2/3 S_MS, §11.4.5, from memory).", example="1.5"),
+        KeySpec("site_class", "choice", "asce7-16: site class A to F for C_v of Table "
+                "11.9-1 (from memory).", choices=VERTICAL_SITE_CLASSES, example='"D"'),
+        KeySpec("level", "choice", "asce7-16: the MCE_R vertical spectrum S_aMv or the "
+                "design one, 2/3 of it (§11.9.3, from memory); default: the level of the "
+                "horizontal asce7-16 spectrum, otherwise mce_r.",
+                choices=("mce_r", "design"), example='"mce_r"'),
+        KeySpec("period_range", "list", "[low, high] periods in s over which each "
+                "vertical record is fitted to the vertical target (default: 0.2 × the "
+                "shortest to 2 × the longest period of the systems with direction = "
+                "\"vertical\"; no clause sets a vertical range here, so this is the "
+                "project's choice: common practice, no source). asce7-16 defines the "
+                "spectrum up to 2 s only; the range is cut there, with a caution.",
+                example="[0.05, 0.6]"),
     ),
     "scaling": _keys(
         KeySpec("rule", "choice", "Suite scaling rule: " + "; ".join(
