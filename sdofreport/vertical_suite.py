@@ -143,3 +143,31 @@ def attach_vertical(scaling, project, spectra: dict) -> None:
     scaling.vertical = found
     if found is not None and found.scaled:
         scaling.factors.update(found.factors)
+
+
+def rule_text(scaled: bool) -> str:
+    """The rule in words, or that the records were only shown (rule "none")."""
+    if scaled:
+        return RULE_TEXT
+    return ("[scaling] rule = \"none\": the vertical records keep their factors as given "
+            "and are only shown against the vertical target")
+
+
+def formula(kind: str) -> list[str]:
+    """The vertical target's equations, for the suite page (from memory)."""
+    if kind == "en1998-1":
+        return ["EN 1998-1:2004 §3.2.2.3, Eqs. (3.8)-(3.11) (from memory): S_ve = a_vg "
+                "[1 + T/T_B (3.0 η − 1)] for 0 ≤ T ≤ T_B; a_vg 3.0 η for T_B ≤ T ≤ T_C; "
+                "a_vg 3.0 η T_C/T for T_C ≤ T ≤ T_D; a_vg 3.0 η T_C T_D/T² for T_D ≤ T ≤ "
+                "4 s",
+                "η = √(10/(5 + ξ)) ≥ 0.55 (Eq. 3.6) with ξ = 5 %: η = 1; no soil factor",
+                "Table 3.4 recommended values (from memory): type 1 a_vg/a_g 0.90, "
+                "type 2 0.45; T_B 0.05 s, T_C 0.15 s, T_D 1.0 s for both"]
+    return ["ASCE/SEI 7-16 §11.9.2, Eqs. 11.9-1 to 11.9-4 (from memory): S_aMv = 0.3 C_v "
+            "S_MS for T_v ≤ 0.025 s; 20 C_v S_MS (T_v − 0.025) + 0.3 C_v S_MS for "
+            "0.025 < T_v ≤ 0.05 s; 0.8 C_v S_MS for 0.05 < T_v ≤ 0.15 s; 0.8 C_v S_MS "
+            "(0.15/T_v)^0.75 for 0.15 < T_v ≤ 2.0 s; not defined beyond 2 s",
+            "C_v from Table 11.9-1 (from memory), linear between the rows of S_MS "
+            "(0.2, 0.3, 0.6, 1.0, ≥ 2.0 g): site class A-B 0.7, 0.8, 0.9, 0.9, 0.9; C "
+            "0.7, 0.8, 1.0, 1.1, 1.3; D-F 0.7, 0.9, 1.1, 1.3, 1.5",
+            "design vertical spectrum = 2/3 S_aMv (§11.9.3, from memory)"]
