@@ -77,6 +77,18 @@ def vertical_files(project_factory, tmp_path):
     return project_factory
 
 
+def _validates(doc: dict) -> None:
+    """The document against the shipped results schema (jsonschema, draft 2020-12)."""
+    import json
+
+    import jsonschema
+
+    from sdofreport.schemas import load_schema
+
+    jsonschema.Draft202012Validator(load_schema("results")).validate(
+        json.loads(json.dumps(doc)))
+
+
 def _refused(factory, text: str, *fragments: str) -> str:
     with pytest.raises(ProjectError) as info:
         load_project(factory(text))
@@ -157,6 +169,7 @@ def test_vertical_records_are_fitted_to_the_target(vertical_files):
     doc = results_document(results)
     block = doc["vertical_spectrum"]
     assert [r["id"] for r in block["records"]] == ["v1", "v2"] and block["scaled"]
+    _validates(doc)
 
 
 def test_without_a_target_vertical_records_are_as_given_and_the_page_says_so(
@@ -264,6 +277,7 @@ def test_isolated_range_uses_tm_at_both_bounds(project_factory, rule, spectrum):
     assert results.scaling.period_range_s == pytest.approx((0.75 * upper, 1.25 * lower),
                                                            rel=1e-8)
     doc = results_document(results)
+    _validates(doc)
     periods = doc["scaling"]["isolation_periods"]
     assert periods["upper"]["period_s"] == pytest.approx(upper, rel=1e-8)
     assert periods["lower"]["period_s"] == pytest.approx(lower, rel=1e-8)
