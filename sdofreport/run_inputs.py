@@ -119,7 +119,9 @@ def inputs_block(results) -> dict:
                      "periods": _grid(analysis.periods_s),
                      "statistic": analysis.statistic, "statistic_used": results.statistic},
         "processing": project.processing.as_dict(),
-        "scaling": _plain(scaling),
+        # [scaling] isolator only when set, so projects without it record what they did
+        "scaling": {key: value for key, value in _plain(scaling).items()
+                    if key != "isolator" or value is not None},
         "design_spectrum": None if design is None else {
             "kind": design.kind,
             "parameters": dict(sorted(design.parameters.items())),
