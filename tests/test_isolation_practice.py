@@ -204,6 +204,8 @@ def test_without_a_target_vertical_records_are_as_given_and_the_page_says_so(
     ('tb = "0.3 s"\n', ("line 11, design_spectrum.vertical: tb < tc < td must hold",)),
     ('avg = "0.3 g"\n', ("line 13, design_spectrum.vertical.avg", "expected a number")),
     ('kind = "asce7-16"\n', ("line 11, design_spectrum.vertical.site_class: missing",)),
+    ('avg = 500.0\n', ("line 11, design_spectrum.vertical: the vertical spectrum reaches "
+                       "1.5e+03 g",)),
 ])
 def test_bad_vertical_keys_exit_2_naming_key_and_line(vertical_files, body, fragments):
     # Lines: [project] 1-5, [design_spectrum] 6-10, [design_spectrum.vertical] 11,

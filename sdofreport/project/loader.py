@@ -1139,7 +1139,13 @@ def _read_vertical(table, kind: str, horizontal: dict,
     period_range = _period_range(table, where, None, problems)
     if len(problems.items) > count:
         return None
-    return VerticalSpectrumSpec(vkind, tuple(rows), parameters, period_range)
+    found = VerticalSpectrumSpec(vkind, tuple(rows), parameters, period_range)
+    peak = float(np.nanmax(found.sa_g(np.array([0.0, 0.05, 0.15]))))
+    if not peak <= MAX_SPECTRAL_G:
+        problems.add(where, f"the vertical spectrum reaches {peak:.3g} g; expected at most "
+                     f"{MAX_SPECTRAL_G:g} g: check the values and units")
+        return None
+    return found
 
 
 def _scaling_range(table: dict, where: str, rule: str, period, problems: _Problems):
