@@ -13,6 +13,7 @@ from sdofreport import __version__
 from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import Results
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 from sdofreport.run_inputs import inputs_block
 from sdofreport.serialize import (
     array_to_list,
@@ -22,7 +23,6 @@ from sdofreport.serialize import (
     spectrum_csv_header,
     spectrum_csv_rows,
 )
-from sdofreport.site.display import CHECK_SI_UNITS
 from sdofreport.suite import usable_period_max_s
 
 RESULTS_SCHEMA = "sdofreport/results@1"
@@ -122,7 +122,7 @@ def results_document(results: Results) -> dict:
             entry.update(_directions_entry(response))
             entry.update(_bounds_entry(results.bounds.get((system.id, spec.id))))
             responses.append(entry)
-        checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
+        checks = [{"quantity": c.quantity, "unit": CHECK_QUANTITIES[c.quantity].si_unit,
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
                    "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute,
                    "basis": system.limits.basis_of(c.quantity),
@@ -381,8 +381,8 @@ def checks_csv(results: Results) -> str:
     rows: list[list] = [CHECKS_CSV_HEADER]
     for c in results.checks:
         statistics = statistics_block(c)
-        rows.append([c.system_id, c.quantity, CHECK_SI_UNITS[c.quantity], c.limit, c.demand,
-                     c.statistic, c.ratio, c.verdict,
+        rows.append([c.system_id, c.quantity, CHECK_QUANTITIES[c.quantity].si_unit,
+                     c.limit, c.demand, c.statistic, c.ratio, c.verdict,
                      *("" if statistics.get(k) is None else statistics[k]
                        for k in STATISTIC_KEYS)])
     return _csv_text(rows)

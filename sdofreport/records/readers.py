@@ -38,6 +38,7 @@ from pathlib import Path
 
 import numpy as np
 
+from sdofreport.core.decimal_text import TINY, below_tiny
 from sdofreport.core.units import (
     ACCELERATION_UNITS,
     G,
@@ -464,9 +465,9 @@ def _from_time_column(times, values, numbers, history, path, dt_given):
                     "spaced)")
     _check_agreement(path, dt_given, dt, "time column")
     largest = 100 * float(np.max(deviation))
-    # Below 0.0001 % the deviation is rounding in the file's time column; the pages'
-    # rule for tiny values (sdofreport.site.display.number) says so without an exponent.
-    largest_text = "< 0.0001" if largest < 1e-4 else f"{largest:.2g}"
+    # Below 0.0001 % the deviation is rounding in the file's time column; the one rule
+    # for tiny values (sdofreport.core.decimal_text) says so without an exponent.
+    largest_text = below_tiny(largest) if largest < TINY else f"{largest:.2g}"
     history.append(f"time step {dt:g} s from the time column (largest step deviation "
                    f"{largest_text} %)")
     if time[0] != 0.0:
