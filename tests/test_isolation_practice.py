@@ -376,3 +376,29 @@ def test_bilinear_bounds_order_and_three_runs_in_results(project_factory):
 def test_bad_bilinear_factors_exit_2(project_factory, change, fragment):
     _refused(project_factory, PROJECT_HEAD + LRB.replace(*change),
              "systems[lrb].", fragment)
+
+
+def test_suite_page_shows_the_vertical_target_and_states_the_rule(vertical_files,
+                                                                  tmp_path):
+    from click.testing import CliRunner
+
+    from sdofreport.cli import cli
+
+    text = PROJECT_HEAD + ASCE + '[design_spectrum.vertical]\nkind = "asce7-16"\n' \
+        'site_class = "C"\nperiod_range = [0.05, 3.0]\n[scaling]\nrule = "asce7-16"\n' \
+        'period = "0.5 s"\n' + RECORDS + SYSTEMS
+    out = tmp_path / "site"
+    result = CliRunner().invoke(cli, ["build", str(vertical_files(text)), "-o", str(out),
+                                      "--jobs", "1", "--cache-dir", str(tmp_path / "c")])
+    assert result.exit_code == 0, result.output
+    page = (out / "suite.html").read_text("utf-8")
+    section = page[page.index('id="vertical"'):page.index("Spectra of every record")]
+    # The rule and range are stated as the project's choice (no clause sets them), the
+    # ASCE/SEI 7-16 spectrum ends at 2 s (from memory), so the range is cut, with a
+    # caution; the figure and the factor table are there.
+    assert "common practice, no source" in section and "as given, 0.05 s to 3 s" in section
+    assert "beyond the 2 s" in section and "figures/suite-vertical.svg" in section
+    assert "<td>v1</td>" in section and "<td>v2</td>" in section
+    assert (out / "figures" / "suite-vertical.svg").is_file()
+    system = (out / "systems" / "chiller.html").read_text("utf-8")
+    assert "licensed engineer" in page and "licensed engineer" in system  # cautions

@@ -773,15 +773,22 @@ class SiteContext:
         periods = results.records[0].spectrum.periods_s
         damping = results.records[0].spectrum.damping
         z_index = int(np.argmin(np.abs(damping - system.damping)))
+        own = {r.id for r in self.project.records_for(system)}
         spectrum_curves = [{"label": item.record.id, "style": "record",
                             "values": item.spectrum.psa_m_s2[z_index] / G}
-                           for item in results.records]
+                           for item in results.records if item.record.id in own]
+        design = self._design(periods)
+        if system.direction == "vertical":  # its own records against the vertical target
+            vertical = self.project.design_spectrum and \
+                self.project.design_spectrum.vertical
+            design = None if not vertical else (periods, vertical.sa_g(periods),
+                                                "vertical target")
         figure = self._figure(figure_path("system-spectra", system.id), "spectra_figure",
                               periods_s=periods, curves=spectrum_curves,
                               ylabel=f"PSA at ζ = {100 * damping[z_index]:g} % [g]",
                               highlight_periods=[system.period_s] + (
                                   [system.p_delta["period_s"]] if system.p_delta else []),
-                              design=self._design(periods))
+                              design=design)
         context = {**self.common("../", f"System {system.id}", "system", system.id),
                    **self._statistic_bits(),
                    "system": {"id": system.id, "name": system.name,
