@@ -187,6 +187,33 @@ def _isolation_block(system, results) -> dict:
     return block
 
 
+def _isolation_periods_block(isolation: dict | None) -> dict:
+    """``scaling.isolation_periods``: T_M at the upper and the lower bound (SI)."""
+    if not isolation:
+        return {}
+    return {"isolation_periods": {"system": isolation["system"], **{run: {
+        "period_s": found.effective.period_s,
+        "displacement_m": found.effective.displacement_m,
+        "stiffness_n_m": found.effective.stiffness_n_m,
+        "damping": found.effective.damping,
+        "damping_coefficient": found.damping_coefficient,
+        "spectral_accel_g": found.spectral_accel_g} for run, found in isolation.items()
+        if run in ("upper", "lower")}}}
+
+
+def _vertical_block(vertical) -> dict:
+    """``vertical_spectrum``: the vertical target and the vertical records' factors."""
+    if vertical is None:
+        return {}
+    return {"vertical_spectrum": {
+        "kind": vertical.kind, "standard": vertical.standard, "scaled": vertical.scaled,
+        "period_range_s": list(vertical.period_range_s),
+        "records": [{"id": i, "factor": vertical.factors[i]} for i in vertical.record_ids],
+        "ratio_min": vertical.ratio_min, "ratio_max": vertical.ratio_max,
+        "periods_s": array_to_list(vertical.periods_s),
+        "sa_g": array_to_list(vertical.target_sa_g), "cautions": list(vertical.cautions)}}
+
+
 def statistics_block(check) -> dict:
     """``checks[].statistics``: mean, median, p84, min, max (the check's SI unit) and
     beta [-] of the per-record peaks; null where not defined."""
@@ -261,6 +288,8 @@ def suite_blocks(results: Results) -> dict:
             "motions": [{"id": name, "records": members}
                         for name, members in scaling.motions],
             "notes": list(scaling.notes)}
+        blocks["scaling"].update(_isolation_periods_block(scaling.isolation))
+        blocks.update(_vertical_block(scaling.vertical))
     if results.inelastic:
         spec = project.inelastic
         blocks["inelastic_spectra"] = {

@@ -166,6 +166,7 @@ def _parse_project(path: Path) -> SynthesisTarget:
         raise SdofreportError(f"{path}: no [design_spectrum] section; add one with kind = "
                               f"{' | '.join(repr(k) for k in DESIGN_SPECTRUM_KINDS)}.")
     values = dict(section)
+    values.pop("vertical", None)  # [design_spectrum.vertical]: the horizontal target only
     kind = values.pop("kind", None)
     if kind is None:
         raise SdofreportError(f"{path} [design_spectrum]: missing key 'kind'; allowed: "

@@ -109,12 +109,34 @@ class RecordSpec:
 
 
 @dataclass(frozen=True)
+class VerticalSpectrumSpec:
+    """The vertical target ``[design_spectrum.vertical]``: kind, values as shown (given
+    or derived, with where each came from) and the core parameters."""
+
+    kind: str
+    #: (label, value, basis) rows for the page, in order
+    values: tuple
+    #: keyword arguments of sdofreport.core.vertical_spectra.vertical_design_spectrum
+    parameters: dict
+    #: [low, high] fitting range as given [s], or None (the default range)
+    period_range_s: tuple[float, float] | None = None
+
+    def sa_g(self, periods_s):
+        """The vertical target at ``periods_s`` [s], in g (NaN where undefined)."""
+        from sdofreport.core.vertical_spectra import vertical_design_spectrum
+
+        return vertical_design_spectrum(periods_s, self.kind, **self.parameters)
+
+
+@dataclass(frozen=True)
 class DesignSpectrumSpec:
     """A design spectrum: its kind, the project-file values and the core parameters."""
 
     kind: str
     values: dict  # as written (SI/g numbers), for display and results.json
     parameters: dict  # keyword arguments of sdofreport.core.design_spectra.design_spectrum
+    #: the vertical target, or None when the project gives none
+    vertical: VerticalSpectrumSpec | None = None
 
     def spectrum(self):
         from sdofreport.core.design_spectra import design_spectrum
@@ -133,6 +155,9 @@ class ScalingSpec:
     #: "exclude": ordinates beyond a record's usable period are left out of scaling;
     #: "include": the project overrides that
     beyond_usable: str = "exclude"
+    #: period_range "isolated-system": id of the isolator system whose T_M is computed
+    #: at its bounds; None: T_M = period
+    isolator: str | None = None
 
 
 @dataclass(frozen=True)
@@ -227,6 +252,14 @@ class SystemSpec:
         """``linear``, ``elastic`` (with a damper), a hysteresis model name or
         ``sliding-pendulum``."""
         return (self.model or {}).get("model", "linear")
+
+    @property
+    def is_isolator(self) -> bool:
+        """A sliding pendulum of finite radius, or a bilinear yielding system (an
+        isolator whose bounds and T_M sdofreport.isolation_bounds computes)."""
+        if self.model_name == "sliding-pendulum":
+            return self.model["radius_m"] != float("inf")
+        return self.model_name == "bilinear"
 
 
 @dataclass(frozen=True)
