@@ -110,7 +110,7 @@ def _period_line(m: float, k: float) -> str:
 
 
 # ------------------------------------------------------------------------- builders
-def lumped(mass_kg=None, stiffness_n_m=None, period_s=None) -> Derived:
+def lumped(mass_kg=None, stiffness_n_m=None, natural_period_s=None) -> Derived:
     """
     A lumped SDOF system from two of mass, stiffness and period, or the period alone.
 
@@ -120,7 +120,7 @@ def lumped(mass_kg=None, stiffness_n_m=None, period_s=None) -> Derived:
         Lumped mass, > 0. [kg]
     stiffness_n_m : float or None
         Lateral stiffness, > 0. [N/m]
-    period_s : float or None
+    natural_period_s : float or None
         Undamped natural period, > 0. [s]
 
     Returns
@@ -143,17 +143,17 @@ def lumped(mass_kg=None, stiffness_n_m=None, period_s=None) -> Derived:
     given = {
         name: value
         for name, value in (("mass_kg", mass_kg), ("stiffness_n_m", stiffness_n_m),
-                            ("period_s", period_s))
+                            ("natural_period_s", natural_period_s))
         if value is not None
     }
-    allowed = ("give mass_kg and stiffness_n_m, mass_kg and period_s, stiffness_n_m and "
-               "period_s, or period_s alone")
-    if len(given) == 3 or (len(given) == 1 and period_s is None) or not given:
+    allowed = ("give mass_kg and stiffness_n_m, mass_kg and natural_period_s, stiffness_n_m and "
+               "natural_period_s, or natural_period_s alone")
+    if len(given) == 3 or (len(given) == 1 and natural_period_s is None) or not given:
         got = " and ".join(given) if given else "nothing"
         raise ValueError(f"lumped: {allowed}; got {got}")
     m = None if mass_kg is None else _positive(mass_kg, "mass_kg", "kg")
     k = None if stiffness_n_m is None else _positive(stiffness_n_m, "stiffness_n_m", "N/m")
-    t = None if period_s is None else _positive(period_s, "period_s", "s")
+    t = None if natural_period_s is None else _positive(natural_period_s, "natural_period_s", "s")
     if t is None:
         t = _TWO_PI * math.sqrt(m / k)
         lines = (_period_line(m, k),)

@@ -313,8 +313,8 @@ class _Matcher:
         return acc + amplitude @ waves
 
 
-def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, *, seed,
-                               damping=0.05, envelope="saragoni-hart", iterations=6,
+def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, time_step_s, *, seed,
+                               damping_ratio=0.05, envelope="saragoni-hart", iterations=6,
                                adjustments=40, period_range_s=None,
                                tolerance=DEFAULT_TOLERANCE) -> CompatibleRecord:
     """
@@ -339,11 +339,11 @@ def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, 
         Target pseudo-spectral acceleration at ``target_periods_s``, > 0. [g]
     duration_s : float
         Record length, > 0; at least 64 samples. [s]
-    dt_s : float
+    time_step_s : float
         Sampling interval, > 0. [s]
     seed : int
         Seed for the random phases, >= 0. [-]
-    damping : float, optional
+    damping_ratio : float, optional
         Damping ratio of the matched spectrum, in (0, 1). [-]
     envelope : {"saragoni-hart", "trapezoidal"}
         Amplitude envelope; see :data:`COMPATIBLE_ENVELOPES`. [-]
@@ -374,18 +374,18 @@ def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, 
        vol. 63, no. 1, p. 30, 1992.
     """
     duration = _positive(duration_s, "duration_s", "s")
-    dt = _positive(dt_s, "dt_s", "s")
+    dt = _positive(time_step_s, "time_step_s", "s")
     n = int(round(duration / dt)) + 1
     if n < 64:
         raise ValueError(
-            f"duration_s / dt_s must give at least 64 samples; got {duration!r} s / "
+            f"duration_s / time_step_s must give at least 64 samples; got {duration!r} s / "
             f"{dt!r} s = {n} samples"
         )
     if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
         raise ValueError(f"seed must be an integer >= 0 [-]; got {seed!r}")
-    zeta = _positive(damping, "damping", "-")
+    zeta = _positive(damping_ratio, "damping_ratio", "-")
     if zeta >= 1.0:
-        raise ValueError(f"damping must be a ratio in (0, 1) [-]; got {damping!r}")
+        raise ValueError(f"damping_ratio must be a ratio in (0, 1) [-]; got {damping_ratio!r}")
     if envelope not in COMPATIBLE_ENVELOPES:
         raise ValueError(
             f"envelope must be one of {', '.join(COMPATIBLE_ENVELOPES)}; got {envelope!r}"

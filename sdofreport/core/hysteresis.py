@@ -619,6 +619,8 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
     iterations, subdivided steps, all converged (1/0), E_input, E_viscous, ∫F du,
     E_damper, stopped (1/0: |u| >= ``u_stop`` or not finite), samples stored.
     The run stops after the step in which |u| >= ``u_stop``.
+    Short names (DEVELOPERS.md, names of inputs): ``ag`` acceleration_m_s2 [m/s²],
+    ``dt`` time_step_s [s], ``n_sub`` sub-steps per sample, ``m`` mass_kg [kg].
     """
     npts = ag.size
     sc = np.zeros(_STATE)
