@@ -82,10 +82,14 @@ def integer(value, name: str, minimum: int) -> int:
     return int(value)
 
 
-def one_of(value, name: str, choices) -> str:
-    """``value`` unchanged, or ValueError listing ``choices`` unless it is one of them."""
+def one_of(value, name: str, choices, unit: str | None = None) -> str:
+    """``value`` unchanged, or ValueError listing ``choices`` unless it is one of them.
+
+    ``unit`` (``"-"`` for a dimensionless option) is written in brackets when given.
+    """
     if not isinstance(value, str) or value not in choices:
-        raise ValueError(f"{name} must be one of {', '.join(choices)}; got {value!r}")
+        bracket = "" if unit is None else f" [{unit}]"
+        raise ValueError(f"{name} must be one of {', '.join(choices)}{bracket}; got {value!r}")
     return value
 
 

@@ -72,6 +72,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._checks import period_pair
 from sdofreport.core._checks import positive as _positive
 import scipy.fft
@@ -157,9 +158,7 @@ class CompatibleRecord:
 
 
 def _count(value, name: str) -> int:
-    if isinstance(value, bool) or not isinstance(value, (int, np.integer)) or value < 0:
-        raise ValueError(f"{name} must be an integer >= 0 [-]; got {value!r}")
-    return int(value)
+    return _checks.integer(value, name, 0)
 
 
 def _period_range(period_range_s, t_pos, f_max, duration):
@@ -381,15 +380,10 @@ def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, time_s
             f"duration_s / time_step_s must give at least 64 samples; got {duration!r} s / "
             f"{dt!r} s = {n} samples"
         )
-    if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
-        raise ValueError(f"seed must be an integer >= 0 [-]; got {seed!r}")
-    zeta = _positive(damping_ratio, "damping_ratio", "-")
-    if zeta >= 1.0:
-        raise ValueError(f"damping_ratio must be a ratio in (0, 1) [-]; got {damping_ratio!r}")
-    if envelope not in COMPATIBLE_ENVELOPES:
-        raise ValueError(
-            f"envelope must be one of {', '.join(COMPATIBLE_ENVELOPES)}; got {envelope!r}"
-        )
+    _checks.integer(seed, "seed", 0)
+    zeta = _checks.in_range(damping_ratio, "damping_ratio", "-", 0.0, 1.0, low_open=True,
+                            hint=_checks.PERCENT_HINT)
+    _checks.one_of(envelope, "envelope", COMPATIBLE_ENVELOPES)
     iterations = _count(iterations, "iterations")
     adjustments = _count(adjustments, "adjustments")
     tol = _positive(tolerance, "tolerance", "-")

@@ -32,6 +32,7 @@ import math
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
 from sdofreport.core.exact import (
     _check_ground_acceleration,
@@ -70,9 +71,7 @@ def newmark_parameters(method="newmark-average", gamma=None, beta=None):
     tuple of float
         ``(gamma, beta)``. [-]
     """
-    if method not in METHODS:
-        allowed = ", ".join(METHODS)
-        raise ValueError(f"method must be one of {allowed}; got {method!r}")
+    _checks.one_of(method, "method", METHODS)
     g0, b0 = METHODS[method]
     g = g0 if gamma is None else gamma
     b = b0 if beta is None else beta

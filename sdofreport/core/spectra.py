@@ -83,6 +83,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
 from sdofreport.core.exact import (
     _check_ground_acceleration,
@@ -574,9 +575,7 @@ def _recurrence_samples(ag, shift, coef, cdamp, kstiff, u_init, v_init, hist_u, 
 
 # ---------------------------------------------------------------------- plumbing
 def _check_method(method, gamma, beta):
-    if method not in SPECTRUM_METHODS:
-        allowed = ", ".join(SPECTRUM_METHODS)
-        raise ValueError(f"method must be one of {allowed}; got {method!r}")
+    _checks.one_of(method, "method", SPECTRUM_METHODS)
     if method == "exact":
         if gamma is not None or beta is not None:
             raise ValueError(

@@ -162,7 +162,7 @@ def test_no_iterations_gives_a_record():
     ({"envelope": "boxcar"}, r"envelope must be one of saragoni-hart, trapezoidal; got 'boxcar'"),
     ({"duration_s": 0.2}, r"duration_s / time_step_s must give at least 64 samples"),
     ({"period_range_s": (0.01, 2.0)}, r"period_range_s \(0.01, 2.0\) \[s\] must lie within"),
-    ({"damping_ratio": 0.0}, r"damping_ratio must be a finite number > 0 \[-\]; got 0.0"),
+    ({"damping_ratio": 0.0}, r"damping_ratio must be in \(0, 1\) \[-\]; got 0.0"),
     ({"iterations": 1.5}, r"iterations must be an integer >= 0 \[-\]; got 1.5"),
     ({"adjustments": -2}, r"adjustments must be an integer >= 0 \[-\]; got -2"),
 ])
