@@ -73,7 +73,7 @@ def damping_ratio(value, name: str = "damping_ratio") -> float:
 
 
 def integer(value, name: str, minimum: int) -> int:
-    """``value`` as an int, or ValueError unless it is an ``int`` (or numpy integer) >= ``minimum``.
+    """``value`` as an int, or ValueError unless it is an int (or numpy integer) >= ``minimum``.
 
     ``bool`` and floats (even integral ones such as ``4.0``) are refused.
     """

@@ -390,7 +390,8 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
     stats[7] = up[1]
 
 
-def biaxial_plastic(acceleration_1_m_s2, acceleration_2_m_s2, time_step_s, *, mass_kg, damping_coefficient,
+def biaxial_plastic(acceleration_1_m_s2, acceleration_2_m_s2, time_step_s, *, mass_kg,
+                    damping_coefficient,
                     linear_stiffness_n_m, element_stiffness_n_m, yield_force_n,
                     stick_damping=0.0, gravity_stiffness_n_m=0.0, friction=None,
                     weight_n=0.0, substeps=1, tolerance=1e-8, max_iterations=10,

@@ -835,7 +835,9 @@ def oscillator_histories(acceleration_m_s2, time_step_s, natural_periods_s, damp
             f"{n} oscillators"
         ) from None
     if not (np.all(np.isfinite(u0)) and np.all(np.isfinite(v0))):
-        raise ValueError("initial_displacement_m [m] and initial_velocity_m_s [m/s] must be finite")
+        raise ValueError(
+            "initial_displacement_m [m] and initial_velocity_m_s [m/s] must be finite"
+        )
     if np.any((periods == 0.0) & ((u0 != 0.0) | (v0 != 0.0))):
         raise ValueError("a rigid oscillator (natural_period 0 [s]) must start at rest")
     raw, hist, _ = _run(ag, dt, periods, zeta, method, gamma, beta, steps_per_period, True,
@@ -889,11 +891,14 @@ def response_spectrum(acceleration_m_s2, time_step_s, periods_s, damping_ratios,
     """
     ag = _check_ground_acceleration(acceleration_m_s2)
     dt = _check_time_step(time_step_s)
-    t_list = np.atleast_1d(np.asarray(periods_s, dtype=np.float64)) if _numeric(periods_s) else None
+    t_list = (np.atleast_1d(np.asarray(periods_s, dtype=np.float64))
+              if _numeric(periods_s) else None)
     z_list = (np.atleast_1d(np.asarray(damping_ratios, dtype=np.float64))
               if _numeric(damping_ratios) else None)
     if t_list is None or t_list.ndim != 1:
-        raise ValueError(f"periods_s must be a number or a 1-D list of numbers [s]; got {periods_s!r}")
+        raise ValueError(
+            f"periods_s must be a number or a 1-D list of numbers [s]; got {periods_s!r}"
+        )
     if z_list is None or z_list.ndim != 1:
         raise ValueError(
             f"damping_ratios must be a number or a 1-D list of numbers [-]; got {damping_ratios!r}"

@@ -107,7 +107,8 @@ def test_time_step():
 @pytest.mark.parametrize("value, match", [
     ([0.0], r"^acceleration_m_s2 must have at least 2 samples \[m/s²\]; got 1$"),
     ([0.0, math.inf, 1.0], r"^acceleration_m_s2 must be finite \[m/s²\]; got inf at sample 1$"),
-    (np.zeros((2, 3)), r"^acceleration_m_s2 must be 1-D \[m/s²\]; got an array of shape \(2, 3\)$"),
+    (np.zeros((2, 3)),
+     r"^acceleration_m_s2 must be 1-D \[m/s²\]; got an array of shape \(2, 3\)$"),
     ([0.0, "x"], r"^acceleration_m_s2 must be a 1-D array of numbers \[m/s²\]; got list$"),
 ])
 def test_acceleration_history_refuses(value, match):

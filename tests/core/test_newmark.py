@@ -66,7 +66,8 @@ def test_linear_acceleration_step_refused_above_limit(runner):
     dt = 1.001 * limit * period
     ag = np.zeros(50)
     ag[1] = 1.0
-    message = r"time_step_s 0\.0551\d* \[s\] / natural_period 0\.1 \[s\] .* stability limit 0\.5513"
+    message = (r"time_step_s 0\.0551\d* \[s\] / natural_period 0\.1 \[s\] .* "
+               r"stability limit 0\.5513")
     with pytest.raises(ValueError, match=message):
         if runner == "newmark_beta":
             newmark_beta(ag, dt, period, 0.05, "newmark-linear")

@@ -136,7 +136,7 @@ def test_pruning_agrees_with_brute_force():
      r"acceleration_1_m_s2 and acceleration_2_m_s2 must have the same length"),
 ])
 def test_bad_arguments(kwargs, match):
-    args = {"acceleration_1_m_s2": np.zeros(20), "acceleration_2_m_s2": np.zeros(20), "time_step_s": 0.01,
-            "periods_s": [1.0], "damping_ratio": 0.05} | kwargs
+    args = {"acceleration_1_m_s2": np.zeros(20), "acceleration_2_m_s2": np.zeros(20),
+            "time_step_s": 0.01, "periods_s": [1.0], "damping_ratio": 0.05} | kwargs
     with pytest.raises(ValueError, match=match):
         rotd_spectrum(**args)
