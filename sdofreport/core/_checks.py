@@ -17,6 +17,14 @@ import numpy as np
 PERCENT_HINT = " (a percentage? use 0.05 for 5 %)"
 
 
+def _floats(value) -> np.ndarray | None:
+    """``value`` as a float64 array, or None when it holds non-numbers."""
+    try:
+        return np.asarray(value, dtype=np.float64)
+    except (TypeError, ValueError):
+        return None
+
+
 def number(value, name: str, unit: str, relation: str = "") -> float:
     """``value`` as a float, or ValueError unless it is a number (``bool`` refused)."""
     what = f"a number {relation}".rstrip()
@@ -115,12 +123,11 @@ def finite_array(value, name: str, unit: str, *, min_size: int = 1) -> np.ndarra
 
     The message names the first bad sample and its index.
     """
-    try:
-        x = np.asarray(value, dtype=np.float64)
-    except (TypeError, ValueError):
+    x = _floats(value)
+    if x is None:
         raise ValueError(
             f"{name} must be a 1-D array of numbers [{unit}]; got {type(value).__name__}"
-        ) from None
+        )
     if x.ndim != 1:
         raise ValueError(f"{name} must be 1-D [{unit}]; got an array of shape {x.shape}")
     if x.size < min_size:
@@ -158,18 +165,11 @@ def same_length(first: np.ndarray, second: np.ndarray, names: tuple[str, str],
 def oscillators(natural_periods_s, damping_ratios, *, allow_zero_period=True,
                 periods_name="natural_periods_s", ratios_name="damping_ratios"):
     """Broadcast periods [s] and damping ratios [-] to two flat float64 arrays."""
-    try:
-        periods = np.asarray(natural_periods_s, dtype=np.float64)
-    except (TypeError, ValueError):
-        raise ValueError(
-            f"{periods_name} must be numbers >= 0 [s]; got {natural_periods_s!r}"
-        ) from None
-    try:
-        zetas = np.asarray(damping_ratios, dtype=np.float64)
-    except (TypeError, ValueError):
-        raise ValueError(
-            f"{ratios_name} must be numbers in [0, 1) [-]; got {damping_ratios!r}"
-        ) from None
+    periods, zetas = _floats(natural_periods_s), _floats(damping_ratios)
+    if periods is None:
+        raise ValueError(f"{periods_name} must be numbers >= 0 [s]; got {natural_periods_s!r}")
+    if zetas is None:
+        raise ValueError(f"{ratios_name} must be numbers in [0, 1) [-]; got {damping_ratios!r}")
     if periods.size == 0:
         raise ValueError(f"{periods_name} must hold at least one period [s]; got none")
     if zetas.size == 0:
@@ -206,10 +206,10 @@ def values_above(value, name: str, unit: str, minimum: float, *,
 
     A scalar becomes a one-element array; the message names the first bad value.
     """
-    try:
-        x = np.atleast_1d(np.asarray(value, dtype=np.float64))
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be numbers [{unit}]; got {value!r}") from None
+    x = _floats(value)
+    if x is None:
+        raise ValueError(f"{name} must be numbers [{unit}]; got {value!r}")
+    x = np.atleast_1d(x)
     if x.ndim != 1 or x.size == 0:
         raise ValueError(f"{name} must be a non-empty 1-D list [{unit}]; got shape {x.shape}")
     bad = ~np.isfinite(x) | ((x <= minimum) if strict else (x < minimum))
