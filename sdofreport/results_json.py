@@ -19,7 +19,6 @@ from sdofreport.serialize import (
     array_to_list,
     finite_or_none,
     intensity_to_dict,
-    spectrum_csv_block,
     spectrum_csv_header,
     spectrum_csv_rows,
 )
@@ -293,37 +292,11 @@ def _csv_text(rows: list[list]) -> str:
 
 
 def spectra_csv(results: Results) -> str:
-    """``data/spectra.csv``: the header, then :func:`spectrum_csv_rows` of each record.
-
-    The text is what ``csv.writer`` gives for those rows. Most of its time is spent
-    turning floats into text, so a record whose numbers fit one float64 block is written
-    directly: its damping and period texts are made once each instead of once per row,
-    and the spectral values go through ``repr`` of one nested list.
-    """
-    parts = [_csv_text([spectrum_csv_header(("record",))])]
+    """``data/spectra.csv``: the header, then :func:`spectrum_csv_rows` of each record."""
+    rows = [spectrum_csv_header(("record",))]
     for item in results.records:
-        block = spectrum_csv_block(item.spectrum)
-        if block is None or not block.size:
-            parts.append(_csv_text(spectrum_csv_rows(item.spectrum, (item.record.id,))))
-        else:
-            parts.append(_block_csv_text(item.record.id, item.spectrum, block))
-    return "".join(parts)
-
-
-def _block_csv_text(record_id, spectrum, block) -> str:
-    """``_csv_text`` of ``[record_id, *row]`` for each row of ``block`` (float64, 7 wide).
-
-    ``csv.writer`` writes a float as ``str(value)``, i.e. ``float.__repr__``, which has
-    no comma, bracket, space, quote or line break, so it is never quoted; ``repr`` of a
-    list of floats is those texts joined by ``", "`` in brackets. The record id is
-    quoted (or not) by ``csv.writer`` itself, in a row of more than one field.
-    """
-    lead = _csv_text([[record_id, 0.0]])[:-len("0.0\n")]
-    periods = [repr(period) for period in spectrum.periods_s.tolist()]
-    starts = [f"{lead}{zeta!r},{period},"
-              for zeta in spectrum.damping.tolist() for period in periods]
-    values = repr(block[:, 2:].tolist())[2:-2].replace(", ", ",").split("],[")
-    return "".join([start + text + "\n" for start, text in zip(starts, values, strict=True)])
+        rows.extend(spectrum_csv_rows(item.spectrum, (item.record.id,)))
+    return _csv_text(rows)
 
 
 PEAKS_CSV_HEADER = ["system", "record", "peak_displacement_m", "peak_drift_ratio",

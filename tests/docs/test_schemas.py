@@ -22,7 +22,7 @@ from sdofreport.project.schema import SCALING_RULES, STATISTICS, SYSTEM_KINDS
 from sdofreport.results_json import RESULTS_SCHEMA
 from sdofreport.schemas import SCHEMA_NAMES, load_schema, schema_text
 from sdofreport.site.render import MANIFEST_SCHEMA
-from tests.conftest import EXAMPLE, ONE_SYSTEM, PROJECT_HEAD, write_test_records
+from tests.conftest import ONE_SYSTEM, PROJECT_HEAD, write_test_records
 
 from .conftest import invoke, read_site
 
@@ -107,9 +107,8 @@ def _build(group, project, out):
 
 
 @pytest.fixture(scope="module")
-def example_site(tmp_path_factory, command_group):
-    root = tmp_path_factory.mktemp("example")
-    return _build(command_group, EXAMPLE / "sdofreport.toml", root / "site")
+def example_site(built_example):
+    return read_site(built_example.site)
 
 
 @pytest.fixture(scope="module")
