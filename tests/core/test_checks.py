@@ -150,10 +150,10 @@ def test_values_above_accepts_a_scalar():
 @pytest.mark.parametrize("periods, ratios, match", [
     ([], 0.05, r"^natural_periods_s must hold at least one period \[s\]; got none$"),
     ([-0.2], 0.05, r"^natural_periods_s must be finite and >= 0 \[s\]; got -0.2$"),
-    ([0.5], 1.0, r"^damping_ratios must be in \[0, 1\) \[-\] \(critical and over-damped "
-                 r"systems are not supported\); got 1.0 \(a percentage\? use 0.05 for 5 %\)$"),
-    ([0.5, 1.0], [0.02, 0.05, 0.1], r"^natural_periods_s \(shape \(2,\)\) and damping_ratios "
-                                    r"\(shape \(3,\)\) must broadcast"),
+    ([0.5], 1.0, (r"^damping_ratios must be in \[0, 1\) \[-\] \(critical and over-damped "
+                  r"systems are not supported\); got 1.0 \(a percentage\? use 0.05 for 5 %\)$")),
+    ([0.5, 1.0], [0.02, 0.05, 0.1], (r"^natural_periods_s \(shape \(2,\)\) and damping_ratios "
+                                     r"\(shape \(3,\)\) must broadcast")),
 ])
 def test_oscillators_refuse(periods, ratios, match):
     with pytest.raises(ValueError, match=match):
