@@ -300,7 +300,7 @@ def synthesize(target: SynthesisTarget, folder, *, count=1, duration_s=25.0, dt_
         try:
             result = spectrum_compatible_record(
                 target.periods_s, target.sa_g, duration_s, dt_s, seed=seed + i,
-                damping=zeta, envelope=envelope, period_range_s=period_range_s)
+                damping_ratio=zeta, envelope=envelope, period_range_s=period_range_s)
         except ValueError as exc:
             raise SdofreportError(f"cannot synthesize for {target.description}: {exc}.") from None
         records.append(result)

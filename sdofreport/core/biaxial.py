@@ -137,7 +137,7 @@ def _hermite_peak(u: np.ndarray, v: np.ndarray, dt: float) -> float:
     return max(best, float(np.max(np.hypot(x[0], x[1]))))
 
 
-def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
+def biaxial_elastic(acceleration_1_m_s2, acceleration_2_m_s2, time_step_s, natural_period_s,
                     damping_ratio, *, stiffness_n_m=None, method="exact"
                     ) -> BiaxialResponse:
     """
@@ -145,11 +145,11 @@ def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
 
     Parameters
     ----------
-    acceleration_1, acceleration_2 : array-like
+    acceleration_1_m_s2, acceleration_2_m_s2 : array-like
         The pair's components, same step; the shorter is padded with zeros. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval. [s]
-    natural_period : float
+    natural_period_s : float
         Period of the oscillator (the same in every direction). [s]
     damping_ratio : float
         Fraction of critical damping. [-]
@@ -165,8 +165,8 @@ def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
     """
     from sdofreport.core.spectra import oscillator_histories
 
-    a1 = np.asarray(acceleration_1, dtype=float)
-    a2 = np.asarray(acceleration_2, dtype=float)
+    a1 = np.asarray(acceleration_1_m_s2, dtype=float)
+    a2 = np.asarray(acceleration_2_m_s2, dtype=float)
     n = max(a1.size, a2.size)
     ag = np.zeros((2, n))
     ag[0, :a1.size] = a1
@@ -174,7 +174,7 @@ def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
     u, v, at = np.empty((2, n)), np.empty((2, n)), np.empty((2, n))
     refined = []
     for i in range(2):
-        h = oscillator_histories(ag[i], time_step, np.array([natural_period]),
+        h = oscillator_histories(ag[i], time_step_s, np.array([natural_period_s]),
                                  np.array([damping_ratio]), method=method)
         u[i], v[i], at[i] = (h.displacement_m[0], h.velocity_m_s[0],
                              h.total_acceleration_m_s2[0])
@@ -182,9 +182,9 @@ def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
     force = None if stiffness_n_m is None else stiffness_n_m * u
     # The resultant between samples too (cubic Hermite interpolation of u with u̇ in each
     # step), and never below a direction's own refined peak.
-    peak_u = max(_hermite_peak(u, v, time_step), *refined)
+    peak_u = max(_hermite_peak(u, v, time_step_s), *refined)
     return BiaxialResponse(
-        time_s=np.arange(n) * time_step, displacement_m=u, velocity_m_s=v,
+        time_s=np.arange(n) * time_step_s, displacement_m=u, velocity_m_s=v,
         total_accel_m_s2=at, force_n=force, peak_displacement_m=peak_u,
         peak_displacement_per_direction_m=tuple(refined),
         peak_total_accel_m_s2=float(np.max(_resultant(at))),
@@ -257,6 +257,8 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
     and k_p keeps ``p[1]``. ``hist`` (11, npts): u1, u2, v1, v2, at1, at2, F1, F2,
     E_input, E_viscous, ∫F·du. ``stats`` (8,): max iterations, subdivided steps, all
     converged, stopped, samples stored, final |f_element|, final up1, final up2.
+    Short names (DEVELOPERS.md, names of inputs): ``ag`` acceleration_1/2_m_s2 [m/s²],
+    ``dt`` time_step_s [s], ``n_sub`` sub-steps per sample, ``m`` mass_kg [kg].
     """
     npts = ag.shape[1]
     q = p.copy()
@@ -388,7 +390,8 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
     stats[7] = up[1]
 
 
-def biaxial_plastic(acceleration_1, acceleration_2, time_step, *, mass_kg, damping_coefficient,
+def biaxial_plastic(acceleration_1_m_s2, acceleration_2_m_s2, time_step_s, *, mass_kg,
+                    damping_coefficient,
                     linear_stiffness_n_m, element_stiffness_n_m, yield_force_n,
                     stick_damping=0.0, gravity_stiffness_n_m=0.0, friction=None,
                     weight_n=0.0, substeps=1, tolerance=1e-8, max_iterations=10,
@@ -398,9 +401,9 @@ def biaxial_plastic(acceleration_1, acceleration_2, time_step, *, mass_kg, dampi
 
     Parameters
     ----------
-    acceleration_1, acceleration_2 : array-like
+    acceleration_1_m_s2, acceleration_2_m_s2 : array-like
         The pair's components (same step); the shorter is padded with zeros. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval. [s]
     mass_kg : float
         Mass m. [kg]
@@ -433,8 +436,8 @@ def biaxial_plastic(acceleration_1, acceleration_2, time_step, *, mass_kg, dampi
     -------
     BiaxialResponse
     """
-    a1 = np.asarray(acceleration_1, dtype=float)
-    a2 = np.asarray(acceleration_2, dtype=float)
+    a1 = np.asarray(acceleration_1_m_s2, dtype=float)
+    a2 = np.asarray(acceleration_2_m_s2, dtype=float)
     n = max(a1.size, a2.size)
     ag = np.zeros((2, n))
     ag[0, :a1.size] = a1
@@ -449,7 +452,7 @@ def biaxial_plastic(acceleration_1, acceleration_2, time_step, *, mass_kg, dampi
     scale = mass_kg * float(np.max(_resultant(ag))) or 1.0
     hist = np.zeros((11, n))
     stats = np.zeros(8)
-    integrate_biaxial(ag, float(time_step), int(substeps), float(mass_kg),
+    integrate_biaxial(ag, float(time_step_s), int(substeps), float(mass_kg),
                       float(damping_coefficient), p, float(gravity_stiffness_n_m), w_fric,
                       tolerance * scale, int(max_iterations), int(max_halvings),
                       float(instability_limit_m), hist, stats)
@@ -469,7 +472,7 @@ def biaxial_plastic(acceleration_1, acceleration_2, time_step, *, mass_kg, dampi
               "hysteretic_j": e_f - strain}
     res = _resultant(u)
     return BiaxialResponse(
-        time_s=np.arange(stored) * time_step, displacement_m=u.copy(),
+        time_s=np.arange(stored) * time_step_s, displacement_m=u.copy(),
         velocity_m_s=v.copy(), total_accel_m_s2=at.copy(), force_n=f.copy(),
         peak_displacement_m=float(np.max(res)),
         peak_displacement_per_direction_m=tuple(float(x) for x in np.max(np.abs(u), 1)),
