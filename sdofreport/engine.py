@@ -954,7 +954,9 @@ def warm_kernels(project: Project) -> None:
     they first run.
     """
     from sdofreport.core.spectra import load_history_kernel, load_peak_kernel
+    from sdofreport.runtime import configure
 
+    configure()  # before numba loads: its cache folder (sdofreport.runtime)
     try:
         load_peak_kernel()
         run_job("record", _record_args(_made_up_record(), project.analysis))

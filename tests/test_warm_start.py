@@ -76,8 +76,10 @@ def test_cold_two_worker_build_matches_one_process(project_factory, valid_projec
 
 _PROBE = """
 import json, sys
-import sdofreport.core._jit  # first: it points numba's cache at the per-user folder
+from sdofreport.runtime import configure
+configure()  # first, as the command line does: numba's cache at the per-user folder
 import numba
+from sdofreport.core._jit import _Kernel
 from sdofreport import engine
 from sdofreport.cache import ResultCache
 from sdofreport.jobs import run_job
@@ -92,7 +94,8 @@ MODULES = [importlib.import_module(f"sdofreport.core.{info.name}")
 def loaded():
     return {f"{module.__name__}.{name}": sorted(map(str, value.signatures))
             for module in MODULES for name, value in vars(module).items()
-            if isinstance(value, numba.core.registry.CPUDispatcher)}
+            if isinstance(value, numba.core.registry.CPUDispatcher)
+            or isinstance(value, _Kernel) and value.dispatcher is not None}
 
 project = load_project(sys.argv[1])
 engine.warm_kernels(project)
