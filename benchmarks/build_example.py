@@ -54,6 +54,8 @@ _CHILD = textwrap.dedent("""
     import json, resource, sys, time
     t0, c0 = time.perf_counter(), time.process_time()
     from sdofreport.build import build_site
+    from sdofreport.runtime import configure
+    configure()  # as the command line does
     project, output, cache, jobs = sys.argv[1:5]
     outcome = build_site(project, output, cache_dir=cache, jobs=int(jobs))
     wall = time.perf_counter() - t0
@@ -193,7 +195,7 @@ def main() -> None:
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
         jobs = os.cpu_count() or 1
-        ratios = []
+        ratios, cpu_ratios = [], []
         for repeat in range(max(1, args.fresh_repeats)):
             root = tmp / f"machine-{repeat}"  # a machine with no caches at all
             fresh = run_build(EXAMPLE, root / "site", root / "results-0", jobs,
@@ -205,14 +207,18 @@ def main() -> None:
             report("example, cold (kernels compiled, empty cache)", cold,
                    {"wall_s": (20.0, "wall s"), "peak_mb": (600.0, "peak MB")})
             ratios.append(fresh["wall_s"] / cold["wall_s"])
-            print(f"    fresh machine / compiled kernels: {fresh['wall_s']:.2f} s / "
-                  f"{cold['wall_s']:.2f} s = {ratios[-1]:.2f}x; kernel compilation "
-                  f"about {fresh['wall_s'] - cold['wall_s']:.1f} s{_stolen(fresh)}",
-                  flush=True)
+            cpu_ratios.append(fresh["cpu_s"] / cold["cpu_s"])
+            print(f"    fresh machine / compiled kernels: wall {fresh['wall_s']:.2f} s / "
+                  f"{cold['wall_s']:.2f} s = {ratios[-1]:.2f}x; CPU {fresh['cpu_s']:.2f} s "
+                  f"/ {cold['cpu_s']:.2f} s = {cpu_ratios[-1]:.2f}x; kernel compilation "
+                  f"about {fresh['wall_s'] - cold['wall_s']:.1f} s wall, "
+                  f"{fresh['cpu_s'] - cold['cpu_s']:.1f} s CPU{_stolen(fresh)}", flush=True)
         judged = _median(ratios)
         print(f"first build on a fresh machine against the compiled build (median of "
-              f"{len(ratios)}): {judged:.2f}x (goal <= 2x: "
-              f"{'PASS' if judged <= 2.0 else 'MISS'})")
+              f"{len(ratios)}): wall {judged:.2f}x (goal <= 2x: "
+              f"{'PASS' if judged <= 2.0 else 'MISS'}); CPU {_median(cpu_ratios):.2f}x "
+              f"(information: on a busy shared machine the CPU time, build process and "
+              f"its workers together, varies less than the wall time)")
         warm = run_build(EXAMPLE, root / "site", root / "results-1", jobs,
                          cache_root=root / "caches")
         report("example, warm (nothing changed)", warm,

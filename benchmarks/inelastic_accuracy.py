@@ -24,6 +24,9 @@ from scipy import signal
 import sdofreport.core.inelastic_spectra as inelastic
 from sdofreport.core.spectra import response_spectrum
 from sdofreport.core.stochastic import kanai_tajimi_accelerogram
+from sdofreport.runtime import configure
+
+configure()  # as the command line does: numba's cache folder and vector width
 
 GOAL = 5e-3  # relative, issue 14
 

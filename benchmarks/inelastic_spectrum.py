@@ -27,6 +27,9 @@ import numpy as np
 
 from sdofreport.core.inelastic_spectra import constant_ductility_spectrum
 from sdofreport.core.stochastic import kanai_tajimi_accelerogram
+from sdofreport.runtime import configure
+
+configure()  # as the command line does: numba's cache folder and vector width
 
 GOAL_S = 2.0  # seconds, issue
 NPTS = 10_000

@@ -31,6 +31,9 @@ from sdofreport.core._jit import load_numba
 from sdofreport.core import spectra
 from sdofreport.core.exact import exact_coefficients
 from sdofreport.core.spectra import _recurrence_peaks, substep_counts
+from sdofreport.runtime import configure
+
+configure()  # as the command line does: numba's cache folder and vector width
 
 GOAL_EXACT = 1000e6  # executed oscillator-steps/s, exact kernel (issue)
 GOAL_RATIO_NUMPY = 25.0  # × the numpy loop (issue)

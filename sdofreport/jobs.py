@@ -24,6 +24,7 @@ from sdofreport.core.intensity import (
 )
 from sdofreport.core.rotd import rotd_spectrum
 from sdofreport.core.spectra import oscillator_histories, response_spectrum
+from sdofreport.runtime import configure
 
 
 def record_products(acceleration, dt_s) -> dict:
@@ -279,5 +280,7 @@ JOBS = {"record": record_job, "pair": pair_job, "responses": responses_job,
 
 
 def run_job(kind: str, args: tuple) -> dict:
-    """Dispatch one planned job by kind."""
+    """Dispatch one planned job by kind, in a process set up for the kernels
+    (:func:`sdofreport.runtime.configure`: a spawned or Dask worker has not been)."""
+    configure()
     return JOBS[kind](*args)

@@ -23,12 +23,15 @@ from hypothesis import settings
 from sdofreport.core.stochastic import kanai_tajimi_accelerogram
 from sdofreport.core.units import G
 from sdofreport.records.writers import write_headed, write_two_column
+from sdofreport.runtime import configure
 
 # Property tests draw the same examples on every run, so a CI run is reproducible; set
 # HYPOTHESIS_PROFILE=explore to draw fresh ones locally.
 settings.register_profile("repeatable", derandomize=True)
 settings.register_profile("explore", derandomize=False)
 settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "repeatable"))
+# The test process uses numba's kernel cache as the command line does.
+configure()
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "site_examples" / "harbourview_cold_store"
 
@@ -217,7 +220,7 @@ def fresh_venv(folder: Path) -> tuple[Path, dict]:
         Path(purelib.stdout.strip(), "_test_parent_packages.pth").write_text(
             "\n".join(site.getsitepackages()) + "\n", encoding="utf-8")
     # Not inherited either: numba settings this test process made for itself
-    # (sdofreport.core._jit sets NUMBA_CACHE_DIR when it is imported).
+    # (sdofreport.runtime.configure sets NUMBA_CACHE_DIR).
     env = {k: v for k, v in os.environ.items()
            if k not in ("PYTHONPATH", "PYTHONHOME") and not k.startswith("NUMBA_")}
     env["PATH"] = f"{scripts}{os.pathsep}{env.get('PATH', '')}"

@@ -229,15 +229,16 @@ def test_the_temporary_fallback_planted_by_another_user_is_refused(tmp_path, mon
 
 
 def test_numba_and_pint_caches_follow_the_same_rule(tmp_path, monkeypatch):
+    from sdofreport import runtime
     from sdofreport.core import _jit
 
     monkeypatch.setenv("NUMBA_CACHE_DIR", str(_shared(tmp_path / "numba")))
-    assert _jit._choose_cache_folder() is False
+    assert runtime._choose_cache_folder() is False
     monkeypatch.setattr(_jit, "_DISK_CACHE", False)
     assert _jit._with_cache_choice({"cache": True, "nogil": True}) == \
         {"cache": False, "nogil": True}
     monkeypatch.setenv("NUMBA_CACHE_DIR", str(tmp_path / "private-numba"))
-    assert _jit._choose_cache_folder() is True
+    assert runtime._choose_cache_folder() is True
     # pint's cache folder is a user_cache_dir folder, tested above; a shared XDG root
     # is passed over for the next candidate.
     monkeypatch.setenv("XDG_CACHE_HOME", str(_shared(tmp_path / "xdg")))

@@ -19,6 +19,7 @@ from sdofreport import __version__
 from sdofreport.cli.options import deprecated, emit, output_option, resolve_format
 from sdofreport.core.spectra import SPECTRUM_METHODS
 from sdofreport.errors import SdofreportError
+from sdofreport.runtime import configure
 
 log = logging.getLogger("sdofreport")
 
@@ -82,6 +83,7 @@ def cli(ctx: click.Context, verbose: bool) -> None:
         stream=sys.stderr,
     )
     _quiet_warnings(verbose)
+    configure()  # numba's cache folder and vector width (sdofreport.runtime)
 
 
 def _quiet_warnings(verbose: bool) -> None:

@@ -1,79 +1,30 @@
-"""Numba set-up shared by the compiled kernels, and numba loaded only when a kernel runs.
-
-Numba caches compiled machine code next to the source file by default. An installed
-package folder is often read-only (and in CI so is HOME), and then cached functions fail
-at import. Unless the user has chosen ``NUMBA_CACHE_DIR``, we point it at a safe,
-writable per-user cache folder (:func:`sdofreport._cachedir.user_cache_dir`). Numba's
-cache index files are pickles, loaded back when a kernel is compiled, so a folder that
-another user could write (also one the user chose) is not used: kernels are then
-compiled without a disk cache, and a warning says so. This must happen before numba is
-imported, which is why every kernel module gets numba through here.
+"""Numba loaded only when a kernel runs; every kernel module gets ``njit`` from here.
 
 Importing numba costs about 0.3 s, and a build whose results all come from the cache
 runs no kernel. So :func:`njit` returns a stand-in that records the function and its
-options; the first call of any kernel (or :func:`load_numba`) imports numba, compiles or
-loads every recorded kernel exactly as the decorator would have, and puts the numba
-dispatchers in place of the stand-ins in our modules, so kernels that call one another
-are compiled against dispatchers. Kernels defined after that are compiled at once.
+options; the first call of any kernel (or :func:`load_numba`) imports numba and
+compiles or loads every recorded kernel exactly as the decorator would have. The
+stand-ins stay where they are (no other module is changed): each forwards calls and
+attributes to its numba dispatcher, and numba types a stand-in as that dispatcher
+(``_numba_type_``), so kernels that call one another are compiled against dispatchers.
+Kernels defined after that are compiled at once.
+
+Numba's disk cache is used only when :func:`sdofreport.runtime.configure` has found a
+safe folder for it (it calls :func:`use_disk_cache`); that choice, like the vector width,
+is made there, once per process, and never on import.
 """
 
 from __future__ import annotations
 
-import os
-import sys
 from typing import Any, Callable
-
-from sdofreport._cachedir import private_folder, report_unusable, user_cache_dir
-
-
-def _choose_cache_folder() -> bool:
-    """Point ``NUMBA_CACHE_DIR`` at a safe folder; False when there is none (then the
-    kernels are compiled without numba's disk cache)."""
-    chosen = os.environ.get("NUMBA_CACHE_DIR")
-    if chosen:
-        folder, reason = private_folder(chosen)
-        if folder is not None:
-            return True
-        report_unusable("numba cache (NUMBA_CACHE_DIR)", reason)
-        return False
-    folder = user_cache_dir("numba")
-    if folder is None:
-        return False
-    os.environ["NUMBA_CACHE_DIR"] = folder
-    return True
-
-
-def _wide_vectors() -> None:
-    """
-    Let LLVM use 512-bit vectors where the processor has them.
-
-    On processors with AVX-512, LLVM prefers 256-bit vectors by default (subtarget
-    feature ``prefer-256-bit``), which halves the lanes of our oscillator loops. Turning
-    that preference off keeps the same arithmetic per lane (results are bitwise the same,
-    checked by the tests) and made the exact spectrum kernel about 1.7 times faster on
-    the reference machine (measured; no published source). Skipped when the user has
-    chosen NUMBA_CPU_FEATURES or NUMBA_CPU_NAME, or set SDOFREPORT_NARROW_VECTORS=1.
-    """
-    if any(os.environ.get(name) for name in ("NUMBA_CPU_FEATURES", "NUMBA_CPU_NAME",
-                                                 "SDOFREPORT_NARROW_VECTORS")):
-        return
-    try:
-        import llvmlite.binding as llvm
-
-        features = llvm.get_host_cpu_features()
-        if features.get("avx512f"):
-            os.environ["NUMBA_CPU_FEATURES"] = features.flatten() + ",-prefer-256-bit"
-    except Exception:  # never let a tuning step stop the program
-        return
 
 
 #: Decorator options shared by every kernel: compiled once, cached on disk.
 JIT_OPTIONS = {"cache": True, "fastmath": False, "nogil": True}
 
 _NUMBA: Any = None  # the numba module, once loaded
-#: False when no safe folder was found for numba's cache (chosen now: numba reads
-#: NUMBA_CACHE_DIR when it is imported, and something may import it before a kernel runs).
-_DISK_CACHE = _choose_cache_folder()
+#: True once sdofreport.runtime.configure has found a safe folder for numba's cache.
+_DISK_CACHE = False
 _PENDING: list[_Kernel] = []  # stand-ins made before numba was loaded
 
 
@@ -95,12 +46,26 @@ class _Kernel:
             load_numba()
         return getattr(self.dispatcher, name)
 
+    @property
+    def _numba_type_(self):  # how numba types this stand-in: as its dispatcher
+        if self.dispatcher is None:
+            load_numba()
+        return self.dispatcher._numba_type_
+
     def __repr__(self) -> str:
         return f"<compiled kernel {self.py_func.__module__}.{self.py_func.__qualname__}>"
 
 
+def use_disk_cache(enabled: bool) -> None:
+    """Let the kernels use numba's disk cache (``enabled``: a safe folder was chosen) or
+    not; kernels already compiled keep their choice. Called by
+    :func:`sdofreport.runtime.configure`."""
+    global _DISK_CACHE
+    _DISK_CACHE = bool(enabled)
+
+
 def _with_cache_choice(options: dict) -> dict:
-    """``options`` without numba's disk cache when no safe folder was found for it."""
+    """``options`` without numba's disk cache when no safe folder was chosen for it."""
     return options if _DISK_CACHE else {**options, "cache": False}
 
 
@@ -119,26 +84,19 @@ def njit(function: Callable | None = None, **options):
 
 def load_numba():
     """
-    Import numba (after choosing its cache folder and vector width) and turn every
-    kernel stand-in into a numba dispatcher, also where our modules imported one by
-    name; the numba module. Called by the first kernel call; cheap afterwards.
+    Import numba and give every kernel stand-in its numba dispatcher; the numba module.
+    Called by the first kernel call; cheap afterwards.
     """
     global _NUMBA
     if _NUMBA is not None:
         return _NUMBA
-    _wide_vectors()
     import numba
 
     for kernel in _PENDING:
         kernel.dispatcher = numba.njit(**_with_cache_choice(kernel.options))(kernel.py_func)
-    for name, module in list(sys.modules.items()):
-        if name == "sdofreport" or name.startswith("sdofreport."):
-            for attribute, value in list(vars(module).items()):
-                if isinstance(value, _Kernel):
-                    setattr(module, attribute, value.dispatcher)
     _PENDING.clear()
     _NUMBA = numba
     return numba
 
 
-__all__ = ["JIT_OPTIONS", "load_numba", "njit"]
+__all__ = ["JIT_OPTIONS", "load_numba", "njit", "use_disk_cache"]

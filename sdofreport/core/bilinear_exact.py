@@ -120,10 +120,11 @@ def _state_at(tau, span, u0, v0, ga, gb, q, r, zeta, w):
 @njit(**JIT_OPTIONS)
 def _root(kind, level, lo, hi, f_lo, f_hi, span, u0, v0, ga, gb, q, r, zeta, w):
     """
-    Time in [lo, hi] where ``kind`` 0: ``u − level`` or 1: ``u̇`` changes sign.
+    Time in [lo, hi] where ``kind`` 0.0: ``u − level`` or 1.0: ``u̇`` changes sign.
 
     Newton's method kept inside the bracket (bisection when a step leaves it); returns
-    ``(tau, u, v, converged)``.
+    ``(tau, u, v, converged)``. ``kind`` is a float so that numba compiles one version:
+    an integer constant at a call site is typed as a literal, one specialisation each.
     """
     tau = lo - f_lo * (hi - lo) / (f_hi - f_lo)  # a secant start
     if not (lo < tau < hi):
@@ -133,7 +134,7 @@ def _root(kind, level, lo, hi, f_lo, f_hi, span, u0, v0, ga, gb, q, r, zeta, w):
     tol = 1e-13 * span
     for _ in range(_ROOT_ITERATIONS):
         u, v, acc = _state_at(tau, span, u0, v0, ga, gb, q, r, zeta, w)
-        if kind == 0:
+        if kind == 0.0:
             f = u - level
             df = v
         else:
@@ -223,7 +224,7 @@ def _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop, ce, cp):
                         reach = 0.25 * span * max(abs(v), abs(v1)) * _SCREEN_MARGIN
                         if (max(abs(u), abs(u1)) + reach > peak
                                 or max(abs(d0), abs(d1)) + reach > uy):
-                            te, ue, ve, conv = _root(1, 0.0, 0.0, span, v, v1, span, u,
+                            te, ue, ve, conv = _root(1.0, 0.0, 0.0, span, v, v1, span, u,
                                                      v, ga, gb, q, r, zeta, w)
                             ok = ok and conv
                             if abs(ue) > peak:
@@ -238,7 +239,7 @@ def _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop, ce, cp):
                         # Yield: u − u_p reaches sign·u_y at tau in (lo, hi].
                         sign = 1.0 if d_hi > 0.0 else -1.0
                         level = up + sign * uy
-                        tau, uu, vv, conv = _root(0, level, lo, hi, d_lo - sign * uy,
+                        tau, uu, vv, conv = _root(0.0, level, lo, hi, d_lo - sign * uy,
                                                   d_hi - sign * uy, span, u, v, ga, gb, q,
                                                   r, zeta, w)
                         ok = ok and conv
@@ -253,7 +254,7 @@ def _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop, ce, cp):
                             tau = 0.0
                             uu = u
                         else:
-                            tau, uu, vv, conv = _root(1, 0.0, 0.0, span, v, v1, span, u,
+                            tau, uu, vv, conv = _root(1.0, 0.0, 0.0, span, v, v1, span, u,
                                                       v, ga, gb, q, r, zeta, w)
                             ok = ok and conv
                         u = uu

@@ -381,9 +381,12 @@ def _peak_oriented_force(p, sc, u, st):
     from which reloading on each side started, and the unloading stiffness of each side
     (before deterioration, see :func:`_deteriorate`). Moving in −u is the mirror image of
     moving in +u (:func:`_peak_toward`)."""
+    # one call site, so the rules are compiled (inlined) once, not once for each side
     if u - sc[0] >= 0.0:
-        return _peak_toward(p, sc, st, u, 1.0, 2, 6, 8, 9)
-    return _peak_toward(p, sc, st, -u, -1.0, 4, 7, 9, 8)
+        x, sgn, i_peak, i_zero, i_own, i_other = u, 1.0, 2, 6, 8, 9
+    else:
+        x, sgn, i_peak, i_zero, i_own, i_other = -u, -1.0, 4, 7, 9, 8
+    return _peak_toward(p, sc, st, x, sgn, i_peak, i_zero, i_own, i_other)
 
 
 @njit(inline="always", **JIT_OPTIONS)
