@@ -36,16 +36,6 @@ def _failure(label: str, exc: BaseException) -> BuildError:
                       f"{type(exc).__name__}: {exc}")
 
 
-def fork_context():
-    """The multiprocessing context that forks (workers inherit this process's memory),
-    where the platform has one; else None."""
-    import multiprocessing
-
-    if os.name == "posix" and "fork" in multiprocessing.get_all_start_methods():
-        return multiprocessing.get_context("fork")
-    return None
-
-
 #: Seconds between a worker's checks that the process that started it is still alive.
 PARENT_CHECK_SECONDS = 0.5
 
@@ -83,17 +73,105 @@ def exit_with_parent(parent_pid: int) -> None:
                      name="sdofreport-parent-watch").start()
 
 
-def local_pool(workers: int, context=None) -> ProcessPoolExecutor:
+#: Environment variable that chooses how local worker processes start: ``fork``,
+#: ``spawn`` or ``forkserver`` (multiprocessing's start methods). Unset: ``fork`` on Linux,
+#: the platform's default elsewhere (``spawn`` on macOS and Windows).
+START_METHOD_VARIABLE = "SDOFREPORT_START_METHOD"
+
+
+def start_method() -> str:
     """
-    A local process pool whose workers exit when this process dies
-    (:func:`exit_with_parent`); forking where the platform can. Every pool of the
-    package is made here.
+    How local worker processes start: the value of :data:`START_METHOD_VARIABLE` when
+    set, else ``fork`` on Linux (a worker inherits the compiled kernels and modules this
+    process has loaded, at no cost), else the platform's default.
+
+    Every pool passes its work to the workers explicitly (task arguments, or the
+    ``state`` of :func:`local_pool`), so the results and files are the same whichever
+    method starts them. An unknown or unavailable method is a
+    :class:`~sdofreport.errors.BuildError`.
     """
     import multiprocessing
 
-    context = context or fork_context() or multiprocessing.get_context()
-    return ProcessPoolExecutor(max_workers=workers, mp_context=context,
-                               initializer=exit_with_parent, initargs=(os.getpid(),))
+    available = multiprocessing.get_all_start_methods()  # the platform's default first
+    chosen = os.environ.get(START_METHOD_VARIABLE, "").strip()
+    if chosen:
+        if chosen not in available:
+            raise BuildError(f"{START_METHOD_VARIABLE}={chosen!r}: expected one of "
+                             f"{', '.join(available)} (how worker processes start on "
+                             f"this system); unset it for the default")
+        return chosen
+    if sys.platform.startswith("linux") and "fork" in available:
+        return "fork"
+    return available[0]
+
+
+def process_context():
+    """The multiprocessing context of :func:`start_method` (for the pools and for
+    anything shared with their workers, such as a ``Value``)."""
+    import multiprocessing
+
+    return multiprocessing.get_context(start_method())
+
+
+#: Seconds it costs to start a local pool of two workers, give each its first job and
+#: stop it, beyond the jobs themselves, by start method: ``python
+#: benchmarks/pool_start.py`` on the 2-core reference machine (2026-12). A forked worker
+#: inherits the loaded kernels; a spawned one starts a new interpreter, imports numpy,
+#: numba and the package and loads the kernels from numba's cache. A phase goes to
+#: workers only when they would save more than this plus the time to move the outputs
+#: back (:func:`execute`).
+POOL_START_SECONDS = {"fork": 0.1, "forkserver": 1.5, "spawn": 1.5}
+
+
+def pool_start_seconds() -> float:
+    """:data:`POOL_START_SECONDS` of the :func:`start_method` in use [s]."""
+    return POOL_START_SECONDS.get(start_method(), max(POOL_START_SECONDS.values()))
+
+
+# The ``state`` a worker was started with (see local_pool): set in each worker by its
+# initializer, from the initializer's arguments (inherited under fork, pickled under
+# spawn); never set in the build process.
+_STATE: list = []
+
+
+def _start_worker(parent_pid: int, state) -> None:
+    """Pool initializer: :func:`exit_with_parent`, then keep ``state`` for
+    :func:`worker_state`."""
+    exit_with_parent(parent_pid)
+    _STATE[:] = [state]
+
+
+def worker_state():
+    """In a worker of a pool made with a ``state`` (:func:`local_pool`), that state."""
+    if not _STATE:
+        raise RuntimeError("worker_state() outside a worker started with a state")
+    return _STATE[0]
+
+
+def local_pool(workers: int, *, state=None, purpose: str = "jobs") -> ProcessPoolExecutor:
+    """
+    A local process pool, started by :func:`start_method`, whose workers exit when this
+    process dies (:func:`exit_with_parent`). Every pool of the package is made here.
+
+    Parameters
+    ----------
+    workers : int
+        Worker processes. [-]
+    state : object, optional
+        Handed to every worker once, at its start, and returned there by
+        :func:`worker_state`: what all its tasks share (say, the figures to draw), so it
+        does not travel with each task. Under ``fork`` it is inherited (not copied);
+        otherwise it is pickled, so it must be picklable.
+    purpose : str
+        What the pool is for, in the debug log. [-]
+    """
+    import multiprocessing
+
+    method = start_method()
+    log.debug("starting %d %s worker(s) for %s", workers, method, purpose)
+    return ProcessPoolExecutor(max_workers=workers,
+                               mp_context=multiprocessing.get_context(method),
+                               initializer=_start_worker, initargs=(os.getpid(), state))
 
 
 def run_inline(jobs: list[Job], done: Done) -> None:
@@ -128,7 +206,7 @@ def run_process_pool(jobs: list[Job], done: Done, workers: int) -> None:
     while pending:
         retry = []
         batches = [pending[i:i + size] for i in range(0, len(pending), size)]
-        with local_pool(workers) as pool:
+        with local_pool(workers, purpose="computing jobs") as pool:
             futures = {pool.submit(_run_batch, [(jobs[i][1], jobs[i][2]) for i in batch]):
                        batch for batch in batches}
             for future in as_completed(futures):
@@ -216,8 +294,9 @@ def execute(jobs: list[Job], done: Done, *, workers: int = 1, scheduler: str | N
     """
     Run ``jobs`` on the chosen executor, calling ``done(index, output)`` for each.
 
-    With ``min_pool_seconds`` > 0 the first job runs here (it also pays one-off costs
-    such as loading compiled kernels, which forked workers then inherit) and the second
+    With ``min_pool_seconds`` > 0 (the engine passes :func:`pool_start_seconds`) the
+    first job runs here (it also pays one-off costs such as loading compiled kernels,
+    which forked workers then inherit) and the second
     runs here too, timed (CPU time), with its output's pickled size measured. The rest go
     to worker processes only when the time the workers would save,
     ``rest × t × (1 − 1/workers)``,
