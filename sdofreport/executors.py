@@ -3,6 +3,14 @@
 Every executor returns outputs in plan order, whatever order jobs finish in, so results
 are identical on every path. A job whose worker dies is retried once; a job that fails
 twice is reported by its label (record and system).
+
+Every local pool of the package (the engine's jobs, the record reader that runs while
+the kernels load, the figure workers) is made by :func:`local_pool`, which starts its
+workers by :func:`start_method` (``fork`` on Linux, the platform's default elsewhere,
+or :data:`START_METHOD_VARIABLE`) and hands them their work explicitly: task arguments,
+or a ``state`` given to each worker once at its start (:func:`worker_state`). Nothing a
+worker needs comes from a module variable of the build process, so the files a build
+writes are the same whichever way its workers start.
 """
 
 from __future__ import annotations
@@ -114,13 +122,15 @@ def process_context():
 
 
 #: Seconds it costs to start a local pool of two workers, give each its first job and
-#: stop it, beyond the jobs themselves, by start method: ``python
-#: benchmarks/pool_start.py`` on the 2-core reference machine (2026-12). A forked worker
-#: inherits the loaded kernels; a spawned one starts a new interpreter, imports numpy,
-#: numba and the package and loads the kernels from numba's cache. A phase goes to
-#: workers only when they would save more than this plus the time to move the outputs
-#: back (:func:`execute`).
-POOL_START_SECONDS = {"fork": 0.1, "forkserver": 1.5, "spawn": 1.5}
+#: stop it, beyond the jobs themselves, by start method; measured with ``python
+#: benchmarks/pool_start.py`` on the 2-core reference machine (2026-12): fork 0.08-0.10 s
+#: of wall time (a forked worker inherits the loaded kernels); spawn 1.0 s of CPU time
+#: per worker, the wall time on two idle cores (a new interpreter imports numpy, numba
+#: and the package and loads the kernels from numba's cache; the wall time on the busy
+#: shared machine was 7-8 s); forkserver taken as spawn (its workers import the same).
+#: A phase goes to workers only when they would save more than this plus the time to
+#: move the outputs back (:func:`execute`).
+POOL_START_SECONDS = {"fork": 0.1, "forkserver": 1.0, "spawn": 1.0}
 
 
 def pool_start_seconds() -> float:
@@ -134,10 +144,36 @@ def pool_start_seconds() -> float:
 _STATE: list = []
 
 
-def _start_worker(parent_pid: int, state) -> None:
-    """Pool initializer: :func:`exit_with_parent`, then keep ``state`` for
+def _exit_with_build_process() -> None:
+    """
+    Make this worker, started by ``forkserver``, exit when the build process dies. Such
+    a worker is the fork server's child, and the server lives on while any worker does,
+    so it watches the build process itself: the pipe end ``multiprocessing`` gives it
+    (``parent_process().sentinel``), which reads as closed once the build process is
+    gone.
+    """
+    import multiprocessing
+    from multiprocessing.connection import wait
+
+    parent = multiprocessing.parent_process()
+    if parent is None or parent.sentinel is None:
+        return
+
+    def watch() -> None:
+        wait([parent.sentinel])
+        os._exit(1)
+
+    threading.Thread(target=watch, daemon=True, name="sdofreport-parent-watch").start()
+
+
+def _start_worker(parent_pid: int, method: str, state) -> None:
+    """Pool initializer: exit with the build process (:func:`exit_with_parent`; under
+    ``forkserver`` :func:`_exit_with_build_process`), then keep ``state`` for
     :func:`worker_state`."""
-    exit_with_parent(parent_pid)
+    if method == "forkserver":
+        _exit_with_build_process()
+    else:
+        exit_with_parent(parent_pid)
     _STATE[:] = [state]
 
 
@@ -171,7 +207,8 @@ def local_pool(workers: int, *, state=None, purpose: str = "jobs") -> ProcessPoo
     log.debug("starting %d %s worker(s) for %s", workers, method, purpose)
     return ProcessPoolExecutor(max_workers=workers,
                                mp_context=multiprocessing.get_context(method),
-                               initializer=_start_worker, initargs=(os.getpid(), state))
+                               initializer=_start_worker,
+                               initargs=(os.getpid(), method, state))
 
 
 def run_inline(jobs: list[Job], done: Done) -> None:
