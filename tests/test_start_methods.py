@@ -17,7 +17,7 @@ import pytest
 from sdofreport import executors
 from sdofreport.build import build_site
 from sdofreport.errors import BuildError
-from tests.conftest import PROJECT_HEAD, synthetic_acceleration
+from tests.conftest import ONE_SYSTEM, PROJECT_HEAD, synthetic_acceleration
 
 needs_fork = pytest.mark.skipif("fork" not in multiprocessing.get_all_start_methods(),
                                 reason="compares with forked workers")
@@ -49,16 +49,7 @@ file = "records/b2.csv"
 pair = "B"
 component = "H2"
 
-[[systems]]
-id = "frame"
-name = "Linear frame"
-damping = 0.05
-mass = "100 t"
-period = "0.5 s"
-height = "4 m"
-[systems.limits]
-displacement = "50 mm"
-
+""" + ONE_SYSTEM + """
 [[systems]]
 id = "pier"
 name = "Yielding pier"
