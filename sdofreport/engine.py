@@ -44,6 +44,7 @@ from sdofreport.core.units import G
 from sdofreport.errors import RecordError
 from sdofreport.executors import execute, local_pool, pool_start_seconds
 from sdofreport.jobs import record_products, run_job
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 from sdofreport.project.model import Project, RecordSpec, SystemSpec, natural_key
 from sdofreport.records import Record, process_record, read_record
 from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling, \
@@ -469,17 +470,13 @@ def _biaxial_result(system: SystemSpec, record_id: str, direction: int,
         instability_limit_m=limit, **common)
 
 
-#: Check quantity -> ResponseResult attribute read for its per-record peak.
-CHECK_ATTRIBUTES = {
-    "displacement": "peak_displacement_m", "drift_ratio": "peak_drift_ratio",
-    "base_shear": "peak_base_shear_n", "total_accel": "peak_total_accel_m_s2",
-    "ductility": "ductility", "residual_displacement": "residual_displacement_m",
-    "bearing_displacement": "peak_displacement_m",
-}
+#: Check quantity -> ResponseResult attribute read for its per-record peak (from the
+#: one registry, sdofreport.project.check_quantities).
+CHECK_ATTRIBUTES = {key: q.attribute for key, q in CHECK_QUANTITIES.items()}
 
 
 #: Check quantities whose per-record value carries a sign: their statistic is of |value|.
-SIGNED_QUANTITIES = ("residual_displacement",)
+SIGNED_QUANTITIES = tuple(key for key, q in CHECK_QUANTITIES.items() if q.signed)
 
 
 def _statistic(values: list[float], statistic: str) -> float:

@@ -30,6 +30,7 @@ import math
 from dataclasses import dataclass
 
 from sdofreport.core._checks import positive as _positive
+from sdofreport.core.decimal_text import HUGE, TINY, plain_decimal
 from sdofreport.core.units import G
 
 __all__ = [
@@ -76,14 +77,15 @@ def _decimal(x: float, digits: int) -> str:
     """
     ``x`` to ``digits`` significant figures without trailing zeros, in plain decimals
     from 10⁻⁴ up to (not including) 10⁶ and as ``m × 10ⁿ`` outside that range: the
-    pages' one number style, never an ``e`` exponent.
+    pages' one number style (:mod:`sdofreport.core.decimal_text`), never an ``e``
+    exponent.
     """
     if x == 0 or not math.isfinite(x):
         return f"{x:g}"
-    exponent = int(math.floor(math.log10(abs(x))))
-    if -4 <= exponent < 6:
-        text = f"{x:.{max(0, digits - 1 - exponent)}f}"
+    if TINY <= abs(x) < HUGE:
+        text = plain_decimal(x, digits)
         return text.rstrip("0").rstrip(".") if "." in text else text
+    exponent = int(math.floor(math.log10(abs(x))))
     mantissa = x / 10.0 ** exponent
     if round(abs(mantissa), digits - 1) >= 10.0:  # 9.9999 rounds up to 10
         mantissa, exponent = mantissa / 10.0, exponent + 1

@@ -498,11 +498,8 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
     if values["drift_ratio"] is not None and height is None:
         problems.add(f"{where}.drift_ratio", "a drift-ratio limit needs the system's "
                      "height")
-    return Limits(values["displacement"], values["drift_ratio"], values["base_shear"],
-                  values["total_accel"], values["ductility"],
-                  values["residual_displacement"], values["bearing_displacement"],
-                  tuple((name, basis[name]) for name in spec if name in basis
-                        and values[name] is not None))
+    return Limits.of(values, tuple((name, basis[name]) for name in spec if name in basis
+                                   and values[name] is not None))
 
 
 #: Keys of a limit written as a table: ``displacement = { value = "50 mm", basis = "..." }``.

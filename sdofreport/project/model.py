@@ -4,8 +4,10 @@ from __future__ import annotations
 
 import re
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, make_dataclass
 from pathlib import Path
+
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 
 
 @dataclass(frozen=True)
@@ -156,33 +158,39 @@ class InelasticSpectraSpec:
     steps_per_period: float = 8.0
 
 
-@dataclass(frozen=True)
-class Limits:
-    """Limits in SI; ``None`` where not checked."""
+#: One SI field per check quantity (``displacement_m``, ``drift_ratio``, ...; None where
+#: not checked), made from the registry so a quantity added there is a field here.
+_LimitValues = make_dataclass(
+    "_LimitValues", [(q.limit_name, "float | None", field(default=None))
+                     for q in CHECK_QUANTITIES.values()], frozen=True)
+_LimitValues.__module__ = __name__
 
-    displacement_m: float | None = None
-    drift_ratio: float | None = None
-    base_shear_n: float | None = None
-    total_accel_m_s2: float | None = None
-    ductility: float | None = None
-    residual_displacement_m: float | None = None
-    bearing_displacement_m: float | None = None
+
+@dataclass(frozen=True)
+class Limits(_LimitValues):
+    """Limits in SI, one field per check quantity of
+    :data:`sdofreport.project.check_quantities.CHECK_QUANTITIES` (named by its
+    ``limit_name``); ``None`` where not checked."""
+
     #: (quantity, basis) for limits that state where they come from (a clause, the
     #: owner's specification), in the order of :meth:`items`.
     basis: tuple[tuple[str, str], ...] = ()
+
+    @classmethod
+    def of(cls, values: dict[str, float | None],
+           basis: tuple[tuple[str, str], ...] = ()) -> Limits:
+        """Limits from values by quantity key (``{"displacement": 0.05}``) [SI]."""
+        return cls(**{CHECK_QUANTITIES[key].limit_name: value
+                      for key, value in values.items()}, basis=basis)
 
     def basis_of(self, quantity: str) -> str | None:
         """The stated basis of the limit on ``quantity``, or None."""
         return dict(self.basis).get(quantity)
 
     def items(self) -> list[tuple[str, float]]:
-        """(quantity, limit) pairs that are set, in a fixed order."""
-        names = ("displacement", "drift_ratio", "base_shear", "total_accel", "ductility",
-                 "residual_displacement", "bearing_displacement")
-        values = (self.displacement_m, self.drift_ratio, self.base_shear_n,
-                  self.total_accel_m_s2, self.ductility, self.residual_displacement_m,
-                  self.bearing_displacement_m)
-        return [(n, v) for n, v in zip(names, values) if v is not None]
+        """(quantity, limit) pairs that are set, in the registry's order."""
+        values = ((q.key, getattr(self, q.limit_name)) for q in CHECK_QUANTITIES.values())
+        return [(n, v) for n, v in values if v is not None]
 
 
 @dataclass(frozen=True)

@@ -23,6 +23,7 @@ from sdofreport.core.spectra_current import (
     EN1998_1_1_SITE_CATEGORIES,
 )
 from sdofreport.core.units import acceleration_unit_names
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 from sdofreport.records import RECORD_FORMATS
 
 #: Ways the suite statistic may be chosen. ``auto``: the governing edition's rule
@@ -517,22 +518,10 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("limits", "table", "Limits checked against the demands.",
                 example="{ displacement = \"40 mm\" }"),
     ),
-    "systems[].limits": _keys(
-        KeySpec("displacement", "quantity", "Peak relative displacement limit.",
-                dimension="length", example='"40 mm"'),
-        KeySpec("drift_ratio", "ratio", "Peak drift ratio limit (displacement/height).",
-                example="0.015"),
-        KeySpec("base_shear", "quantity", "Peak base shear limit (needs the mass).",
-                dimension="force", example='"450 kN"'),
-        KeySpec("total_accel", "quantity", "Peak total acceleration limit.",
-                dimension="acceleration", example='"0.8 g"'),
-        KeySpec("ductility", "number", "Ductility demand limit μ = max|u|/u_y (yielding "
-                "systems).", example="4.0"),
-        KeySpec("residual_displacement", "quantity", "Residual (final) displacement "
-                "limit.", dimension="length", example='"10 mm"'),
-        KeySpec("bearing_displacement", "quantity", "sliding-pendulum: displacement "
-                "capacity of the bearing.", dimension="length", example='"250 mm"'),
-    ),
+    # One key per check quantity, from the one registry of them.
+    "systems[].limits": _keys(*(KeySpec(q.key, q.key_type, q.description,
+                                        dimension=q.dimension, example=q.example)
+                                for q in CHECK_QUANTITIES.values())),
 }
 
 #: Top-level tables and arrays of tables of the project file.
