@@ -36,12 +36,12 @@ import json
 import logging
 import math
 import os
-import tempfile
 from pathlib import Path
 
 import numpy as np
 
 from sdofreport._cachedir import private_folder, report_unusable, user_cache_dir
+from sdofreport.fsio import write_atomically
 
 log = logging.getLogger("sdofreport.cache")
 
@@ -380,22 +380,10 @@ class ResultCache:
         path = self._path(key)
         try:
             path.parent.mkdir(mode=0o700, exist_ok=True)
-            fd, tmp = tempfile.mkstemp(dir=path.parent, suffix=".tmp")
+            # Unflushed (durable=False): a torn entry fails its SHA-256 and is recomputed.
+            write_atomically(path, data, mode=0o600, durable=False, name_errors=False)
         except OSError as exc:  # a full or read-only cache must not stop a build
             if not self._write_failed:
                 self._write_failed = True
                 log.warning("cache %s not written (%s); the build goes on without "
                             "storing results", self.folder, exc.strerror or exc)
-            return
-        try:
-            with os.fdopen(fd, "wb") as handle:
-                handle.write(data)
-            os.replace(tmp, path)
-        except OSError as exc:
-            Path(tmp).unlink(missing_ok=True)
-            if not self._write_failed:
-                self._write_failed = True
-                log.warning("cache %s not written (%s)", self.folder, exc.strerror or exc)
-        except BaseException:
-            Path(tmp).unlink(missing_ok=True)
-            raise

@@ -42,7 +42,7 @@ from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
 from sdofreport.errors import RecordError
-from sdofreport.executors import execute, fork_context, local_pool
+from sdofreport.executors import execute, local_pool, pool_start_seconds
 from sdofreport.isolation_bounds import BOUND_RUNS, bound_model, effective_at
 from sdofreport.jobs import record_products, run_job
 from sdofreport.project.check_quantities import CHECK_QUANTITIES
@@ -55,11 +55,6 @@ from sdofreport.vertical_suite import attach_vertical
 log = logging.getLogger("sdofreport.engine")
 
 Progress = Callable[[int, int, str], None]
-
-#: Seconds it costs to start a local pool (fork two workers and stop them; measured on
-#: the 2-core reference machine): a phase goes to workers only when they would save more
-#: than this plus the time to move the outputs back (see sdofreport.executors.execute).
-MIN_POOL_SECONDS = 0.1
 
 VERDICT_WITHIN = "within limit"
 VERDICT_EXCEEDS = "exceeds limit"
@@ -593,8 +588,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     cache = ResultCache((cache_dir or default_cache_dir()) if use_cache else None)
     workers = jobs or os.cpu_count() or 1
     local = not (scheduler or dask_local)
-    if workers > 1 and local and fork_context() is not None and \
-            _probably_cold(project, cache):
+    if workers > 1 and local and _probably_cold(project, cache):
         records = _records_while_warming(project, cache)
     else:
         records = load_records(project, cache)
@@ -610,7 +604,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     phase = _Phase(cache, progress, total, {"workers": workers,
                                             "scheduler": scheduler,
                                             "dask_local": dask_local,
-                                            "min_pool_seconds": MIN_POOL_SECONDS})
+                                            "min_pool_seconds": pool_start_seconds()})
     by_id = {r.id: r for r in records}
     # Scaling reads spectra at the target's own damping, listed in [analysis] damping
     # or not; the records' results keep only the listed ratios.
@@ -1047,49 +1041,34 @@ def _probably_cold(project: Project, cache: ResultCache) -> bool:
     return digest is not None and not cache.has(_read_key(spec, digest))
 
 
-# What the forked reader inherits: (project, cache).
-_TO_READ: tuple = (None, None)
-
-
-def _read_inherited() -> list[Record]:
-    project, cache = _TO_READ
-    return load_records(project, cache)
-
-
-def _warm_inherited() -> None:
-    warm_later_kernels(_TO_READ[0], "reader")
-
-
 def _records_while_warming(project: Project, cache: ResultCache) -> list[Record]:
     """
-    :func:`load_records` in a forked process while this one runs :func:`warm_kernels`:
+    :func:`load_records` in a worker process while this one runs :func:`warm_kernels`:
     the two one-off costs of a build that computes overlap. The records (and any error
     about them) are the same as read here; if the reader dies, they are read here. The
-    forked process then runs its share of :func:`warm_later_kernels`, this one its own
-    share after the linear kernels (:func:`later_shares`), and this one waits for the
-    reader, so on a fresh machine the nonlinear kernels are compiled beside the linear
-    ones rather than after them.
+    worker then runs its share of :func:`warm_later_kernels`, this one its own share
+    after the linear kernels (:func:`later_shares`), and this one waits for the reader,
+    so on a fresh machine the nonlinear kernels are compiled beside the linear ones
+    rather than after them. The project and cache go to the worker as task arguments
+    (a few kilobytes), so this works whichever way workers start
+    (:func:`sdofreport.executors.start_method`).
     """
     from concurrent.futures.process import BrokenProcessPool
 
-    global _TO_READ
-    _TO_READ = (project, cache)
-    try:
-        with local_pool(1) as pool:
-            future = pool.submit(_read_inherited)
-            later = pool.submit(_warm_inherited)  # after the reading, in that process
-            warm_kernels(project)
-            warm_later_kernels(project, "builder")  # this process's share, if any
-            try:
-                records = future.result()
-            except (BrokenProcessPool, OSError) as exc:
-                log.debug("record reader lost (%s); reading here", exc)
-                records = None
-            except BaseException:
-                later.cancel()  # a bad record ends the build: no warm-up is needed
-                raise
-    finally:
-        _TO_READ = (None, None)
+    with local_pool(1, purpose="reading records") as pool:
+        future = pool.submit(load_records, project, cache)
+        # After the reading, in that process:
+        later = pool.submit(warm_later_kernels, project, "reader")
+        warm_kernels(project)
+        warm_later_kernels(project, "builder")  # this process's share, if any
+        try:
+            records = future.result()
+        except (BrokenProcessPool, OSError) as exc:
+            log.debug("record reader lost (%s); reading here", exc)
+            records = None
+        except BaseException:
+            later.cancel()  # a bad record ends the build: no warm-up is needed
+            raise
     if records is None:
         return load_records(project, cache)
     for record in records:  # as Record makes them: read-only (unpickling does not)

@@ -3,6 +3,14 @@
 Every executor returns outputs in plan order, whatever order jobs finish in, so results
 are identical on every path. A job whose worker dies is retried once; a job that fails
 twice is reported by its label (record and system).
+
+Every local pool of the package (the engine's jobs, the record reader that runs while
+the kernels load, the figure workers) is made by :func:`local_pool`, which starts its
+workers by :func:`start_method` (``fork`` on Linux, the platform's default elsewhere,
+or :data:`START_METHOD_VARIABLE`) and hands them their work explicitly: task arguments,
+or a ``state`` given to each worker once at its start (:func:`worker_state`). Nothing a
+worker needs comes from a module variable of the build process, so the files a build
+writes are the same whichever way its workers start.
 """
 
 from __future__ import annotations
@@ -34,16 +42,6 @@ Done = Callable[[int, Any], None]  # called with (job index, output) as each job
 def _failure(label: str, exc: BaseException) -> BuildError:
     return BuildError(f"job '{label}' failed twice and was given up: "
                       f"{type(exc).__name__}: {exc}")
-
-
-def fork_context():
-    """The multiprocessing context that forks (workers inherit this process's memory),
-    where the platform has one; else None."""
-    import multiprocessing
-
-    if os.name == "posix" and "fork" in multiprocessing.get_all_start_methods():
-        return multiprocessing.get_context("fork")
-    return None
 
 
 #: Seconds between a worker's checks that the process that started it is still alive.
@@ -83,17 +81,134 @@ def exit_with_parent(parent_pid: int) -> None:
                      name="sdofreport-parent-watch").start()
 
 
-def local_pool(workers: int, context=None) -> ProcessPoolExecutor:
+#: Environment variable that chooses how local worker processes start: ``fork``,
+#: ``spawn`` or ``forkserver`` (multiprocessing's start methods). Unset: ``fork`` on Linux,
+#: the platform's default elsewhere (``spawn`` on macOS and Windows).
+START_METHOD_VARIABLE = "SDOFREPORT_START_METHOD"
+
+
+def start_method() -> str:
     """
-    A local process pool whose workers exit when this process dies
-    (:func:`exit_with_parent`); forking where the platform can. Every pool of the
-    package is made here.
+    How local worker processes start: the value of :data:`START_METHOD_VARIABLE` when
+    set, else ``fork`` on Linux (a worker inherits the compiled kernels and modules this
+    process has loaded, at no cost), else the platform's default.
+
+    Every pool passes its work to the workers explicitly (task arguments, or the
+    ``state`` of :func:`local_pool`), so the results and files are the same whichever
+    method starts them. An unknown or unavailable method is a
+    :class:`~sdofreport.errors.BuildError`.
     """
     import multiprocessing
 
-    context = context or fork_context() or multiprocessing.get_context()
-    return ProcessPoolExecutor(max_workers=workers, mp_context=context,
-                               initializer=exit_with_parent, initargs=(os.getpid(),))
+    available = multiprocessing.get_all_start_methods()  # the platform's default first
+    chosen = os.environ.get(START_METHOD_VARIABLE, "").strip()
+    if chosen:
+        if chosen not in available:
+            raise BuildError(f"{START_METHOD_VARIABLE}={chosen!r}: expected one of "
+                             f"{', '.join(available)} (how worker processes start on "
+                             f"this system); unset it for the default")
+        return chosen
+    if sys.platform.startswith("linux") and "fork" in available:
+        return "fork"
+    return available[0]
+
+
+def process_context():
+    """The multiprocessing context of :func:`start_method` (for the pools and for
+    anything shared with their workers, such as a ``Value``)."""
+    import multiprocessing
+
+    return multiprocessing.get_context(start_method())
+
+
+#: Seconds it costs to start a local pool of two workers, give each its first job and
+#: stop it, beyond the jobs themselves, by start method; measured with ``python
+#: benchmarks/pool_start.py`` on the 2-core reference machine (2026-12): fork 0.08-0.10 s
+#: of wall time (a forked worker inherits the loaded kernels); spawn 1.0 s of CPU time
+#: per worker, the wall time on two idle cores (a new interpreter imports numpy, numba
+#: and the package and loads the kernels from numba's cache; the wall time on the busy
+#: shared machine was 7-8 s); forkserver taken as spawn (its workers import the same).
+#: A phase goes to workers only when they would save more than this plus the time to
+#: move the outputs back (:func:`execute`).
+POOL_START_SECONDS = {"fork": 0.1, "forkserver": 1.0, "spawn": 1.0}
+
+
+def pool_start_seconds() -> float:
+    """:data:`POOL_START_SECONDS` of the :func:`start_method` in use [s]."""
+    return POOL_START_SECONDS.get(start_method(), max(POOL_START_SECONDS.values()))
+
+
+# The ``state`` a worker was started with (see local_pool): set in each worker by its
+# initializer, from the initializer's arguments (inherited under fork, pickled under
+# spawn); never set in the build process.
+_STATE: list = []
+
+
+def _exit_with_build_process() -> None:
+    """
+    Make this worker, started by ``forkserver``, exit when the build process dies. Such
+    a worker is the fork server's child, and the server lives on while any worker does,
+    so it watches the build process itself: the pipe end ``multiprocessing`` gives it
+    (``parent_process().sentinel``), which reads as closed once the build process is
+    gone.
+    """
+    import multiprocessing
+    from multiprocessing.connection import wait
+
+    parent = multiprocessing.parent_process()
+    if parent is None or parent.sentinel is None:
+        return
+
+    def watch() -> None:
+        wait([parent.sentinel])
+        os._exit(1)
+
+    threading.Thread(target=watch, daemon=True, name="sdofreport-parent-watch").start()
+
+
+def _start_worker(parent_pid: int, method: str, state) -> None:
+    """Pool initializer: exit with the build process (:func:`exit_with_parent`; under
+    ``forkserver`` :func:`_exit_with_build_process`), then keep ``state`` for
+    :func:`worker_state`."""
+    if method == "forkserver":
+        _exit_with_build_process()
+    else:
+        exit_with_parent(parent_pid)
+    _STATE[:] = [state]
+
+
+def worker_state():
+    """In a worker of a pool made with a ``state`` (:func:`local_pool`), that state."""
+    if not _STATE:
+        raise RuntimeError("worker_state() outside a worker started with a state")
+    return _STATE[0]
+
+
+def local_pool(workers: int, *, state=None, purpose: str = "jobs") -> ProcessPoolExecutor:
+    """
+    A local process pool, started by :func:`start_method`, whose workers exit when this
+    process dies (:func:`exit_with_parent`). Every pool of the package is made here.
+
+    Parameters
+    ----------
+    workers : int
+        Worker processes. [-]
+    state : object, optional
+        Handed to every worker once, at its start, and returned there by
+        :func:`worker_state`: what all its tasks share (say, the figures to draw), so it
+        does not travel with each task. Under ``fork`` it is inherited (not copied);
+        otherwise it is pickled, so it must be picklable.
+    purpose : str
+        What the pool is for, in the debug log. [-]
+    """
+    import multiprocessing
+
+    method = start_method()
+    log.debug("starting %d %s worker(s) for %s", workers, method, purpose)
+    return ProcessPoolExecutor(max_workers=workers,
+                               mp_context=multiprocessing.get_context(method),
+                               initializer=_start_worker,
+                               initargs=(os.getpid(), method, state))
 
 
 def run_inline(jobs: list[Job], done: Done) -> None:
@@ -128,7 +243,7 @@ def run_process_pool(jobs: list[Job], done: Done, workers: int) -> None:
     while pending:
         retry = []
         batches = [pending[i:i + size] for i in range(0, len(pending), size)]
-        with local_pool(workers) as pool:
+        with local_pool(workers, purpose="computing jobs") as pool:
             futures = {pool.submit(_run_batch, [(jobs[i][1], jobs[i][2]) for i in batch]):
                        batch for batch in batches}
             for future in as_completed(futures):
@@ -216,8 +331,9 @@ def execute(jobs: list[Job], done: Done, *, workers: int = 1, scheduler: str | N
     """
     Run ``jobs`` on the chosen executor, calling ``done(index, output)`` for each.
 
-    With ``min_pool_seconds`` > 0 the first job runs here (it also pays one-off costs
-    such as loading compiled kernels, which forked workers then inherit) and the second
+    With ``min_pool_seconds`` > 0 (the engine passes :func:`pool_start_seconds`) the
+    first job runs here (it also pays one-off costs such as loading compiled kernels,
+    which forked workers then inherit) and the second
     runs here too, timed (CPU time), with its output's pickled size measured. The rest go
     to worker processes only when the time the workers would save,
     ``rest × t × (1 − 1/workers)``,

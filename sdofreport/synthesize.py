@@ -12,7 +12,6 @@ from __future__ import annotations
 import difflib
 import json
 import math
-import os
 import tomllib
 from dataclasses import dataclass
 from pathlib import Path
@@ -22,7 +21,8 @@ import numpy as np
 from sdofreport.core.compatible import COMPATIBLE_ENVELOPES, spectrum_compatible_record
 from sdofreport.core.design_spectra import DESIGN_SPECTRUM_KINDS, design_spectrum
 from sdofreport.core.units import G
-from sdofreport.errors import SdofreportError, naming_path
+from sdofreport.errors import SdofreportError
+from sdofreport.fsio import write_atomically
 from sdofreport.project.bounds import MAX_SYNTHETIC_SAMPLES
 from sdofreport.project.schema import DESIGN_SPECTRUM_KEYS, OPTIONAL_DESIGN_KEYS
 from sdofreport.records.writers import write_two_column
@@ -340,12 +340,5 @@ def synthesize(target: SynthesisTarget, folder, *, count=1, duration_s=25.0, dt_
         "note": EUROCODE_NOTE,
     }
     text = json.dumps(summary, indent=2) + "\n"
-    tmp = folder / f".{SUMMARY_FILE}.tmp"
-    try:
-        with naming_path(folder / SUMMARY_FILE):
-            tmp.write_text(text, encoding="utf-8")
-            os.replace(tmp, folder / SUMMARY_FILE)
-    except BaseException:
-        tmp.unlink(missing_ok=True)
-        raise
+    write_atomically(folder / SUMMARY_FILE, text.encode("utf-8"), mode=None)
     return summaries

@@ -6,6 +6,7 @@ Sources of expected values: process states reported by the operating system
 
 from __future__ import annotations
 
+import multiprocessing
 import os
 import signal
 import subprocess
@@ -33,11 +34,15 @@ time.sleep(600)
 
 
 @pytest.mark.skipif(not os.path.isdir("/proc/self"), reason="needs /proc (Linux)")
-def test_workers_exit_when_the_build_process_is_killed_alone(tmp_path):
+@pytest.mark.parametrize("method", [m for m in ("fork", "spawn", "forkserver")
+                                    if m in multiprocessing.get_all_start_methods()])
+def test_workers_exit_when_the_build_process_is_killed_alone(tmp_path, method):
     # Reproduction: the build process killed alone (SIGKILL) left its pool workers
-    # blocked forever, 100-140 MB each.
+    # blocked forever, 100-140 MB each. Whatever starts the workers (a forkserver's
+    # workers are the server's children, and the server ends with the build process).
     process = subprocess.Popen([sys.executable, "-c", _ORPHANS], stdout=subprocess.PIPE,
-                               text=True, cwd=tmp_path)
+                               text=True, cwd=tmp_path,
+                               env={**os.environ, "SDOFREPORT_START_METHOD": method})
     try:
         workers = [int(pid) for pid in process.stdout.readline().split()]
         assert len(workers) == 3 and all(process_alive(pid) for pid in workers)

@@ -1,4 +1,4 @@
-"""Cold builds with local workers read the records in a forked process while the build
+"""Cold builds with local workers read the records in a worker process while the build
 process loads the compiled kernels (sdofreport.engine._records_while_warming).
 
 Sources of expected values: the records, errors and results of the same project read and
@@ -19,12 +19,8 @@ import pytest
 from sdofreport import engine
 from sdofreport.cache import ResultCache
 from sdofreport.errors import RecordError
-from sdofreport.executors import fork_context
 from sdofreport.project import load_project
 from tests.conftest import EXAMPLE
-
-pytestmark = pytest.mark.skipif(fork_context() is None, reason="needs fork")
-
 
 def test_records_read_while_warming_equal_records_read_here(project_factory,
                                                             valid_project_text, tmp_path):

@@ -24,7 +24,8 @@ import logging
 import math
 import os
 import re
-import tempfile
+
+from sdofreport.fsio import write_atomically
 
 log = logging.getLogger("sdofreport.project")
 
@@ -151,12 +152,9 @@ def save_memo() -> None:
     merged = {**_read_memo(), **_MEMO_NEW}
     _MEMO_NEW.clear()
     document = {"format": MEMO_FORMAT, "sha256": _entries_digest(merged), "entries": merged}
-    try:
-        folder = os.path.dirname(_memo_path())
-        fd, tmp = tempfile.mkstemp(dir=folder, suffix=".tmp")
-        with os.fdopen(fd, "w", encoding="utf-8") as handle:
-            json.dump(document, handle, sort_keys=True)
-        os.replace(tmp, _memo_path())
+    try:  # unflushed: a torn memo fails its SHA-256 and is rebuilt
+        write_atomically(_memo_path(), json.dumps(document, sort_keys=True).encode("utf-8"),
+                         mode=0o600, durable=False, name_errors=False)
     except OSError:  # a read-only cache must never stop a build
         pass
 

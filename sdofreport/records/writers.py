@@ -1,8 +1,8 @@
 """Writers for sdofreport's own plain-text record formats.
 
-Two formats, both ASCII with ``"\\n"`` line endings, written atomically (a temporary file
-in the target folder, then :func:`os.replace`) and deterministically (same inputs, same
-bytes):
+Two formats, both ASCII with ``"\\n"`` line endings, written atomically
+(:func:`sdofreport.fsio.write_atomically`: a temporary file in the target folder, flushed,
+then renamed) and deterministically (same inputs, same bytes):
 
 ``two-column``
     ``#`` comment lines (the caller's header lines, then ``# acceleration units: <u>``),
@@ -20,14 +20,12 @@ bytes):
 from __future__ import annotations
 
 import math
-import os
-import secrets
 from collections.abc import Iterable, Sequence
 
 import numpy as np
 
 from sdofreport.core.units import ACCELERATION_UNITS, normalise_acceleration_unit
-from sdofreport.errors import naming_path
+from sdofreport.fsio import write_atomically
 
 #: Comment line stating the units in a two-column file (``{units}`` is filled in).
 TWO_COLUMN_UNITS_LINE = "# acceleration units: {units}"
@@ -92,31 +90,10 @@ def _time_decimals(dt: float) -> int:
 
 
 def _write_atomic(path, text: str) -> None:
-    """Write ``text`` (ASCII, ``\\n`` line endings) to ``path`` via a temporary file."""
-    target = os.fspath(path)
-    folder = os.path.dirname(os.path.abspath(target))
-    base = os.path.basename(target)
-    data = text.encode("ascii")
-    while True:
-        temp = os.path.join(folder, f".{base}.{secrets.token_hex(6)}.tmp")
-        try:
-            # 0o666 before the umask, like an ordinary open(..., "w").
-            fd = os.open(temp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666)
-        except FileExistsError:
-            continue
-        break
-    try:
-        with naming_path(target), os.fdopen(fd, "wb") as handle:
-            handle.write(data)
-            handle.flush()
-            os.fsync(handle.fileno())
-        os.replace(temp, target)
-    except BaseException:
-        try:
-            os.remove(temp)
-        except OSError:
-            pass
-        raise
+    """Write ``text`` (ASCII, ``\\n`` line endings) to ``path`` whole or not at all
+    (:func:`~sdofreport.fsio.write_atomically`), with the permissions an ordinary
+    ``open(..., "w")`` gives."""
+    write_atomically(path, text.encode("ascii"), mode=None)
 
 
 def write_two_column(

@@ -14,13 +14,13 @@ This module only schedules: it calls the ``*_figure`` functions of
 from __future__ import annotations
 
 import hashlib
-import itertools
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 
 from sdofreport import __version__
-from sdofreport.executors import fork_context, local_pool
+from sdofreport.executors import local_pool, process_context, worker_state
 from sdofreport.site.context import FigureSpec
 from sdofreport.site.tree import write_file
 
@@ -84,32 +84,37 @@ def _figure_svg(spec: FigureSpec, cache) -> str:
     return text
 
 
-# Folders this process created in the tree (see sdofreport.site.tree.write_file).
-_MADE: dict[str, set[str]] = {}
-
-
-def _write_figures(specs: list[FigureSpec], folder: str, cache) -> list[str]:
-    """Draw (or take from the cache) and write ``specs`` into ``folder``; their SHA-256."""
-    made = _MADE.setdefault(folder, set())
+def _write_figures(specs: list[FigureSpec], folder: str, cache, made: set[str]) \
+        -> list[str]:
+    """Draw (or take from the cache) and write ``specs`` into ``folder``; their SHA-256.
+    ``made`` holds the folders of the tree this process has created (see
+    :func:`sdofreport.site.tree.write_file`)."""
     return [write_file(Path(folder), spec.path, _figure_svg(spec, cache).encode("utf-8"),
                        made) for spec in specs]
 
 
-# What forked workers inherit from the build process, so that nothing but the digests
-# travels between them, per writer (two may be drawing at once): writer number ->
-# (figures, folder, cache, shared counter of the next figure).
-_INHERITED: dict[int, tuple] = {}
-_WRITERS = itertools.count()
+@dataclass
+class _Drawing:
+    """What the workers of one :class:`FigureWriter` are started with (the ``state`` of
+    :func:`sdofreport.executors.local_pool`): the figures in drawing order, the tree
+    folder, the figure cache and the shared counter of the next figure to claim."""
+
+    specs: list[FigureSpec]
+    folder: str
+    cache: object
+    counter: object
+    made: set[str] = field(default_factory=set)
 
 
-def _write_claimed(_worker: int, writer: int) -> list[tuple[int, str]]:
+def _write_claimed(_worker: int) -> list[tuple[int, str]]:
     """
-    Claim chunks of the inherited figure list of ``writer`` from its shared counter and
-    write them, until none is left: (position, SHA-256) of each figure this worker
-    wrote. Workers that serve themselves never wait for the build process to hand out
-    work.
+    Claim chunks of this worker's figure list (:class:`_Drawing`) from its shared
+    counter and write them, until none is left: (position, SHA-256) of each figure this
+    worker wrote. Workers that serve themselves never wait for the build process to hand
+    out work.
     """
-    specs, folder, cache, counter = _INHERITED[writer]
+    drawing: _Drawing = worker_state()
+    specs, counter = drawing.specs, drawing.counter
     written: list[tuple[int, str]] = []
     while True:
         with counter.get_lock():
@@ -118,8 +123,8 @@ def _write_claimed(_worker: int, writer: int) -> list[tuple[int, str]]:
         if start >= len(specs):
             return written
         stop = min(start + FIGURE_CHUNK, len(specs))
-        written.extend(zip(range(start, stop),
-                           _write_figures(list(specs[start:stop]), folder, cache)))
+        written.extend(zip(range(start, stop), _write_figures(
+            list(specs[start:stop]), drawing.folder, drawing.cache, drawing.made)))
 
 
 class FigureWriter:
@@ -129,18 +134,16 @@ class FigureWriter:
 
     With ``jobs`` > 1 and enough figures, ``jobs`` worker processes draw them:
     matplotlib figures (tenths of a second each) first, then the direct-SVG ones
-    (milliseconds), in chunks small enough that the workers finish together. Where
-    processes are forked, workers read the figures from the memory they inherit and
-    claim chunks from a shared counter, so they keep drawing however busy this process
-    is; elsewhere the chunks themselves are sent. Otherwise :meth:`result` draws them
-    here. Use as a context manager: leaving it stops the workers after their current
-    chunk.
+    (milliseconds), in chunks small enough that the workers finish together. Each worker
+    is started with the figure list (inherited under fork, pickled once per worker
+    otherwise) and claims chunks from a shared counter, so the workers keep drawing
+    however busy this process is. Otherwise :meth:`result` draws them here. Use as a
+    context manager: leaving it stops the workers after their current chunk.
     """
 
     def __init__(self, specs: list[FigureSpec], folder: Path, *, jobs: int = 1,
                  cache=None) -> None:
         self.specs, self.folder, self.cache = list(specs), str(folder), cache
-        self._number = next(_WRITERS)
         self._pool = None
         self._parts = None
         self._counter = None
@@ -149,26 +152,17 @@ class FigureWriter:
             self._start(jobs)
 
     def _start(self, jobs: int) -> None:
-        import multiprocessing
-
         from sdofreport.site import figures  # noqa: F401  (imported once, inherited)
 
         specs = self.specs
         self._order = sorted(range(len(specs)),
                              key=lambda i: specs[i].function in DIRECT_SVG_FIGURES)
         ordered = [specs[i] for i in self._order]
-        fork = fork_context()
-        context = fork or multiprocessing.get_context()
-        self._pool = local_pool(jobs, context)
-        if fork is not None:
-            self._counter = context.Value("q", 0)
-            _INHERITED[self._number] = (ordered, self.folder, self.cache, self._counter)
-            self._parts = self._pool.map(_write_claimed, range(jobs),
-                                         [self._number] * jobs)
-        else:  # no shared memory to inherit: send the chunks themselves
-            chunks = [ordered[i:i + FIGURE_CHUNK] for i in range(0, len(ordered), FIGURE_CHUNK)]
-            self._parts = self._pool.map(_write_figures, chunks, [self.folder] * len(chunks),
-                                         [self.cache] * len(chunks))
+        self._counter = process_context().Value("q", 0)
+        self._pool = local_pool(jobs, state=_Drawing(ordered, self.folder, self.cache,
+                                                     self._counter),
+                                purpose="drawing figures")
+        self._parts = self._pool.map(_write_claimed, range(jobs))
 
     @property
     def paths(self) -> set[str]:
@@ -178,12 +172,9 @@ class FigureWriter:
     def result(self) -> dict[str, str]:
         """Site path → SHA-256 of every figure file, once all are written."""
         if self._pool is None:
-            digests = _write_figures(self.specs, self.folder, self.cache)
+            digests = _write_figures(self.specs, self.folder, self.cache, set())
         else:
-            if self._counter is not None:
-                drawn = dict(pair for part in self._parts for pair in part)
-            else:
-                drawn = dict(enumerate(digest for part in self._parts for digest in part))
+            drawn = dict(pair for part in self._parts for pair in part)
             digests = [""] * len(self.specs)
             for position, index in enumerate(self._order):
                 digests[index] = drawn[position]
@@ -198,7 +189,6 @@ class FigureWriter:
         if self._pool is not None:
             self._pool.shutdown(wait=True, cancel_futures=True)
             self._pool = None
-        _INHERITED.pop(self._number, None)
 
     def __enter__(self) -> FigureWriter:
         return self

@@ -22,6 +22,7 @@ import numpy as np
 from sdofreport import __version__
 from sdofreport.engine import Results
 from sdofreport.errors import BuildError
+from sdofreport.fsio import move_into_place
 from sdofreport.results_json import checks_csv, peaks_csv, results_document, spectra_csv
 from sdofreport.serialize import json_text as _json_text
 from sdofreport.site.context import SiteContext, dependency_versions, record_figures
@@ -240,7 +241,7 @@ def recover_site(output: str | os.PathLike) -> None:
                 candidate.lstat().st_uid != uid or candidate.parent.lstat().st_uid != uid)):
             continue
         if is_site(candidate):
-            os.replace(candidate, output)
+            move_into_place(candidate, output)
             log.warning("restored the previous site from %s (an earlier build was "
                         "interrupted)", candidate.parent)
             return

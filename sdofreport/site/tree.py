@@ -4,9 +4,13 @@ Files go into a temporary sibling folder (``.<name>.building-*``), from this pro
 from worker processes, each with fixed permissions (folders 755, files 644) whatever the
 umask. :meth:`StagedTree.commit` swaps the finished folder in: atomically where the
 system allows (Linux ``renameat2`` exchange), else by two renames with the previous tree
-kept aside (``.<name>.previous-*/site``) until the new one is in place. Nothing is ever
-written into the destination itself, so a run killed at any moment leaves either the
-previous tree or the new one, and a failure leaves the previous one untouched.
+kept aside (``.<name>.previous-*/site``) until the new one is in place; the renames are
+those of :mod:`sdofreport.fsio`, which flush the parent folder. Nothing is ever written
+into the destination itself, so a run killed at any moment leaves either the previous
+tree or the new one, and a failure leaves the previous one untouched. The files of the
+tree are not flushed one by one (``fsync``): the guarantee is against a killed build,
+and a site is rebuilt byte for byte from its inputs; flushing the example's 325 files
+would add about 0.2 s to each build (measured on the 2-core reference machine).
 """
 
 from __future__ import annotations
@@ -18,6 +22,8 @@ import tempfile
 from pathlib import Path
 
 from sdofreport.errors import BuildError, naming_path
+from sdofreport.fsio import exchange as _exchange  # a name tests replace: no renameat2
+from sdofreport.fsio import move_into_place
 
 FOLDER_MODE = 0o755
 FILE_MODE = 0o644
@@ -25,24 +31,6 @@ FILE_MODE = 0o644
 STAGING_PREFIX = ".building-"
 RETIRED_PREFIX = ".previous-"
 LOCK_SUFFIX = ".lock"
-
-
-def _exchange(a: Path, b: Path) -> bool:
-    """Atomically swap two paths (Linux renameat2 RENAME_EXCHANGE); False if unsupported."""
-    if os.name != "posix":
-        return False
-    try:
-        import ctypes
-        import ctypes.util
-
-        libc = ctypes.CDLL(ctypes.util.find_library("c") or None, use_errno=True)
-        renameat2 = libc.renameat2
-    except (OSError, AttributeError):
-        return False
-    at_fdcwd, rename_exchange = -100, 2
-    result = renameat2(at_fdcwd, os.fsencode(str(a)), at_fdcwd, os.fsencode(str(b)),
-                       rename_exchange)
-    return result == 0
 
 
 def inside_parts(root: Path, relative: str) -> list[str]:
@@ -158,7 +146,7 @@ class StagedTree:
                 else:
                     self._replace_by_renames(output)
             else:
-                os.replace(self.folder, output)
+                move_into_place(self.folder, output)
         except OSError as exc:
             self.discard()
             raise BuildError(f"{output}: the new site could not take the place of the old "
@@ -178,14 +166,14 @@ class StagedTree:
         retired = Path(tempfile.mkdtemp(prefix=f".{output.name}{RETIRED_PREFIX}",
                                         dir=self.parent))
         try:
-            os.replace(output, retired / "site")
+            move_into_place(output, retired / "site")
         except OSError:
             shutil.rmtree(retired, ignore_errors=True)
             raise
         try:
-            os.replace(self.folder, output)
+            move_into_place(self.folder, output)
         except OSError:
-            os.replace(retired / "site", output)
+            move_into_place(retired / "site", output)
             shutil.rmtree(retired, ignore_errors=True)
             raise
         shutil.rmtree(retired, ignore_errors=True)

@@ -269,6 +269,13 @@ def test_helpers_of_a_killed_build_exit(zygote, good_build, tmp_path):
     assert [p for p in helpers if process_alive(p)] == []
 
 
+def _holds_id(lock: Path) -> bool:
+    try:
+        return lock.stat().st_size > 0
+    except FileNotFoundError:
+        return False
+
+
 def test_a_second_build_meanwhile_leaves_the_first_to_finish(zygote, setup):
     # Reproduction: a second build into the same folder deleted the first one's
     # staging folder, and the first failed.
@@ -278,7 +285,9 @@ def test_a_second_build_meanwhile_leaves_the_first_to_finish(zygote, setup):
     lock = site.parent / f".{site.name}.lock"
     pid = zygote.start(_argv(setup))
     deadline = time.monotonic() + 30.0
-    while not lock.exists() and time.monotonic() < deadline:
+    # Until the first build holds the lock and has written its process id there (on a
+    # busy machine the file can exist a moment before the id is in it).
+    while not _holds_id(lock) and time.monotonic() < deadline:
         time.sleep(0.001)
     second = invoke(*_argv(setup))
     status, _ = zygote.finish()

@@ -120,4 +120,4 @@ def test_a_failing_figure_stops_the_workers_and_is_reported(tmp_path):
                 writer.result()
     assert not (tmp_path / "site").exists()
     assert list(tmp_path.iterdir()) == []  # the staging folder is gone too
-    assert drawing._INHERITED == {}  # nothing left for a later fork to inherit
+    assert writer._pool is None  # the workers were stopped
