@@ -5,7 +5,9 @@
 * :func:`pair_job` — RotD50/RotD100, geometric-mean and SRSS spectra of a horizontal pair
   (Boore 2010);
 * :func:`responses_job` — the response histories of every system to one record;
-* :func:`stripe_job` — one stripe of a multiple-stripe fragility analysis (peaks only).
+* :func:`stripe_job` — one stripe of a multiple-stripe fragility analysis (peaks only);
+* :func:`biaxial_job`, :func:`pair_stripe_job` — the same for systems driven by both
+  components of each pair at once (``directions = 2``).
 
 They are top-level functions so a process pool or a Dask cluster can pickle them.
 """
@@ -268,22 +270,19 @@ def _peaks_only(raw: dict) -> dict:
         total_accel_m_s2=np.array([np.max(np.abs(r.total_accel_m_s2), initial=0.0)]))}
 
 
-def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
-               level_m_s2: float) -> dict:
-    """
-    One stripe of a multiple-stripe analysis: every record scaled so its intensity
-    measure (:func:`stripe_intensity`) equals ``level_m_s2``, and the system's response
-    to each (peaks only), in record order.
-    """
+def _stripe(motions, dts, model: dict, measure: str, level_m_s2: float, what: str,
+            intensity, respond) -> dict:
+    """Scale each motion so that ``intensity(motion, dt)`` equals ``level_m_s2`` and run
+    ``respond(motion, factor, dt)`` on it (peaks only), in order."""
     intensities, factors, runs = [], [], []
-    for acceleration, dt_s in zip(accelerations, dts):
-        im = stripe_intensity(acceleration, dt_s, model, measure, method)
+    for motion, dt_s in zip(motions, dts):
+        im = intensity(motion, dt_s)
         if not im > 0:
-            raise ValueError(f"system {model.get('system_id')}: a record has no "
+            raise ValueError(f"system {model.get('system_id')}: {what} has no "
                              f"{measure} ({im!r} m/s²) and cannot be scaled to a level")
         factor = level_m_s2 / im
         try:
-            raw = response_job(np.asarray(acceleration) * factor, dt_s, model, method)
+            raw = respond(motion, factor, dt_s)
         except ValueError as exc:
             raise ValueError(f"system {model.get('system_id')}: {exc}") from None
         intensities.append(im)
@@ -291,6 +290,19 @@ def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
         runs.append(_peaks_only(raw))
     return {"intensity_m_s2": np.array(intensities), "factors": np.array(factors),
             "runs": runs}
+
+
+def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
+               level_m_s2: float) -> dict:
+    """
+    One stripe of a multiple-stripe analysis: every record scaled so its intensity
+    measure (:func:`stripe_intensity`) equals ``level_m_s2``, and the system's response
+    to each (peaks only), in record order.
+    """
+    return _stripe(
+        accelerations, dts, model, measure, level_m_s2, "a record",
+        lambda a, dt_s: stripe_intensity(a, dt_s, model, measure, method),
+        lambda a, factor, dt_s: response_job(np.asarray(a) * factor, dt_s, model, method))
 
 
 def pair_intensity(acc_h1, acc_h2, dt_s, model: dict, measure: str, method: str) -> float:
@@ -311,24 +323,11 @@ def pair_stripe_job(pairs, dts, model: dict, method: str, measure: str,
     ``level_m_s2``, and the two-direction response to each pair (peaks only, the
     resultant as the demand), in pair order.
     """
-    intensities, factors, runs = [], [], []
-    for (acc_h1, acc_h2), dt_s in zip(pairs, dts):
-        a1, a2 = _equal_length(acc_h1, acc_h2)
-        im = pair_intensity(a1, a2, dt_s, model, measure, method)
-        if not im > 0:
-            raise ValueError(f"system {model.get('system_id')}: a pair has no "
-                             f"{measure} ({im!r} m/s²) and cannot be scaled to a level")
-        factor = level_m_s2 / im
-        try:
-            raw = {"model": model["model"], "biaxial": _biaxial_response(
-                a1 * factor, a2 * factor, dt_s, model, method)}
-        except ValueError as exc:
-            raise ValueError(f"system {model.get('system_id')}: {exc}") from None
-        intensities.append(im)
-        factors.append(factor)
-        runs.append(_peaks_only(raw))
-    return {"intensity_m_s2": np.array(intensities), "factors": np.array(factors),
-            "runs": runs}
+    return _stripe(
+        [_equal_length(*pair) for pair in pairs], dts, model, measure, level_m_s2,
+        "a pair", lambda pair, dt_s: pair_intensity(*pair, dt_s, model, measure, method),
+        lambda pair, factor, dt_s: {"model": model["model"], "biaxial": _biaxial_response(
+            pair[0] * factor, pair[1] * factor, dt_s, model, method)})
 
 
 JOBS = {"record": record_job, "pair": pair_job, "responses": responses_job,

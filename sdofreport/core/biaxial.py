@@ -32,6 +32,24 @@ pair at once (x along H1, y along H2):
     ``μ(v) = μ_fast − (μ_fast − μ_slow) exp(−a |v|)`` with |v| the magnitude of the
     sliding velocity, evaluated at the start of each integration sub-step (an explicit
     lag of one sub-step, our choice; sub-steps are at most T/100).
+* Bouc–Wen: the biaxial model of Park, Wen & Ang [5]_, ``F = a k u + (1−a) F_y z`` with
+  coupled hysteretic components z = (z_x, z_y),
+  ``u_y ż = A u̇ − |z|^(n−2) z [β(|u̇_x z_x| + |u̇_y z_y|) + γ u̇·z]``, A = 1 and
+  γ = 1 − β as in one direction. n = 2 is the published law; for other n the factor
+  |z|^(n−2) is our extension, chosen so that motion along an axis gives Wen's
+  one-direction law exactly. On |z| = 1, ``d|z|²/dt = 2β[z·u̇ − Σ|u̇_i z_i|]/u_y <= 0``,
+  so |z| <= 1. Backward Euler over displacement sub-increments of at most u_y/20, as
+  the one-direction model, with the consistent tangent.
+* Clough, takeda, flag-shaped: no single standard coupled rule exists; one independent
+  one-direction spring of :mod:`sdofreport.core.hysteresis` per direction (common
+  practice for uncoupled orthogonal frames, no source). Exactly the one-direction model
+  along an axis; not isotropic (a diagonal motion yields at √2 F_y of resultant force).
+* Nonlinear damper: the vector form ``F_d = C |u̇|^(α−1) u̇`` (along the velocity,
+  magnitude C|u̇|^α), linear below the small velocity v_r of the one-direction damper.
+* Hanging items: a compound pendulum hung from one point, small angles, the same
+  inertia in every vertical plane: the directions are uncoupled, each the
+  one-direction model ``ü + 2ζωu̇ + ω²u = −Γ üg`` (:func:`biaxial_elastic` with
+  ``participation``).
 
 Integration: Newmark average acceleration with Newton–Raphson on the two-component
 residual, record steps split into 2, 4, ... sub-steps when a step does not converge
@@ -50,6 +68,9 @@ References
 .. [4] M. C. Constantinou, A. Mokha and A. Reinhorn, "Teflon bearings in base isolation.
    II: Modeling," J. Struct. Eng., vol. 116, no. 2, pp. 455-474, 1990,
    doi: 10.1061/(ASCE)0733-9445(1990)116:2(455).
+.. [5] Y. J. Park, Y. K. Wen and A. H.-S. Ang, "Random vibration of hysteretic systems
+   under bi-directional ground motions," Earthquake Eng. Struct. Dyn., vol. 14, no. 4,
+   pp. 543-557, 1986, doi: 10.1002/eqe.4290140404.
 """
 
 from __future__ import annotations
@@ -342,10 +363,10 @@ def _pwa_increment(zx0, zy0, dx, dy, inv_uy, n, beta, gamma):
 @njit(**JIT_OPTIONS)
 def _bouc_wen_2d(q, esc, es, ucx, ucy, u0, u1, out):
     """Biaxial Bouc–Wen of Park, Wen & Ang [5]_ from the committed state (u_c, z in
-    ``esc[0], esc[_ROW]``) to the trial (u0, u1), z written to ``es``: ``F = a k u + (1−a) F_y z``; backward
-    Euler over sub-increments of at most u_y/20 (as the one-direction model in
-    :mod:`sdofreport.core.hysteresis`) with its consistent tangent. ``q`` = [k, F_y, a,
-    n, β, γ]."""
+    ``esc[0], esc[_ROW]``) to the trial (u0, u1), z written to ``es``:
+    ``F = a k u + (1−a) F_y z``; backward Euler over sub-increments of at most u_y/20
+    (as the one-direction model in :mod:`sdofreport.core.hysteresis`) with its
+    consistent tangent. ``q`` = [k, F_y, a, n, β, γ]."""
     k = q[0]
     fy = q[1]
     a = q[2]
