@@ -871,7 +871,7 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
         gamma = values["mass"] * values["pivot_to_centre"] ** 2 / values["pivot_inertia"]
         model = {"model": "linear", "participation": gamma}
     inputs = {k: v for k, v in values.items() if not k.startswith("_")}
-    directions = _read_directions(table, kind, model, where, problems)
+    directions = _read_directions(table, where, problems)
     direction = _read_value(table, spec["direction"], where, problems) or "horizontal"
     if direction == "vertical" and directions == 2:
         problems.add(f"{where}.directions", "directions = 2 applies to horizontal "
@@ -881,7 +881,7 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
                       directions, direction)
 
 
-def _read_directions(table: dict, kind: str, model, where: str, problems: _Problems) -> int:
+def _read_directions(table: dict, where: str, problems: _Problems) -> int:
     """``directions`` (1 or 2); every system kind and model runs in two directions
     (sdofreport.core.biaxial), a hanging item as a spherical compound pendulum."""
     value = _read_value(table, SECTIONS["systems[]"]["directions"], where, problems)
