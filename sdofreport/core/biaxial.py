@@ -247,7 +247,7 @@ _ROW = 16
 @njit(**JIT_OPTIONS)
 def _element(p, esc, es, u0, u1, v0, v1, dvdu, out):
     """Circular-surface element at trial (u0, u1), velocity (v0, v1), committed plastic
-    displacement ``esc[0], esc[_ROW]``, yield force ``p[2]``; writes fx, fy, k11, k12,
+    displacement ``esc[0], esc[1]``, yield force ``p[2]``; writes fx, fy, k11, k12,
     k21, k22 (tangent dF/du), the unloading stiffness per direction to ``out`` and the
     trial plastic displacement to ``es``."""
     k_lin = p[0]
@@ -255,7 +255,7 @@ def _element(p, esc, es, u0, u1, v0, v1, dvdu, out):
     f_p = p[2]
     c_s = p[3]
     ex = k_p * (u0 - esc[0]) + c_s * v0
-    ey = k_p * (u1 - esc[_ROW]) + c_s * v1
+    ey = k_p * (u1 - esc[1]) + c_s * v1
     mag = math.sqrt(ex * ex + ey * ey)
     ke = k_p + c_s * dvdu
     out[6] = k_lin + k_p
@@ -267,14 +267,14 @@ def _element(p, esc, es, u0, u1, v0, v1, dvdu, out):
         out[0] = k_lin * u0 + f_p * nx
         out[1] = k_lin * u1 + f_p * ny
         es[0] = u0 - f_p * nx / k_p
-        es[_ROW] = u1 - f_p * ny / k_p
+        es[1] = u1 - f_p * ny / k_p
         out[2] = k_lin + s * (1.0 - nx * nx)
         out[3] = -s * nx * ny
         out[4] = out[3]
         out[5] = k_lin + s * (1.0 - ny * ny)
     else:
         es[0] = esc[0]
-        es[_ROW] = esc[_ROW]
+        es[1] = esc[1]
         out[0] = k_lin * u0 + ex
         out[1] = k_lin * u1 + ey
         out[2] = k_lin + ke
@@ -363,7 +363,7 @@ def _pwa_increment(zx0, zy0, dx, dy, inv_uy, n, beta, gamma):
 @njit(**JIT_OPTIONS)
 def _bouc_wen_2d(q, esc, es, ucx, ucy, u0, u1, out):
     """Biaxial Bouc–Wen of Park, Wen & Ang [5]_ from the committed state (u_c, z in
-    ``esc[0], esc[_ROW]``) to the trial (u0, u1), z written to ``es``:
+    ``esc[0], esc[1]``) to the trial (u0, u1), z written to ``es``:
     ``F = a k u + (1−a) F_y z``; backward Euler over sub-increments of at most u_y/20
     (as the one-direction model in :mod:`sdofreport.core.hysteresis`) with its
     consistent tangent. ``q`` = [k, F_y, a, n, β, γ]."""
@@ -375,7 +375,7 @@ def _bouc_wen_2d(q, esc, es, ucx, ucy, u0, u1, out):
     gamma = q[5]
     inv_uy = k / fy
     zx = esc[0]
-    zy = esc[_ROW]
+    zy = esc[1]
     dux = u0 - ucx
     duy = u1 - ucy
     mag = math.sqrt(dux * dux + duy * duy)
@@ -410,7 +410,7 @@ def _bouc_wen_2d(q, esc, es, ucx, ucy, u0, u1, out):
             t21 = i21 * m11 + i22 * m21
             t22 = i21 * m12 + i22 * m22
     es[0] = zx
-    es[_ROW] = zy
+    es[1] = zy
     h = (1.0 - a) * fy
     out[0] = a * k * u0 + h * zx
     out[1] = a * k * u1 + h * zy
@@ -503,12 +503,19 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
         q = p.copy()
     out = np.zeros(8)
     fd = np.zeros(5)
-    # committed state and the state of the attempt: rows u, v, ü, F, F_d; columns 1, 2
-    state = np.zeros((5, 2))
-    trial = np.zeros((5, 2))
-    u, v, a, f = state[0], state[1], state[2], state[3]
-    tu, tv, ta, tf, tfd = trial[0], trial[1], trial[2], trial[3], trial[4]
+    # committed state and the state of the attempt: pairs u, v, ü, F, F_d (x, y); flat
+    # arrays copied by loops: a 2-D slice assignment costs seconds of compile time
+    state = np.zeros(10)
+    trial = np.zeros(10)
+    u, v, a, f = state[0:2], state[2:4], state[4:6], state[6:8]
+    tu, tv, ta, tf, tfd = trial[0:2], trial[2:4], trial[4:6], trial[6:8], trial[8:10]
     # element state per direction: committed, of the attempt, of the iterate
+    # (the circle and Bouc–Wen keep x, y in entries 0, 1; the springs one row each)
+    width = 2
+    if peak is not None:
+        width = 2 * _ROW
+    if flag is not None:
+        width = 2 * _ROW
     esc = np.zeros(2 * _ROW)
     etr = np.zeros(2 * _ROW)
     est = np.zeros(2 * _ROW)
@@ -535,8 +542,9 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
         n_try = n_sub
         for attempt in range(max_halvings + 1):
             last = attempt == max_halvings
-            trial[:, :] = state
-            for j in range(2 * _ROW):
+            for j in range(10):
+                trial[j] = state[j]
+            for j in range(width):
                 etr[j] = esc[j]
             t_in = e_in
             t_d = e_d
@@ -629,15 +637,16 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
                 ta[1] = ay
                 tf[0] = out[0]
                 tf[1] = out[1]
-                for j in range(2 * _ROW):
+                for j in range(width):
                     etr[j] = est[j]
             if ok or last:
                 if attempt > 0:
                     n_split += 1
                 if not ok:
                     all_ok = 0
-                state[:, :] = trial
-                for j in range(2 * _ROW):
+                for j in range(10):
+                    state[j] = trial[j]
+                for j in range(width):
                     esc[j] = etr[j]
                 e_in = t_in
                 e_d = t_d
@@ -674,7 +683,7 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
     stats[4] = stored
     stats[5] = q[2]
     stats[6] = esc[0]
-    stats[7] = esc[_ROW]
+    stats[7] = esc[1]
     stats[8] = peak_fd
     stats[9] = e_x
     stats[10] = out[6]
