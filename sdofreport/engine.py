@@ -43,11 +43,14 @@ from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
 from sdofreport.errors import RecordError
 from sdofreport.executors import execute, fork_context, local_pool
+from sdofreport.isolation_bounds import BOUND_RUNS, bound_model, effective_at
 from sdofreport.jobs import record_products, run_job
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 from sdofreport.project.model import Project, RecordSpec, SystemSpec, natural_key
 from sdofreport.records import Record, process_record, read_record
 from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling, \
     scaling_damping
+from sdofreport.vertical_suite import attach_vertical
 
 log = logging.getLogger("sdofreport.engine")
 
@@ -477,17 +480,13 @@ def _biaxial_result(system: SystemSpec, record_id: str, direction: int,
         instability_limit_m=limit, **common)
 
 
-#: Check quantity -> ResponseResult attribute read for its per-record peak.
-CHECK_ATTRIBUTES = {
-    "displacement": "peak_displacement_m", "drift_ratio": "peak_drift_ratio",
-    "base_shear": "peak_base_shear_n", "total_accel": "peak_total_accel_m_s2",
-    "ductility": "ductility", "residual_displacement": "residual_displacement_m",
-    "bearing_displacement": "peak_displacement_m",
-}
+#: Check quantity -> ResponseResult attribute read for its per-record peak (from the
+#: one registry, sdofreport.project.check_quantities).
+CHECK_ATTRIBUTES = {key: q.attribute for key, q in CHECK_QUANTITIES.items()}
 
 
 #: Check quantities whose per-record value carries a sign: their statistic is of |value|.
-SIGNED_QUANTITIES = ("residual_displacement",)
+SIGNED_QUANTITIES = tuple(key for key, q in CHECK_QUANTITIES.items() if q.signed)
 
 
 def _statistic(values: list[float], statistic: str) -> float:
@@ -646,6 +645,8 @@ def run_project(project: Project, *, jobs: int | None = None,
     scaling = compute_scaling(project, {r.id: o["spectrum"] for r, o in
                                         zip(records, record_outputs)},
                               {name: o["rotd"] for name, o in pair_outputs.items()})
+    attach_vertical(scaling, project, {r.id: o["spectrum"] for r, o in
+                                       zip(records, record_outputs)})
     record_results, scaled = [], {}
     for record, spec, output in zip(records, project.records, record_outputs):
         if damping != tuple(analysis.damping):
@@ -654,7 +655,7 @@ def run_project(project: Project, *, jobs: int | None = None,
         factor = scaling.factors.get(record.id, 1.0)
         if factor != 1.0:
             record = _with_acceleration(record, np.asarray(record.acceleration_m_s2) * factor,
-                                        f"suite scaling ({scaling.rule}): × {factor:.6g}")
+                                        scaling.history_note(record.id, factor))
             output = {**output, **record_products(record.acceleration_m_s2, record.dt_s),
                       "spectrum": _scaled_spectrum(output["spectrum"], factor)}
         scaled[record.id] = record
@@ -730,23 +731,17 @@ def run_project(project: Project, *, jobs: int | None = None,
                    effective=_effective_properties(project, responses, bounds, statistic))
 
 
-#: The bound analyses of systems with property_factors, in the factors' order.
-BOUND_RUNS = ("lower", "upper")
-
-
 def _bound_systems(project: Project) -> list[SystemSpec]:
     """The lower- and upper-bound variants (ids ``<id>@lower``, ``<id>@upper``; ``@`` is
-    not allowed in ids) of systems with ``property_factors``: the friction coefficients
-    multiplied by the factor (ASCE/SEI 7-16 §17.2.8.4, from memory)."""
+    not allowed in ids) of systems with ``property_factors``: the friction, or a bilinear
+    isolator's Q_d and k_d, multiplied by the factor (ASCE/SEI 7-16 §17.2.8.4, from
+    memory; :func:`sdofreport.isolation_bounds.bound_model`)."""
     out = []
     for system in project.systems:
         factors = (system.model or {}).get("property_factors")
         for name, factor in zip(BOUND_RUNS, factors or ()):
-            model = {k: v for k, v in system.model.items() if k != "property_factors"}
-            for key in ("friction", "friction_slow"):
-                if key in model:
-                    model[key] = model[key] * factor
-            out.append(dataclasses.replace(system, id=f"{system.id}@{name}", model=model))
+            out.append(dataclasses.replace(system, id=f"{system.id}@{name}",
+                                           model=bound_model(system.model, factor)))
     return out
 
 
@@ -784,14 +779,14 @@ def _governing_checks(project: Project, checks: list[Check], responses: dict,
 
 def _effective_properties(project: Project, responses: dict, bounds: dict,
                           statistic: str) -> dict:
-    """Effective period and damping of each sliding pendulum, per run, at the suite
-    statistic of that run's peak (resultant) displacements."""
-    from sdofreport.core.isolation import pendulum_effective_properties
-
+    """Effective period and damping of each sliding pendulum and each bilinear isolator
+    with property_factors, per run, at the suite statistic of that run's peak
+    (resultant) displacements."""
     out = {}
     for system in project.systems:
         model = system.model or {}
-        if system.model_name != "sliding-pendulum" or math.isinf(model["radius_m"]):
+        if not system.is_isolator or (system.model_name == "bilinear" and
+                                       not model.get("property_factors")):
             continue
         factors = dict(zip(BOUND_RUNS, model.get("property_factors") or ()))
         runs = {}
@@ -801,9 +796,7 @@ def _effective_properties(project: Project, responses: dict, bounds: dict,
                      for r in project.records_for(system)]
             demand = _statistic(peaks, statistic)
             if demand > 0:
-                runs[run] = pendulum_effective_properties(
-                    model["weight_n"], model["radius_m"], model["friction"] * factor,
-                    demand)
+                runs[run] = effective_at(model, factor)(demand)
         out[system.id] = runs
     return out
 

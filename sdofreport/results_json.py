@@ -13,16 +13,15 @@ from sdofreport import __version__
 from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import Results
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 from sdofreport.run_inputs import inputs_block
 from sdofreport.serialize import (
     array_to_list,
     finite_or_none,
     intensity_to_dict,
-    spectrum_csv_block,
     spectrum_csv_header,
     spectrum_csv_rows,
 )
-from sdofreport.site.display import CHECK_SI_UNITS
 from sdofreport.suite import usable_period_max_s
 
 RESULTS_SCHEMA = "sdofreport/results@1"
@@ -122,7 +121,7 @@ def results_document(results: Results) -> dict:
             entry.update(_directions_entry(response))
             entry.update(_bounds_entry(results.bounds.get((system.id, spec.id))))
             responses.append(entry)
-        checks = [{"quantity": c.quantity, "unit": CHECK_SI_UNITS[c.quantity],
+        checks = [{"quantity": c.quantity, "unit": CHECK_QUANTITIES[c.quantity].si_unit,
                    "limit": c.limit, "demand": c.demand, "statistic": c.statistic,
                    "ratio": c.ratio, "verdict": c.verdict, "of_absolute_values": c.absolute,
                    "basis": system.limits.basis_of(c.quantity),
@@ -186,6 +185,33 @@ def _isolation_block(system, results) -> dict:
             "displacement_m": e.displacement_m, "stiffness_n_m": e.stiffness_n_m,
             "period_s": e.period_s, "damping": e.damping} for run, e in runs.items()}
     return block
+
+
+def _isolation_periods_block(isolation: dict | None) -> dict:
+    """``scaling.isolation_periods``: T_M at the upper and the lower bound (SI)."""
+    if not isolation:
+        return {}
+    return {"isolation_periods": {"system": isolation["system"], **{run: {
+        "period_s": found.effective.period_s,
+        "displacement_m": found.effective.displacement_m,
+        "stiffness_n_m": found.effective.stiffness_n_m,
+        "damping": found.effective.damping,
+        "damping_coefficient": found.damping_coefficient,
+        "spectral_accel_g": found.spectral_accel_g} for run, found in isolation.items()
+        if run in ("upper", "lower")}}}
+
+
+def _vertical_block(vertical) -> dict:
+    """``vertical_spectrum``: the vertical target and the vertical records' factors."""
+    if vertical is None:
+        return {}
+    return {"vertical_spectrum": {
+        "kind": vertical.kind, "standard": vertical.standard, "scaled": vertical.scaled,
+        "period_range_s": list(vertical.period_range_s),
+        "records": [{"id": i, "factor": vertical.factors[i]} for i in vertical.record_ids],
+        "ratio_min": vertical.ratio_min, "ratio_max": vertical.ratio_max,
+        "periods_s": array_to_list(vertical.periods_s),
+        "sa_g": array_to_list(vertical.target_sa_g), "cautions": list(vertical.cautions)}}
 
 
 def statistics_block(check) -> dict:
@@ -262,6 +288,8 @@ def suite_blocks(results: Results) -> dict:
             "motions": [{"id": name, "records": members}
                         for name, members in scaling.motions],
             "notes": list(scaling.notes)}
+        blocks["scaling"].update(_isolation_periods_block(scaling.isolation))
+        blocks.update(_vertical_block(scaling.vertical))
     if results.inelastic:
         spec = project.inelastic
         blocks["inelastic_spectra"] = {
@@ -293,37 +321,11 @@ def _csv_text(rows: list[list]) -> str:
 
 
 def spectra_csv(results: Results) -> str:
-    """``data/spectra.csv``: the header, then :func:`spectrum_csv_rows` of each record.
-
-    The text is what ``csv.writer`` gives for those rows. Most of its time is spent
-    turning floats into text, so a record whose numbers fit one float64 block is written
-    directly: its damping and period texts are made once each instead of once per row,
-    and the spectral values go through ``repr`` of one nested list.
-    """
-    parts = [_csv_text([spectrum_csv_header(("record",))])]
+    """``data/spectra.csv``: the header, then :func:`spectrum_csv_rows` of each record."""
+    rows = [spectrum_csv_header(("record",))]
     for item in results.records:
-        block = spectrum_csv_block(item.spectrum)
-        if block is None or not block.size:
-            parts.append(_csv_text(spectrum_csv_rows(item.spectrum, (item.record.id,))))
-        else:
-            parts.append(_block_csv_text(item.record.id, item.spectrum, block))
-    return "".join(parts)
-
-
-def _block_csv_text(record_id, spectrum, block) -> str:
-    """``_csv_text`` of ``[record_id, *row]`` for each row of ``block`` (float64, 7 wide).
-
-    ``csv.writer`` writes a float as ``str(value)``, i.e. ``float.__repr__``, which has
-    no comma, bracket, space, quote or line break, so it is never quoted; ``repr`` of a
-    list of floats is those texts joined by ``", "`` in brackets. The record id is
-    quoted (or not) by ``csv.writer`` itself, in a row of more than one field.
-    """
-    lead = _csv_text([[record_id, 0.0]])[:-len("0.0\n")]
-    periods = [repr(period) for period in spectrum.periods_s.tolist()]
-    starts = [f"{lead}{zeta!r},{period},"
-              for zeta in spectrum.damping.tolist() for period in periods]
-    values = repr(block[:, 2:].tolist())[2:-2].replace(", ", ",").split("],[")
-    return "".join([start + text + "\n" for start, text in zip(starts, values, strict=True)])
+        rows.extend(spectrum_csv_rows(item.spectrum, (item.record.id,)))
+    return _csv_text(rows)
 
 
 PEAKS_CSV_HEADER = ["system", "record", "peak_displacement_m", "peak_drift_ratio",
@@ -352,8 +354,8 @@ def checks_csv(results: Results) -> str:
     rows: list[list] = [CHECKS_CSV_HEADER]
     for c in results.checks:
         statistics = statistics_block(c)
-        rows.append([c.system_id, c.quantity, CHECK_SI_UNITS[c.quantity], c.limit, c.demand,
-                     c.statistic, c.ratio, c.verdict,
+        rows.append([c.system_id, c.quantity, CHECK_QUANTITIES[c.quantity].si_unit,
+                     c.limit, c.demand, c.statistic, c.ratio, c.verdict,
                      *("" if statistics.get(k) is None else statistics[k]
                        for k in STATISTIC_KEYS)])
     return _csv_text(rows)

@@ -119,10 +119,17 @@ def inputs_block(results) -> dict:
                      "periods": _grid(analysis.periods_s),
                      "statistic": analysis.statistic, "statistic_used": results.statistic},
         "processing": project.processing.as_dict(),
-        "scaling": _plain(scaling),
+        # [scaling] isolator only when set, so projects without it record what they did
+        "scaling": {key: value for key, value in _plain(scaling).items()
+                    if key != "isolator" or value is not None},
         "design_spectrum": None if design is None else {
             "kind": design.kind,
-            "parameters": dict(sorted(design.parameters.items()))},
+            "parameters": dict(sorted(design.parameters.items())),
+            **({} if design.vertical is None else {"vertical": {
+                "kind": design.vertical.kind,
+                "parameters": dict(sorted(design.vertical.parameters.items())),
+                "period_range_s": None if design.vertical.period_range_s is None else
+                list(design.vertical.period_range_s)}})},
         "inelastic_spectra": None if inelastic is None else {
             **{key: value for key, value in _plain(inelastic).items()
                if key != "periods_s"}, "periods": _grid(inelastic.periods_s)},

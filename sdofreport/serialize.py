@@ -6,6 +6,7 @@ carry their unit as a suffix and stay SI except where the suffix says ``_g``.
 
 from __future__ import annotations
 
+import json
 import math
 from typing import Any
 
@@ -39,6 +40,12 @@ def _finite_or_none_nested(nested: list) -> list:
     if nested and isinstance(nested[0], list):
         return [_finite_or_none_nested(row) for row in nested]
     return [v if math.isfinite(v) else None for v in nested]
+
+
+def json_text(document) -> str:
+    """The text of every JSON file we write: indented by one space, UTF-8 characters
+    as they are, NaN and infinities refused (``ValueError``), one final line break."""
+    return json.dumps(document, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
 
 
 def record_summary(record: Any) -> dict:

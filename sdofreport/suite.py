@@ -18,6 +18,7 @@ from sdofreport.core import processing as core_processing
 from sdofreport.core import scaling as core_scaling
 from sdofreport.core.design_spectra import design_spectrum, en1998_1_parameters
 from sdofreport.core.units import G
+from sdofreport.isolation_bounds import isolation_periods
 from sdofreport.project.model import natural_key
 
 #: Damping ratio of the spectra that rules naming no edition ("fit") read, and of the
@@ -56,6 +57,18 @@ class SuiteScaling:
     required_ratio: float | None = None
     #: memory note of the edition (clauses and values written down from memory)
     memory_note: str = ""
+    #: period_range "isolated-system" with an isolator system: {"upper", "lower"} ->
+    #: core IsolatedPeriod (T_M at that bound), and "system", "clause"; else None
+    isolation: dict | None = None
+    #: the vertical target and the vertical records' scaling (sdofreport.vertical_suite)
+    vertical: object | None = None
+
+    def history_note(self, record_id: str, factor: float) -> str:
+        """The processing-history line of a record scaled by ``factor``."""
+        if self.vertical is not None and record_id in self.vertical.factors:
+            return (f"vertical scaling to the {self.vertical.kind} vertical target (log "
+                    f"fit, common practice): × {factor:.6g}")
+        return f"suite scaling ({self.rule}): × {factor:.6g}"
 
     @property
     def complies(self) -> bool | None:
@@ -82,7 +95,11 @@ def period_range(project) -> tuple[tuple[float, float], str | None, str]:
     name = spec.period_range_option or ("governing-period" if spec.period_s else
                                         "every-system")
     option = codes.period_range_option(spec.rule, name)
-    if option.needs_period:
+    if option.damping_coefficient is not None and spec.isolator is not None:
+        bounds = isolation_periods(project, option)
+        low = bounds["upper"].effective.period_s  # 0.75 T_M at the upper bound
+        high = bounds["lower"].effective.period_s  # 1.25 T_M at the lower bound
+    elif option.needs_period:
         low = high = spec.period_s
     else:
         periods = [s.period_s for s in project.systems]
@@ -132,8 +149,10 @@ def damping_index(damping, target: float = SCALING_DAMPING) -> int:
 def scaling_damping(project) -> float | None:
     """Damping ratio of the spectra suite scaling reads, or None when nothing is scaled."""
     rule = project.scaling.rule
-    if rule == "none" or project.design_spectrum is None:
+    if project.design_spectrum is None:
         return None
+    if rule == "none":  # the vertical target is shown at 5 % even when nothing is scaled
+        return SCALING_DAMPING if project.design_spectrum.vertical is not None else None
     edition = codes.edition(rule)
     return edition.target_damping if edition else SCALING_DAMPING
 
@@ -255,4 +274,15 @@ def compute_scaling(project, spectra: dict, pairs: dict) -> SuiteScaling:
         target_damping=zeta, motions_counted=len(groups), period_range_option=option,
         period_range_text=option_text, cautions=cautions, criterion_names=list(names),
         criterion_spectra_g=stack, criterion_label=label, target_sa_g=target,
-        required_ratio=required, memory_note=edition.memory_note if edition else "")
+        required_ratio=required, memory_note=edition.memory_note if edition else "",
+        isolation=_isolation(project, option))
+
+
+def _isolation(project, name: str | None) -> dict | None:
+    """T_M at both bounds when the range is "isolated-system" of an isolator system."""
+    option = codes.period_range_option(project.scaling.rule, name or "")
+    if option is None or option.damping_coefficient is None or \
+            project.scaling.isolator is None:
+        return None
+    return {**isolation_periods(project, option), "system": project.scaling.isolator,
+            "clause": option.isolation_clause}

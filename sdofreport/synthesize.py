@@ -166,6 +166,7 @@ def _parse_project(path: Path) -> SynthesisTarget:
         raise SdofreportError(f"{path}: no [design_spectrum] section; add one with kind = "
                               f"{' | '.join(repr(k) for k in DESIGN_SPECTRUM_KINDS)}.")
     values = dict(section)
+    values.pop("vertical", None)  # [design_spectrum.vertical]: the horizontal target only
     kind = values.pop("kind", None)
     if kind is None:
         raise SdofreportError(f"{path} [design_spectrum]: missing key 'kind'; allowed: "
@@ -299,7 +300,7 @@ def synthesize(target: SynthesisTarget, folder, *, count=1, duration_s=25.0, dt_
         try:
             result = spectrum_compatible_record(
                 target.periods_s, target.sa_g, duration_s, dt_s, seed=seed + i,
-                damping=zeta, envelope=envelope, period_range_s=period_range_s)
+                damping_ratio=zeta, envelope=envelope, period_range_s=period_range_s)
         except ValueError as exc:
             raise SdofreportError(f"cannot synthesize for {target.description}: {exc}.") from None
         records.append(result)

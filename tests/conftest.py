@@ -13,6 +13,7 @@ import os
 import shutil
 import subprocess
 import textwrap
+from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -118,6 +119,38 @@ def read_only_folder(folder: Path):
         if root:
             subprocess.run(["chattr", "-i", str(folder)], check=True)
         folder.chmod(0o700)
+
+
+# ------------------------------------------------------------------ the built example
+
+@dataclass(frozen=True)
+class BuiltExample:
+    """The bundled example as the ``build`` command wrote it, and the result cache used."""
+
+    site: Path
+    cache: Path
+
+
+@pytest.fixture(scope="session")
+def built_example(tmp_path_factory) -> BuiltExample:
+    """
+    The bundled example built once for the whole test session, through the command line
+    as a user builds it (``build --quiet --cache-dir``), with its own result cache.
+
+    Every test that reads the example's pages shares this one build: treat the folder as
+    read-only. A test that must change files copies it first
+    (``shutil.copytree(built_example.site, tmp_path / "site")``).
+    """
+    from click.testing import CliRunner
+
+    from sdofreport.cli import cli
+
+    root = tmp_path_factory.mktemp("example-build")
+    site, cache = root / "site", root / "cache"
+    result = CliRunner().invoke(cli, ["build", str(EXAMPLE / "sdofreport.toml"), "-o",
+                                      str(site), "--quiet", "--cache-dir", str(cache)])
+    assert result.exit_code == 0, result.output
+    return BuiltExample(site=site, cache=cache)
 
 
 def process_alive(pid: int) -> bool:

@@ -10,9 +10,9 @@ import pytest
 from click.testing import CliRunner
 from scipy import signal
 
+from sdofreport.cli.synthesize import register
 from sdofreport.core.units import G
 from sdofreport.synthesize import parse_target
-from sdofreport.synthesize_command import register
 
 INLINE = "asce7-16:sds=1.0,sd1=0.6,tl=8"
 FAST = ["--duration", "20", "--range", "0.05,2"]

@@ -40,6 +40,16 @@ SECTION_INTRO: dict[str, tuple[str, str]] = {
     "design_spectrum": ("[design_spectrum]", "A target spectrum, drawn on the spectrum "
                         "figures and used by `[scaling]`. Optional. The keys that apply "
                         "depend on `kind` (see the table after this one)."),
+    "design_spectrum.vertical": ("[design_spectrum.vertical]", "The vertical target, a "
+                                 "table inside `[design_spectrum]`. Optional. Vertical "
+                                 "records (`component = \"V\"`) are fitted to it over "
+                                 "a stated period range (the project's choice, common "
+                                 "practice: no clause here sets the rule) unless "
+                                 "`[scaling] rule = \"none\"`, shown against it on the "
+                                 "suite page, and the systems with `direction = "
+                                 "\"vertical\"` run under the scaled records. Without "
+                                 "it vertical records are used as given and the suite "
+                                 "page says no vertical target was given."),
     "scaling": ("[scaling]", "Amplitude scaling of the suite to the design spectrum. "
                 "Optional; needs `[design_spectrum]` unless `rule = \"none\"`."),
     "synthetic_records": ("[synthetic_records]", "Spectrum-compatible synthetic records "

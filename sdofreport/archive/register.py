@@ -31,8 +31,8 @@ from sdofreport.archive._sitefiles import (
     safe_name,
 )
 from sdofreport.archive.verify import verify_files
-from sdofreport.jsontext import json_text
 from sdofreport.project.model import natural_key
+from sdofreport.serialize import json_text
 from sdofreport.site.render import MANIFEST_NAME
 from sdofreport.site.tree import write_tree
 

@@ -22,6 +22,13 @@ class PeriodRangeOption:
     upper_factor: float
     #: True when the option reads ``[scaling] period``; False: every system's period
     needs_period: bool
+    #: isolated systems: β_eff [-] -> damping coefficient B_M [-] of the edition's table,
+    #: with which T_M is computed at the upper and the lower bound from the isolator
+    #: system's properties (``[scaling] isolator``); None for the other options
+    damping_coefficient: Callable[[float], float] | None = field(default=None,
+                                                                 repr=False)
+    #: the clauses of T_M, D_M and B_M, in words (isolated systems)
+    isolation_clause: str = ""
 
 
 def period_range_options(clause: str, symbol: str) -> tuple[PeriodRangeOption, ...]:

@@ -25,6 +25,8 @@ from __future__ import annotations
 
 import dataclasses
 
+import numpy as np
+
 from sdofreport.codes._edition import (
     Edition,
     PeriodRangeOption,
@@ -54,15 +56,45 @@ _RANGE_CLAUSE = "ASCE/SEI 7-16 §16.2.3.1, from memory"
 _ACCEPTANCE_CLAUSE = "§16.4, clause number from memory"
 
 
+#: ASCE/SEI 7-16 Table 17.5-1 (from memory): effective damping β_M [-] -> damping
+#: coefficient B_M, linear between rows, 0.8 below 2 % and 2.0 above 50 %.
+_BM_TABLE = ((0.02, 0.8), (0.05, 1.0), (0.10, 1.2), (0.20, 1.5), (0.30, 1.7), (0.40, 1.9),
+             (0.50, 2.0))
+
+
+def damping_coefficient_bm(beta: float) -> float:
+    """B_M of ASCE/SEI 7-16 Table 17.5-1 (from memory) for effective damping β [-]."""
+    betas, values = zip(*_BM_TABLE)
+    return float(np.interp(float(beta), betas, values))
+
+
+#: The clauses of T_M (text for the suite page).
+ISOLATION_CLAUSE_16 = ("ASCE/SEI 7-16 §17.5.3 (from memory): D_M = g S_M1 T_M/(4π² B_M) "
+                       "(Eq. 17.5-1; here g S_a(T_M) T_M²/(4π² B_M) with the MCE_R "
+                       "target, the same where S_a = S_M1/T), T_M = 2π√(W/(k_M g)) (Eq. "
+                       "17.5-2), k_M and β_M the effective properties at D_M "
+                       "(§17.8.5), B_M from Table 17.5-1")
+
+
+def isolation_range(standard: str, clause: str, table: str,
+                    damping_coefficient) -> PeriodRangeOption:
+    """The ``isolated-system`` option of an edition: 0.75 T_M (upper-bound properties)
+    to 1.25 T_M (lower-bound properties), from memory."""
+    return PeriodRangeOption(
+        "isolated-system", f"0.75 T_M to 1.25 T_M of the isolation system's effective "
+        f"period ({standard} §17.3.3, from memory): T_M at the upper-bound properties for "
+        f"0.75 T_M and at the lower-bound properties for 1.25 T_M, computed from the "
+        f"isolator system ([scaling] isolator) by {table}; or T_M = [scaling] period at "
+        f"both ends", 0.75, 1.25, True, damping_coefficient, clause)
+
+
 #: Scaling period range of seismically isolated structures (ASCE/SEI 7-16 §17.3.3, from
-#: memory): 0.75 T_M to 1.25 T_M, T_M the effective period of the isolation system at
-#: the maximum displacement, given as ``[scaling] period``. The clause takes the lower
-#: end with upper-bound and the upper end with lower-bound properties (from memory); a
-#: single T_M is used here for both ends.
-ISOLATION_RANGE = PeriodRangeOption(
-    "isolated-system", "0.75 T_M to 1.25 T_M of the isolation system's effective period "
-    "T_M = [scaling] period (ASCE/SEI 7-16 §17.3.3, from memory; the clause takes 0.75 "
-    "T_M with upper-bound and 1.25 T_M with lower-bound properties)", 0.75, 1.25, True)
+#: memory): 0.75 T_M, T_M at the upper-bound properties, to 1.25 T_M, T_M at the
+#: lower-bound properties (§17.2.8.4), T_M the effective period at the maximum
+#: displacement (§17.5.3). Without an isolator system, T_M = [scaling] period at both.
+ISOLATION_RANGE = isolation_range("ASCE/SEI 7-16", ISOLATION_CLAUSE_16,
+                                  "Eqs. 17.5-1 and 17.5-2 with B_M of Table 17.5-1",
+                                  damping_coefficient_bm)
 
 
 def auto_statistic(motions: int) -> tuple[str, str]:

@@ -51,6 +51,14 @@ _AMPLITUDE_CLAUSE = "ASCE/SEI 7-22 §16.2.3.2 (from memory)"
 _RANGE_CLAUSE = "ASCE/SEI 7-22 §16.2.1 T_lower to T_upper, from memory"
 _ACCEPTANCE_CLAUSE = "ASCE/SEI 7-22 §16.4, from memory"
 
+#: Scaling period range of seismically isolated structures (ASCE/SEI 7-22 §17.3.3, from
+#: memory): as in 7-16, 0.75 T_M at the upper-bound and 1.25 T_M at the lower-bound
+#: properties, T_M by §17.5.3 with B_M of Table 17.5-1 (the same values, from memory;
+#: check whether the edition changed the factors or the table).
+ISOLATION_RANGE = asce7_16.isolation_range(
+    "ASCE/SEI 7-22", asce7_16.ISOLATION_CLAUSE_16.replace("7-16", "7-22"),
+    "Eqs. 17.5-1 and 17.5-2 with B_M of Table 17.5-1", asce7_16.damping_coefficient_bm)
+
 
 def auto_statistic(motions: int) -> tuple[str, str]:
     """The acceptance statistic: the mean of the responses to the suite (§16.4)."""
@@ -96,7 +104,7 @@ EDITION = dataclasses.replace(
     minimum_motions=MINIMUM_MOTIONS,
     minimum_clause=_MINIMUM_CLAUSE,
     required_ratio=REQUIRED_RATIO,
-    period_ranges=period_range_options(_RANGE_CLAUSE, "T"),
+    period_ranges=period_range_options(_RANGE_CLAUSE, "T") + (ISOLATION_RANGE,),
     auto_statistic=auto_statistic,
     scale=scale,
     rule_text=("ASCE/SEI 7-22 §16.2.3.2 (from memory): one factor per motion (pairs share "

@@ -162,7 +162,7 @@ def _hermite_peak(u: np.ndarray, v: np.ndarray, dt: float) -> float:
     return max(best, float(np.max(np.hypot(x[0], x[1]))))
 
 
-def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
+def biaxial_elastic(acceleration_1_m_s2, acceleration_2_m_s2, time_step_s, natural_period_s,
                     damping_ratio, *, stiffness_n_m=None, participation=1.0,
                     method="exact") -> BiaxialResponse:
     """
@@ -170,11 +170,11 @@ def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
 
     Parameters
     ----------
-    acceleration_1, acceleration_2 : array-like
+    acceleration_1_m_s2, acceleration_2_m_s2 : array-like
         The pair's components, same step; the shorter is padded with zeros. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval. [s]
-    natural_period : float
+    natural_period_s : float
         Period of the oscillator (the same in every direction). [s]
     damping_ratio : float
         Fraction of critical damping. [-]
@@ -194,13 +194,13 @@ def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
     """
     from sdofreport.core.spectra import oscillator_histories
 
-    ag = _pair_array(acceleration_1, acceleration_2)
+    ag = _pair_array(acceleration_1_m_s2, acceleration_2_m_s2)
     n = ag.shape[1]
     u, v, at = np.empty((2, n)), np.empty((2, n)), np.empty((2, n))
     refined = []
     for i in range(2):
         drive = ag[i] * participation if participation != 1.0 else ag[i]
-        h = oscillator_histories(drive, time_step, np.array([natural_period]),
+        h = oscillator_histories(drive, time_step_s, np.array([natural_period_s]),
                                  np.array([damping_ratio]), method=method)
         u[i], v[i], at[i] = (h.displacement_m[0], h.velocity_m_s[0],
                              h.total_acceleration_m_s2[0])
@@ -210,9 +210,9 @@ def biaxial_elastic(acceleration_1, acceleration_2, time_step, natural_period,
     force = None if stiffness_n_m is None else stiffness_n_m * u
     # The resultant between samples too (cubic Hermite interpolation of u with u̇ in each
     # step), and never below a direction's own refined peak.
-    peak_u = max(_hermite_peak(u, v, time_step), *refined)
+    peak_u = max(_hermite_peak(u, v, time_step_s), *refined)
     return BiaxialResponse(
-        time_s=np.arange(n) * time_step, displacement_m=u, velocity_m_s=v,
+        time_s=np.arange(n) * time_step_s, displacement_m=u, velocity_m_s=v,
         total_accel_m_s2=at, force_n=force, peak_displacement_m=peak_u,
         peak_displacement_per_direction_m=tuple(refined),
         peak_total_accel_m_s2=float(np.max(_resultant(at))),
@@ -490,12 +490,14 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
     a, n, β, γ]); ``peak`` (independent clough/takeda springs) or ``flag`` (independent
     flag-shaped springs; both the parameter vector of
     :meth:`sdofreport.core.hysteresis.Hysteresis.kernel_parameters`); the others are
-    None, so the compiler drops them (numba prunes branches on None arguments). ``damper`` = [C, α, v_r] adds the vector damper. When
-    ``w_fric`` > 0 the yield force is ``w_fric · μ(|v|)`` at the start of each sub-step
-    and k_p keeps ``p[1]``. ``hist`` (11, npts): u1, u2, v1, v2, at1, at2, F1, F2,
+    None, so the compiler drops them (numba prunes branches on None arguments).
+    ``damper`` = [C, α, v_r] adds the vector damper. When ``w_fric`` > 0 the yield force
+    is ``w_fric · μ(|v|)`` at the start of each sub-step and k_p keeps ``p[1]``. ``hist`` (11, npts): u1, u2, v1, v2, at1, at2, F1, F2,
     E_input, E_viscous, ∫F·du. ``stats`` (12,): max iterations, subdivided steps, all
     converged, stopped, samples stored, final |f_element|, element state x and y (plastic
     displacement or z), peak |F_d|, E_damper, final unloading stiffness x and y.
+    Short names (DEVELOPERS.md, names of inputs): ``ag`` acceleration_1/2_m_s2 [m/s²],
+    ``dt`` time_step_s [s], ``n_sub`` sub-steps per sample, ``m`` mass_kg [kg].
     """
     npts = ag.shape[1]
     q = np.zeros(7)
@@ -690,10 +692,10 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
     stats[11] = out[7]
 
 
-def _pair_array(acceleration_1, acceleration_2) -> np.ndarray:
+def _pair_array(acceleration_1_m_s2, acceleration_2_m_s2) -> np.ndarray:
     """The two components as one (2, npts) array, the shorter padded with zeros."""
-    a1 = np.asarray(acceleration_1, dtype=float)
-    a2 = np.asarray(acceleration_2, dtype=float)
+    a1 = np.asarray(acceleration_1_m_s2, dtype=float)
+    a2 = np.asarray(acceleration_2_m_s2, dtype=float)
     ag = np.zeros((2, max(a1.size, a2.size)))
     ag[0, :a1.size] = a1
     ag[1, :a2.size] = a2
@@ -731,8 +733,8 @@ def damper_parameters(damper, reference_displacement_m, omega_rad_s, ground=None
     return np.array([damper.coefficient, damper.exponent, DAMPER_LINEAR_BELOW * u_ref * w])
 
 
-def biaxial_plastic(acceleration_1, acceleration_2, time_step, *, mass_kg, damping_coefficient,
-                    linear_stiffness_n_m, element_stiffness_n_m, yield_force_n,
+def biaxial_plastic(acceleration_1_m_s2, acceleration_2_m_s2, time_step_s, *, mass_kg,
+                    damping_coefficient, linear_stiffness_n_m, element_stiffness_n_m, yield_force_n,
                     stick_damping=0.0, gravity_stiffness_n_m=0.0, friction=None,
                     weight_n=0.0, damper=None, substeps=1, tolerance=1e-8,
                     max_iterations=10, max_halvings=8,
@@ -742,9 +744,9 @@ def biaxial_plastic(acceleration_1, acceleration_2, time_step, *, mass_kg, dampi
 
     Parameters
     ----------
-    acceleration_1, acceleration_2 : array-like
+    acceleration_1_m_s2, acceleration_2_m_s2 : array-like
         The pair's components (same step); the shorter is padded with zeros. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval. [s]
     mass_kg : float
         Mass m. [kg]
@@ -787,13 +789,13 @@ def biaxial_plastic(acceleration_1, acceleration_2, time_step, *, mass_kg, dampi
         mu = tuple(float(x) for x in friction)
     p = np.array([linear_stiffness_n_m, element_stiffness_n_m, yield_force_n,
                   stick_damping, *mu])
-    return _run(_pair_array(acceleration_1, acceleration_2), time_step, mass_kg,
+    return _run(_pair_array(acceleration_1_m_s2, acceleration_2_m_s2), time_step_s, mass_kg,
                 damping_coefficient, p, {}, w_fric, damper, gravity_stiffness_n_m,
                 substeps, tolerance, max_iterations, max_halvings, instability_limit_m)
 
 
-def biaxial_hysteresis(acceleration_1, acceleration_2, time_step, model, *, mass_kg,
-                       damping_ratio, damper=None, gravity_stiffness_n_m=0.0, substeps=1,
+def biaxial_hysteresis(acceleration_1_m_s2, acceleration_2_m_s2, time_step_s, model, *,
+                       mass_kg, damping_ratio, damper=None, gravity_stiffness_n_m=0.0, substeps=1,
                        tolerance=1e-8, max_iterations=10, max_halvings=8,
                        instability_limit_m=math.inf) -> BiaxialResponse:
     """
@@ -806,9 +808,9 @@ def biaxial_hysteresis(acceleration_1, acceleration_2, time_step, model, *, mass
 
     Parameters
     ----------
-    acceleration_1, acceleration_2 : array-like
+    acceleration_1_m_s2, acceleration_2_m_s2 : array-like
         The pair's components (same step); the shorter is padded with zeros. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval. [s]
     model : sdofreport.core.hysteresis.Hysteresis
         The model, the same in both directions.
@@ -827,7 +829,7 @@ def biaxial_hysteresis(acceleration_1, acceleration_2, time_step, model, *, mass
     -------
     BiaxialResponse
     """
-    ag = _pair_array(acceleration_1, acceleration_2)
+    ag = _pair_array(acceleration_1_m_s2, acceleration_2_m_s2)
     k, fy, alpha = model.stiffness_n_m, model.yield_strength_n, model.hardening_ratio
     k_geo = float(gravity_stiffness_n_m)
     omega = math.sqrt((k - k_geo) / mass_kg)
@@ -838,12 +840,12 @@ def biaxial_hysteresis(acceleration_1, acceleration_2, time_step, model, *, mass
         p = np.array([alpha * k, (1.0 - alpha) * k, (1.0 - alpha) * fy, 0.0, 0.0, 0.0,
                       0.0])
     element = {0: {}, 1: {"peak": params}, 2: {"bouc": params}, 3: {"flag": params}}[code]
-    return _run(ag, time_step, mass_kg, 2.0 * damping_ratio * mass_kg * omega, p,
+    return _run(ag, time_step_s, mass_kg, 2.0 * damping_ratio * mass_kg * omega, p,
                 element, 0.0, dmp, k_geo, substeps, tolerance, max_iterations,
                 max_halvings, instability_limit_m)
 
 
-def _run(ag, time_step, mass_kg, damping_coefficient, p, element: dict, w_fric, damper,
+def _run(ag, time_step_s, mass_kg, damping_coefficient, p, element: dict, w_fric, damper,
          gravity_stiffness_n_m, substeps, tolerance, max_iterations, max_halvings,
          instability_limit_m) -> BiaxialResponse:
     """Run :func:`integrate_biaxial` and gather the histories, peaks and energies."""
@@ -854,7 +856,7 @@ def _run(ag, time_step, mass_kg, damping_coefficient, p, element: dict, w_fric, 
     kwargs = dict(element)
     if damper is not None:
         kwargs["damper"] = np.asarray(damper, dtype=float)
-    integrate_biaxial(ag, float(time_step), int(substeps), float(mass_kg),
+    integrate_biaxial(ag, float(time_step_s), int(substeps), float(mass_kg),
                       float(damping_coefficient), p, float(gravity_stiffness_n_m), w_fric,
                       tolerance * scale, int(max_iterations), int(max_halvings),
                       float(instability_limit_m), hist, stats, **kwargs)
@@ -881,7 +883,7 @@ def _run(ag, time_step, mass_kg, damping_coefficient, p, element: dict, w_fric, 
         energy["damper_j"] = float(stats[9])
     res = _resultant(u)
     return BiaxialResponse(
-        time_s=np.arange(stored) * time_step, displacement_m=u.copy(),
+        time_s=np.arange(stored) * time_step_s, displacement_m=u.copy(),
         velocity_m_s=v.copy(), total_accel_m_s2=at.copy(), force_n=f.copy(),
         peak_displacement_m=float(np.max(res)),
         peak_displacement_per_direction_m=tuple(float(x) for x in np.max(np.abs(u), 1)),

@@ -66,6 +66,7 @@ import math
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
 from sdofreport.core.exact import _check_ground_acceleration, _check_time_step, _phi_series
 
@@ -163,6 +164,9 @@ def _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop, ce, cp):
     Peak |u| [m] of a unit-mass bilinear system at rest at t = 0, and a flag that every
     event was placed to tolerance. ``ce``/``cp``: full-step coefficients of the elastic
     and yielding branches (:func:`_coefficients`). Stops once the peak reaches ``u_stop``.
+    Short names (DEVELOPERS.md, names of inputs): ``ag`` acceleration_m_s2 [m/s²], ``dt``
+    time_step_s [s], ``w`` 2π/natural_period_s [rad/s], ``zeta`` damping_ratio,
+    ``alpha`` hardening_ratio, ``uy`` yield_displacement_m [m].
     """
     k = w * w
     kp = (1.0 - alpha) * k
@@ -296,18 +300,18 @@ def _peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop):
     return _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, uy, u_stop, ce, cp)
 
 
-def bilinear_peak_displacement(ground_acceleration, time_step, period_s, damping_ratio,
+def bilinear_peak_displacement(acceleration_m_s2, time_step_s, natural_period_s, damping_ratio,
                                yield_displacement_m, hardening_ratio=0.0, *, substeps=1):
     """
     Peak displacement of a bilinear system by exact integration between yield events.
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration, linear between samples. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval, > 0. [s]
-    period_s : float
+    natural_period_s : float
         Initial (elastic) period, > 0. [s]
     damping_ratio : float
         Viscous damping ratio on the initial stiffness, in [0, 1). [-]
@@ -330,20 +334,14 @@ def bilinear_peak_displacement(ground_acceleration, time_step, period_s, damping
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    ag = _check_ground_acceleration(ground_acceleration)
-    dt = _check_time_step(time_step)
-    t = float(period_s)
-    if not (math.isfinite(t) and t > 0.0):
-        raise ValueError(f"period_s must be finite and > 0 [s]; got {period_s!r}")
-    zeta = float(damping_ratio)
-    if not (0.0 <= zeta < 1.0):
-        raise ValueError(f"damping_ratio must be in [0, 1) [-]; got {damping_ratio!r}")
+    ag = _check_ground_acceleration(acceleration_m_s2)
+    dt = _check_time_step(time_step_s)
+    t = _checks.positive(natural_period_s, "natural_period_s", "s")
+    zeta = _checks.damping_ratio(damping_ratio)
     uy = float(yield_displacement_m)
-    if not uy > 0.0:
+    if not uy > 0.0:  # inf allowed: an elastic system
         raise ValueError(f"yield_displacement_m must be > 0 [m]; got {yield_displacement_m!r}")
-    alpha = float(hardening_ratio)
-    if not (0.0 <= alpha < 1.0):
-        raise ValueError(f"hardening_ratio must be in [0, 1) [-]; got {hardening_ratio!r}")
+    alpha = _checks.ratio(hardening_ratio, "hardening_ratio")
     if isinstance(substeps, bool) or int(substeps) != substeps or substeps < 1:
         raise ValueError(f"substeps must be an integer >= 1 [-]; got {substeps!r}")
     n = int(substeps)

@@ -29,7 +29,9 @@ import difflib
 import math
 from dataclasses import dataclass
 
+from sdofreport.core import _checks
 from sdofreport.core._checks import positive as _positive
+from sdofreport.core.decimal_text import HUGE, TINY, plain_decimal
 from sdofreport.core.units import G
 
 __all__ = [
@@ -76,14 +78,15 @@ def _decimal(x: float, digits: int) -> str:
     """
     ``x`` to ``digits`` significant figures without trailing zeros, in plain decimals
     from 10⁻⁴ up to (not including) 10⁶ and as ``m × 10ⁿ`` outside that range: the
-    pages' one number style, never an ``e`` exponent.
+    pages' one number style (:mod:`sdofreport.core.decimal_text`), never an ``e``
+    exponent.
     """
     if x == 0 or not math.isfinite(x):
         return f"{x:g}"
-    exponent = int(math.floor(math.log10(abs(x))))
-    if -4 <= exponent < 6:
-        text = f"{x:.{max(0, digits - 1 - exponent)}f}"
+    if TINY <= abs(x) < HUGE:
+        text = plain_decimal(x, digits)
         return text.rstrip("0").rstrip(".") if "." in text else text
+    exponent = int(math.floor(math.log10(abs(x))))
     mantissa = x / 10.0 ** exponent
     if round(abs(mantissa), digits - 1) >= 10.0:  # 9.9999 rounds up to 10
         mantissa, exponent = mantissa / 10.0, exponent + 1
@@ -108,7 +111,7 @@ def _period_line(m: float, k: float) -> str:
 
 
 # ------------------------------------------------------------------------- builders
-def lumped(mass_kg=None, stiffness_n_m=None, period_s=None) -> Derived:
+def lumped(mass_kg=None, stiffness_n_m=None, natural_period_s=None) -> Derived:
     """
     A lumped SDOF system from two of mass, stiffness and period, or the period alone.
 
@@ -118,7 +121,7 @@ def lumped(mass_kg=None, stiffness_n_m=None, period_s=None) -> Derived:
         Lumped mass, > 0. [kg]
     stiffness_n_m : float or None
         Lateral stiffness, > 0. [N/m]
-    period_s : float or None
+    natural_period_s : float or None
         Undamped natural period, > 0. [s]
 
     Returns
@@ -141,17 +144,17 @@ def lumped(mass_kg=None, stiffness_n_m=None, period_s=None) -> Derived:
     given = {
         name: value
         for name, value in (("mass_kg", mass_kg), ("stiffness_n_m", stiffness_n_m),
-                            ("period_s", period_s))
+                            ("natural_period_s", natural_period_s))
         if value is not None
     }
-    allowed = ("give mass_kg and stiffness_n_m, mass_kg and period_s, stiffness_n_m and "
-               "period_s, or period_s alone")
-    if len(given) == 3 or (len(given) == 1 and period_s is None) or not given:
+    allowed = ("give mass_kg and stiffness_n_m, mass_kg and natural_period_s, stiffness_n_m and "
+               "natural_period_s, or natural_period_s alone")
+    if len(given) == 3 or (len(given) == 1 and natural_period_s is None) or not given:
         got = " and ".join(given) if given else "nothing"
         raise ValueError(f"lumped: {allowed}; got {got}")
     m = None if mass_kg is None else _positive(mass_kg, "mass_kg", "kg")
     k = None if stiffness_n_m is None else _positive(stiffness_n_m, "stiffness_n_m", "N/m")
-    t = None if period_s is None else _positive(period_s, "period_s", "s")
+    t = None if natural_period_s is None else _positive(natural_period_s, "natural_period_s", "s")
     if t is None:
         t = _TWO_PI * math.sqrt(m / k)
         lines = (_period_line(m, k),)
@@ -197,14 +200,11 @@ def columns(count, elastic_modulus_pa, second_moment_m4, height_m, end_condition
     .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
        2017, sec. 1.3.
     """
-    if isinstance(count, bool) or not isinstance(count, int) or count < 1:
-        raise ValueError(f"count must be an integer >= 1 [-]; got {count!r}")
+    count = _checks.integer(count, "count", 1)
     e = _positive(elastic_modulus_pa, "elastic_modulus_pa", "Pa")
     i = _positive(second_moment_m4, "second_moment_m4", "m⁴")
     h = _positive(height_m, "height_m", "m")
-    if end_condition not in END_CONDITIONS:
-        allowed = ", ".join(END_CONDITIONS)
-        raise ValueError(f"end_condition must be one of {allowed}; got {end_condition!r}")
+    _checks.one_of(end_condition, "end_condition", END_CONDITIONS)
     m = _positive(mass_kg, "mass_kg", "kg")
     c = END_CONDITIONS[end_condition]
     k = count * c * e * i / h ** 3
@@ -393,14 +393,7 @@ def sliding_pendulum(weight_n, radius_m, friction) -> Derived:
     """
     w = _positive(weight_n, "weight_n", "N")
     r = _positive(radius_m, "radius_m", "m")
-    if isinstance(friction, bool):
-        raise ValueError(f"friction must be a number in [0, 1) [-]; got {friction!r}")
-    try:
-        mu = float(friction)
-    except (TypeError, ValueError):
-        raise ValueError(f"friction must be a number in [0, 1) [-]; got {friction!r}") from None
-    if not (0.0 <= mu < 1.0):
-        raise ValueError(f"friction must be in [0, 1) [-]; got {friction!r}")
+    mu = _checks.ratio(friction, "friction")
     m = w / G
     k = w / r
     t = _TWO_PI * math.sqrt(r / G)

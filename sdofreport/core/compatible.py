@@ -72,6 +72,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._checks import period_pair
 from sdofreport.core._checks import positive as _positive
 import scipy.fft
@@ -157,9 +158,7 @@ class CompatibleRecord:
 
 
 def _count(value, name: str) -> int:
-    if isinstance(value, bool) or not isinstance(value, (int, np.integer)) or value < 0:
-        raise ValueError(f"{name} must be an integer >= 0 [-]; got {value!r}")
-    return int(value)
+    return _checks.integer(value, name, 0)
 
 
 def _period_range(period_range_s, t_pos, f_max, duration):
@@ -313,8 +312,8 @@ class _Matcher:
         return acc + amplitude @ waves
 
 
-def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, *, seed,
-                               damping=0.05, envelope="saragoni-hart", iterations=6,
+def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, time_step_s, *, seed,
+                               damping_ratio=0.05, envelope="saragoni-hart", iterations=6,
                                adjustments=40, period_range_s=None,
                                tolerance=DEFAULT_TOLERANCE) -> CompatibleRecord:
     """
@@ -339,11 +338,11 @@ def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, 
         Target pseudo-spectral acceleration at ``target_periods_s``, > 0. [g]
     duration_s : float
         Record length, > 0; at least 64 samples. [s]
-    dt_s : float
+    time_step_s : float
         Sampling interval, > 0. [s]
     seed : int
         Seed for the random phases, >= 0. [-]
-    damping : float, optional
+    damping_ratio : float, optional
         Damping ratio of the matched spectrum, in (0, 1). [-]
     envelope : {"saragoni-hart", "trapezoidal"}
         Amplitude envelope; see :data:`COMPATIBLE_ENVELOPES`. [-]
@@ -374,22 +373,17 @@ def spectrum_compatible_record(target_periods_s, target_sa_g, duration_s, dt_s, 
        vol. 63, no. 1, p. 30, 1992.
     """
     duration = _positive(duration_s, "duration_s", "s")
-    dt = _positive(dt_s, "dt_s", "s")
+    dt = _positive(time_step_s, "time_step_s", "s")
     n = int(round(duration / dt)) + 1
     if n < 64:
         raise ValueError(
-            f"duration_s / dt_s must give at least 64 samples; got {duration!r} s / "
+            f"duration_s / time_step_s must give at least 64 samples; got {duration!r} s / "
             f"{dt!r} s = {n} samples"
         )
-    if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
-        raise ValueError(f"seed must be an integer >= 0 [-]; got {seed!r}")
-    zeta = _positive(damping, "damping", "-")
-    if zeta >= 1.0:
-        raise ValueError(f"damping must be a ratio in (0, 1) [-]; got {damping!r}")
-    if envelope not in COMPATIBLE_ENVELOPES:
-        raise ValueError(
-            f"envelope must be one of {', '.join(COMPATIBLE_ENVELOPES)}; got {envelope!r}"
-        )
+    _checks.integer(seed, "seed", 0)
+    zeta = _checks.in_range(damping_ratio, "damping_ratio", "-", 0.0, 1.0, low_open=True,
+                            hint=_checks.PERCENT_HINT)
+    _checks.one_of(envelope, "envelope", COMPATIBLE_ENVELOPES)
     iterations = _count(iterations, "iterations")
     adjustments = _count(adjustments, "adjustments")
     tol = _positive(tolerance, "tolerance", "-")

@@ -24,6 +24,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._checks import positive as _positive
 from sdofreport.core.spectra_current import (
     asce7_22_spectrum,
@@ -137,9 +138,7 @@ def asce7_16_spectrum(periods_s, sds_g, sd1_g, tl_s, level="design") -> np.ndarr
     sds = _positive(sds_g, "sds_g", "g")
     sd1 = _positive(sd1_g, "sd1_g", "g")
     tl = _positive(tl_s, "tl_s", "s")
-    if level not in ASCE7_16_LEVELS:
-        allowed = ", ".join(ASCE7_16_LEVELS)
-        raise ValueError(f"level must be one of {allowed} [-]; got {level!r}")
+    _checks.one_of(level, "level", ASCE7_16_LEVELS, unit="-")
     ts = sd1 / sds
     t0 = 0.2 * ts
     if tl < ts:
@@ -417,9 +416,7 @@ def design_spectrum(kind, **parameters) -> DesignSpectrum:
     ----------
     .. [1] ASCE/SEI 7-16, §11.4.6; CEN, EN 1998-1:2004, §3.2.2.2.
     """
-    if kind not in DESIGN_SPECTRUM_KINDS:
-        allowed = ", ".join(DESIGN_SPECTRUM_KINDS)
-        raise ValueError(f"kind must be one of {allowed}; got {kind!r}")
+    _checks.one_of(kind, "kind", DESIGN_SPECTRUM_KINDS)
     required, optional = DESIGN_SPECTRUM_PARAMETERS[kind]
     valid = required + optional
     for key in parameters:

@@ -39,6 +39,7 @@ import math
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
 
 __all__ = [
@@ -59,88 +60,10 @@ _SERIES_LIMIT = 1.0
 
 
 # --------------------------------------------------------------------------- checks
-def _check_time_step(time_step) -> float:
-    try:
-        dt = float(time_step)
-    except (TypeError, ValueError):
-        raise ValueError(f"time_step must be a number > 0 [s]; got {time_step!r}") from None
-    if not math.isfinite(dt) or dt <= 0.0:
-        raise ValueError(f"time_step must be finite and > 0 [s]; got {time_step!r}")
-    return dt
-
-
-def _check_ground_acceleration(ground_acceleration) -> np.ndarray:
-    try:
-        ag = np.asarray(ground_acceleration, dtype=np.float64)
-    except (TypeError, ValueError):
-        raise ValueError(
-            "ground_acceleration must be a 1-D array of numbers [m/s²]; "
-            f"got {type(ground_acceleration).__name__}"
-        ) from None
-    if ag.ndim != 1:
-        raise ValueError(
-            f"ground_acceleration must be 1-D [m/s²]; got an array of shape {ag.shape}"
-        )
-    if ag.size < 2:
-        raise ValueError(
-            f"ground_acceleration must have at least 2 samples [m/s²]; got {ag.size}"
-        )
-    if not np.all(np.isfinite(ag)):
-        bad = int(np.flatnonzero(~np.isfinite(ag))[0])
-        raise ValueError(
-            "ground_acceleration must be finite [m/s²]; "
-            f"got {float(ag[bad])!r} at sample {bad}"
-        )
-    # Always a read-only view: numba compiles a kernel once per argument type, and a
-    # read-only array is a different type from a writeable one, so without this the
-    # costliest kernels would be compiled (and cached) twice, once for each kind.
-    view = np.ascontiguousarray(ag).view()
-    view.flags.writeable = False
-    return view
-
-
-def _check_oscillators(natural_periods, damping_ratios, *, allow_zero_period=True):
-    """Broadcast periods [s] and damping ratios [-] to two flat float64 arrays."""
-    try:
-        periods = np.asarray(natural_periods, dtype=np.float64)
-    except (TypeError, ValueError):
-        raise ValueError(
-            f"natural_periods must be numbers >= 0 [s]; got {natural_periods!r}"
-        ) from None
-    try:
-        zetas = np.asarray(damping_ratios, dtype=np.float64)
-    except (TypeError, ValueError):
-        raise ValueError(
-            f"damping_ratios must be numbers in [0, 1) [-]; got {damping_ratios!r}"
-        ) from None
-    if periods.size == 0:
-        raise ValueError("natural_periods must hold at least one period [s]; got none")
-    if zetas.size == 0:
-        raise ValueError("damping_ratios must hold at least one ratio [-]; got none")
-    bad = ~np.isfinite(periods) | (periods < 0.0 if allow_zero_period else periods <= 0.0)
-    if np.any(bad):
-        value = float(periods.ravel()[np.flatnonzero(bad.ravel())[0]])
-        allowed = ">= 0" if allow_zero_period else "> 0"
-        raise ValueError(f"natural_period must be finite and {allowed} [s]; got {value!r}")
-    bad = ~np.isfinite(zetas) | (zetas < 0.0) | (zetas >= 1.0)
-    if np.any(bad):
-        value = float(zetas.ravel()[np.flatnonzero(bad.ravel())[0]])
-        hint = " (a percentage? use 0.05 for 5 %)" if np.isfinite(value) and value >= 1 else ""
-        raise ValueError(
-            f"damping_ratio must be in [0, 1) [-] (critical and over-damped systems are "
-            f"not supported); got {value!r}{hint}"
-        )
-    try:
-        periods, zetas = np.broadcast_arrays(periods, zetas)
-    except ValueError:
-        raise ValueError(
-            f"natural_periods (shape {periods.shape}) and damping_ratios "
-            f"(shape {zetas.shape}) must broadcast to one list of oscillators"
-        ) from None
-    return (
-        np.ascontiguousarray(periods.ravel(), dtype=np.float64),
-        np.ascontiguousarray(zetas.ravel(), dtype=np.float64),
-    )
+# The argument checks live in ``_checks``; these names stay for the modules importing them.
+_check_time_step = _checks.time_step
+_check_ground_acceleration = _checks.acceleration_history
+_check_oscillators = _checks.oscillators
 
 
 # --------------------------------------------------------------- coefficient algebra
@@ -240,17 +163,17 @@ def _exact_coefficients_into(wn, zeta, h, coef, terms, series_limit):
         coef[7, i] = -(theta * c11) / w
 
 
-def exact_coefficients(natural_periods, damping_ratios, time_step) -> np.ndarray:
+def exact_coefficients(natural_periods_s, damping_ratios, time_step_s) -> np.ndarray:
     """
     Exact recurrence coefficients for piecewise-linear base acceleration.
 
     Parameters
     ----------
-    natural_periods : float or array-like
+    natural_periods_s : float or array-like
         Undamped natural periods, each > 0. [s]
     damping_ratios : float or array-like
         Fractions of critical damping in [0, 1); broadcast against the periods. [-]
-    time_step : float
+    time_step_s : float
         Integration step ``h`` the coefficients advance by. [s]
 
     Returns
@@ -270,8 +193,8 @@ def exact_coefficients(natural_periods, damping_ratios, time_step) -> np.ndarray
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    h = _check_time_step(time_step)
-    periods, zeta = _check_oscillators(natural_periods, damping_ratios, allow_zero_period=False)
+    h = _check_time_step(time_step_s)
+    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
     coef = np.empty((8, periods.size))
     _exact_coefficients_into(2.0 * np.pi / periods, zeta, h, coef, _SERIES_TERMS,
                              _SERIES_LIMIT)
@@ -313,8 +236,8 @@ def _recurrence_histories(coef, cdamp, kstiff, ag, u_init, v_init, u_out, v_out,
             at_out[j, i + 1] = -(cdamp[j] * v1 + kstiff[j] * u1)
 
 
-def recurrence_response(coefficients, natural_periods, damping_ratios, ground_acceleration,
-                        initial_displacement=0.0, initial_velocity=0.0):
+def recurrence_response(coefficients, natural_periods_s, damping_ratios, acceleration_m_s2,
+                        initial_displacement_m=0.0, initial_velocity_m_s=0.0):
     """
     Run a two-term recurrence (``(8, n)`` coefficients) at the record's own samples.
 
@@ -323,15 +246,15 @@ def recurrence_response(coefficients, natural_periods, damping_ratios, ground_ac
     coefficients : numpy.ndarray
         Shape ``(8, n)`` from :func:`exact_coefficients` or
         :func:`sdofreport.core.newmark.newmark_coefficients`. [mixed, see rows]
-    natural_periods : numpy.ndarray
+    natural_periods_s : numpy.ndarray
         The n periods the coefficients were built for, each > 0. [s]
     damping_ratios : numpy.ndarray
         The n damping ratios the coefficients were built for. [-]
-    ground_acceleration : numpy.ndarray
+    acceleration_m_s2 : numpy.ndarray
         Base acceleration samples, spaced by the coefficients' step. [m/s²]
-    initial_displacement : float or array-like
+    initial_displacement_m : float or array-like
         Relative displacement at the first sample. [m]
-    initial_velocity : float or array-like
+    initial_velocity_m_s : float or array-like
         Relative velocity at the first sample. [m/s]
 
     Returns
@@ -341,16 +264,16 @@ def recurrence_response(coefficients, natural_periods, damping_ratios, ground_ac
         each of shape ``(n, npts)``.
     """
     coef = np.ascontiguousarray(coefficients, dtype=np.float64)
-    periods, zeta = _check_oscillators(natural_periods, damping_ratios, allow_zero_period=False)
-    ag = _check_ground_acceleration(ground_acceleration)
+    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
+    ag = _check_ground_acceleration(acceleration_m_s2)
     n = coef.shape[1]
     if periods.size != n:
         raise ValueError(
             f"coefficients describe {n} oscillators but {periods.size} periods were given"
         )
     wn = 2.0 * np.pi / periods
-    u0 = np.ascontiguousarray(np.broadcast_to(np.asarray(initial_displacement, float), (n,)))
-    v0 = np.ascontiguousarray(np.broadcast_to(np.asarray(initial_velocity, float), (n,)))
+    u0 = np.ascontiguousarray(np.broadcast_to(np.asarray(initial_displacement_m, float), (n,)))
+    v0 = np.ascontiguousarray(np.broadcast_to(np.asarray(initial_velocity_m_s, float), (n,)))
     u_out = np.empty((n, ag.size))
     v_out = np.empty((n, ag.size))
     at_out = np.empty((n, ag.size))
@@ -358,24 +281,24 @@ def recurrence_response(coefficients, natural_periods, damping_ratios, ground_ac
     return u_out, v_out, at_out
 
 
-def exact_response(ground_acceleration, time_step, natural_period, damping_ratio, *,
-                   initial_displacement=0.0, initial_velocity=0.0):
+def exact_response(acceleration_m_s2, time_step_s, natural_period_s, damping_ratio, *,
+                   initial_displacement_m=0.0, initial_velocity_m_s=0.0):
     """
     Response histories of linear SDOF oscillators by the exact piecewise-linear recurrence.
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration, linear between samples. [m/s²]
-    time_step : float
-        Sampling interval of ``ground_acceleration``. [s]
-    natural_period : float or array-like
+    time_step_s : float
+        Sampling interval of ``acceleration_m_s2``. [s]
+    natural_period_s : float or array-like
         Undamped natural period(s), each > 0. [s]
     damping_ratio : float or array-like
         Fraction(s) of critical damping in [0, 1); broadcast with the periods. [-]
-    initial_displacement : float or array-like, optional
+    initial_displacement_m : float or array-like, optional
         Relative displacement at t = 0 (default at rest). [m]
-    initial_velocity : float or array-like, optional
+    initial_velocity_m_s : float or array-like, optional
         Relative velocity at t = 0 (default at rest). [m/s]
 
     Returns
@@ -390,8 +313,10 @@ def exact_response(ground_acceleration, time_step, natural_period, damping_ratio
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    dt = _check_time_step(time_step)
-    periods, zeta = _check_oscillators(natural_period, damping_ratio, allow_zero_period=False)
+    dt = _check_time_step(time_step_s)
+    periods, zeta = _check_oscillators(natural_period_s, damping_ratio, allow_zero_period=False,
+                                       periods_name="natural_period_s",
+                                       ratios_name="damping_ratio")
     coef = exact_coefficients(periods, zeta, dt)
-    return recurrence_response(coef, periods, zeta, ground_acceleration,
-                               initial_displacement, initial_velocity)
+    return recurrence_response(coef, periods, zeta, acceleration_m_s2,
+                               initial_displacement_m, initial_velocity_m_s)

@@ -80,6 +80,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
 
 __all__ = [
@@ -178,17 +179,7 @@ class Damper:
 
 
 def _ratio(value, name: str, low: float, high: float, *, low_open=False) -> float:
-    if isinstance(value, bool):
-        raise ValueError(f"{name} must be a number [-]; got {value!r}")
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number [-]; got {value!r}") from None
-    bad = not math.isfinite(x) or x > high or (x <= low if low_open else x < low)
-    if bad:
-        bracket = "(" if low_open else "["
-        raise ValueError(f"{name} must be in {bracket}{low:g}, {high:g}] [-]; got {value!r}")
-    return x
+    return _checks.in_range(value, name, "-", low, high, low_open=low_open, high_open=False)
 
 
 def hysteresis(model, stiffness_n_m, yield_strength_n, hardening_ratio=0.0, *,
@@ -235,9 +226,7 @@ def hysteresis(model, stiffness_n_m, yield_strength_n, hardening_ratio=0.0, *,
        incorporate strength and stiffness deterioration," Earthquake Eng. Struct. Dyn.,
        vol. 34, no. 12, pp. 1489-1511, 2005, doi: 10.1002/eqe.495.
     """
-    if model not in HYSTERESIS_MODELS:
-        raise ValueError(f"hysteresis must be one of {', '.join(HYSTERESIS_MODELS)}; "
-                         f"got {model!r}")
+    _checks.one_of(model, "hysteresis", HYSTERESIS_MODELS)
     k = _ratio(stiffness_n_m, "stiffness_n_m", 0.0, math.inf, low_open=True)
     fy = _ratio(yield_strength_n, "yield_strength_n", 0.0, math.inf, low_open=True)
     if not (math.isfinite(k) and math.isfinite(fy)):
@@ -619,6 +608,8 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
     iterations, subdivided steps, all converged (1/0), E_input, E_viscous, ∫F du,
     E_damper, stopped (1/0: |u| >= ``u_stop`` or not finite), samples stored.
     The run stops after the step in which |u| >= ``u_stop``.
+    Short names (DEVELOPERS.md, names of inputs): ``ag`` acceleration_m_s2 [m/s²],
+    ``dt`` time_step_s [s], ``n_sub`` sub-steps per sample, ``m`` mass_kg [kg].
     """
     npts = ag.size
     sc = np.zeros(_STATE)

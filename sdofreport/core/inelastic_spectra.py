@@ -54,6 +54,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
 from sdofreport.core.bilinear_exact import (
     MIN_STEPS_PER_PERIOD,
@@ -62,7 +63,6 @@ from sdofreport.core.bilinear_exact import (
 )
 from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
 from sdofreport.core.nonlinear import (
-    _check_damping,
     _check_workers,
     _for_each_period,
     _number,
@@ -190,6 +190,7 @@ def _window_peak(lo, hi, target, stop, rel_tol, ag, dt, n_sub, w, zeta, alpha, s
     """
     Golden-section search for the largest μ on (lo, hi), ending early at a point whose
     ductility reaches ``target``; returns (η, μ(η)) of the best point seen.
+    Short names as in :func:`_ductility_period`.
     """
     g = 0.3819660112501051  # (3 − √5)/2
     x1 = lo + g * (hi - lo)
@@ -225,6 +226,9 @@ def _ductility_period(ag, dt, n_sub, w, zeta, alpha, targets, ratio, eta_min, re
     Elastic SD [m] of one period; fills ``eta_out`` (largest η = Fy/Fe whose ductility
     equals each target, ``targets`` sorted ascending) and ``mu_out`` (ductility there).
     The search is described in the module docstring.
+    Short names (DEVELOPERS.md, names of inputs): ``ag`` acceleration_m_s2 [m/s²], ``dt``
+    time_step_s [s], ``w`` 2π/natural_period_s [rad/s], ``zeta`` damping_ratio,
+    ``alpha`` hardening_ratio.
     """
     ce, cp = _branch_coefficients(dt / n_sub, w, zeta, alpha)
     sd, _ = _bilinear_peak(ag, dt, n_sub, w, zeta, alpha, np.inf, np.inf, ce, cp)
@@ -277,25 +281,13 @@ def _ductility_period(ag, dt, n_sub, w, zeta, alpha, targets, ratio, eta_min, re
 
 
 # ---------------------------------------------------------------------- plumbing
-def _check_common(ground_acceleration, time_step, periods, damping, alpha,
+def _check_common(acceleration_m_s2, time_step_s, periods_s, damping_ratio, hardening_ratio,
                   steps_per_period):
-    ag = _check_ground_acceleration(ground_acceleration)
-    dt = _check_time_step(time_step)
-    try:
-        t = np.atleast_1d(np.asarray(periods, dtype=np.float64))
-    except (TypeError, ValueError):
-        raise ValueError(f"periods must be numbers > 0 [s]; got {periods!r}") from None
-    if t.ndim != 1 or t.size == 0:
-        raise ValueError(f"periods must be a non-empty 1-D list [s]; got shape {t.shape}")
-    bad = ~np.isfinite(t) | (t <= 0.0)
-    if np.any(bad):
-        raise ValueError(
-            f"periods must be finite and > 0 [s]; got {float(t[np.flatnonzero(bad)[0]])!r}"
-        )
-    zeta = _check_damping(damping)
-    a = _number(alpha, "alpha", "-")
-    if not (0.0 <= a < 1.0):
-        raise ValueError(f"alpha must be in [0, 1) [-]; got {alpha!r}")
+    ag = _check_ground_acceleration(acceleration_m_s2)
+    dt = _check_time_step(time_step_s)
+    t = _checks.values_above(periods_s, "periods_s", "s", 0.0)
+    zeta = _checks.damping_ratio(damping_ratio)
+    a = _checks.ratio(hardening_ratio, "hardening_ratio")
     spp = _number(steps_per_period, "steps_per_period", "-")
     if not (math.isfinite(spp) and spp >= MIN_STEPS_PER_PERIOD):
         raise ValueError(
@@ -307,24 +299,12 @@ def _check_common(ground_acceleration, time_step, periods, damping, alpha,
 
 
 def _check_factors(values, name: str, minimum: float, strict: bool) -> np.ndarray:
-    try:
-        x = np.atleast_1d(np.asarray(values, dtype=np.float64))
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be numbers [-]; got {values!r}") from None
-    if x.ndim != 1 or x.size == 0:
-        raise ValueError(f"{name} must be a non-empty 1-D list [-]; got shape {x.shape}")
-    bad = ~np.isfinite(x) | ((x <= minimum) if strict else (x < minimum))
-    if np.any(bad):
-        rule = f"> {minimum:g}" if strict else f">= {minimum:g}"
-        raise ValueError(
-            f"{name} must be finite and {rule} [-]; got {float(x[np.flatnonzero(bad)[0]])!r}"
-        )
-    return x
+    return _checks.values_above(values, name, "-", minimum, strict=strict)
 
 
 # ------------------------------------------------------------------------- public
-def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
-                               strength_reduction_factors, alpha=0.0, *,
+def constant_strength_spectrum(acceleration_m_s2, time_step_s, periods_s, damping_ratio,
+                               strength_reduction_factors, hardening_ratio=0.0, *,
                                steps_per_period=DEFAULT_STEPS_PER_PERIOD,
                                workers=1) -> ConstantStrengthSpectrum:
     """
@@ -332,17 +312,17 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration, linear between samples. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval, > 0. [s]
-    periods : array-like
+    periods_s : array-like
         Initial (elastic) periods, each > 0. [s]
-    damping : float
+    damping_ratio : float
         Viscous damping ratio on the initial stiffness, in [0, 1). [-]
     strength_reduction_factors : array-like
         R = Fe/Fy, each > 0 (R <= 1 stays elastic). [-]
-    alpha : float, optional
+    hardening_ratio : float, optional
         Post-yield stiffness ratio, 0 <= α < 1. [-]
     steps_per_period : float, optional
         Fewest integration steps per initial period, >= 4 (module docstring). [-]
@@ -358,8 +338,8 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
     .. [1] A. K. Chopra, *Dynamics of Structures*, 5th ed. Hoboken, NJ, USA: Pearson,
        2017, sec. 7.4.
     """
-    ag, dt, t, zeta, a, n_sub, w = _check_common(ground_acceleration, time_step, periods,
-                                                 damping, alpha, steps_per_period)
+    ag, dt, t, zeta, a, n_sub, w = _check_common(acceleration_m_s2, time_step_s, periods_s,
+                                                 damping_ratio, hardening_ratio, steps_per_period)
     r = _check_factors(strength_reduction_factors, "strength_reduction_factors", 0.0, True)
     n_workers = _check_workers(workers)
     mu = np.empty((t.size, r.size))
@@ -379,8 +359,8 @@ def constant_strength_spectrum(ground_acceleration, time_step, periods, damping,
     )
 
 
-def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping,
-                                target_ductilities, alpha=0.0, *,
+def constant_ductility_spectrum(acceleration_m_s2, time_step_s, periods_s, damping_ratio,
+                                target_ductilities, hardening_ratio=0.0, *,
                                 steps_per_period=DEFAULT_STEPS_PER_PERIOD,
                                 strength_tolerance=1e-3, scan_ratio=SCAN_RATIO,
                                 workers=1) -> ConstantDuctilitySpectrum:
@@ -389,17 +369,17 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration, linear between samples. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval, > 0. [s]
-    periods : array-like
+    periods_s : array-like
         Initial (elastic) periods, each > 0. [s]
-    damping : float
+    damping_ratio : float
         Viscous damping ratio on the initial stiffness, in [0, 1). [-]
     target_ductilities : array-like
         Ductility targets μ = max|u|/u_y, each >= 1. [-]
-    alpha : float, optional
+    hardening_ratio : float, optional
         Post-yield stiffness ratio, 0 <= α < 1. [-]
     steps_per_period : float, optional
         Fewest integration steps per initial period, >= 4 (module docstring). [-]
@@ -422,8 +402,8 @@ def constant_ductility_spectrum(ground_acceleration, time_step, periods, damping
        response of simple systems to earthquake motions," in Proc. 2nd World Conf.
        Earthq. Eng., Tokyo, 1960, vol. 2, pp. 895-912.
     """
-    ag, dt, t, zeta, a, n_sub, w = _check_common(ground_acceleration, time_step, periods,
-                                                 damping, alpha, steps_per_period)
+    ag, dt, t, zeta, a, n_sub, w = _check_common(acceleration_m_s2, time_step_s, periods_s,
+                                                 damping_ratio, hardening_ratio, steps_per_period)
     mu_t = _check_factors(target_ductilities, "target_ductilities", 1.0, False)
     st = _number(strength_tolerance, "strength_tolerance", "-")
     if not (0.0 < st <= 0.1):

@@ -23,6 +23,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from sdofreport.core import _checks
 from sdofreport.core._numeric import cumulative_trapezoid, trapezoid
 
 from sdofreport.core.units import G
@@ -33,33 +34,10 @@ MEAN_PERIOD_BAND_HZ = (0.25, 20.0)
 
 def _as_acceleration(acceleration_m_s2, name: str = "acceleration_m_s2") -> np.ndarray:
     """Validated 1-D float64 copy of an acceleration series (at least 2 finite samples)."""
-    try:
-        values = np.array(acceleration_m_s2, dtype=np.float64)
-    except (TypeError, ValueError) as exc:
-        raise ValueError(f"{name} must be a sequence of numbers [m/s²]; got {exc}") from None
-    if values.ndim != 1:
-        raise ValueError(
-            f"{name} must be one-dimensional [m/s²]; got an array of shape {values.shape}"
-        )
-    if values.size < 2:
-        raise ValueError(f"{name} must have at least 2 samples [m/s²]; got {values.size}")
-    bad = np.flatnonzero(~np.isfinite(values))
-    if bad.size:
-        raise ValueError(
-            f"{name} must be finite [m/s²]; sample {bad[0]} is {values[bad[0]]!r}"
-        )
-    return values
+    return np.array(_checks.finite_array(acceleration_m_s2, name, "m/s²", min_size=2))
 
 
-def _check_time_step(time_step_s, name: str = "time_step_s") -> float:
-    """Validated positive, finite time step [s]."""
-    try:
-        dt = float(time_step_s)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number > 0 [s]; got {time_step_s!r}") from None
-    if not np.isfinite(dt) or dt <= 0.0:
-        raise ValueError(f"{name} must be a finite number > 0 [s]; got {time_step_s!r}")
-    return dt
+_check_time_step = _checks.time_step
 
 
 def pga(acceleration_m_s2) -> float:

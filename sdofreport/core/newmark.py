@@ -32,6 +32,7 @@ import math
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
 from sdofreport.core.exact import (
     _check_ground_acceleration,
@@ -70,9 +71,7 @@ def newmark_parameters(method="newmark-average", gamma=None, beta=None):
     tuple of float
         ``(gamma, beta)``. [-]
     """
-    if method not in METHODS:
-        allowed = ", ".join(METHODS)
-        raise ValueError(f"method must be one of {allowed}; got {method!r}")
+    _checks.one_of(method, "method", METHODS)
     g0, b0 = METHODS[method]
     g = g0 if gamma is None else gamma
     b = b0 if beta is None else beta
@@ -116,15 +115,15 @@ def newmark_stability_limit(gamma, beta) -> float:
     return 1.0 / (2.0 * math.pi * math.sqrt(0.5 * gamma - beta))
 
 
-def check_newmark_step(time_step, natural_periods, gamma, beta) -> None:
+def check_newmark_step(time_step_s, natural_periods_s, gamma, beta) -> None:
     """
     Refuse an integration step beyond the stability limit of (γ, β).
 
     Parameters
     ----------
-    time_step : float
+    time_step_s : float
         Integration step actually used (after any sub-stepping). [s]
-    natural_periods : array-like
+    natural_periods_s : array-like
         Periods > 0 integrated with that step. [s]
     gamma, beta : float
         Newmark parameters. [-]
@@ -137,33 +136,33 @@ def check_newmark_step(time_step, natural_periods, gamma, beta) -> None:
     limit = newmark_stability_limit(gamma, beta)
     if math.isinf(limit):
         return
-    periods = np.asarray(natural_periods, dtype=np.float64)
+    periods = np.asarray(natural_periods_s, dtype=np.float64)
     periods = periods[periods > 0.0]
     if periods.size == 0:
         return
     shortest = float(periods.min())
-    ratio = time_step / shortest
+    ratio = time_step_s / shortest
     if ratio > limit:
         raise ValueError(
-            f"Newmark step unstable: time_step {time_step:.6g} [s] / natural_period "
+            f"Newmark step unstable: time_step_s {time_step_s:.6g} [s] / natural_period "
             f"{shortest:.6g} [s] = {ratio:.4g} exceeds the stability limit {limit:.4g} "
             f"for gamma={gamma:.6g}, beta={beta:.6g}; use a smaller step (sub-steps) or an "
             f"unconditionally stable method (beta >= gamma/2)"
         )
 
 
-def newmark_coefficients(natural_periods, damping_ratios, time_step, gamma=0.5,
+def newmark_coefficients(natural_periods_s, damping_ratios, time_step_s, gamma=0.5,
                          beta=0.25) -> np.ndarray:
     """
     Newmark-beta step written as a two-term recurrence (same layout as the exact method).
 
     Parameters
     ----------
-    natural_periods : float or array-like
+    natural_periods_s : float or array-like
         Undamped natural periods, each > 0. [s]
     damping_ratios : float or array-like
         Fractions of critical damping in [0, 1); broadcast with the periods. [-]
-    time_step : float
+    time_step_s : float
         Integration step ``h``. [s]
     gamma, beta : float
         Newmark parameters (γ >= 0.5, β >= 0). [-]
@@ -185,8 +184,8 @@ def newmark_coefficients(natural_periods, damping_ratios, time_step, gamma=0.5,
     .. [1] N. M. Newmark, "A method of computation for structural dynamics,"
        J. Eng. Mech. Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
     """
-    h = _check_time_step(time_step)
-    periods, zeta = _check_oscillators(natural_periods, damping_ratios, allow_zero_period=False)
+    h = _check_time_step(time_step_s)
+    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
     gamma, beta = newmark_parameters("newmark-average", gamma, beta)
     check_newmark_step(h, periods, gamma, beta)
     wn = 2.0 * np.pi / periods
@@ -230,9 +229,9 @@ def _newmark_literal(ag, h, wn, zeta, gamma, beta, u0, v0, u, v, at):
         a = a1
 
 
-def newmark_beta(ground_acceleration, time_step, natural_period, damping_ratio,
+def newmark_beta(acceleration_m_s2, time_step_s, natural_period_s, damping_ratio,
                  method="newmark-average", *, gamma=None, beta=None,
-                 initial_displacement=0.0, initial_velocity=0.0):
+                 initial_displacement_m=0.0, initial_velocity_m_s=0.0):
     """
     Relative response of one linear SDOF oscillator to base acceleration, step by step.
 
@@ -242,11 +241,11 @@ def newmark_beta(ground_acceleration, time_step, natural_period, damping_ratio,
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration. [m/s²]
-    time_step : float
-        Sampling interval of ``ground_acceleration``, used as the integration step. [s]
-    natural_period : float
+    time_step_s : float
+        Sampling interval of ``acceleration_m_s2``, used as the integration step. [s]
+    natural_period_s : float
         Undamped natural period, > 0. [s]
     damping_ratio : float
         Fraction of critical damping in [0, 1). [-]
@@ -254,9 +253,9 @@ def newmark_beta(ground_acceleration, time_step, natural_period, damping_ratio,
         Sets (gamma, beta) per [1]_; see :data:`METHODS`.
     gamma, beta : float, optional
         Override the method's parameters. [-]
-    initial_displacement : float, optional
+    initial_displacement_m : float, optional
         Relative displacement at t = 0. [m]
-    initial_velocity : float, optional
+    initial_velocity_m_s : float, optional
         Relative velocity at t = 0. [m/s]
 
     Returns
@@ -270,9 +269,11 @@ def newmark_beta(ground_acceleration, time_step, natural_period, damping_ratio,
     .. [1] N. M. Newmark, "A method of computation for structural dynamics,"
        J. Eng. Mech. Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
     """
-    ag = _check_ground_acceleration(ground_acceleration)
-    h = _check_time_step(time_step)
-    periods, zeta = _check_oscillators(natural_period, damping_ratio, allow_zero_period=False)
+    ag = _check_ground_acceleration(acceleration_m_s2)
+    h = _check_time_step(time_step_s)
+    periods, zeta = _check_oscillators(natural_period_s, damping_ratio, allow_zero_period=False,
+                                       periods_name="natural_period_s",
+                                       ratios_name="damping_ratio")
     if periods.size != 1:
         raise ValueError(
             f"newmark_beta integrates one oscillator; got {periods.size} (period, damping) pairs"
@@ -283,5 +284,5 @@ def newmark_beta(ground_acceleration, time_step, natural_period, damping_ratio,
     v = np.empty(ag.size)
     at = np.empty(ag.size)
     _newmark_literal(ag, h, 2.0 * np.pi / periods[0], zeta[0], g, b,
-                     float(initial_displacement), float(initial_velocity), u, v, at)
+                     float(initial_displacement_m), float(initial_velocity_m_s), u, v, at)
     return u, v, at

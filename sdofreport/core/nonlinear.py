@@ -60,6 +60,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
 from sdofreport.core.units import G
 
@@ -125,13 +126,7 @@ class SlidingPendulum:
     yield_displacement_m: float = DEFAULT_FRICTION_YIELD_DISPLACEMENT_M
 
 
-def _number(value, name: str, unit: str) -> float:
-    if isinstance(value, bool):
-        raise ValueError(f"{name} must be a number [{unit}]; got {value!r}")
-    try:
-        return float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a number [{unit}]; got {value!r}") from None
+_number = _checks.number
 
 
 def _positive(value, name: str, unit: str, *, allow_inf=False) -> float:
@@ -179,9 +174,7 @@ def bilinear(stiffness_n_m, *, yield_strength_n=None, yield_displacement_m=None,
         fy = _positive(yield_strength_n, "yield_strength_n", "N", allow_inf=True)
     else:
         fy = k * _positive(yield_displacement_m, "yield_displacement_m", "m", allow_inf=True)
-    a = _number(hardening_ratio, "hardening_ratio", "-")
-    if not (0.0 <= a < 1.0):
-        raise ValueError(f"hardening_ratio must be in [0, 1) [-]; got {hardening_ratio!r}")
+    a = _checks.ratio(hardening_ratio, "hardening_ratio")
     return Bilinear(stiffness_n_m=k, yield_strength_n=fy, hardening_ratio=a)
 
 
@@ -215,9 +208,7 @@ def sliding_pendulum_model(weight_n, radius_m, friction,
     """
     w = None if weight_n is None else _positive(weight_n, "weight_n", "N")
     r = _positive(radius_m, "radius_m", "m", allow_inf=True)
-    mu = _number(friction, "friction", "-")
-    if not (0.0 <= mu < 1.0):
-        raise ValueError(f"friction must be in [0, 1) [-]; got {friction!r}")
+    mu = _checks.ratio(friction, "friction")
     uy = _positive(yield_displacement_m, "yield_displacement_m", "m")
     return SlidingPendulum(weight_n=w, radius_m=r, friction=mu, yield_displacement_m=uy)
 
@@ -317,18 +308,8 @@ def _for_each_period(count: int, workers: int, work) -> None:
             future.result()
 
 
-def _check_positive_int(value, name: str, minimum: int) -> int:
-    if isinstance(value, bool) or not isinstance(value, (int, np.integer)) or value < minimum:
-        raise ValueError(f"{name} must be an integer >= {minimum} [-]; got {value!r}")
-    return int(value)
-
-
-def _check_damping(damping_ratio) -> float:
-    z = _number(damping_ratio, "damping_ratio", "-")
-    if not (0.0 <= z < 1.0):
-        hint = " (a percentage? use 0.05 for 5 %)" if z >= 1.0 else ""
-        raise ValueError(f"damping_ratio must be in [0, 1) [-]; got {damping_ratio!r}{hint}")
-    return z
+_check_positive_int = _checks.integer
+_check_damping = _checks.damping_ratio
 
 
 def _check_solver(tolerance, max_iterations, max_halvings):
@@ -339,7 +320,7 @@ def _check_solver(tolerance, max_iterations, max_halvings):
             _check_positive_int(max_halvings, "max_halvings", 0))
 
 
-def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
+def nonlinear_response(acceleration_m_s2, time_step_s, system, damping_ratio, *,
                        mass_kg=None, initial_displacement_m=0.0, initial_velocity_m_s=0.0,
                        substeps=1, tolerance=DEFAULT_TOLERANCE,
                        max_iterations=DEFAULT_MAX_ITERATIONS,
@@ -350,9 +331,9 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration, linear between samples. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval, > 0. [s]
     system : Bilinear, Hysteresis or SlidingPendulum
         Restoring-force model (see :func:`bilinear`,
@@ -406,8 +387,8 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
     """
     from sdofreport.core import hysteresis as hy
 
-    ag = _check_ground_acceleration(ground_acceleration)
-    dt = _check_time_step(time_step)
+    ag = _check_ground_acceleration(acceleration_m_s2)
+    dt = _check_time_step(time_step_s)
     zeta = _check_damping(damping_ratio)
     u0 = _number(initial_displacement_m, "initial_displacement_m", "m")
     v0 = _number(initial_velocity_m_s, "initial_velocity_m_s", "m/s")
@@ -418,10 +399,7 @@ def nonlinear_response(ground_acceleration, time_step, system, damping_ratio, *,
         )
     n_sub = _check_positive_int(substeps, "substeps", 1)
     tol, max_iter, max_halv = _check_solver(tolerance, max_iterations, max_halvings)
-    k_geo = _number(gravity_stiffness_n_m, "gravity_stiffness_n_m", "N/m")
-    if not (math.isfinite(k_geo) and k_geo >= 0.0):
-        raise ValueError(f"gravity_stiffness_n_m must be finite and >= 0 [N/m]; got "
-                         f"{gravity_stiffness_n_m!r}")
+    k_geo = _checks.nonnegative(gravity_stiffness_n_m, "gravity_stiffness_n_m", "N/m")
     bound = math.inf
     if instability_limit_m is not None:
         bound = _positive(instability_limit_m, "instability_limit_m", "m", allow_inf=True)

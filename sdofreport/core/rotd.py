@@ -34,6 +34,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core.spectra import SPECTRUM_METHODS, oscillator_histories
 from sdofreport.core.units import G
 
@@ -187,16 +188,11 @@ def _rotated_peaks(directions, x1, x2) -> np.ndarray:
     return peaks
 
 
-def _check_pair(acc_h1, acc_h2) -> tuple[np.ndarray, np.ndarray]:
-    a1 = np.asarray(acc_h1, dtype=np.float64)
-    a2 = np.asarray(acc_h2, dtype=np.float64)
-    if a1.ndim != 1 or a1.shape != a2.shape or a1.size < 2:
-        raise ValueError(
-            f"acc_h1 and acc_h2 must be 1-D records of the same length >= 2 [m/s²]; "
-            f"got shapes {a1.shape} and {a2.shape}"
-        )
-    if not (np.all(np.isfinite(a1)) and np.all(np.isfinite(a2))):
-        raise ValueError("acc_h1 and acc_h2 must hold finite values [m/s²]")
+def _check_pair(acceleration_1_m_s2, acceleration_2_m_s2) -> tuple[np.ndarray, np.ndarray]:
+    names = ("acceleration_1_m_s2", "acceleration_2_m_s2")
+    a1 = _checks.finite_array(acceleration_1_m_s2, names[0], "m/s²", min_size=2)
+    a2 = _checks.finite_array(acceleration_2_m_s2, names[1], "m/s²", min_size=2)
+    _checks.same_length(a1, a2, names, "m/s²")
     return a1, a2
 
 
@@ -209,7 +205,8 @@ def _upsample(acc: np.ndarray, factor: int) -> np.ndarray:
     return np.append(inner.ravel(), acc[-1])
 
 
-def rotd_spectrum(acc_h1, acc_h2, dt, periods, damping=0.05, *,
+def rotd_spectrum(acceleration_1_m_s2, acceleration_2_m_s2, time_step_s, periods_s,
+                  damping_ratio=0.05, *,
                   angles_deg=DEFAULT_ANGLES_DEG, method="exact",
                   samples_per_period=DEFAULT_SAMPLES_PER_PERIOD) -> RotDSpectrum:
     """
@@ -222,15 +219,15 @@ def rotd_spectrum(acc_h1, acc_h2, dt, periods, damping=0.05, *,
 
     Parameters
     ----------
-    acc_h1 : array-like
+    acceleration_1_m_s2 : array-like
         Ground acceleration along the first horizontal axis (θ = 0). [m/s²]
-    acc_h2 : array-like
+    acceleration_2_m_s2 : array-like
         Ground acceleration along the orthogonal axis (θ = 90°), same length. [m/s²]
-    dt : float
+    time_step_s : float
         Sampling interval of both records, > 0. [s]
-    periods : float or array-like
+    periods_s : float or array-like
         Natural periods, >= 0, as a 1-D list. [s]
-    damping : float, optional
+    damping_ratio : float, optional
         Damping ratio in [0, 1). [-]
     angles_deg : array-like, optional
         Rotation angles in [0, 180); default 0, 1, ..., 179. [deg]
@@ -250,29 +247,20 @@ def rotd_spectrum(acc_h1, acc_h2, dt, periods, damping=0.05, *,
        intensity from two horizontal components of motion," Bull. Seismol. Soc. Am.,
        vol. 100, no. 4, pp. 1830-1835, 2010, doi:10.1785/0120090400.
     """
-    a1, a2 = _check_pair(acc_h1, acc_h2)
+    a1, a2 = _check_pair(acceleration_1_m_s2, acceleration_2_m_s2)
+    step = _checks.time_step(time_step_s)
     try:
-        step = float(dt)
-    except (TypeError, ValueError):
-        step = math.nan
-    if not (math.isfinite(step) and step > 0.0):
-        raise ValueError(f"dt must be a finite number > 0 [s]; got {dt!r}")
-    try:
-        t_list = np.atleast_1d(np.asarray(periods, dtype=np.float64))
+        t_list = np.atleast_1d(np.asarray(periods_s, dtype=np.float64))
     except (TypeError, ValueError):
         t_list = None
     if t_list is None or t_list.ndim != 1 or t_list.size == 0:
-        raise ValueError(f"periods must be a number or a 1-D list of numbers [s]; got {periods!r}")
+        raise ValueError(
+            f"periods_s must be a number or a 1-D list of numbers [s]; got {periods_s!r}"
+        )
     if not (np.all(np.isfinite(t_list)) and np.all(t_list >= 0.0)):
-        raise ValueError(f"periods must be finite and >= 0 [s]; got {periods!r}")
-    try:
-        zeta = float(damping)
-    except (TypeError, ValueError):
-        zeta = math.nan
-    if not (0.0 <= zeta < 1.0):
-        raise ValueError(f"damping must be a ratio in [0, 1) [-]; got {damping!r}")
-    if method not in SPECTRUM_METHODS:
-        raise ValueError(f"method must be one of {', '.join(SPECTRUM_METHODS)}; got {method!r}")
+        raise ValueError(f"periods_s must be finite and >= 0 [s]; got {periods_s!r}")
+    zeta = _checks.damping_ratio(damping_ratio)
+    _checks.one_of(method, "method", SPECTRUM_METHODS)
     try:
         spp = float(samples_per_period)
     except (TypeError, ValueError):

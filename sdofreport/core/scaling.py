@@ -124,7 +124,7 @@ class ScalingResult:
 
 
 # ---------------------------------------------------------------------- period ranges
-def period_range_asce7_16(period_s) -> tuple[float, float]:
+def period_range_asce7_16(natural_period_s) -> tuple[float, float]:
     """
     Period range of ASCE/SEI 7-16 §16.2.3.1 (from memory) for a first-mode period T: (0.2 T, 2 T).
 
@@ -134,7 +134,7 @@ def period_range_asce7_16(period_s) -> tuple[float, float]:
 
     Parameters
     ----------
-    period_s : float
+    natural_period_s : float
         First-mode period T, > 0. [s]
 
     Returns
@@ -146,17 +146,17 @@ def period_range_asce7_16(period_s) -> tuple[float, float]:
     ----------
     .. [1] ASCE/SEI 7-16, §16.2.3.1 (clause number from memory).
     """
-    t = _positive(period_s, "period_s", "s")
+    t = _positive(natural_period_s, "natural_period_s", "s")
     return (0.2 * t, 2.0 * t)
 
 
-def period_range_en1998_1(period_s) -> tuple[float, float]:
+def period_range_en1998_1(natural_period_s) -> tuple[float, float]:
     """
     Period range of EN 1998-1 §3.2.3.1.2(4)c: (0.2 T₁, 2 T₁).
 
     Parameters
     ----------
-    period_s : float
+    natural_period_s : float
         Fundamental period T₁ in the direction considered, > 0. [s]
 
     Returns
@@ -168,7 +168,7 @@ def period_range_en1998_1(period_s) -> tuple[float, float]:
     ----------
     .. [1] CEN, EN 1998-1:2004, §3.2.3.1.2.
     """
-    t = _positive(period_s, "period_s", "s")
+    t = _positive(natural_period_s, "natural_period_s", "s")
     return (0.2 * t, 2.0 * t)
 
 
@@ -206,10 +206,10 @@ def flag_factors(factors, low=FACTOR_LIMITS[0], high=FACTOR_LIMITS[1]) -> np.nda
 # -------------------------------------------------------------------------- checks
 def _check_suite(periods, spectra_g, target_sa_g, period_range_s, spectra_name):
     """Validate and return periods (nT,), spectra (n, nT), target (nT,), (lo, hi)."""
-    t = _as_periods(periods, "periods")
+    t = _as_periods(periods, "periods_s")
     if t.ndim != 1 or t.size < 2 or np.any(np.diff(t) <= 0.0):
         raise ValueError(
-            f"periods must be a strictly increasing 1-D list of >= 2 periods [s]; "
+            f"periods_s must be a strictly increasing 1-D list of >= 2 periods [s]; "
             f"got shape {t.shape}"
         )
     try:
@@ -296,7 +296,7 @@ _meets = meets
 
 
 # ----------------------------------------------------------------------------- rules
-def scale_fit(periods, psa_g_per_record, target_sa_g, period_range_s,
+def scale_fit(periods_s, psa_g_per_record, target_sa_g, period_range_s,
               suite_factor=1.0) -> ScalingResult:
     """
     Per-record factors that best fit the target in logarithms over a period range.
@@ -307,14 +307,14 @@ def scale_fit(periods, psa_g_per_record, target_sa_g, period_range_s,
 
     Parameters
     ----------
-    periods : array-like
+    periods_s : array-like
         Spectrum periods, strictly increasing, shape (nT,). [s]
     psa_g_per_record : array-like
         Spectrum of each record (any definition), shape (n, nT). [g]
     target_sa_g : array-like
-        Target spectrum at ``periods``, shape (nT,). [g]
+        Target spectrum at ``periods_s``, shape (nT,). [g]
     period_range_s : tuple of float
-        (lower, upper) period range within ``periods``. [s]
+        (lower, upper) period range within ``periods_s``. [s]
     suite_factor : float, optional
         Common factor applied on top, > 0. [-]
 
@@ -327,7 +327,7 @@ def scale_fit(periods, psa_g_per_record, target_sa_g, period_range_s,
     ----------
     .. [1] Common practice (no source); the fit is ordinary least squares.
     """
-    t, sa, target, (lo, hi) = _check_suite(periods, psa_g_per_record, target_sa_g,
+    t, sa, target, (lo, hi) = _check_suite(periods_s, psa_g_per_record, target_sa_g,
                                            period_range_s, "psa_g_per_record")
     suite = _positive(suite_factor, "suite_factor", "-")
     tr, sa_r = _on_range(t, sa, lo, hi, "psa_g_per_record")
@@ -344,7 +344,7 @@ def scale_fit(periods, psa_g_per_record, target_sa_g, period_range_s,
     )
 
 
-def scale_asce7_16(periods, rotd100_psa_g_per_pair, target_sa_g, period_range_s, *,
+def scale_asce7_16(periods_s, rotd100_psa_g_per_pair, target_sa_g, period_range_s, *,
                    pair_fit=True, record_factors=None) -> ScalingResult:
     """
     Scale a suite of horizontal pairs to a target spectrum per ASCE/SEI 7-16 §16.2.3.
@@ -362,12 +362,12 @@ def scale_asce7_16(periods, rotd100_psa_g_per_pair, target_sa_g, period_range_s,
 
     Parameters
     ----------
-    periods : array-like
+    periods_s : array-like
         Spectrum periods, strictly increasing, shape (nT,). [s]
     rotd100_psa_g_per_pair : array-like
         RotD100 pseudo-spectral acceleration of each pair, shape (n_pairs, nT). [g]
     target_sa_g : array-like
-        Target (MCE_R) spectrum at ``periods``, shape (nT,). [g]
+        Target (MCE_R) spectrum at ``periods_s``, shape (nT,). [g]
     period_range_s : tuple of float
         (lower, upper) period range, see :func:`period_range_asce7_16`. [s]
     pair_fit : bool, optional
@@ -386,7 +386,7 @@ def scale_asce7_16(periods, rotd100_psa_g_per_pair, target_sa_g, period_range_s,
     .. [1] ASCE/SEI 7-16, *Minimum Design Loads and Associated Criteria for Buildings
        and Other Structures*. Reston, VA, USA: ASCE, 2017, §16.2.2, §16.2.3.2 (clause numbers from memory).
     """
-    t, sa, target, (lo, hi) = _check_suite(periods, rotd100_psa_g_per_pair, target_sa_g,
+    t, sa, target, (lo, hi) = _check_suite(periods_s, rotd100_psa_g_per_pair, target_sa_g,
                                            period_range_s, "rotd100_psa_g_per_pair")
     n = sa.shape[0]
     tr, sa_r = _on_range(t, sa, lo, hi, "rotd100_psa_g_per_pair")
@@ -421,7 +421,7 @@ def scale_asce7_16(periods, rotd100_psa_g_per_pair, target_sa_g, period_range_s,
     )
 
 
-def scale_en1998_1(periods, psa_g_per_record, target_sa_g, period_range_s, ag_s_g,
+def scale_en1998_1(periods_s, psa_g_per_record, target_sa_g, period_range_s, ag_s_g,
                    zero_period_g, *, record_factors=None) -> ScalingResult:
     """
     Scale a suite of records to an EN 1998-1 elastic spectrum (§3.2.3.1.2).
@@ -440,12 +440,12 @@ def scale_en1998_1(periods, psa_g_per_record, target_sa_g, period_range_s, ag_s_
 
     Parameters
     ----------
-    periods : array-like
+    periods_s : array-like
         Spectrum periods, strictly increasing, shape (nT,). [s]
     psa_g_per_record : array-like
         5 %-damped spectrum of each record, shape (n, nT). [g]
     target_sa_g : array-like
-        Elastic spectrum S_e at ``periods``, shape (nT,). [g]
+        Elastic spectrum S_e at ``periods_s``, shape (nT,). [g]
     period_range_s : tuple of float
         (lower, upper), see :func:`period_range_en1998_1`. [s]
     ag_s_g : float
@@ -464,7 +464,7 @@ def scale_en1998_1(periods, psa_g_per_record, target_sa_g, period_range_s, ag_s_
     ----------
     .. [1] CEN, EN 1998-1:2004, Eurocode 8 Part 1, §3.2.3.1.2(4) and §4.3.3.4.3(3).
     """
-    t, sa, target, (lo, hi) = _check_suite(periods, psa_g_per_record, target_sa_g,
+    t, sa, target, (lo, hi) = _check_suite(periods_s, psa_g_per_record, target_sa_g,
                                            period_range_s, "psa_g_per_record")
     n = sa.shape[0]
     ags = _positive(ag_s_g, "ag_s_g", "g")

@@ -83,6 +83,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
 from sdofreport.core.exact import (
     _check_ground_acceleration,
@@ -455,6 +456,8 @@ def _recurrence_peaks(ag, shift, h, coef, cdamp, kstiff, u_init, v_init, peaks):
     far start at the largest sampled |u| and |u'| and, for |ü_t|, at the largest value
     at the checkpoints; each lane's segment with the largest |u| is refined first, which
     lifts the |ü_t| peak near its final value before the other segments are screened.
+    Short names (DEVELOPERS.md, names of inputs): ``ag`` acceleration_m_s2 [m/s²], ``h``
+    the sub-step time_step_s / 2**shift [s].
     """
     n = coef.shape[1]
     g = _substep_forcing(ag, shift)
@@ -572,9 +575,7 @@ def _recurrence_samples(ag, shift, coef, cdamp, kstiff, u_init, v_init, hist_u, 
 
 # ---------------------------------------------------------------------- plumbing
 def _check_method(method, gamma, beta):
-    if method not in SPECTRUM_METHODS:
-        allowed = ", ".join(SPECTRUM_METHODS)
-        raise ValueError(f"method must be one of {allowed}; got {method!r}")
+    _checks.one_of(method, "method", SPECTRUM_METHODS)
     if method == "exact":
         if gamma is not None or beta is not None:
             raise ValueError(
@@ -602,15 +603,15 @@ def _check_steps_per_period(method, steps_per_period) -> float:
     return spp
 
 
-def substep_counts(natural_periods, time_step, steps_per_period) -> np.ndarray:
+def substep_counts(natural_periods_s, time_step_s, steps_per_period) -> np.ndarray:
     """
     Sub-steps per record step: the smallest power of two with ``h <= T / steps_per_period``.
 
     Parameters
     ----------
-    natural_periods : array-like
+    natural_periods_s : array-like
         Periods > 0. [s]
-    time_step : float
+    time_step_s : float
         Record sampling interval. [s]
     steps_per_period : float
         Minimum integration steps per natural period; 0 gives one sub-step. [-]
@@ -620,19 +621,19 @@ def substep_counts(natural_periods, time_step, steps_per_period) -> np.ndarray:
     numpy.ndarray
         Integer counts, each a power of two. [-]
     """
-    periods = np.asarray(natural_periods, dtype=np.float64)
+    periods = np.asarray(natural_periods_s, dtype=np.float64)
     if steps_per_period <= 0.0:
         return np.ones(periods.shape, dtype=np.int64)
-    need = time_step * steps_per_period / periods
+    need = time_step_s * steps_per_period / periods
     exponent = np.ceil(np.log2(np.maximum(need, 1.0)) - 1e-12)
     counts = np.left_shift(1, exponent.astype(np.int64))
     # Guard the rounding of log2 at exact powers of two.
-    counts = np.where(time_step / counts * steps_per_period > periods * (1 + 1e-12),
+    counts = np.where(time_step_s / counts * steps_per_period > periods * (1 + 1e-12),
                       counts * 2, counts)
     if np.any(counts > _MAX_SUBSTEPS):
         shortest = float(periods.min())
         raise ValueError(
-            f"natural_period {shortest!r} [s] is too short for time_step {time_step!r} [s] "
+            f"natural_period {shortest!r} [s] is too short for time_step_s {time_step_s!r} [s] "
             f"with steps_per_period {steps_per_period!r}: it would need more than "
             f"{_MAX_SUBSTEPS} sub-steps per sample"
         )
@@ -731,7 +732,7 @@ def _peaks_from(raw) -> OscillatorPeaks:
 
 
 # ---------------------------------------------------------------------- public API
-def oscillator_peaks(ground_acceleration, time_step, natural_periods, damping_ratios,
+def oscillator_peaks(acceleration_m_s2, time_step_s, natural_periods_s, damping_ratios,
                      method="exact", *, gamma=None, beta=None,
                      steps_per_period=None) -> OscillatorPeaks:
     """
@@ -739,11 +740,11 @@ def oscillator_peaks(ground_acceleration, time_step, natural_periods, damping_ra
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration, linear between samples, >= 2 finite values. [m/s²]
-    time_step : float
-        Sampling interval of ``ground_acceleration``, > 0. [s]
-    natural_periods : float or array-like
+    time_step_s : float
+        Sampling interval of ``acceleration_m_s2``, > 0. [s]
+    natural_periods_s : float or array-like
         Undamped natural periods, >= 0 (0 means rigid). [s]
     damping_ratios : float or array-like
         Fractions of critical damping in [0, 1); broadcast with the periods to one flat
@@ -775,27 +776,27 @@ def oscillator_peaks(ground_acceleration, time_step, natural_periods, damping_ra
     .. [2] N. M. Newmark, "A method of computation for structural dynamics,"
        J. Eng. Mech. Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
     """
-    ag = _check_ground_acceleration(ground_acceleration)
-    dt = _check_time_step(time_step)
-    periods, zeta = _check_oscillators(natural_periods, damping_ratios)
+    ag = _check_ground_acceleration(acceleration_m_s2)
+    dt = _check_time_step(time_step_s)
+    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios)
     raw, _, _ = _run(ag, dt, periods, zeta, method, gamma, beta, steps_per_period, False)
     return _peaks_from(raw)
 
 
-def oscillator_histories(ground_acceleration, time_step, natural_periods, damping_ratios,
+def oscillator_histories(acceleration_m_s2, time_step_s, natural_periods_s, damping_ratios,
                          method="exact", *, gamma=None, beta=None, steps_per_period=None,
-                         initial_displacement=0.0,
-                         initial_velocity=0.0) -> OscillatorHistories:
+                         initial_displacement_m=0.0,
+                         initial_velocity_m_s=0.0) -> OscillatorHistories:
     """
     Response histories of linear SDOF oscillators at the record's samples.
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration, linear between samples. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval, > 0. [s]
-    natural_periods : float or array-like
+    natural_periods_s : float or array-like
         Undamped natural periods, >= 0. [s]
     damping_ratios : float or array-like
         Fractions of critical damping in [0, 1); broadcast with the periods. [-]
@@ -805,9 +806,9 @@ def oscillator_histories(ground_acceleration, time_step, natural_periods, dampin
         Override the Newmark parameters. [-]
     steps_per_period : float, optional
         As in :func:`oscillator_peaks`. [-]
-    initial_displacement : float or array-like, optional
+    initial_displacement_m : float or array-like, optional
         Relative displacement at t = 0, broadcast to the oscillators (default at rest). [m]
-    initial_velocity : float or array-like, optional
+    initial_velocity_m_s : float or array-like, optional
         Relative velocity at t = 0 (default at rest). [m/s]
 
     Returns
@@ -821,20 +822,22 @@ def oscillator_histories(ground_acceleration, time_step, natural_periods, dampin
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    ag = _check_ground_acceleration(ground_acceleration)
-    dt = _check_time_step(time_step)
-    periods, zeta = _check_oscillators(natural_periods, damping_ratios)
+    ag = _check_ground_acceleration(acceleration_m_s2)
+    dt = _check_time_step(time_step_s)
+    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios)
     n = periods.size
     try:
-        u0 = np.array(np.broadcast_to(np.asarray(initial_displacement, float), (n,)))
-        v0 = np.array(np.broadcast_to(np.asarray(initial_velocity, float), (n,)))
+        u0 = np.array(np.broadcast_to(np.asarray(initial_displacement_m, float), (n,)))
+        v0 = np.array(np.broadcast_to(np.asarray(initial_velocity_m_s, float), (n,)))
     except ValueError:
         raise ValueError(
-            f"initial_displacement [m] and initial_velocity [m/s] must broadcast to "
+            f"initial_displacement_m [m] and initial_velocity_m_s [m/s] must broadcast to "
             f"{n} oscillators"
         ) from None
     if not (np.all(np.isfinite(u0)) and np.all(np.isfinite(v0))):
-        raise ValueError("initial_displacement [m] and initial_velocity [m/s] must be finite")
+        raise ValueError(
+            "initial_displacement_m [m] and initial_velocity_m_s [m/s] must be finite"
+        )
     if np.any((periods == 0.0) & ((u0 != 0.0) | (v0 != 0.0))):
         raise ValueError("a rigid oscillator (natural_period 0 [s]) must start at rest")
     raw, hist, _ = _run(ag, dt, periods, zeta, method, gamma, beta, steps_per_period, True,
@@ -848,7 +851,7 @@ def oscillator_histories(ground_acceleration, time_step, natural_periods, dampin
     )
 
 
-def response_spectrum(ground_acceleration, time_step, periods, damping_ratios,
+def response_spectrum(acceleration_m_s2, time_step_s, periods_s, damping_ratios,
                       method="exact", *, gamma=None, beta=None,
                       steps_per_period=None) -> ResponseSpectrum:
     """
@@ -856,11 +859,11 @@ def response_spectrum(ground_acceleration, time_step, periods, damping_ratios,
 
     Parameters
     ----------
-    ground_acceleration : array-like
+    acceleration_m_s2 : array-like
         Equally spaced base acceleration, linear between samples. [m/s²]
-    time_step : float
+    time_step_s : float
         Sampling interval, > 0. [s]
-    periods : float or array-like
+    periods_s : float or array-like
         Natural periods, >= 0, as a 1-D list (0 gives the zero-period values). [s]
     damping_ratios : float or array-like
         Damping ratios in [0, 1), as a 1-D list. [-]
@@ -886,18 +889,21 @@ def response_spectrum(ground_acceleration, time_step, periods, damping_ratios,
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    ag = _check_ground_acceleration(ground_acceleration)
-    dt = _check_time_step(time_step)
-    t_list = np.atleast_1d(np.asarray(periods, dtype=np.float64)) if _numeric(periods) else None
+    ag = _check_ground_acceleration(acceleration_m_s2)
+    dt = _check_time_step(time_step_s)
+    t_list = (np.atleast_1d(np.asarray(periods_s, dtype=np.float64))
+              if _numeric(periods_s) else None)
     z_list = (np.atleast_1d(np.asarray(damping_ratios, dtype=np.float64))
               if _numeric(damping_ratios) else None)
     if t_list is None or t_list.ndim != 1:
-        raise ValueError(f"periods must be a number or a 1-D list of numbers [s]; got {periods!r}")
+        raise ValueError(
+            f"periods_s must be a number or a 1-D list of numbers [s]; got {periods_s!r}"
+        )
     if z_list is None or z_list.ndim != 1:
         raise ValueError(
             f"damping_ratios must be a number or a 1-D list of numbers [-]; got {damping_ratios!r}"
         )
-    grid_t, grid_z = _check_oscillators(t_list[None, :], z_list[:, None])
+    grid_t, grid_z = _check_oscillators(t_list[None, :], z_list[:, None], periods_name="periods_s")
     raw, _, _ = _run(ag, dt, grid_t, grid_z, method, gamma, beta, steps_per_period, False)
     shape = (z_list.size, t_list.size)
     sd = raw[0].reshape(shape)

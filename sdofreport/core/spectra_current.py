@@ -24,6 +24,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._checks import positive as _positive
 
 __all__ = [
@@ -188,9 +189,7 @@ def asce7_22_spectrum(periods_s, site_class, level="mce_r", mp_periods_s=None,
 
     t = _periods(periods_s)
     _site_class(site_class)
-    if level not in ASCE7_22_LEVELS:
-        raise ValueError(f"level must be one of {', '.join(ASCE7_22_LEVELS)} [-]; got "
-                         f"{level!r}")
+    _checks.one_of(level, "level", ASCE7_22_LEVELS, unit="-")
     multi = mp_periods_s is not None or mp_sa_g is not None
     two = sds_g is not None or sd1_g is not None
     if multi and two:

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from sdofreport.core import _checks
 from sdofreport.core._checks import nonnegative as _check_nonnegative
 from sdofreport.core._checks import positive as _check_positive
 
@@ -70,12 +71,8 @@ def saragoni_hart_envelope(time_s, duration_s, *, eps=0.2, eta=0.05) -> np.ndarr
        doi: 10.1007/PL00012553.
     """
     tw = _check_positive(duration_s, "duration_s", "s")
-    eps = float(eps)
-    eta = float(eta)
-    if not (0.0 < eps < 1.0):
-        raise ValueError(f"eps must be between 0 and 1 (exclusive) [-]; got {eps!r}")
-    if not (0.0 < eta < 1.0):
-        raise ValueError(f"eta must be between 0 and 1 (exclusive) [-]; got {eta!r}")
+    eps = _checks.in_range(eps, "eps", "-", 0.0, 1.0, low_open=True)
+    eta = _checks.in_range(eta, "eta", "-", 0.0, 1.0, low_open=True)
     t = _as_time_array(time_s)
     # Window-function parameters, Boore (2003) [2].
     b = -eps * np.log(eta) / (1.0 + eps * (np.log(eps) - 1.0))
@@ -309,8 +306,7 @@ def kanai_tajimi_accelerogram(
             f"duration_s / time_step_s must give at least 8 samples; got "
             f"{duration!r} s / {dt!r} s = {n} samples"
         )
-    if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
-        raise ValueError(f"seed must be an integer >= 0 [-]; got {seed!r}")
+    _checks.integer(seed, "seed", 0)
     fg, zg = _check_ground(ground_frequency_hz, ground_damping)
     nyquist_hz = 0.5 / dt
     if fg >= nyquist_hz:

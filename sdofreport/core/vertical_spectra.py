@@ -28,8 +28,15 @@ import math
 
 import numpy as np
 
-__all__ = ["EN1998_VERTICAL_TABLE_3_4", "asce7_16_vertical_coefficient",
-           "asce7_16_vertical_spectrum", "en1998_1_vertical_spectrum"]
+__all__ = ["EN1998_VERTICAL_TABLE_3_4", "VERTICAL_SITE_CLASSES", "VERTICAL_SPECTRUM_KINDS",
+           "asce7_16_vertical_coefficient", "asce7_16_vertical_spectrum",
+           "en1998_1_vertical_spectrum", "vertical_design_spectrum"]
+
+#: Vertical spectrum kinds (``[design_spectrum.vertical] kind``).
+VERTICAL_SPECTRUM_KINDS = ("en1998-1", "asce7-16")
+
+#: Site classes of ASCE/SEI 7-16 Table 11.9-1.
+VERTICAL_SITE_CLASSES = ("A", "B", "C", "D", "E", "F")
 
 #: EN 1998-1:2004 Table 3.4, recommended values (from memory): type -> (a_vg/a_g, T_B,
 #: T_C, T_D) with periods in [s].
@@ -136,3 +143,33 @@ def asce7_16_vertical_spectrum(periods_s, sms_g, site_class, level="mce_r") -> n
                                         0.8 * a * (0.15 / np.maximum(t, 0.15)) ** 0.75)))
     sa = np.where(t > 2.0, np.nan, sa)
     return sa * (2.0 / 3.0 if level == "design" else 1.0)
+
+
+def vertical_design_spectrum(periods_s, kind, **parameters) -> np.ndarray:
+    """
+    A vertical spectrum by kind [g] (NaN where the kind is not defined).
+
+    Parameters
+    ----------
+    periods_s : array-like
+        Periods. [s]
+    kind : {"en1998-1", "asce7-16"}
+        ``en1998-1``: ``avg_g`` (a_vg [g]), ``tb_s``, ``tc_s``, ``td_s`` [s] and
+        ``damping`` [-], Eqs. (3.8)-(3.11) with a_vg given (the Table 3.4 ratio already
+        applied); ``asce7-16``: ``sms_g`` [g], ``site_class`` and ``level``.
+
+    Returns
+    -------
+    numpy.ndarray
+        [g]
+    """
+    if kind == "en1998-1":
+        return en1998_1_vertical_spectrum(
+            periods_s, parameters["avg_g"], damping=parameters.get("damping", 0.05),
+            table=(1.0, parameters["tb_s"], parameters["tc_s"], parameters["td_s"]))
+    if kind == "asce7-16":
+        return asce7_16_vertical_spectrum(periods_s, parameters["sms_g"],
+                                          parameters["site_class"],
+                                          parameters.get("level", "mce_r"))
+    raise ValueError(f"kind must be one of {', '.join(VERTICAL_SPECTRUM_KINDS)}; got "
+                     f"{kind!r}")

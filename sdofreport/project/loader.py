@@ -11,6 +11,7 @@ systems[frame].limits.drift_ratio``, see :mod:`sdofreport.project.locate`).
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import hashlib
 import math
@@ -28,6 +29,7 @@ from sdofreport.errors import ProjectError
 from sdofreport.project.model import (
     AnalysisSettings,
     DesignSpectrumSpec,
+    VerticalSpectrumSpec,
     FragilitySpec,
     InelasticSpectraSpec,
     SyntheticSpec,
@@ -498,11 +500,8 @@ def _read_limits(table, where: str, mass, height, problems: _Problems) -> Limits
     if values["drift_ratio"] is not None and height is None:
         problems.add(f"{where}.drift_ratio", "a drift-ratio limit needs the system's "
                      "height")
-    return Limits(values["displacement"], values["drift_ratio"], values["base_shear"],
-                  values["total_accel"], values["ductility"],
-                  values["residual_displacement"], values["bearing_displacement"],
-                  tuple((name, basis[name]) for name in spec if name in basis
-                        and values[name] is not None))
+    return Limits.of(values, tuple((name, basis[name]) for name in spec if name in basis
+                                   and values[name] is not None))
 
 
 #: Keys of a limit written as a table: ``displacement = { value = "50 mm", basis = "..." }``.
@@ -721,7 +720,8 @@ def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damp
     strength = values.get("yield_strength")
     displacement = values.get("yield_displacement")
     if strength is None and displacement is None:
-        for key in ("post_yield_ratio", "hysteresis", *HYSTERESIS_PARAMETER_KEYS):
+        for key in ("post_yield_ratio", "hysteresis", *HYSTERESIS_PARAMETER_KEYS,
+                    "property_factors"):
             if key in table:
                 problems.add(f"{where}.{key}", "applies only with yield_strength or "
                              "yield_displacement")
@@ -753,7 +753,7 @@ def _nonlinear_model(kind: str, values: dict, table: dict, derived, pdelta, damp
             "yield_strength_n": strength, "post_yield_ratio": alpha,
             "mass_kg": derived.mass_kg, "parameters": parameters,
             "collapse_displacement_m": None if math.isinf(collapse) else collapse,
-            **extras}
+            **extras, **_bilinear_factors(name, alpha, table, where, problems)}
 
 
 def _isolator_keys(values: dict, table: dict, where: str, problems: _Problems) -> dict:
@@ -773,18 +773,43 @@ def _isolator_keys(values: dict, table: dict, where: str, problems: _Problems) -
         out.update(friction_slow=values["friction_slow"],
                    friction_rate_s_m=values["friction_rate"])
     if "property_factors" in table:
-        raw = table["property_factors"]
-        if not (isinstance(raw, list) and len(raw) == 2 and all(
-                isinstance(v, (int, float)) and not isinstance(v, bool) and
-                math.isfinite(v) for v in raw) and 0 < raw[0] <= 1 <= raw[1]):
-            problems.add(f"{where}.property_factors", f"expected [lower, upper] with "
-                         f"0 < lower <= 1 <= upper, found {raw!r}")
-        elif max(raw[1] * values["friction"], 0.0) >= 1.0:
+        factors = _property_factors(table, where, problems)
+        if factors is not None and factors[1] * values["friction"] >= 1.0:
             problems.add(f"{where}.property_factors", f"the upper-bound friction "
-                         f"{raw[1]:g} × {values['friction']:g} is not below 1")
-        else:
-            out["property_factors"] = [float(raw[0]), float(raw[1])]
+                         f"{factors[1]:g} × {values['friction']:g} is not below 1")
+        elif factors is not None:
+            out["property_factors"] = factors
     return out
+
+
+def _property_factors(table: dict, where: str, problems: _Problems) -> list | None:
+    """``property_factors = [lower, upper]`` with 0 < lower <= 1 <= upper, or None."""
+    raw = table["property_factors"]
+    if not (isinstance(raw, list) and len(raw) == 2 and all(
+            isinstance(v, (int, float)) and not isinstance(v, bool) and
+            math.isfinite(v) for v in raw) and 0 < raw[0] <= 1 <= raw[1]):
+        problems.add(f"{where}.property_factors", f"expected [lower, upper] with "
+                     f"0 < lower <= 1 <= upper, found {raw!r}")
+        return None
+    return [float(raw[0]), float(raw[1])]
+
+
+def _bilinear_factors(name: str, alpha: float, table: dict, where: str,
+                      problems: _Problems) -> dict:
+    """``property_factors`` of a yielding system: bilinear only, with λ_upper α < 1."""
+    if "property_factors" not in table:
+        return {}
+    if name != "bilinear":
+        problems.add(f"{where}.property_factors", f"applies to a sliding pendulum or a "
+                     f"bilinear isolator (hysteresis = \"bilinear\"); this system has "
+                     f"hysteresis {name!r}")
+        return {}
+    factors = _property_factors(table, where, problems)
+    if factors is not None and factors[1] * alpha >= 1.0:
+        problems.add(f"{where}.property_factors", f"the upper-bound post-yield ratio "
+                     f"{factors[1]:g} × {alpha:g} is not below 1")
+        return {}
+    return {} if factors is None else {"property_factors": factors}
 
 
 def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
@@ -966,7 +991,7 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
         return None
     mapping = DESIGN_SPECTRUM_KEYS[kind]
     for key in table:
-        if key != "kind" and key in spec and key not in mapping:
+        if key not in ("kind", "vertical") and key in spec and key not in mapping:
             problems.add(f"{where}.{key}", f"does not apply to kind {kind!r}; its keys are "
                          f"{', '.join(mapping)}")
     values, parameters = {}, {}
@@ -1014,7 +1039,101 @@ def _read_design_spectrum(table, problems: _Problems) -> DesignSpectrumSpec | No
                 message = re.sub(rf"\b{re.escape(name)}\b", key, message)
         problems.add(where, message)
         return None
-    return DesignSpectrumSpec(kind, values, parameters)
+    vertical = _read_vertical(table.get("vertical"), kind, values, problems)
+    return DesignSpectrumSpec(kind, values, parameters, vertical)
+
+
+def _read_vertical(table, kind: str, horizontal: dict,
+                   problems: _Problems) -> VerticalSpectrumSpec | None:
+    """``[design_spectrum.vertical]``: the vertical target, its missing values taken from
+    the horizontal spectrum where the standard relates them (each row says so)."""
+    from sdofreport.core.vertical_spectra import EN1998_VERTICAL_TABLE_3_4
+
+    where = "design_spectrum.vertical"
+    table = _section(table, where, problems) if table is not None else None
+    if table is None:
+        return None
+    spec = SECTIONS[where]
+    vkind = _read_value(table, spec["kind"], where, problems)
+    if vkind is None:
+        return None
+    own = {"en1998-1": ("spectrum_type", "avg", "tb", "tc", "td"),
+           "asce7-16": ("sms", "site_class", "level")}[vkind]
+    count = len(problems.items)
+    for key in table:
+        if key not in ("kind", "period_range") + own and key in spec:
+            problems.add(f"{where}.{key}", f"does not apply to kind {vkind!r}; its keys "
+                         f"are {', '.join(own + ('period_range',))}")
+    if isinstance(table.get("site_class"), str):  # "d" is site class D
+        table = {**table, "site_class": table["site_class"].strip().upper()}
+    if isinstance(table.get("spectrum_type"), bool):
+        table = {**table, "spectrum_type": str(table["spectrum_type"]).lower()}
+    got = {key: _read_value(table, spec[key], where, problems) for key in own
+           if key in table}
+    rows, parameters = [], {}
+
+    def inherit(key: str, label: str, source_key: str, derive, basis: str):
+        """The value as given, else derived from the horizontal spectrum, else missing."""
+        if got.get(key) is not None:
+            rows.append((label, got[key], "as given"))
+            return got[key]
+        if kind == vkind and horizontal.get(source_key) is not None:
+            value = derive(horizontal[source_key])
+            rows.append((label, value, basis))
+            return value
+        if key not in table:
+            problems.add(f"{where}.{key}", f"missing; the horizontal spectrum (kind "
+                         f"{kind!r}) does not give it ({spec[key].description})")
+        return None
+
+    if vkind == "en1998-1":
+        stype = inherit("spectrum_type", "spectrum type", "spectrum_type", int,
+                        "the horizontal spectrum's type")
+        if stype is None:
+            return None
+        ratio = EN1998_VERTICAL_TABLE_3_4[stype]
+        ag = horizontal.get("agr", 0.0) * horizontal.get("importance_factor", 1.0)
+        avg = inherit("avg", "a_vg [g]", "agr", lambda _: ratio[0] * ag,
+                      f"a_vg/a_g = {ratio[0]:g} (Table 3.4, from memory) × a_g = γ_I a_gR "
+                      f"= {ag:g} g")
+        periods = []
+        for key, default in zip(("tb", "tc", "td"), ratio[1:]):
+            value = got.get(key) if key in table else default
+            rows.append((f"T_{key[1].upper()} [s]", value, "National Annex, as given"
+                         if key in table else "Table 3.4 (from memory)"))
+            periods.append(value)
+        if None not in periods and not 0 < periods[0] < periods[1] < periods[2]:
+            problems.add(where, f"tb < tc < td must hold [s]; got T_B {periods[0]:g}, "
+                         f"T_C {periods[1]:g}, T_D {periods[2]:g}")
+        _positive(avg, f"{where}.avg", "a_vg", problems, "g")
+        parameters = {"avg_g": avg, "tb_s": periods[0], "tc_s": periods[1],
+                      "td_s": periods[2], "damping": 0.05}
+    else:
+        sms = inherit("sms", "S_MS [g]", "sds", lambda sds: 1.5 * sds,
+                      "1.5 × S_DS of the horizontal spectrum (S_DS = 2/3 S_MS, "
+                      "§11.4.5, from memory)")
+        _positive(sms, f"{where}.sms", "S_MS", problems, "g")
+        site = got.get("site_class")
+        if site is None and "site_class" not in table:
+            problems.add(f"{where}.site_class", f"missing; kind 'asce7-16' needs it "
+                         f"({spec['site_class'].description})")
+        rows.append(("site class", site, "as given"))
+        level = got.get("level") or ("mce_r" if horizontal.get("level") in (None, "mce")
+                                     else horizontal["level"])
+        rows.append(("level", level, "as given" if "level" in got else
+                     "the horizontal spectrum's level" if "level" in horizontal else
+                     "default"))
+        parameters = {"sms_g": sms, "site_class": site, "level": level}
+    period_range = _period_range(table, where, None, problems)
+    if len(problems.items) > count:
+        return None
+    found = VerticalSpectrumSpec(vkind, tuple(rows), parameters, period_range)
+    peak = float(np.nanmax(found.sa_g(np.array([0.0, 0.05, 0.15]))))
+    if not peak <= MAX_SPECTRAL_G:
+        problems.add(where, f"the vertical spectrum reaches {peak:.3g} g; expected at most "
+                     f"{MAX_SPECTRAL_G:g} g: check the values and units")
+        return None
+    return found
 
 
 def _scaling_range(table: dict, where: str, rule: str, period, problems: _Problems):
@@ -1027,7 +1146,7 @@ def _scaling_range(table: dict, where: str, rule: str, period, problems: _Proble
             problems.add(f"{where}.period_range", f"expected one of {', '.join(names)} "
                          f"or [low, high] in s, found {raw!r}")
             return None, None
-        if option.needs_period and period is None:
+        if option.needs_period and period is None and option.damping_coefficient is None:
             problems.add(f"{where}.period_range", f"option {raw!r} needs [scaling] "
                          f"period, the governing period (example: period = \"0.8 s\")")
         return None, raw
@@ -1060,7 +1179,58 @@ def _read_scaling(table, design: DesignSpectrumSpec | None, had_design: bool,
         problems.add(f"{where}.rule", f"rule {rule!r} ({edition.standard}) needs {kinds} "
                      f"in [design_spectrum], found {design.kind!r}")
     beyond = _read_value(table, spec["beyond_usable"], where, problems) or "exclude"
-    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option, beyond)
+    isolator = _read_value(table, spec["isolator"], where, problems)
+    return ScalingSpec(rule, period, period_range, suite if suite else 1.0, option, beyond,
+                       isolator)
+
+
+def _check_vertical_range(design, records: list, systems: list,
+                          problems: _Problems) -> None:
+    """The vertical target's fitting range needs vertical systems, or to be given."""
+    vertical = design.vertical if design is not None else None
+    if vertical is None or vertical.period_range_s is not None:
+        return
+    if any(r.component == "V" for r in records) and \
+            not any(s.direction == "vertical" for s in systems):
+        problems.add("design_spectrum.vertical.period_range", "missing; no system has "
+                     "direction = \"vertical\", so the default range (0.2 × the "
+                     "shortest to 2 × the longest vertical period) is not defined; give "
+                     "period_range = [low, high] in s")
+
+
+def _resolve_isolator(scaling: ScalingSpec, systems: list,
+                      problems: _Problems) -> ScalingSpec:
+    """The isolator system of ``period_range = "isolated-system"`` (named, or the only
+    one when no period is given), checked; ``isolator`` applies only to that option."""
+    where = "scaling.isolator"
+    named = scaling.isolator
+    option = codes.period_range_option(scaling.rule, scaling.period_range_option or "")
+    if option is None or option.damping_coefficient is None:
+        if named is not None:
+            problems.add(where, f"applies only with period_range = \"isolated-system\" "
+                         f"(rule asce7-16 or asce7-22), found period_range = "
+                         f"{scaling.period_range_option or list(scaling.period_range_s or ())!r}")
+        return scaling
+    isolators = [s.id for s in systems if s.is_isolator]
+    if named is None:
+        if scaling.period_s is not None:
+            return scaling  # T_M = period at both ends, as given
+        if len(isolators) != 1:
+            problems.add("scaling.period_range", "option 'isolated-system' needs [scaling] "
+                         "period (T_M) or one isolator system (a sliding pendulum or a "
+                         "bilinear system); " + (f"name one with isolator, of "
+                                                 f"{', '.join(isolators)}" if isolators
+                                                 else "the project has none"))
+            return scaling
+        named = isolators[0]
+    elif named not in isolators:
+        known = [s.id for s in systems]
+        problems.add(where, f"expected the id of an isolator system (a sliding pendulum "
+                     f"or a bilinear system: {', '.join(isolators) or 'none here'}), "
+                     f"found {named!r}" + ("" if named in known else
+                                           f"; the system ids are {', '.join(known)}"))
+        return scaling
+    return dataclasses.replace(scaling, isolator=named)
 
 
 def _number_list(value, where: str, minimum: float, problems: _Problems,
@@ -1351,6 +1521,8 @@ def load_project(path) -> Project:
                               f"synthetic (seed {synthetic.seed + i})", "synthetic", "g",
                               synthetic.dt_s, 1.0, processing)
                    for i in range(synthetic.count)]
+    scaling = _resolve_isolator(scaling, systems, problems)
+    _check_vertical_range(design, records, systems, problems)
     _check_two_directions(records, systems, problems)
     _check_directions_have_records(records, systems, problems)
     save_memo()  # unit strings pint converted, so the next read need not import it

@@ -4,8 +4,10 @@ from __future__ import annotations
 
 import re
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, make_dataclass
 from pathlib import Path
+
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 
 
 @dataclass(frozen=True)
@@ -107,12 +109,34 @@ class RecordSpec:
 
 
 @dataclass(frozen=True)
+class VerticalSpectrumSpec:
+    """The vertical target ``[design_spectrum.vertical]``: kind, values as shown (given
+    or derived, with where each came from) and the core parameters."""
+
+    kind: str
+    #: (label, value, basis) rows for the page, in order
+    values: tuple
+    #: keyword arguments of sdofreport.core.vertical_spectra.vertical_design_spectrum
+    parameters: dict
+    #: [low, high] fitting range as given [s], or None (the default range)
+    period_range_s: tuple[float, float] | None = None
+
+    def sa_g(self, periods_s):
+        """The vertical target at ``periods_s`` [s], in g (NaN where undefined)."""
+        from sdofreport.core.vertical_spectra import vertical_design_spectrum
+
+        return vertical_design_spectrum(periods_s, self.kind, **self.parameters)
+
+
+@dataclass(frozen=True)
 class DesignSpectrumSpec:
     """A design spectrum: its kind, the project-file values and the core parameters."""
 
     kind: str
     values: dict  # as written (SI/g numbers), for display and results.json
     parameters: dict  # keyword arguments of sdofreport.core.design_spectra.design_spectrum
+    #: the vertical target, or None when the project gives none
+    vertical: VerticalSpectrumSpec | None = None
 
     def spectrum(self):
         from sdofreport.core.design_spectra import design_spectrum
@@ -131,6 +155,9 @@ class ScalingSpec:
     #: "exclude": ordinates beyond a record's usable period are left out of scaling;
     #: "include": the project overrides that
     beyond_usable: str = "exclude"
+    #: period_range "isolated-system": id of the isolator system whose T_M is computed
+    #: at its bounds; None: T_M = period
+    isolator: str | None = None
 
 
 @dataclass(frozen=True)
@@ -156,33 +183,39 @@ class InelasticSpectraSpec:
     steps_per_period: float = 8.0
 
 
-@dataclass(frozen=True)
-class Limits:
-    """Limits in SI; ``None`` where not checked."""
+#: One SI field per check quantity (``displacement_m``, ``drift_ratio``, ...; None where
+#: not checked), made from the registry so a quantity added there is a field here.
+_LimitValues = make_dataclass(
+    "_LimitValues", [(q.limit_name, "float | None", field(default=None))
+                     for q in CHECK_QUANTITIES.values()], frozen=True)
+_LimitValues.__module__ = __name__
 
-    displacement_m: float | None = None
-    drift_ratio: float | None = None
-    base_shear_n: float | None = None
-    total_accel_m_s2: float | None = None
-    ductility: float | None = None
-    residual_displacement_m: float | None = None
-    bearing_displacement_m: float | None = None
+
+@dataclass(frozen=True)
+class Limits(_LimitValues):
+    """Limits in SI, one field per check quantity of
+    :data:`sdofreport.project.check_quantities.CHECK_QUANTITIES` (named by its
+    ``limit_name``); ``None`` where not checked."""
+
     #: (quantity, basis) for limits that state where they come from (a clause, the
     #: owner's specification), in the order of :meth:`items`.
     basis: tuple[tuple[str, str], ...] = ()
+
+    @classmethod
+    def of(cls, values: dict[str, float | None],
+           basis: tuple[tuple[str, str], ...] = ()) -> Limits:
+        """Limits from values by quantity key (``{"displacement": 0.05}``) [SI]."""
+        return cls(**{CHECK_QUANTITIES[key].limit_name: value
+                      for key, value in values.items()}, basis=basis)
 
     def basis_of(self, quantity: str) -> str | None:
         """The stated basis of the limit on ``quantity``, or None."""
         return dict(self.basis).get(quantity)
 
     def items(self) -> list[tuple[str, float]]:
-        """(quantity, limit) pairs that are set, in a fixed order."""
-        names = ("displacement", "drift_ratio", "base_shear", "total_accel", "ductility",
-                 "residual_displacement", "bearing_displacement")
-        values = (self.displacement_m, self.drift_ratio, self.base_shear_n,
-                  self.total_accel_m_s2, self.ductility, self.residual_displacement_m,
-                  self.bearing_displacement_m)
-        return [(n, v) for n, v in zip(names, values) if v is not None]
+        """(quantity, limit) pairs that are set, in the registry's order."""
+        values = ((q.key, getattr(self, q.limit_name)) for q in CHECK_QUANTITIES.values())
+        return [(n, v) for n, v in values if v is not None]
 
 
 @dataclass(frozen=True)
@@ -219,6 +252,14 @@ class SystemSpec:
         """``linear``, ``elastic`` (with a damper), a hysteresis model name or
         ``sliding-pendulum``."""
         return (self.model or {}).get("model", "linear")
+
+    @property
+    def is_isolator(self) -> bool:
+        """A sliding pendulum of finite radius, or a bilinear yielding system (an
+        isolator whose bounds and T_M sdofreport.isolation_bounds computes)."""
+        if self.model_name == "sliding-pendulum":
+            return self.model["radius_m"] != float("inf")
+        return self.model_name == "bilinear"
 
 
 @dataclass(frozen=True)

@@ -23,6 +23,8 @@ from sdofreport.core.spectra_current import (
     EN1998_1_1_SITE_CATEGORIES,
 )
 from sdofreport.core.units import acceleration_unit_names
+from sdofreport.core.vertical_spectra import VERTICAL_SITE_CLASSES, VERTICAL_SPECTRUM_KINDS
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 from sdofreport.records import RECORD_FORMATS
 
 #: Ways the suite statistic may be chosen. ``auto``: the governing edition's rule
@@ -85,7 +87,8 @@ SYSTEM_KINDS = ("lumped", "columns", "springs", "static-deflection", "sliding-pe
 _HYSTERETIC_KEYS = ("yield_strength", "yield_displacement", "post_yield_ratio",
                     "hysteresis", "unloading_exponent", "bouc_wen_exponent",
                     "bouc_wen_beta", "dissipation_ratio", "deterioration_capacity",
-                    "deterioration_exponent", "p_delta", "gravity_load", "damper")
+                    "deterioration_exponent", "p_delta", "gravity_load", "damper",
+                    "property_factors")
 
 #: Hysteresis-model parameters and the models each applies to.
 HYSTERESIS_PARAMETER_KEYS: dict[str, tuple[str, ...]] = {
@@ -280,6 +283,47 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("sa", "list", "table: spectral accelerations of the points, in g; "
                 "asce7-22: the multi-period MCE_R ordinates as copied from the official "
                 "source for the site class, in g.", example="[0.4, 1.0, 0.5, 0.1]"),
+        KeySpec("vertical", "table", "The vertical target, written as the table "
+                "[design_spectrum.vertical] (see that section): vertical records "
+                "(component = \"V\") are scaled to it and shown against it, and the "
+                "vertical systems run under the scaled records. Without it vertical "
+                "records are used as given and the suite page says no vertical target "
+                "was given.", example='{ kind = "en1998-1", spectrum_type = 1 }'),
+    ),
+    "design_spectrum.vertical": _keys(
+        KeySpec("kind", "choice", "Which vertical spectrum: EN 1998-1:2004 §3.2.2.3 "
+                "(Eqs. 3.8-3.11, Table 3.4) or ASCE/SEI 7-16 §11.9 (Eqs. 11.9-1 to "
+                "11.9-4, Table 11.9-1); table values and clause numbers from memory.",
+                required=True, choices=VERTICAL_SPECTRUM_KINDS, example='"en1998-1"'),
+        KeySpec("spectrum_type", "choice", "en1998-1: spectrum type 1 or 2 of Table 3.4 "
+                "(default: the horizontal en1998-1 spectrum's type).",
+                choices=EN1998_1_SPECTRUM_TYPES, example="1"),
+        KeySpec("avg", "number", "en1998-1: design vertical ground acceleration a_vg, in "
+                "g (default: a_vg/a_g of Table 3.4, 0.90 for type 1 and 0.45 for type 2, "
+                "from memory, times a_g = γ_I a_gR of the horizontal en1998-1 spectrum).",
+                example="0.3"),
+        KeySpec("tb", "quantity", "en1998-1: National-Annex T_B (default 0.05 s, Table "
+                "3.4, from memory).", dimension="time", example='"0.05 s"'),
+        KeySpec("tc", "quantity", "en1998-1: National-Annex T_C (default 0.15 s).",
+                dimension="time", example='"0.15 s"'),
+        KeySpec("td", "quantity", "en1998-1: National-Annex T_D (default 1.0 s).",
+                dimension="time", example='"1 s"'),
+        KeySpec("sms", "number", "asce7-16: S_MS, MCE_R short-period spectral "
+                "acceleration, in g (default: 1.5 × sds of the horizontal asce7-16 "
+                "spectrum, S_DS = 2/3 S_MS, §11.4.5, from memory).", example="1.5"),
+        KeySpec("site_class", "choice", "asce7-16: site class A to F for C_v of Table "
+                "11.9-1 (from memory).", choices=VERTICAL_SITE_CLASSES, example='"D"'),
+        KeySpec("level", "choice", "asce7-16: the MCE_R vertical spectrum S_aMv or the "
+                "design one, 2/3 of it (§11.9.3, from memory); default: the level of the "
+                "horizontal asce7-16 spectrum, otherwise mce_r.",
+                choices=("mce_r", "design"), example='"mce_r"'),
+        KeySpec("period_range", "list", "[low, high] periods in s over which each "
+                "vertical record is fitted to the vertical target (default: 0.2 × the "
+                "shortest to 2 × the longest period of the systems with direction = "
+                "\"vertical\"; no clause sets a vertical range here, so this is the "
+                "project's choice: common practice, no source). asce7-16 defines the "
+                "spectrum up to 2 s only; the range is cut there, with a caution.",
+                example="[0.05, 0.6]"),
     ),
     "scaling": _keys(
         KeySpec("rule", "choice", "Suite scaling rule: " + "; ".join(
@@ -292,10 +336,20 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("period_range", "list", "Period range of the scaling: a named option, "
                 "\"governing-period\" (0.2 T to 2 T of period) or \"every-system\" "
                 "(0.2 × the shortest to 2 × the longest system period), or explicit "
-                "[low, high] in s; with rule asce7-16 also \"isolated-system\" (0.75 T_M "
-                "to 1.25 T_M, T_M = period, ASCE/SEI 7-16 §17.3.3, from memory). Default: "
+                "[low, high] in s; with rule asce7-16 or asce7-22 also \"isolated-system\" "
+                "(0.75 T_M at the upper-bound to 1.25 T_M at the lower-bound properties "
+                "of the isolator system, see isolator, or T_M = period at both ends; "
+                "ASCE/SEI 7-16/7-22 §17.3.3, from memory). Default: "
                 "governing-period when period is given, otherwise every-system.",
                 example='"every-system"'),
+        KeySpec("isolator", "text", "period_range = \"isolated-system\": id of the "
+                "isolator system (a sliding pendulum, or a bilinear system) whose "
+                "effective period T_M at the maximum displacement is computed at its "
+                "upper-bound properties (for 0.75 T_M) and at its lower-bound properties "
+                "(for 1.25 T_M) from property_factors and the MCE_R target (ASCE/SEI "
+                "7-16/7-22 §17.3.3, §17.5.3, from memory). Default: the project's only "
+                "isolator system when [scaling] period is not given; with period and no "
+                "isolator, T_M = period at both ends.", example='"fps"'),
         KeySpec("suite_factor", "number", "fit: one factor applied on top of the "
                 "per-record factors.", default=1.0, example="1.0"),
         KeySpec("beyond_usable", "choice", "Spectral ordinates beyond a record's usable "
@@ -457,10 +511,14 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("friction_rate", "quantity", "sliding-pendulum: rate parameter a of the "
                 "velocity-dependent friction (for example \"20 s/m\").",
                 dimension="slowness", example='"20 s/m"'),
-        KeySpec("property_factors", "list", "sliding-pendulum: [lower, upper] factors on "
-                "the friction coefficients for the lower- and upper-bound analyses beside "
-                "the nominal one; each check takes the governing run (ASCE/SEI 7-16 "
-                "§17.2.8.4, from memory).", example="[0.8, 1.3]"),
+        KeySpec("property_factors", "list", "sliding-pendulum, and a bilinear yielding "
+                "system used as an isolator (hysteresis = \"bilinear\"): [lower, upper] "
+                "property modification factors for the lower- and upper-bound analyses "
+                "beside the nominal one: the friction coefficients, or the characteristic "
+                "strength Q_d = (1 − α) F_y and the post-yield stiffness k_d = α k (the "
+                "elastic stiffness kept), are multiplied by each factor; each check takes "
+                "the governing run (ASCE/SEI 7-16 §17.2.8.4, from memory).",
+                example="[0.8, 1.3]"),
         KeySpec("pivot_inertia", "quantity", "hanging: moment of inertia about the pivot.",
                 dimension="inertia", example='"2400 kg*m**2"'),
         KeySpec("pivot_to_centre", "quantity", "hanging: distance from the pivot to the "
@@ -517,22 +575,10 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("limits", "table", "Limits checked against the demands.",
                 example="{ displacement = \"40 mm\" }"),
     ),
-    "systems[].limits": _keys(
-        KeySpec("displacement", "quantity", "Peak relative displacement limit.",
-                dimension="length", example='"40 mm"'),
-        KeySpec("drift_ratio", "ratio", "Peak drift ratio limit (displacement/height).",
-                example="0.015"),
-        KeySpec("base_shear", "quantity", "Peak base shear limit (needs the mass).",
-                dimension="force", example='"450 kN"'),
-        KeySpec("total_accel", "quantity", "Peak total acceleration limit.",
-                dimension="acceleration", example='"0.8 g"'),
-        KeySpec("ductility", "number", "Ductility demand limit μ = max|u|/u_y (yielding "
-                "systems).", example="4.0"),
-        KeySpec("residual_displacement", "quantity", "Residual (final) displacement "
-                "limit.", dimension="length", example='"10 mm"'),
-        KeySpec("bearing_displacement", "quantity", "sliding-pendulum: displacement "
-                "capacity of the bearing.", dimension="length", example='"250 mm"'),
-    ),
+    # One key per check quantity, from the one registry of them.
+    "systems[].limits": _keys(*(KeySpec(q.key, q.key_type, q.description,
+                                        dimension=q.dimension, example=q.example)
+                                for q in CHECK_QUANTITIES.values())),
 }
 
 #: Top-level tables and arrays of tables of the project file.

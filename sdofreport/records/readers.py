@@ -38,6 +38,7 @@ from pathlib import Path
 
 import numpy as np
 
+from sdofreport.core.decimal_text import TINY, below_tiny
 from sdofreport.core.units import (
     ACCELERATION_UNITS,
     G,
@@ -310,22 +311,6 @@ def _numpy_table(text: str) -> np.ndarray | None:
         return None
 
 
-def _two_columns_fast(rows) -> np.ndarray | None:
-    """
-    (n, 2) array of ``rows`` parsed by numpy's compiled text reader, or None whenever
-    anything is unusual (then the line-by-line parser runs and names the problem).
-    numpy accepts the same decimal numbers as ``float`` for ASCII text without
-    underscores; non-finite values send the rows to the checked path.
-    """
-    text = "\n".join(line for _, line in rows).translate(_TO_SPACE)
-    if not text.isascii() or "_" in text:
-        return None
-    table = _numpy_table(text)
-    if table is None or table.shape != (len(rows), 2) or not np.all(np.isfinite(table)):
-        return None
-    return table
-
-
 #: Bytes a clean two-column body may hold once its comments are removed: the characters
 #: of plain decimal numbers (no Fortran 'D' exponent, no nan/inf, no underscore) and the
 #: separators. For tokens made of these, ``float`` succeeds exactly when the token
@@ -338,7 +323,8 @@ def _clean_two_column(text: str, detecting: bool):
     """
     Read the common clean two-column file in one pass, or return None whenever the
     line-by-line path (:func:`detect_format`, :func:`_parse_two_column`) might decide
-    anything differently; it then runs and decides, or names the problem.
+    anything differently; it then runs and decides, or names the problem. This is the
+    readers' one fast path.
 
     ``text`` has LF line ends. Clean means: blank and comment lines, then one optional
     header row, then a body whose lines, with comments removed, are blank or hold two
@@ -424,11 +410,7 @@ def _parse_two_column(lines, path, dt_given):
         rows = rows[1:]
     if not rows:
         raise _fail(path, None, "has no data lines; expected lines of time and acceleration")
-    fast = _two_columns_fast(rows)
-    if fast is not None:
-        times, values = fast[:, 0].tolist(), fast[:, 1]
-    else:
-        times, values = _two_columns_checked(rows, path)
+    times, values = _two_columns_checked(rows, path)
     return _from_time_column(times, values, [number for number, _ in rows], history,
                              path, dt_given)
 
@@ -464,9 +446,9 @@ def _from_time_column(times, values, numbers, history, path, dt_given):
                     "spaced)")
     _check_agreement(path, dt_given, dt, "time column")
     largest = 100 * float(np.max(deviation))
-    # Below 0.0001 % the deviation is rounding in the file's time column; the pages'
-    # rule for tiny values (sdofreport.site.display.number) says so without an exponent.
-    largest_text = "< 0.0001" if largest < 1e-4 else f"{largest:.2g}"
+    # Below 0.0001 % the deviation is rounding in the file's time column; the one rule
+    # for tiny values (sdofreport.core.decimal_text) says so without an exponent.
+    largest_text = below_tiny(largest) if largest < TINY else f"{largest:.2g}"
     history.append(f"time step {dt:g} s from the time column (largest step deviation "
                    f"{largest_text} %)")
     if time[0] != 0.0:

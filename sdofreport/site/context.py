@@ -12,7 +12,7 @@ from importlib import metadata
 
 import numpy as np
 
-from sdofreport import __version__, codes
+from sdofreport import __version__, codes, vertical_suite
 from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.processing import pad_length_s
 from sdofreport.core.units import G
@@ -487,8 +487,42 @@ class SiteContext:
                    "method": analysis.method, "design": self._design_block(),
                    "scaling": self._scaling_block(), "motion_figure": motion_figure,
                    "motion_label": motion_label, "pairs": pair_rows,
-                   "provenance": provenance.suite_table(self.project.records)}
+                   "provenance": provenance.suite_table(self.project.records),
+                   "vertical": self._vertical_block()}
         return Page("suite.html", "suite.html", context)
+
+    def _vertical_block(self) -> dict | None:
+        """The vertical records against the vertical target (figure and table), or the
+        note that no vertical target was given; None without vertical records."""
+        ids = [r.id for r in self.project.records if r.component == "V"]
+        if not ids:
+            return None
+        scaling = self.results.scaling
+        vertical = scaling.vertical if scaling is not None else None
+        if vertical is None:
+            return {"target": None, "records": ", ".join(ids)}
+        spec = self.project.design_spectrum.vertical
+        low, high = vertical.period_range_s
+        curves = _suite_curves(vertical.record_ids, vertical.spectra_g)
+        figure = self._figure(
+            "figures/suite-vertical.svg", "spectra_figure",
+            periods_s=vertical.periods_s, curves=curves,
+            ylabel="Vertical PSA at ζ = 5 % [g]",
+            highlight_periods=[s.period_s for s in self.project.systems
+                               if s.direction == "vertical"],
+            design=(vertical.periods_s, vertical.target_sa_g, "vertical target"),
+            shaded_range=(low, high, "vertical fitting range"))
+        return {
+            "target": vertical.standard, "figure": figure, "scaled": vertical.scaled,
+            "rule": vertical_suite.rule_text(vertical.scaled),
+            "values": [(label, number(value) if isinstance(value, float) else value,
+                        basis) for label, value, basis in spec.values],
+            "formula": vertical_suite.formula(spec.kind),
+            "range": f"{number(low)} s to {number(high)} s: {vertical.period_range_text}",
+            "ratio": f"{number(vertical.ratio_min)} to {number(vertical.ratio_max)}",
+            "factors": [{"id": i, "factor": number(vertical.factors[i])}
+                        for i in vertical.record_ids],
+            "cautions": list(vertical.cautions)}
 
     def _inelastic_block(self) -> dict | None:
         """Suite means of the inelastic spectra with the classic R–μ–T rules drawn."""
@@ -601,6 +635,7 @@ class SiteContext:
                    if scaling.period_range_option else "")),
                  ("Period-range options", ", ".join(codes.period_range_names(
                      scaling.rule)) + ", or [low, high] in s")]
+        facts += _isolation_facts(scaling.isolation, self.display)
         return {"rule": scaling.rule,
                 "rule_text": edition.rule_text if edition else _FIT_TEXT,
                 "range": f"{number(low)} s to {number(high)} s", "criteria": criteria,
@@ -740,15 +775,22 @@ class SiteContext:
         periods = results.records[0].spectrum.periods_s
         damping = results.records[0].spectrum.damping
         z_index = int(np.argmin(np.abs(damping - system.damping)))
+        own = {r.id for r in self.project.records_for(system)}
         spectrum_curves = [{"label": item.record.id, "style": "record",
                             "values": item.spectrum.psa_m_s2[z_index] / G}
-                           for item in results.records]
+                           for item in results.records if item.record.id in own]
+        design = self._design(periods)
+        if system.direction == "vertical":  # its own records against the vertical target
+            vertical = self.project.design_spectrum and \
+                self.project.design_spectrum.vertical
+            design = None if not vertical else (periods, vertical.sa_g(periods),
+                                                "vertical target")
         figure = self._figure(figure_path("system-spectra", system.id), "spectra_figure",
                               periods_s=periods, curves=spectrum_curves,
                               ylabel=f"PSA at ζ = {100 * damping[z_index]:g} % [g]",
                               highlight_periods=[system.period_s] + (
                                   [system.p_delta["period_s"]] if system.p_delta else []),
-                              design=self._design(periods))
+                              design=design)
         context = {**self.common("../", f"System {system.id}", "system", system.id),
                    **self._statistic_bits(),
                    "system": {"id": system.id, "name": system.name,
@@ -1061,6 +1103,29 @@ _TWO_DIRECTION_RULES = {
 }
 
 
+def _isolation_facts(isolation: dict | None, d) -> list[tuple[str, str]]:
+    """T_M at the upper and the lower bound of the isolated-system range, with D_M, k_M,
+    β_M, B_M and S_a(T_M), and the clauses (none without an isolator system)."""
+    if not isolation:
+        return []
+    rows = []
+    for run, factor, end in (("upper", 0.75, "lower end"), ("lower", 1.25, "upper end")):
+        found = isolation[run]
+        e = found.effective
+        rows.append((f"T_M at the {run}-bound properties of {isolation['system']}",
+                     f"{number(e.period_s)} s ({end}: {factor:g} T_M = "
+                     f"{number(factor * e.period_s)} s): D_M = "
+                     f"{d.show(e.displacement_m, 'length')}, k_M = "
+                     f"{d.show(e.stiffness_n_m, 'stiffness')}, β_M = "
+                     f"{100 * e.damping:.3g} %, B_M = {number(found.damping_coefficient)}, "
+                     f"S_a(T_M) = {number(found.spectral_accel_g)} g"))
+    rows.append(("T_M, formula", isolation["clause"] + "; k_M, β_M: pendulum k = W/R + "
+                 "μW/D, β = (2/π) μ/(μ + D/R); bilinear k = Q_d/D + k_d, β = 4 Q_d (D − "
+                 "D_y)/(2π k D²) (sdofreport.core.isolation); the bound properties from "
+                 "property_factors"))
+    return rows
+
+
 def _directions_rows(system) -> list[dict]:
     """The two-direction row of a system's properties (none for one direction)."""
     if system.directions == 1:
@@ -1107,9 +1172,12 @@ def _isolation_rows(system, results, d) -> list[dict]:
                       for r in results.project.records_for(system)]
             reduce = np.mean if results.statistic == "mean" else np.max
             peaks[run] = d.show(float(reduce(values)), "length")
+        varied = ("friction × factor" if system.model_name == "sliding-pendulum" else
+                  "Q_d = (1 − α) F_y and k_d = α k × factor (elastic stiffness kept: "
+                  "F_y' = λ Q_d/(1 − λα), α' = λα)")
         rows.append({"name": "Property factors (lower, upper)",
                      "value": f"{number(factors[0])}, {number(factors[1])}",
-                     "basis": "friction × factor for two more runs per record beside the "
+                     "basis": f"{varied} for two more runs per record beside the "
                               "nominal one; each check takes the governing run (ASCE/SEI "
                               f"7-16 §17.2.8.4, from memory); {STATISTIC_TEXT[results.statistic]}"
                               " peak displacement: lower "
@@ -1118,8 +1186,12 @@ def _isolation_rows(system, results, d) -> list[dict]:
         rows.append({"name": f"Effective period T_eff, damping β_eff ({run})",
                      "value": f"{number(e.period_s)} s, {100 * e.damping:.3g} %",
                      "basis": f"at D = {d.show(e.displacement_m, 'length')} "
-                              f"({STATISTIC_TEXT[results.statistic]} peak): k_eff = W/R + "
-                              "μW/D, T_eff = 2π√(W/(g k_eff)), β_eff = (2/π)·μ/(μ + D/R) "
-                              "(Zayas, Low & Mahin 1990; definitions of ASCE/SEI 7-16 "
-                              "§17.8.5, from memory)"})
+                              f"({STATISTIC_TEXT[results.statistic]} peak): " + (
+                                  "k_eff = W/R + μW/D, T_eff = 2π√(W/(g k_eff)), β_eff = "
+                                  "(2/π)·μ/(μ + D/R) (Zayas, Low & Mahin 1990"
+                                  if system.model_name == "sliding-pendulum" else
+                                  "k_eff = Q_d/D + k_d, T_eff = 2π√(m/k_eff), β_eff = 4 "
+                                  "Q_d (D − D_y)/(2π k_eff D²) (Naeim & Kelly 1999, from "
+                                  "memory") + "; definitions of ASCE/SEI 7-16 §17.8.5, "
+                              "from memory)"})
     return rows

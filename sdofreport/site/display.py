@@ -10,7 +10,9 @@ from __future__ import annotations
 
 import math
 
+from sdofreport.core.decimal_text import HUGE, TINY, below_tiny, plain_decimal
 from sdofreport.core.units import G, INCH
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
 
 _KIP_N = 1000.0 * 0.45359237 * G  # [N], exact by definition of the pound-force
 
@@ -36,25 +38,8 @@ DISPLAY_UNITS: dict[str, dict[str, tuple[str, float]]] = {
     },
 }
 
-#: Dimension of each checked quantity (None: dimensionless ratio).
-CHECK_DIMENSIONS = {"displacement": "length", "drift_ratio": None, "base_shear": "force",
-                    "total_accel": "acceleration", "ductility": None,
-                    "residual_displacement": "length", "bearing_displacement": "length"}
-
-#: Unit of each checked quantity in results.json (SI).
-CHECK_SI_UNITS = {"displacement": "m", "drift_ratio": "-", "base_shear": "N",
-                  "total_accel": "m/s2", "ductility": "-", "residual_displacement": "m",
-                  "bearing_displacement": "m"}
-
-CHECK_LABELS = {"displacement": "Peak displacement", "drift_ratio": "Peak drift ratio",
-                "base_shear": "Peak base shear", "total_accel": "Peak total acceleration",
-                "ductility": "Ductility demand", "residual_displacement":
-                "Residual displacement", "bearing_displacement": "Bearing displacement"}
-
-
-#: The smallest magnitude the pages write as a number; anything smaller (but not zero)
-#: is written "< 0.0001" (or "> −0.0001"), in whatever unit the value is shown.
-TINY = 1e-4
+#: Page label of each check quantity (the registry's, by key).
+CHECK_LABELS = {key: q.label for key, q in CHECK_QUANTITIES.items()}
 
 
 def number(value: float | None, digits: int = 4) -> str:
@@ -62,9 +47,10 @@ def number(value: float | None, digits: int = 4) -> str:
     A value as every page writes numbers: ``digits`` significant figures in plain
     decimal notation, never an exponent.
 
-    The one rule for small values: a magnitude below :data:`TINY` (0.0001 in the unit
-    shown) is written ``"< 0.0001"`` (``"> −0.0001"`` when negative); zero is ``"0"``.
-    From 10⁶ up, whole numbers with thin-space thousands separators.
+    The one rule for small values (:mod:`sdofreport.core.decimal_text`): a magnitude
+    below :data:`TINY` (0.0001 in the unit shown) is written ``"< 0.0001"``
+    (``"> −0.0001"`` when negative); zero is ``"0"``. From 10⁶ up, whole numbers with
+    thin-space thousands separators.
     """
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return "–"
@@ -72,10 +58,9 @@ def number(value: float | None, digits: int = 4) -> str:
         return "0"
     magnitude = abs(value)
     if magnitude < TINY:
-        return f"< {TINY:.4f}" if value > 0 else f"> −{TINY:.4f}"
-    if magnitude < 1e6:
-        decimals = max(0, digits - 1 - int(math.floor(math.log10(magnitude))))
-        return f"{value:.{decimals}f}"
+        return below_tiny(value)
+    if magnitude < HUGE:
+        return plain_decimal(value, digits)
     return f"{value:,.0f}".replace(",", "\u2009")
 
 
@@ -104,4 +89,4 @@ class Display:
         return text
 
     def check_value(self, quantity: str, value: float) -> str:
-        return self.show(value, CHECK_DIMENSIONS[quantity])
+        return self.show(value, CHECK_QUANTITIES[quantity].dimension)

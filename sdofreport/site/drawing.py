@@ -5,6 +5,10 @@ arguments and the versions that draw it; a miss is drawn and stored. Whoever han
 figure writes its SVG file straight into the staging folder and sends back only the
 file's SHA-256, so the build process neither draws nor moves figure text. Who draws a
 figure does not change its bytes.
+
+This module only schedules: it calls the ``*_figure`` functions of
+:mod:`sdofreport.site.figures` by name and never draws or imports a back-end
+(matplotlib or :mod:`sdofreport.site.svg_panels`) itself.
 """
 
 from __future__ import annotations

@@ -14,17 +14,23 @@ give identical bytes across runs and processes on the same installation (fonts a
 version being equal). ``rc_context`` swaps process-wide rcParams, so render in parallel
 *processes*, not threads.
 
-The exceptions are :func:`histories_figure`, :func:`spectra_figure` and
-:func:`fourier_figure`: a study draws one history per record and system, often thousands,
-and spectra for every record, so these are written directly as SVG by
-:mod:`sdofreport.site.svg_panels` in the same style (about 5-10 ms instead of 0.1-0.3 s
-each); :func:`checks_bar_figure` and :func:`hysteresis_figure` still go through
+The exceptions are :func:`histories_figure`, :func:`spectra_figure`,
+:func:`fourier_figure` and :func:`fragility_figure`: a study draws one history per record
+and system, often thousands, and spectra for every record, so these are written directly
+as SVG by :mod:`sdofreport.site.svg_panels` in the same style (about 5-10 ms instead of
+0.1-0.3 s each); :func:`checks_bar_figure` and :func:`hysteresis_figure` still go through
 matplotlib as described above. matplotlib is imported only when one of those two is
 drawn (the import costs a process about a second); the direct figures measure label
 widths from the committed table :mod:`sdofreport.site.font_metrics`.
 
 Long histories are thinned by :func:`decimate_minmax`, which keeps every bucket's first, last,
 minimum and maximum sample, so peaks survive exactly.
+
+Module boundary: this module is the one public entry point for figures. It decides what
+a figure shows (data, labels, layout, :data:`FIGURE_RC` style) and which back-end draws
+it: matplotlib here, or the direct-SVG back-end :mod:`sdofreport.site.svg_panels`, which
+only this module imports. Where and when figures are drawn (cache, worker processes,
+the staged tree) is :mod:`sdofreport.site.drawing`'s business, which never draws itself.
 """
 
 from __future__ import annotations

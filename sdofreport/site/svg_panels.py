@@ -13,6 +13,15 @@ widths); tick positions are those of matplotlib's ``MaxNLocator``, restated in
 matplotlib.
 
 Lengths are in points (72 per inch), the unit of the SVG ``viewBox``; y grows downwards.
+
+Module boundary (the direct-SVG figures): this module is the SVG back-end only. It turns
+prepared numbers, a :class:`PanelLayout` and a :class:`PanelStyle` into SVG text and
+knows nothing of projects, results, units or pages. It imports numpy,
+:mod:`sdofreport.site.ticks` and :mod:`sdofreport.site.symbols`, never matplotlib; in
+the package only :mod:`sdofreport.site.figures` imports it, and the site asks
+:mod:`~sdofreport.site.figures` for every figure (:mod:`sdofreport.site.drawing` calls
+its ``*_figure`` functions by name). Kept because it pays: about 4 ms a figure against
+89 ms through matplotlib (measured for issue 16).
 """
 
 from __future__ import annotations

@@ -15,8 +15,8 @@ from pathlib import Path
 import click
 import pytest
 
-from sdofreport.archive.commands import register_commands
 from sdofreport.build import build_site
+from sdofreport.cli.archive import register_commands
 from tests.conftest import ONE_SYSTEM, TWO_RECORDS, write_test_records
 
 DATE = "2026-01-15"

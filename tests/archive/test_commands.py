@@ -11,7 +11,7 @@ import click
 import pytest
 from click.testing import CliRunner
 
-from sdofreport.archive.commands import register_commands
+from sdofreport.cli.archive import register_commands
 
 
 def test_register_commands_adds_the_four_commands():

@@ -22,7 +22,6 @@ from click.testing import CliRunner
 
 from sdofreport.cli import cli
 from sdofreport.errors import BuildError
-from tests.conftest import EXAMPLE
 
 
 def require_browser() -> None:
@@ -46,11 +45,10 @@ def build_project(project_file: Path, output: Path, cache_dir: Path) -> Path:
 
 
 @pytest.fixture(scope="session")
-def example_site(tmp_path_factory) -> Path:
-    """The bundled example, built once for all browser tests (its own result cache)."""
-    require_browser()
-    root = tmp_path_factory.mktemp("browser-example")
-    return build_project(EXAMPLE / "sdofreport.toml", root / "site", root / "cache")
+def example_site(request) -> Path:
+    """The bundled example, the session's one shared build (read-only)."""
+    require_browser()  # before the build, so a machine without a browser skips at once
+    return request.getfixturevalue("built_example").site
 
 
 @pytest.fixture(scope="session")

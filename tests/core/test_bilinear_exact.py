@@ -136,13 +136,13 @@ def test_substeps_do_not_change_an_exact_result():
 
 
 @pytest.mark.parametrize("kwargs, match", [
-    ({"substeps": 1, "period_s": 0.01},
+    ({"substeps": 1, "natural_period_s": 0.01},
      r"^substeps must make the step at most T/4 = 0.0025 \[s\]; got dt/substeps = 0.01"),
     ({"yield_displacement_m": 0.0}, r"^yield_displacement_m must be > 0 \[m\]; got 0.0$"),
     ({"hardening_ratio": 1.0}, r"^hardening_ratio must be in \[0, 1\) \[-\]; got 1.0$"),
 ])
 def test_refuses(kwargs, match):
-    args = {"ground_acceleration": np.ones(10), "time_step": 0.01, "period_s": 0.5,
+    args = {"acceleration_m_s2": np.ones(10), "time_step_s": 0.01, "natural_period_s": 0.5,
             "damping_ratio": 0.05, "yield_displacement_m": 0.01}
     args.update(kwargs)
     with pytest.raises(ValueError, match=match):

@@ -31,20 +31,20 @@ def test_lumped_mass_and_stiffness():
 
 
 def test_lumped_mass_and_period():
-    d = lumped(mass_kg=2000.0, period_s=0.5)
+    d = lumped(mass_kg=2000.0, natural_period_s=0.5)
     # Hand calculation: k = 4π² × 2000 / 0.25 = 315 827.3 N/m.
     assert d.stiffness_n_m == pytest.approx(315827.34, rel=1e-7)
     assert d.period_s == 0.5
 
 
 def test_lumped_stiffness_and_period():
-    d = lumped(stiffness_n_m=315827.34, period_s=0.5)
+    d = lumped(stiffness_n_m=315827.34, natural_period_s=0.5)
     # Hand calculation: m = k T² / 4π² = 315 827.34 × 0.25 / 39.4784 = 2000.0 kg.
     assert d.mass_kg == pytest.approx(2000.0, rel=1e-7)
 
 
 def test_lumped_period_alone():
-    d = lumped(period_s=1.2)
+    d = lumped(natural_period_s=1.2)
     # Hand calculation: nothing to derive; mass and stiffness unknown.
     assert d == Derived(mass_kg=None, stiffness_n_m=None, period_s=1.2,
                         derivation=d.derivation)
@@ -55,8 +55,8 @@ def test_lumped_period_alone():
     ({}, "got nothing"),
     ({"mass_kg": 1.0}, "got mass_kg$"),
     ({"stiffness_n_m": 1.0}, "got stiffness_n_m$"),
-    ({"mass_kg": 1.0, "stiffness_n_m": 1.0, "period_s": 1.0},
-     "got mass_kg and stiffness_n_m and period_s"),
+    ({"mass_kg": 1.0, "stiffness_n_m": 1.0, "natural_period_s": 1.0},
+     "got mass_kg and stiffness_n_m and natural_period_s"),
 ])
 def test_lumped_refuses_other_combinations(kwargs, got):
     with pytest.raises(ValueError, match=got):
@@ -66,7 +66,7 @@ def test_lumped_refuses_other_combinations(kwargs, got):
 @pytest.mark.parametrize("value", [0.0, -1.0, math.nan, math.inf, "heavy", True])
 def test_lumped_refuses_bad_mass(value):
     with pytest.raises(ValueError, match=r"mass_kg must be .*> 0 \[kg\]; got"):
-        lumped(mass_kg=value, period_s=1.0)
+        lumped(mass_kg=value, natural_period_s=1.0)
 
 
 # ------------------------------------------------------------------------ columns

@@ -160,14 +160,14 @@ def test_no_iterations_gives_a_record():
 @pytest.mark.parametrize("kwargs, match", [
     ({"seed": -1}, r"seed must be an integer >= 0 \[-\]; got -1"),
     ({"envelope": "boxcar"}, r"envelope must be one of saragoni-hart, trapezoidal; got 'boxcar'"),
-    ({"duration_s": 0.2}, r"duration_s / dt_s must give at least 64 samples"),
+    ({"duration_s": 0.2}, r"duration_s / time_step_s must give at least 64 samples"),
     ({"period_range_s": (0.01, 2.0)}, r"period_range_s \(0.01, 2.0\) \[s\] must lie within"),
-    ({"damping": 0.0}, r"damping must be a finite number > 0 \[-\]; got 0.0"),
+    ({"damping_ratio": 0.0}, r"damping_ratio must be in \(0, 1\) \[-\]; got 0.0"),
     ({"iterations": 1.5}, r"iterations must be an integer >= 0 \[-\]; got 1.5"),
     ({"adjustments": -2}, r"adjustments must be an integer >= 0 \[-\]; got -2"),
 ])
 def test_bad_arguments(kwargs, match):
     args = {"target_periods_s": TARGET_T, "target_sa_g": _asce(TARGET_T), "duration_s": 10.0,
-            "dt_s": 0.01, "seed": 0} | kwargs
+            "time_step_s": 0.01, "seed": 0} | kwargs
     with pytest.raises(ValueError, match=match):
         spectrum_compatible_record(**args)

@@ -78,7 +78,7 @@ def test_damped_free_vibration_closed_form(zeta):
     period, u0, v0, dt = 0.8, 0.03, -0.4, 0.01
     t = np.arange(801) * dt
     u, v, _ = exact_response(np.zeros(t.size), dt, period, zeta,
-                             initial_displacement=u0, initial_velocity=v0)
+                             initial_displacement_m=u0, initial_velocity_m_s=v0)
     wn = 2.0 * np.pi / period
     wd = wn * np.sqrt(1.0 - zeta**2)
     # Closed form: damped free vibration, Chopra, Dynamics of Structures, sec. 2.2,
@@ -117,17 +117,17 @@ def test_harmonic_steady_state_amplitude(ratio, zeta):
 @pytest.mark.parametrize(
     "kwargs, message",
     [
-        ({"natural_periods": -0.2}, r"natural_period must be finite and > 0 \[s\]; got -0.2"),
-        ({"natural_periods": 0.0}, r"natural_period must be finite and > 0 \[s\]; got 0.0"),
-        ({"damping_ratios": 1.0}, r"damping_ratio must be in \[0, 1\)"),
-        ({"damping_ratios": -0.01}, r"damping_ratio must be in \[0, 1\).*got -0.01"),
+        ({"natural_periods_s": -0.2}, r"natural_periods_s must be finite and > 0 \[s\]; got -0.2"),
+        ({"natural_periods_s": 0.0}, r"natural_periods_s must be finite and > 0 \[s\]; got 0.0"),
+        ({"damping_ratios": 1.0}, r"damping_ratios must be in \[0, 1\)"),
+        ({"damping_ratios": -0.01}, r"damping_ratios must be in \[0, 1\).*got -0.01"),
         ({"damping_ratios": 5.0}, r"a percentage\? use 0.05"),
-        ({"time_step": 0.0}, r"time_step must be finite and > 0 \[s\]; got 0.0"),
-        ({"natural_periods": float("nan")}, r"natural_period must be finite"),
+        ({"time_step_s": 0.0}, r"time_step_s must be a finite number > 0 \[s\]; got 0.0"),
+        ({"natural_periods_s": float("nan")}, r"natural_periods_s must be finite"),
     ],
 )
 def test_coefficients_refuse_bad_arguments(kwargs, message):
-    args = {"natural_periods": 1.0, "damping_ratios": 0.05, "time_step": 0.01} | kwargs
+    args = {"natural_periods_s": 1.0, "damping_ratios": 0.05, "time_step_s": 0.01} | kwargs
     with pytest.raises(ValueError, match=message):
         exact_coefficients(**args)
 

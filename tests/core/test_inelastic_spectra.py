@@ -218,17 +218,17 @@ def test_threads_do_not_change_results():
 @pytest.mark.parametrize("kwargs, match", [
     ({"target_ductilities": [0.5]},
      r"^target_ductilities must be finite and >= 1 \[-\]; got 0.5$"),
-    ({"alpha": 1.0}, r"^alpha must be in \[0, 1\) \[-\]; got 1.0$"),
-    ({"damping": 5.0}, r"damping_ratio must be in \[0, 1\) \[-\]; got 5.0 \(a percentage"),
-    ({"periods": [0.5, -1.0]}, r"^periods must be finite and > 0 \[s\]; got -1.0$"),
+    ({"hardening_ratio": 1.0}, r"^hardening_ratio must be in \[0, 1\) \[-\]; got 1.0$"),
+    ({"damping_ratio": 5.0}, r"damping_ratio must be in \[0, 1\) \[-\]; got 5.0 \(a percentage"),
+    ({"periods_s": [0.5, -1.0]}, r"^periods_s must be finite and > 0 \[s\]; got -1.0$"),
     ({"strength_tolerance": 0.5}, r"^strength_tolerance must be in \(0, 0.1\] \[-\]; got 0.5$"),
     ({"workers": 0}, r"^workers must be an integer >= 1 \[-\]; got 0$"),
     ({"steps_per_period": 2}, r"^steps_per_period must be finite and >= 4 \[-\]; got 2$"),
     ({"scan_ratio": 0.99999999 + 1}, r"^scan_ratio must be in \[0.5, 1\) \[-\]; got 1.99"),
 ])
 def test_constant_ductility_refuses(kwargs, match):
-    args = {"ground_acceleration": np.ones(10), "time_step": 0.01, "periods": [0.5],
-            "damping": 0.05, "target_ductilities": [2.0]}
+    args = {"acceleration_m_s2": np.ones(10), "time_step_s": 0.01, "periods_s": [0.5],
+            "damping_ratio": 0.05, "target_ductilities": [2.0]}
     args.update(kwargs)
     with pytest.raises(ValueError, match=match):
         constant_ductility_spectrum(**args)

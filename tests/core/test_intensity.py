@@ -179,10 +179,11 @@ def test_list_tuple_and_array_inputs_agree(acceleration):
 @pytest.mark.parametrize(
     ("acceleration", "time_step", "message"),
     [
-        ([0.0, float("nan"), 1.0], 0.01, r"acceleration_m_s2 must be finite \[m/s²\]; sample 1"),
+        ([0.0, float("nan"), 1.0], 0.01,
+         r"acceleration_m_s2 must be finite \[m/s²\]; got nan at sample 1"),
         ([], 0.01, r"at least 2 samples \[m/s²\]; got 0"),
-        (1.0, 0.01, r"one-dimensional"),
-        ([[0.0, 1.0]], 0.01, r"one-dimensional"),
+        (1.0, 0.01, r"acceleration_m_s2 must be 1-D \[m/s²\]; got an array of shape \(\)"),
+        ([[0.0, 1.0]], 0.01, r"must be 1-D \[m/s²\]; got an array of shape \(1, 2\)"),
         ([0.0, 1.0], 0.0, r"time_step_s must be a finite number > 0 \[s\]; got 0.0"),
         ([0.0, 1.0], -0.01, r"time_step_s must be a finite number > 0 \[s\]; got -0.01"),
         ([0.0, 1.0], "x", r"time_step_s must be a number > 0 \[s\]; got 'x'"),

@@ -31,7 +31,7 @@ def test_average_acceleration_period_elongation(step_ratio):
     dt = step_ratio * period
     npts = int(300 * period / dt)
     u, v, _ = newmark_beta(np.zeros(npts), dt, period, 0.0, "newmark-average",
-                           initial_displacement=0.01)
+                           initial_displacement_m=0.01)
     measured = _zero_crossing_period(u, dt) / period
     x = math.pi * step_ratio  # x = ωΔt/2
     # Closed form: Newmark (1959) average acceleration, T̄/T = x / arctan(x), x = ωΔt/2
@@ -44,7 +44,7 @@ def test_average_acceleration_no_amplitude_decay():
     period, dt = 0.5, 0.05
     wn = 2.0 * math.pi / period
     u, v, _ = newmark_beta(np.zeros(5000), dt, period, 0.0, "newmark-average",
-                           initial_displacement=0.02, initial_velocity=0.3)
+                           initial_displacement_m=0.02, initial_velocity_m_s=0.3)
     energy = (wn * u) ** 2 + v**2
     # Closed form: the average-acceleration (trapezoidal) rule conserves ω²u² + u'² exactly
     # for an undamped linear oscillator (no amplitude decay, Newmark 1959); round-off only.
@@ -66,7 +66,8 @@ def test_linear_acceleration_step_refused_above_limit(runner):
     dt = 1.001 * limit * period
     ag = np.zeros(50)
     ag[1] = 1.0
-    message = r"time_step 0\.0551\d* \[s\] / natural_period 0\.1 \[s\] .* stability limit 0\.5513"
+    message = (r"time_step_s 0\.0551\d* \[s\] / natural_period 0\.1 \[s\] .* "
+               r"stability limit 0\.5513")
     with pytest.raises(ValueError, match=message):
         if runner == "newmark_beta":
             newmark_beta(ag, dt, period, 0.05, "newmark-linear")
@@ -81,7 +82,7 @@ def test_linear_acceleration_step_accepted_below_limit():
     period = 0.1
     dt = 0.999 * limit * period
     u, v, _ = newmark_beta(np.zeros(4000), dt, period, 0.0, "newmark-linear",
-                           initial_displacement=0.01)
+                           initial_displacement_m=0.01)
     # Closed form: within the limit the undamped response stays bounded (|eigenvalues| = 1).
     assert np.all(np.isfinite(u)) and np.max(np.abs(u)) < 0.1
     peaks = oscillator_peaks(np.r_[0.0, 1.0, np.zeros(100)], dt, period, 0.05,

@@ -126,16 +126,17 @@ def test_pruning_agrees_with_brute_force():
 
 
 @pytest.mark.parametrize("kwargs, match", [
-    ({"dt": 0.0}, r"dt must be a finite number > 0 \[s\]; got 0.0"),
-    ({"damping": 5.0}, r"damping must be a ratio in \[0, 1\) \[-\]; got 5.0"),
+    ({"time_step_s": 0.0}, r"time_step_s must be a finite number > 0 \[s\]; got 0.0"),
+    ({"damping_ratio": 5.0}, r"damping_ratio must be in \[0, 1\) \[-\]; got 5.0"),
     ({"angles_deg": [0.0, 180.0]}, r"angles_deg must lie in \[0, 180\) \[deg\]"),
     ({"method": "rk4"}, r"method must be one of exact, newmark-average, newmark-linear; "
                         r"got 'rk4'"),
-    ({"periods": [-1.0]}, r"periods must be finite and >= 0 \[s\]; got \[-1.0\]"),
-    ({"acc_h2": np.zeros(10)}, r"acc_h1 and acc_h2 must be 1-D records of the same length"),
+    ({"periods_s": [-1.0]}, r"periods_s must be finite and >= 0 \[s\]; got \[-1.0\]"),
+    ({"acceleration_2_m_s2": np.zeros(10)},
+     r"acceleration_1_m_s2 and acceleration_2_m_s2 must have the same length"),
 ])
 def test_bad_arguments(kwargs, match):
-    args = {"acc_h1": np.zeros(20), "acc_h2": np.zeros(20), "dt": 0.01, "periods": [1.0],
-            "damping": 0.05} | kwargs
+    args = {"acceleration_1_m_s2": np.zeros(20), "acceleration_2_m_s2": np.zeros(20),
+            "time_step_s": 0.01, "periods_s": [1.0], "damping_ratio": 0.05} | kwargs
     with pytest.raises(ValueError, match=match):
         rotd_spectrum(**args)

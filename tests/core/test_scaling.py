@@ -166,7 +166,7 @@ def test_en1998_1_too_few_records_fails():
 ])
 def test_asce7_16_bad_arguments(kwargs, match):
     target = asce7_16_spectrum(PERIODS, 1.0, 0.6, 8.0)
-    args = {"periods": PERIODS, "rotd100_psa_g_per_pair": np.vstack([target, target]),
+    args = {"periods_s": PERIODS, "rotd100_psa_g_per_pair": np.vstack([target, target]),
             "target_sa_g": target, "period_range_s": (0.2, 2.0)} | kwargs
     with pytest.raises(ValueError, match=match):
         scale_asce7_16(**args)

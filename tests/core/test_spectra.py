@@ -180,14 +180,14 @@ def test_oscillators_broadcast_and_histories(record_001):
 @pytest.mark.parametrize(
     "args, message",
     [
-        (([],), r"ground_acceleration must have at least 2 samples \[m/s²\]; got 0"),
-        (([1.0, np.nan, 2.0],), r"ground_acceleration must be finite \[m/s²\]; got nan at sample 1"),
-        ((np.zeros((3, 3)),), r"ground_acceleration must be 1-D"),
-        (([0.0, 1.0], 0.0), r"time_step must be finite and > 0 \[s\]; got 0.0"),
-        (([0.0, 1.0], 0.01, []), r"natural_periods must hold at least one period"),
-        (([0.0, 1.0], 0.01, [np.nan]), r"natural_period must be finite and >= 0 \[s\]; got nan"),
-        (([0.0, 1.0], 0.01, [-1.0]), r"natural_period must be finite and >= 0 \[s\]; got -1.0"),
-        (([0.0, 1.0], 0.01, 1.0, 1.0), r"damping_ratio must be in \[0, 1\)"),
+        (([],), r"acceleration_m_s2 must have at least 2 samples \[m/s²\]; got 0"),
+        (([1.0, np.nan, 2.0],), r"acceleration_m_s2 must be finite \[m/s²\]; got nan at sample 1"),
+        ((np.zeros((3, 3)),), r"acceleration_m_s2 must be 1-D"),
+        (([0.0, 1.0], 0.0), r"time_step_s must be a finite number > 0 \[s\]; got 0.0"),
+        (([0.0, 1.0], 0.01, []), r"periods_s must hold at least one period"),
+        (([0.0, 1.0], 0.01, [np.nan]), r"periods_s must be finite and >= 0 \[s\]; got nan"),
+        (([0.0, 1.0], 0.01, [-1.0]), r"periods_s must be finite and >= 0 \[s\]; got -1.0"),
+        (([0.0, 1.0], 0.01, 1.0, 1.0), r"damping_ratios must be in \[0, 1\)"),
         (([0.0, 1.0], 0.01, 1.0, 0.05, "wilson"), r"method must be one of exact, newmark-av"),
     ],
 )
@@ -215,7 +215,7 @@ def test_refined_peak_of_free_vibration_between_samples(zeta):
     # About ten steps per period, the peak half-way between samples 2 and 3.
     dt = t_peak / 2.5
     hist = oscillator_histories(np.zeros(40), dt, period, zeta, steps_per_period=0,
-                                initial_velocity=v0)
+                                initial_velocity_m_s=v0)
     sampled = np.max(np.abs(hist.displacement_m[0]))
     # The samples alone miss more than 1 % (so the refinement did the work) ...
     assert sampled < 0.99 * want

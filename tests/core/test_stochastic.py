@@ -76,8 +76,8 @@ def test_saragoni_hart_is_zero_before_start():
 @pytest.mark.parametrize(
     "kwargs, match",
     [
-        ({"eps": 0.0}, r"eps must be between 0 and 1 \(exclusive\) \[-\]; got 0.0"),
-        ({"eta": 1.5}, r"eta must be between 0 and 1 \(exclusive\) \[-\]; got 1.5"),
+        ({"eps": 0.0}, r"eps must be in \(0, 1\) \[-\]; got 0.0"),
+        ({"eta": 1.5}, r"eta must be in \(0, 1\) \[-\]; got 1.5"),
     ],
 )
 def test_saragoni_hart_rejects_bad_shape(kwargs, match):

@@ -2,8 +2,8 @@
 
 ``command_group`` is a click group holding every command of the real ``sdofreport``
 group (build, pack, verify, ...) plus ``new`` and ``schema`` registered through
-:func:`sdofreport.docs_commands.register`, so these tests do not depend on whether
-cli.py has registered them yet.
+:func:`sdofreport.cli.new_and_schema.register`, so these tests do not depend on whether
+sdofreport.cli.app has registered them yet.
 
 Sources of expected values: none here (fixtures only).
 """
@@ -18,7 +18,7 @@ import pytest
 from click.testing import CliRunner
 
 from sdofreport.cli import cli
-from sdofreport.docs_commands import register
+from sdofreport.cli.new_and_schema import register
 
 ROOT = Path(__file__).resolve().parents[2]
 DOCS = ROOT / "docs"

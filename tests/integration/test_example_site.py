@@ -40,17 +40,15 @@ def _parse(path: Path) -> _Links:
 
 
 @pytest.fixture(scope="module")
-def built(tmp_path_factory):
-    root = tmp_path_factory.mktemp("example")
-    cache = root / "cache"
-    sites = []
-    for name in ("first", "second"):
-        out = root / name / "site"
-        result = CliRunner().invoke(cli, ["build", str(EXAMPLE / "sdofreport.toml"), "-o",
-                                          str(out), "--quiet", "--cache-dir", str(cache)])
-        assert result.exit_code == 0, result.output
-        sites.append(out)
-    return sites
+def built(built_example, tmp_path_factory):
+    """The shared build of the example, and a second build of it into another folder
+    from the same result cache."""
+    out = tmp_path_factory.mktemp("example-again") / "site"
+    result = CliRunner().invoke(cli, ["build", str(EXAMPLE / "sdofreport.toml"), "-o",
+                                      str(out), "--quiet", "--cache-dir",
+                                      str(built_example.cache)])
+    assert result.exit_code == 0, result.output
+    return [built_example.site, out]
 
 
 def _files(site: Path) -> dict[str, bytes]:

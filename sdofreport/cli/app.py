@@ -16,7 +16,7 @@ import sys
 import click
 
 from sdofreport import __version__
-from sdofreport.cli_options import deprecated, emit, output_option, resolve_format
+from sdofreport.cli.options import deprecated, emit, output_option, resolve_format
 from sdofreport.core.spectra import SPECTRUM_METHODS
 from sdofreport.errors import SdofreportError
 
@@ -134,8 +134,8 @@ def spectrum_command(file, file_format, units, dt_s, damping, periods_text, meth
     Example:
       sdofreport spectrum record.txt --units g --damping 0.02 --damping 0.05 --format csv
     """
+    from sdofreport.cli.spectrum_report import spectrum_report
     from sdofreport.records import RECORD_FORMATS
-    from sdofreport.spectrum_report import spectrum_report
 
     if output_format in RECORD_FORMATS and file_format is None:
         deprecated(f"'--format {output_format}' names a record layout; use "
@@ -271,9 +271,9 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
         sys.exit(3)
 
 
-from sdofreport.archive.commands import register_commands  # noqa: E402
-from sdofreport.docs_commands import register as register_docs_commands  # noqa: E402
-from sdofreport.synthesize_command import register as _register_synthesize  # noqa: E402
+from sdofreport.cli.archive import register_commands  # noqa: E402
+from sdofreport.cli.new_and_schema import register as register_docs_commands  # noqa: E402
+from sdofreport.cli.synthesize import register as _register_synthesize  # noqa: E402
 
 register_commands(cli)
 register_docs_commands(cli)

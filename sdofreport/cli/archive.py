@@ -12,7 +12,7 @@ import sys
 
 import click
 
-from sdofreport.cli_options import (
+from sdofreport.cli.options import (
     emit,
     format_option,
     old_output_file_option,
