@@ -992,7 +992,7 @@ def warm_kernels(project: Project) -> None:
 #: Rough CPU seconds numba takes to compile each warm-up step on a fresh machine
 #: (measured on the 2-core development machine, 2026-12, for the bundled example): used
 #: only to share the later kernels between the build process and the reader process.
-_COMPILE_COST_S = {"linear": 3.6, "inelastic": 2.7, "responses": 4.3, "biaxial": 4.0}
+_COMPILE_COST_S = {"linear": 3.6, "inelastic": 2.7, "responses": 4.3, "biaxial": 1.6}
 
 
 def _later_steps(project: Project) -> list[tuple[str, object]]:
