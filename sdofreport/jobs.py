@@ -5,7 +5,9 @@
 * :func:`pair_job` — RotD50/RotD100, geometric-mean and SRSS spectra of a horizontal pair
   (Boore 2010);
 * :func:`responses_job` — the response histories of every system to one record;
-* :func:`stripe_job` — one stripe of a multiple-stripe fragility analysis (peaks only).
+* :func:`stripe_job` — one stripe of a multiple-stripe fragility analysis (peaks only);
+* :func:`biaxial_job`, :func:`pair_stripe_job` — the same for systems driven by both
+  components of each pair at once (``directions = 2``).
 
 They are top-level functions so a process pool or a Dask cluster can pickle them.
 """
@@ -24,6 +26,7 @@ from sdofreport.core.intensity import (
 )
 from sdofreport.core.rotd import rotd_spectrum
 from sdofreport.core.spectra import oscillator_histories, response_spectrum
+from sdofreport.core.units import G
 from sdofreport.runtime import configure
 
 
@@ -46,13 +49,19 @@ def record_job(acceleration, dt_s, periods_s, damping, method) -> dict:
     return {"spectrum": spectrum, **record_products(acceleration, dt_s)}
 
 
-def pair_job(acc_h1, acc_h2, dt_s, periods_s, damping, method) -> dict:
-    """RotD spectra of two components, the shorter padded with zeros to equal length."""
+def _equal_length(acc_h1, acc_h2) -> tuple[np.ndarray, np.ndarray]:
+    """Two components, the shorter padded with zeros to equal length."""
     n = max(acc_h1.size, acc_h2.size)
     a1 = np.zeros(n)
     a2 = np.zeros(n)
     a1[:acc_h1.size] = acc_h1
     a2[:acc_h2.size] = acc_h2
+    return a1, a2
+
+
+def pair_job(acc_h1, acc_h2, dt_s, periods_s, damping, method) -> dict:
+    """RotD spectra of two components, the shorter padded with zeros to equal length."""
+    a1, a2 = _equal_length(acc_h1, acc_h2)
     return {"rotd": rotd_spectrum(a1, a2, dt_s, np.asarray(periods_s), damping,
                                   method=method)}
 
@@ -174,15 +183,18 @@ def responses_job(acceleration, dt_s, models: list, method: str) -> list:
 def _biaxial_response(acc_h1, acc_h2, dt_s, model: dict, method: str):
     """Two-direction response of one system (``directions = 2``) to a pair."""
     from sdofreport.core import biaxial, hysteresis
-    from sdofreport.core.units import G
 
     name = model["model"]
     if name == "linear":
         return biaxial.biaxial_elastic(acc_h1, acc_h2, dt_s, model["period_s"],
                                        model["damping"],
                                        stiffness_n_m=model.get("stiffness_n_m"),
+                                       participation=float(model.get("participation", 1.0)),
                                        method=method)
     substeps = max(1, int(np.ceil(dt_s / (model["period_s"] / 100.0))))
+    spec = model.get("damper")
+    damper = None if spec is None else hysteresis.damper(spec["coefficient"],
+                                                          spec["exponent"])
     if name == "sliding-pendulum":
         w = model["weight_n"]
         m = w / G
@@ -196,17 +208,26 @@ def _biaxial_response(acc_h1, acc_h2, dt_s, model: dict, method: str):
             linear_stiffness_n_m=k_lin, element_stiffness_n_m=k_p, yield_force_n=mu * w,
             stick_damping=2.0 * hysteresis.STICK_DAMPING_RATIO * np.sqrt(m * k_p),
             friction=None if slow is None else (mu, slow, model["friction_rate_s_m"]),
-            weight_n=w, substeps=substeps)
-    k, fy, alpha = model["stiffness_n_m"], model["yield_strength_n"], \
-        model["post_yield_ratio"]
+            weight_n=w, substeps=substeps, damper=biaxial.damper_parameters(
+                damper, model["slip_displacement_m"], np.sqrt(k_lin / m)))
     m, k_geo = model["mass_kg"], model.get("gravity_stiffness_n_m", 0.0)
     limit = model.get("instability_limit_m")
-    return biaxial.biaxial_plastic(
-        acc_h1, acc_h2, dt_s, mass_kg=m,
-        damping_coefficient=2.0 * model["damping"] * np.sqrt(m * (k - k_geo)),
-        linear_stiffness_n_m=alpha * k, element_stiffness_n_m=(1.0 - alpha) * k,
-        yield_force_n=(1.0 - alpha) * fy, gravity_stiffness_n_m=k_geo,
-        substeps=substeps, instability_limit_m=np.inf if limit is None else limit)
+    limit = np.inf if limit is None else limit
+    if name == "elastic":  # a linear spring with a supplemental damper
+        k = model["stiffness_n_m"]
+        omega = np.sqrt((k - k_geo) / m)
+        return biaxial.biaxial_plastic(
+            acc_h1, acc_h2, dt_s, mass_kg=m,
+            damping_coefficient=2.0 * model["damping"] * m * omega,
+            linear_stiffness_n_m=k, element_stiffness_n_m=0.0, yield_force_n=0.0,
+            gravity_stiffness_n_m=k_geo, substeps=substeps, instability_limit_m=limit,
+            damper=biaxial.damper_parameters(damper, np.inf, omega, (acc_h1, acc_h2)))
+    system = hysteresis.hysteresis(name, model["stiffness_n_m"], model["yield_strength_n"],
+                                   model["post_yield_ratio"], **model.get("parameters", {}))
+    return biaxial.biaxial_hysteresis(
+        acc_h1, acc_h2, dt_s, system, mass_kg=m, damping_ratio=model["damping"],
+        damper=damper, gravity_stiffness_n_m=k_geo, substeps=substeps,
+        instability_limit_m=limit)
 
 
 def biaxial_job(acc_h1, acc_h2, dt_s, models: list, method: str) -> list:
@@ -236,13 +257,13 @@ def _peaks_only(raw: dict) -> dict:
     """A response job's output with its histories reduced to what the peaks need (the
     stripes keep hundreds of runs: only their peaks are cached)."""
     empty = np.zeros(0)
-    if raw["model"] == "linear":
-        return {**raw, "displacement_m": empty, "total_accel_m_s2": empty}
-    if "biaxial" in raw:  # velocity-dependent friction: keep the (2, 0) shapes
-        flat = np.zeros((2, 0))
+    if "biaxial" in raw:  # two-direction runs and velocity-dependent friction:
+        flat = np.zeros((2, 0))  # keep the (2, 0) shapes
         return {**raw, "biaxial": dataclasses.replace(
             raw["biaxial"], time_s=empty, displacement_m=flat, velocity_m_s=flat,
             total_accel_m_s2=flat, force_n=flat)}
+    if raw["model"] == "linear":
+        return {**raw, "displacement_m": empty, "total_accel_m_s2": empty}
     r = raw["response"]
     return {**raw, "response": dataclasses.replace(
         r, time_s=empty, displacement_m=empty, force_n=empty, energy_histories_j={},
@@ -250,22 +271,19 @@ def _peaks_only(raw: dict) -> dict:
         total_accel_m_s2=np.array([np.max(np.abs(r.total_accel_m_s2), initial=0.0)]))}
 
 
-def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
-               level_m_s2: float) -> dict:
-    """
-    One stripe of a multiple-stripe analysis: every record scaled so its intensity
-    measure (:func:`stripe_intensity`) equals ``level_m_s2``, and the system's response
-    to each (peaks only), in record order.
-    """
+def _stripe(motions, dts, model: dict, measure: str, level_m_s2: float, what: str,
+            intensity, respond) -> dict:
+    """Scale each motion so that ``intensity(motion, dt)`` equals ``level_m_s2`` and run
+    ``respond(motion, factor, dt)`` on it (peaks only), in order."""
     intensities, factors, runs = [], [], []
-    for acceleration, dt_s in zip(accelerations, dts):
-        im = stripe_intensity(acceleration, dt_s, model, measure, method)
+    for motion, dt_s in zip(motions, dts):
+        im = intensity(motion, dt_s)
         if not im > 0:
-            raise ValueError(f"system {model.get('system_id')}: a record has no "
+            raise ValueError(f"system {model.get('system_id')}: {what} has no "
                              f"{measure} ({im!r} m/s²) and cannot be scaled to a level")
         factor = level_m_s2 / im
         try:
-            raw = response_job(np.asarray(acceleration) * factor, dt_s, model, method)
+            raw = respond(motion, factor, dt_s)
         except ValueError as exc:
             raise ValueError(f"system {model.get('system_id')}: {exc}") from None
         intensities.append(im)
@@ -275,8 +293,47 @@ def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
             "runs": runs}
 
 
+def stripe_job(accelerations, dts, model: dict, method: str, measure: str,
+               level_m_s2: float) -> dict:
+    """
+    One stripe of a multiple-stripe analysis: every record scaled so its intensity
+    measure (:func:`stripe_intensity`) equals ``level_m_s2``, and the system's response
+    to each (peaks only), in record order.
+    """
+    return _stripe(
+        accelerations, dts, model, measure, level_m_s2, "a record",
+        lambda a, dt_s: stripe_intensity(a, dt_s, model, measure, method),
+        lambda a, factor, dt_s: response_job(np.asarray(a) * factor, dt_s, model, method))
+
+
+def pair_intensity(acc_h1, acc_h2, dt_s, model: dict, measure: str, method: str) -> float:
+    """A horizontal pair's intensity measure for the stripes of a two-direction system
+    [m/s²]: RotD50 (Boore 2010) of the pseudo-spectral acceleration at the system's
+    period and damping (``sa``) or of the ground acceleration (``pga``)."""
+    period = model["period_s"] if measure == "sa" else 0.0
+    rotd = rotd_spectrum(acc_h1, acc_h2, dt_s, np.array([period]), model["damping"],
+                         method=method)
+    return float(rotd.rotd50_psa_g[0]) * G
+
+
+def pair_stripe_job(pairs, dts, model: dict, method: str, measure: str,
+                    level_m_s2: float) -> dict:
+    """
+    One stripe of a two-direction system: both components of each pair scaled by one
+    factor so that the pair's RotD50 measure (:func:`pair_intensity`) equals
+    ``level_m_s2``, and the two-direction response to each pair (peaks only, the
+    resultant as the demand), in pair order.
+    """
+    return _stripe(
+        [_equal_length(*pair) for pair in pairs], dts, model, measure, level_m_s2,
+        "a pair", lambda pair, dt_s: pair_intensity(*pair, dt_s, model, measure, method),
+        lambda pair, factor, dt_s: {"model": model["model"], "biaxial": _biaxial_response(
+            pair[0] * factor, pair[1] * factor, dt_s, model, method)})
+
+
 JOBS = {"record": record_job, "pair": pair_job, "responses": responses_job,
-        "inelastic": inelastic_job, "stripe": stripe_job, "biaxial": biaxial_job}
+        "inelastic": inelastic_job, "stripe": stripe_job, "biaxial": biaxial_job,
+        "pair-stripe": pair_stripe_job}
 
 
 def run_job(kind: str, args: tuple) -> dict:

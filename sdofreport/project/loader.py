@@ -896,7 +896,7 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
         gamma = values["mass"] * values["pivot_to_centre"] ** 2 / values["pivot_inertia"]
         model = {"model": "linear", "participation": gamma}
     inputs = {k: v for k, v in values.items() if not k.startswith("_")}
-    directions = _read_directions(table, kind, model, where, problems)
+    directions = _read_directions(table, where, problems)
     direction = _read_value(table, spec["direction"], where, problems) or "horizontal"
     if direction == "vertical" and directions == 2:
         problems.add(f"{where}.directions", "directions = 2 applies to horizontal "
@@ -906,24 +906,15 @@ def _read_system(table: dict, where: str, seen: dict, problems: _Problems):
                       directions, direction)
 
 
-def _read_directions(table: dict, kind: str, model, where: str, problems: _Problems) -> int:
-    """``directions`` (1 or 2) and what two-direction runs support (sdofreport.core.biaxial):
-    elastic systems, bilinear yielding systems and the sliding pendulum, without a
-    damper; a hanging item swings as a compound pendulum in its own plane only."""
+def _read_directions(table: dict, where: str, problems: _Problems) -> int:
+    """``directions`` (1 or 2); every system kind and model runs in two directions
+    (sdofreport.core.biaxial), a hanging item as a spherical compound pendulum."""
     value = _read_value(table, SECTIONS["systems[]"]["directions"], where, problems)
     if value is None or value == 1:
         return 1
     if value != 2:
         problems.add(f"{where}.directions", f"expected 1 or 2, found {table['directions']!r}")
         return 1
-    name = (model or {}).get("model", "linear")
-    if kind == "hanging" or name not in ("linear", "bilinear", "sliding-pendulum") or \
-            (model or {}).get("damper") is not None:
-        what = "kind 'hanging'" if kind == "hanging" else (
-            "a damper" if (model or {}).get("damper") is not None else f"model {name!r}")
-        problems.add(f"{where}.directions", "directions = 2 supports elastic systems, "
-                     f"bilinear yielding systems and the sliding pendulum without a "
-                     f"damper; this system has {what}")
     return 2
 
 

@@ -570,7 +570,7 @@ SECTIONS: dict[str, dict[str, KeySpec]] = {
         KeySpec("directions", "integer", "1: each record drives its own one-direction "
                 "oscillator; 2: each horizontal pair drives one isotropic oscillator in "
                 "both directions and the peaks are of the resultant (needs every record "
-                "in a pair; elastic, bilinear and sliding-pendulum systems).", default=1,
+                "in a pair; every kind and model, see the methods).", default=1,
                 example="2"),
         KeySpec("limits", "table", "Limits checked against the demands.",
                 example="{ displacement = \"40 mm\" }"),

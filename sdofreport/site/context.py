@@ -237,6 +237,8 @@ class SiteContext:
         measure = found[0].measure
         symbol = (f"Sa(T = {number(system.period_s)} s, ζ = {100 * system.damping:.3g} %)"
                   if measure == "sa" else "PGA")
+        if system.directions == 2:  # each pair scaled on its RotD50 (Boore 2010)
+            symbol = f"RotD50 {symbol}"
         design = found[0].design_level_g
         rows, curves = [], []
         for f in found:
@@ -261,7 +263,7 @@ class SiteContext:
                 if self.project.fragility.design_level_g is not None else
                 f"the target spectrum, {_design_label(self.project.design_spectrum)}, at "
                 + (f"T = {number(system.period_s)} s" if measure == "sa" else "T = 0"),
-                "records": found[0].fit.motions[0]}
+                "records": found[0].fit.motions[0], "per_pair": system.directions == 2}
 
     def _statistic_bits(self) -> dict:
         return {"statistic": self.results.statistic,
@@ -1075,6 +1077,32 @@ def _processing_text(settings) -> str:
     return ", ".join(parts) if parts else "none"
 
 
+#: What a two-direction run of each model is, for the system page (docs/methods.md).
+_TWO_DIRECTION_RULES = {
+    "bouc-wen": "biaxial Bouc–Wen of Park, Wen & Ang (1986): coupled hysteretic "
+                "components z = (z₁, z₂), dz = [du − |z|^(n−2) z (β(|du₁z₁| + |du₂z₂|) + "
+                "γ du·z)]/u_y, F = a k u + (1 − a) F_y z (n = 2 is the published law; "
+                "other n our extension, the same along one axis as the one-direction "
+                "model)",
+    "clough": "one independent clough spring along H1 and one along H2 (no single "
+              "standard coupled rule exists; independent springs are common practice "
+              "for uncoupled orthogonal frames): a diagonal motion reaches √2 F_y of "
+              "resultant force",
+    "takeda": "one independent takeda spring along H1 and one along H2 (no single "
+              "standard coupled rule exists; independent springs are common practice "
+              "for uncoupled orthogonal frames): a diagonal motion reaches √2 F_y of "
+              "resultant force",
+    "flag-shaped": "one independent flag-shaped spring along H1 and one along H2 (no "
+                   "single standard coupled rule exists; independent springs are common "
+                   "practice for uncoupled orthogonal frames): a diagonal motion reaches "
+                   "√2 F_y of resultant force",
+    "elastic": "a linear spring in every direction",
+    "bilinear": "a circular yield surface (radial return)",
+    "sliding-pendulum": "friction along the sliding velocity (Mokha, Constantinou & "
+                        "Reinhorn 1993)",
+}
+
+
 def _isolation_facts(isolation: dict | None, d) -> list[tuple[str, str]]:
     """T_M at the upper and the lower bound of the isolated-system range, with D_M, k_M,
     β_M, B_M and S_a(T_M), and the clauses (none without an isolator system)."""
@@ -1102,12 +1130,28 @@ def _directions_rows(system) -> list[dict]:
     """The two-direction row of a system's properties (none for one direction)."""
     if system.directions == 1:
         return []
+    model = system.model or {}
+    name = model.get("model", "linear")
+    if name in ("linear", "bilinear", "sliding-pendulum") and model.get("damper") is None \
+            and system.kind != "hanging":
+        basis = ("each horizontal pair drives one isotropic oscillator along H1 and "
+                 "H2 at once; peaks are of the resultant (elastic: the pair's RotD100 "
+                 "at T, Boore 2010); friction along the sliding velocity (Mokha, "
+                 "Constantinou & Reinhorn 1993); yielding: a circular yield surface; "
+                 "histories are shown along each record's own direction")
+    else:
+        rule = _TWO_DIRECTION_RULES.get(name, "the same oscillator in every direction")
+        if system.kind == "hanging":
+            rule = ("a compound pendulum hung from one point, small angles, the same in "
+                    "every vertical plane: ü + 2ζωu̇ + ω²u = −Γ üg in each direction, "
+                    "Γ = m d²/I")
+        if model.get("damper") is not None:
+            rule += "; damper force C|u̇|^α along the velocity u̇ (vector form)"
+        basis = (f"each horizontal pair drives one oscillator along H1 and H2 at once; "
+                 f"peaks are of the resultant; {rule}; histories are shown along each "
+                 f"record's own direction")
     return [{"name": "Directions", "value": "2 (both horizontal directions at once)",
-             "basis": "each horizontal pair drives one isotropic oscillator along H1 and "
-                      "H2 at once; peaks are of the resultant (elastic: the pair's RotD100 "
-                      "at T, Boore 2010); friction along the sliding velocity (Mokha, "
-                      "Constantinou & Reinhorn 1993); yielding: a circular yield surface; "
-                      "histories are shown along each record's own direction"}]
+             "basis": basis}]
 
 
 def _isolation_rows(system, results, d) -> list[dict]:
