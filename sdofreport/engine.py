@@ -30,7 +30,7 @@ import numpy as np
 
 from sdofreport import __version__
 from sdofreport.amplitude import check_results, header_unit_problem
-from sdofreport.cache import ResultCache, cache_key, default_cache_dir
+from sdofreport.cache import ResultCache, array_digest, cache_key, default_cache_dir
 from sdofreport.core.fragility import (
     FITTED,
     Fragility,
@@ -389,8 +389,7 @@ def _check_pair_steps(project: Project, records: list[Record], problems: list[st
 
 
 def _array_hash(acceleration: np.ndarray) -> str:
-    data = np.ascontiguousarray(acceleration, dtype=np.float64)
-    return hashlib.sha256(data.tobytes()).hexdigest()
+    return array_digest(acceleration)
 
 
 # ---------------------------------------------------------------------------------------
