@@ -180,6 +180,8 @@ class SuiteStatistics:
     sd_m: SpectrumBand
     #: the scaling criterion's spectra (per motion) [g]; None without one
     criterion_g: SpectrumBand | None
+    #: the vertical records' spectra against the vertical target [g]; None without
+    vertical_g: SpectrumBand | None
     #: system id -> its peaks' statistics
     systems: dict[str, SystemStatistics]
     #: None without [inelastic_spectra]

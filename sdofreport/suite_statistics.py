@@ -94,9 +94,11 @@ def suite_statistics(project, records: list, responses: dict, bounds: dict, scal
     index = int(np.argmin(np.abs(damping - SUITE_DAMPING)))
     psa = np.array([r.spectrum.psa_m_s2[index] * (1.0 / G) for r in records])
     sd = np.array([r.spectrum.sd_m[index] for r in records])
-    criterion = None
+    criterion = vertical = None
     if scaling is not None and scaling.criterion_spectra_g is not None:
         criterion = spectrum_band(scaling.criterion_spectra_g)
+    if scaling is not None and scaling.vertical is not None:
+        vertical = spectrum_band(np.asarray(scaling.vertical.spectra_g))
     systems = {}
     for system in project.systems:
         runs = [responses[(system.id, r.id)] for r in project.records_for(system)]
@@ -119,7 +121,7 @@ def suite_statistics(project, records: list, responses: dict, bounds: dict, scal
         with np.errstate(invalid="ignore"):
             means = InelasticMeans(np.nanmean(r_stack, axis=0), np.nanmean(mu_stack, axis=0))
     return SuiteStatistics(statistic, index, float(damping[index]), spectrum_band(psa),
-                           spectrum_band(sd), criterion, systems, means)
+                           spectrum_band(sd), criterion, vertical, systems, means)
 
 
 __all__ = ["SUITE_DAMPING", "spectrum_band", "suite_statistics"]

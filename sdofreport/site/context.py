@@ -489,7 +489,8 @@ class SiteContext:
             return {"target": None, "records": ", ".join(ids)}
         spec = self.project.design_spectrum.vertical
         low, high = vertical.period_range_s
-        curves = _suite_curves(vertical.record_ids, vertical.spectra_g)
+        curves = _suite_curves(vertical.record_ids, vertical.spectra_g,
+                               self.results.statistics.vertical_g)
         figure = self._figure(
             "figures/suite-vertical.svg", "spectra_figure",
             periods_s=vertical.periods_s, curves=curves,
