@@ -15,14 +15,14 @@ from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
 from sdofreport.project.quantities import without_memo
 from sdofreport.serialize import json_text
-from sdofreport.site.render import (COMPARE_TO_INPUT, gather_site, prepare_output,
-                                    recover_site, start_record_figures)
+from sdofreport.site.render import (COMPARE_TO_FINGERPRINT, COMPARE_TO_INPUT, gather_site,
+                                    prepare_output, recover_site, start_record_figures)
 from sdofreport.site.tree import OutputLock, StagedTree, output_folder
 
 log = logging.getLogger("sdofreport.build")
 
 #: The earlier run's fingerprint, kept beside its results (COMPARE_TO_INPUT).
-_KEPT_FINGERPRINT = COMPARE_TO_INPUT.rsplit("/", 1)[0] + "/fingerprint.txt"
+_KEPT_FINGERPRINT = COMPARE_TO_FINGERPRINT
 
 
 def _old_fingerprint(old_run, compare_to) -> str:

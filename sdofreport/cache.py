@@ -15,7 +15,8 @@ the header. An entry that does not match (damaged, truncated, a different format
 stored under another key) is discarded, reported once as a warning and recomputed;
 it is never served.
 
-Keys (:func:`cache_key`) hash a job's inputs together with the cache format, the
+Keys (:func:`cache_key`, the one function every key is built by: jobs, parsed record
+files, synthetic records and figures) hash a job's inputs together with the cache format, the
 package version, a fingerprint of the package's Python sources and the versions of the
 numerical libraries, so a changed kernel never meets results of the old one.
 
@@ -116,6 +117,29 @@ def code_fingerprint() -> str:
     return hashlib.sha256("|".join(parts).encode()).hexdigest()
 
 
+def array_digest(values) -> str:
+    """SHA-256 (hex) of an array's values as contiguous float64 bytes: how a record's
+    acceleration, or any other numeric vector, enters a cache key."""
+    data = np.ascontiguousarray(values, dtype=np.float64)
+    return hashlib.sha256(data.tobytes()).hexdigest()
+
+
+def _canonical(value):
+    """``value`` with every numpy array replaced by its digest: a one-dimensional real
+    array by :func:`array_digest`, any other by its dtype, shape and bytes."""
+    if isinstance(value, np.ndarray):
+        if value.ndim == 1 and value.dtype.kind in "biuf":
+            return array_digest(value)
+        array = np.ascontiguousarray(value)
+        return (f"{array.dtype.str}{array.shape}|"
+                f"{hashlib.sha256(array.tobytes()).hexdigest()}")
+    if isinstance(value, dict):
+        return {key: _canonical(item) for key, item in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_canonical(item) for item in value]
+    return value
+
+
 def content_hash(payload: dict) -> str:
     """SHA-256 of a JSON-able payload in canonical form (sorted keys, no spaces)."""
     text = json.dumps(payload, sort_keys=True, separators=(",", ":"), default=str)
@@ -123,9 +147,13 @@ def content_hash(payload: dict) -> str:
 
 
 def cache_key(payload: dict) -> str:
-    """The cache key of a job described by ``payload``: its content hash together with
-    the cache format and :func:`code_fingerprint`."""
-    return content_hash({**payload, "cache_format": CACHE_FORMAT,
+    """
+    The cache key of a job or figure described by ``payload`` — the one function every
+    key of the result and figure cache is built by: the content hash of the payload
+    (numpy arrays in it by :func:`_canonical` digests) together with the cache format
+    and :func:`code_fingerprint`.
+    """
+    return content_hash({**_canonical(payload), "cache_format": CACHE_FORMAT,
                          "code": code_fingerprint()})
 
 

@@ -24,21 +24,21 @@ import math
 import os
 import time
 from dataclasses import dataclass, field
-from typing import Callable
+from typing import TYPE_CHECKING, Callable
 
 import numpy as np
 
 from sdofreport import __version__
 from sdofreport.amplitude import check_results, header_unit_problem
-from sdofreport.cache import ResultCache, cache_key, default_cache_dir
+from sdofreport.cache import ResultCache, array_digest, cache_key, default_cache_dir
 from sdofreport.core.fragility import (
     FITTED,
     Fragility,
-    demand_statistics,
     exceedance_probability,
     fit_fragility,
 )
 from sdofreport.core.intensity import IntensityMeasures
+from sdofreport.core.rotd import RotDSpectrum
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
 from sdofreport.errors import RecordError
@@ -48,9 +48,21 @@ from sdofreport.jobs import record_products, run_job
 from sdofreport.project.check_quantities import CHECK_QUANTITIES
 from sdofreport.project.model import Project, RecordSpec, SystemSpec, natural_key
 from sdofreport.records import Record, process_record, read_record
+from sdofreport.results_types import (
+    BoundRuns,
+    Convergence,
+    DemandStatistics,
+    EnergyBalance,
+    InelasticSpectra,
+    SuiteStatistics,
+)
 from sdofreport.suite import SCALING_DAMPING, SuiteScaling, compute_scaling, \
     scaling_damping
+from sdofreport.suite_statistics import suite_statistics
 from sdofreport.vertical_suite import attach_vertical
+
+if TYPE_CHECKING:
+    from sdofreport.core.isolation import EffectiveProperties
 
 log = logging.getLogger("sdofreport.engine")
 
@@ -85,7 +97,7 @@ class PairResult:
     name: str
     h1: str
     h2: str
-    rotd: object  # sdofreport.core.rotd.RotDSpectrum (scaled)
+    rotd: RotDSpectrum  # scaled
 
 
 @dataclass(frozen=True)
@@ -107,9 +119,10 @@ class ResponseResult:
     ductility: float | None = None
     residual_displacement_m: float | None = None
     peak_force_n: float | None = None
-    energy: dict | None = None  # input_j, kinetic_j, damping_j, strain_j, hysteretic_j, ...
-    energy_histories_j: dict | None = None
-    convergence: dict | None = None
+    energy: EnergyBalance | None = None  # nonlinear runs
+    #: nonlinear one-direction runs: term ("input", "kinetic", ...) -> history [J]
+    energy_histories_j: dict[str, np.ndarray] | None = None
+    convergence: Convergence | None = None
     #: True when the displacement ran past ``instability_limit_m`` (histories end there)
     unstable: bool = False
     #: bound of the instability test [m]; None when the system has none
@@ -120,7 +133,7 @@ class ResponseResult:
     #: the peaks are then of the resultant and the histories along this record
     directions: int = 1
     #: two-direction runs: peak |u| along H1 and along H2 [m]
-    peak_displacement_per_direction_m: tuple | None = None
+    peak_displacement_per_direction_m: tuple[float, float] | None = None
 
 
 @dataclass(frozen=True)
@@ -138,7 +151,7 @@ class Check:
     absolute: bool = False
     #: mean, median, p84, beta, min, max of the per-record peaks (SI; beta [-]), see
     #: sdofreport.core.fragility.demand_statistics; ``statistic`` names the governing one
-    statistics: dict = field(default_factory=dict)
+    statistics: DemandStatistics | None = None
     #: with property_factors: the run whose demand governs (nominal, lower or upper)
     governing_run: str | None = None
 
@@ -164,17 +177,20 @@ class Results:
     statistic: str
     scaling: SuiteScaling | None = None
     pairs: list[PairResult] = field(default_factory=list)
-    inelastic: dict[str, dict] = field(default_factory=dict)  # record id -> spectra
+    inelastic: dict[str, InelasticSpectra] = field(default_factory=dict)  # by record id
     timings_s: dict[str, float] = field(default_factory=dict)
     cache_hits: int = 0
     cache_misses: int = 0
     fragility: list[FragilityResult] = field(default_factory=list)
-    #: (system id, record id) -> {"lower": ResponseResult, "upper": ResponseResult} for
-    #: systems with property_factors (the nominal run is in ``responses``)
-    bounds: dict = field(default_factory=dict)
+    #: (system id, record id) -> the lower- and upper-bound runs, for systems with
+    #: property_factors (the nominal run is in ``responses``)
+    bounds: dict[tuple[str, str], BoundRuns] = field(default_factory=dict)
     #: sliding pendulums: system id -> {run: EffectiveProperties} at the suite statistic
     #: of the run's peak displacements (sdofreport.core.isolation)
-    effective: dict = field(default_factory=dict)
+    effective: dict[str, dict[str, EffectiveProperties]] = field(default_factory=dict)
+    #: what the pages summarise over the suite (sdofreport.suite_statistics); None only
+    #: for the partial results the early record figures are drawn from
+    statistics: SuiteStatistics | None = None
 
     def response(self, system_id: str, record_id: str) -> ResponseResult:
         return self.responses[(system_id, record_id)]
@@ -384,8 +400,7 @@ def _check_pair_steps(project: Project, records: list[Record], problems: list[st
 
 
 def _array_hash(acceleration: np.ndarray) -> str:
-    data = np.ascontiguousarray(acceleration, dtype=np.float64)
-    return hashlib.sha256(data.tobytes()).hexdigest()
+    return array_digest(acceleration)
 
 
 # ---------------------------------------------------------------------------------------
@@ -409,14 +424,11 @@ def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseR
     r = raw["response"]
     u_peak = float(r.peak_displacement_m)
     drift = u_peak / system.height_m if system.height_m else None
-    energy = {"input_j": r.input_j, "kinetic_j": r.kinetic_j, "damping_j": r.damping_j,
-              "strain_j": r.strain_j, "hysteretic_j": r.hysteretic_j,
-              "imbalance": r.imbalance}
     model = system.model or {}
-    if model.get("damper") is not None:
-        energy["damper_j"] = r.damper_j
-    if model.get("gravity_stiffness_n_m"):
-        energy["gravity_j"] = r.gravity_j
+    energy = EnergyBalance(
+        r.input_j, r.kinetic_j, r.damping_j, r.strain_j, r.hysteretic_j, r.imbalance,
+        damper_j=r.damper_j if model.get("damper") is not None else None,
+        gravity_j=r.gravity_j if model.get("gravity_stiffness_n_m") else None)
     return ResponseResult(
         system.id, record_id, u_peak, float(np.max(np.abs(r.velocity_m_s))),
         float(np.max(np.abs(r.total_accel_m_s2))), drift, float(r.peak_force_n),
@@ -425,9 +437,8 @@ def _response_result(system: SystemSpec, record_id: str, raw: dict) -> ResponseR
         residual_displacement_m=float(r.residual_displacement_m),
         peak_force_n=float(r.peak_force_n), energy=energy,
         energy_histories_j=r.energy_histories_j,
-        convergence={"converged": bool(r.converged),
-                     "max_iterations_used": int(r.max_iterations_used),
-                     "subdivided_steps": int(r.subdivided_steps)},
+        convergence=Convergence(bool(r.converged), int(r.max_iterations_used),
+                                int(r.subdivided_steps)),
         unstable=bool(r.unstable),
         instability_limit_m=None if math.isinf(r.instability_limit_m)
         else float(r.instability_limit_m),
@@ -451,11 +462,12 @@ def _biaxial_result(system: SystemSpec, record_id: str, direction: int,
                               r.peak_total_accel_m_s2, drift, r.peak_force_n, r.time_s,
                               r.displacement_m[direction], r.total_accel_m_s2[direction],
                               **common)
-    energy = dict(r.energy_j)
-    supplied = energy["input_j"]
-    total = sum(energy.get(k, 0.0) for k in ("kinetic_j", "damping_j", "damper_j",
-                                               "strain_j", "hysteretic_j"))
-    energy["imbalance"] = abs(supplied - total) / max(abs(supplied), 1e-300)
+    terms = dict(r.energy_j)
+    supplied = terms["input_j"]
+    total = sum(terms.get(k, 0.0) for k in ("kinetic_j", "damping_j", "damper_j",
+                                              "strain_j", "hysteretic_j"))
+    energy = EnergyBalance(**terms, imbalance=abs(supplied - total) / max(abs(supplied),
+                                                                           1e-300))
     model = system.model or {}
     yield_m = (model["yield_strength_n"] / model["stiffness_n_m"]
                if "yield_strength_n" in model else None)
@@ -469,9 +481,8 @@ def _biaxial_result(system: SystemSpec, record_id: str, direction: int,
         ductility=None if yield_m is None else u_peak / yield_m,
         residual_displacement_m=float(np.hypot(*r.residual_displacement_m)),
         peak_force_n=r.peak_force_n, energy=energy,
-        convergence={"converged": bool(r.converged),
-                     "max_iterations_used": int(r.max_iterations_used),
-                     "subdivided_steps": int(r.subdivided_steps)},
+        convergence=Convergence(bool(r.converged), int(r.max_iterations_used),
+                                int(r.subdivided_steps)),
         instability_limit_m=limit, **common)
 
 
@@ -505,7 +516,7 @@ def _checks(project: Project, responses: dict, statistic: str) -> list[Check]:
             if any(responses[(system.id, r.id)].unstable for r in records):
                 verdict = VERDICT_UNSTABLE  # the demand of a runaway record means nothing
             checks.append(Check(system.id, quantity, limit, demand, statistic, ratio,
-                                verdict, absolute, demand_statistics(np.abs(peaks))))
+                                verdict, absolute, DemandStatistics.of(np.abs(peaks))))
     return checks
 
 
@@ -697,7 +708,8 @@ def run_project(project: Project, *, jobs: int | None = None,
     inelastic = {}
     if inelastic_spec is not None:
         tail = outputs[len(project.records):]
-        inelastic = {spec.id: out for spec, out in zip(project.records, tail)}
+        inelastic = {spec.id: InelasticSpectra(**out)
+                     for spec, out in zip(project.records, tail)}
     responses = {}
     for spec, group in zip(project.records, outputs[:len(project.records)]):
         record = scaled[spec.id]
@@ -721,8 +733,10 @@ def run_project(project: Project, *, jobs: int | None = None,
                    {"read_s": read_time, "compute_s": phase.seconds,
                     "total_s": time.perf_counter() - started}, phase.hits, phase.misses,
                    _fragility_results(project, stripe_outputs),
-                   bounds=bounds,
-                   effective=_effective_properties(project, responses, bounds, statistic))
+                   bounds={key: BoundRuns(**runs) for key, runs in bounds.items()},
+                   effective=_effective_properties(project, responses, bounds, statistic),
+                   statistics=suite_statistics(project, record_results, responses, bounds,
+                                               scaling, inelastic, statistic))
 
 
 def _bound_systems(project: Project) -> list[SystemSpec]:

@@ -14,6 +14,7 @@ from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import Results
 from sdofreport.project.check_quantities import CHECK_QUANTITIES
+from sdofreport.results_types import BoundRuns
 from sdofreport.run_inputs import inputs_block
 from sdofreport.serialize import (
     array_to_list,
@@ -109,9 +110,10 @@ def results_document(results: Results) -> dict:
                     "residual_displacement_m": finite_or_none(
                         response.residual_displacement_m),
                     "peak_force_n": finite_or_none(response.peak_force_n),
-                    "energy": {k: finite_or_none(v) for k, v in response.energy.items()},
+                    "energy": {k: finite_or_none(v)
+                               for k, v in response.energy.as_dict().items()},
                     "energy_units": "J",
-                    "convergence": response.convergence,
+                    "convergence": response.convergence.as_dict(),
                     "unstable": bool(response.unstable),
                     "instability_limit_m": response.instability_limit_m,
                 })
@@ -157,7 +159,7 @@ def _directions_entry(response) -> dict:
         finite_or_none(v) for v in response.peak_displacement_per_direction_m]}
 
 
-def _bounds_entry(bounds: dict | None) -> dict:
+def _bounds_entry(bounds: BoundRuns | None) -> dict:
     """The lower- and upper-bound runs' peaks of one record (property_factors)."""
     if not bounds:
         return {}
@@ -170,7 +172,7 @@ def _bounds_entry(bounds: dict | None) -> dict:
         "peak_force_n": None if r.peak_force_n is None else finite_or_none(r.peak_force_n),
         "peak_total_accel_g": finite_or_none(r.peak_total_accel_m_s2 / G),
         "residual_displacement_m": None if r.residual_displacement_m is None else
-        finite_or_none(r.residual_displacement_m)} for run, r in sorted(bounds.items())}}
+        finite_or_none(r.residual_displacement_m)} for run, r in bounds.items()}}
 
 
 def _isolation_block(system, results) -> dict:
@@ -218,7 +220,7 @@ def statistics_block(check) -> dict:
     """``checks[].statistics``: mean, median, p84, min, max (the check's SI unit) and
     beta [-] of the per-record peaks; null where not defined."""
     return {key: finite_or_none(value) if value is not None else None
-            for key, value in check.statistics.items()}
+            for key, value in check.statistics.as_dict().items()}
 
 
 def fragility_block(results: Results, check) -> dict:
@@ -300,8 +302,8 @@ def suite_blocks(results: Results) -> dict:
             "strength_reduction_factors": list(spec.strength_reduction),
             "records": {rid: {
                 "strength_reduction_factor": array_to_list(
-                    out["ductility"].strength_reduction_factor),
-                "ductility_demand": array_to_list(out["strength"].ductility)}
+                    out.ductility.strength_reduction_factor),
+                "ductility_demand": array_to_list(out.strength.ductility)}
                 for rid, out in results.inelastic.items()}}
     if results.pairs:
         blocks["pairs"] = [{

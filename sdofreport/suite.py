@@ -10,6 +10,7 @@ record counts as its own motion (its PSA stands in for RotD100), which the page 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -20,6 +21,9 @@ from sdofreport.core.design_spectra import design_spectrum, en1998_1_parameters
 from sdofreport.core.units import G
 from sdofreport.isolation_bounds import isolation_periods
 from sdofreport.project.model import natural_key
+
+if TYPE_CHECKING:  # vertical_suite imports this module
+    from sdofreport.vertical_suite import VerticalScaling
 
 #: Damping ratio of the spectra that rules naming no edition ("fit") read, and of the
 #: pairs' RotD spectra: 5 %, the target damping of every edition in sdofreport.codes.
@@ -61,7 +65,7 @@ class SuiteScaling:
     #: core IsolatedPeriod (T_M at that bound), and "system", "clause"; else None
     isolation: dict | None = None
     #: the vertical target and the vertical records' scaling (sdofreport.vertical_suite)
-    vertical: object | None = None
+    vertical: VerticalScaling | None = None
 
     def history_note(self, record_id: str, factor: float) -> str:
         """The processing-history line of a record scaled by ``factor``."""

@@ -9,6 +9,7 @@ SHA-256 always detects (FIPS 180-4 digest; a collision is not a practical concer
 
 from __future__ import annotations
 
+import hashlib
 import logging
 import os
 import pickle
@@ -258,3 +259,18 @@ def test_a_read_only_cache_serves_and_does_not_stop(tmp_path, caplog):
             read_only.put("c" * 64, "lost")
         assert read_only.get(KEY_B) is None
         assert caplog.text.count("not written") == 1
+
+
+def test_arrays_in_a_key_are_hashed_by_their_values_dtype_and_shape():
+    # Reference: hashlib's SHA-256 of the float64 bytes, the digest the record jobs'
+    # keys have always carried, so those keys did not change when arrays moved in.
+    acceleration = np.linspace(-1.0, 1.0, 11)
+    digest = hashlib.sha256(acceleration.astype(np.float64).tobytes()).hexdigest()
+    assert cache.array_digest(acceleration) == digest
+    assert cache.cache_key({"job": "record", "sha": acceleration}) == \
+        cache.cache_key({"job": "record", "sha": digest})
+    # Same bytes, other shape: another key (numpy reshape keeps the bytes).
+    block = np.arange(6.0)
+    assert cache.cache_key({"x": block.reshape(2, 3)}) != \
+        cache.cache_key({"x": block.reshape(3, 2)})
+    assert cache.cache_key({"x": [block]}) != cache.cache_key({"x": [block + 1e-12]})

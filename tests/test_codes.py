@@ -22,6 +22,7 @@ from sdofreport.project import load_project
 from sdofreport.project.schema import SCALING_RULES
 from sdofreport.results_json import results_document
 from sdofreport.site.context import SiteContext, _suite_curves
+from sdofreport.suite_statistics import spectrum_band
 from sdofreport.suite import period_range
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD
 from tests.test_suite_scaling import ASCE, _asce_sa
@@ -255,7 +256,8 @@ def test_suite_figure_mean_is_the_arithmetic_mean():
     # 0.90). Reference: numpy's arithmetic mean; the geometric mean is lower unless all
     # curves agree (AM-GM inequality).
     stack = np.array([[1.0, 2.0, 4.0], [3.0, 2.0, 1.0]])
-    curves = {c["label"]: c for c in _suite_curves(["a", "b"], stack)}
+    curves = {c["label"]: c for c in _suite_curves(["a", "b"], stack,
+                                                   spectrum_band(stack))}
     np.testing.assert_allclose(curves["suite mean (arithmetic)"]["values"],
                                np.mean(stack, axis=0), rtol=0)
     band = curves["log-normal: geometric mean ± 1σ of ln"]

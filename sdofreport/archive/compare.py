@@ -474,11 +474,30 @@ def revision_page(old_results_doc: dict, new_results_doc: dict, *,
     ``fingerprint`` and ``old_fingerprint`` are the two runs' fingerprints (manifest.json),
     shown side by side.
     """
+    context, files = revision_context(old_results_doc, new_results_doc,
+                                      fingerprint=fingerprint,
+                                      old_fingerprint=old_fingerprint)
+    files["revision.html"] = render(REVISION_TEMPLATE, context)
+    return dict(sorted(files.items()))
+
+
+#: The template of the revision page (``revision.html``) and of ``compare --format html``.
+REVISION_TEMPLATE = "compare.html"
+
+
+def revision_context(old_results_doc: dict, new_results_doc: dict, *,
+                     fingerprint: str = "", old_fingerprint: str = ""
+                     ) -> tuple[dict, dict[str, bytes]]:
+    """
+    The page data of the revision page (:func:`revision_page`): the context of
+    :data:`REVISION_TEMPLATE` and the figure files it links (site path -> SVG bytes).
+    """
     document = compare_runs(
         Run("old", old_results_doc, {"fingerprint": old_fingerprint or None}),
         Run("new", new_results_doc, {"fingerprint": fingerprint or None}))
     figures, note = spectra_overlays(old_results_doc, new_results_doc)
-    files = {f"figures/revision-{rid}.svg": svg.encode("utf-8") for rid, svg in figures.items()}
+    files = {f"figures/revision-{rid}.svg": svg.encode("utf-8")
+             for rid, svg in figures.items()}
     sources = {rid: f"figures/revision-{rid}.svg" for rid in figures}
     nav = [{"id": s.get("id"), "file": f"{s.get('id')}.html"}
            for s in new_results_doc.get("systems") or []]
@@ -487,5 +506,4 @@ def revision_page(old_results_doc: dict, new_results_doc: dict, *,
                                 fingerprint=fingerprint),
                **_page_context(document, sources, note),
                "standalone": False, "inline_css": ""}
-    files["revision.html"] = render("compare.html", context)
-    return dict(sorted(files.items()))
+    return context, files

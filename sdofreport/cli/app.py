@@ -240,7 +240,7 @@ def build_command(project_file, output, jobs, quiet, strict, cache_dir, no_cache
     if pdf_target_path is not None:
         from sdofreport.site.pdf import write_pdf
 
-        pages = write_pdf(outcome.output, pdf_target_path)
+        pages = write_pdf(outcome.output, pdf_target_path, results)
         if not quiet:
             click.echo(f"Printed {pdf_target_path} ({pages} pages).", err=True)
     # Unstable checks count with the exceeding ones: a runaway is never "within".

@@ -25,6 +25,7 @@ from sdofreport.site.display import CHECK_LABELS, Display, number
 from sdofreport.suite import usable_period_max_s
 from sdofreport.site.notes import render_notes
 from sdofreport.results_json import signoff_block
+from sdofreport.results_types import Convergence, SpectrumBand
 
 CAUTION_SHORT = ("These results support, but never replace, the judgement of a licensed "
                  "engineer. The governing local code and the authority having jurisdiction "
@@ -133,20 +134,6 @@ def figure_path(kind: str, *ids: str) -> str:
         raise ValueError(f"figure kind {kind!r} takes {FIGURE_KINDS.get(kind)} ids; "
                          f"got {len(ids)}")
     return f"figures/{FIGURE_SEPARATOR.join([kind, *map(_checked_id, ids)])}.svg"
-
-
-def _suite_damping_index(results: Results) -> int:
-    damping = results.records[0].spectrum.damping
-    return int(np.argmin(np.abs(np.asarray(damping) - 0.05)))
-
-
-def _log_stats(stack: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Geometric mean and exp(mean ± 1σ) of the natural logarithms across records."""
-    with np.errstate(divide="ignore"):
-        logs = np.log(np.maximum(stack, 1e-300))
-    mean = logs.mean(axis=0)
-    std = logs.std(axis=0, ddof=1) if stack.shape[0] > 1 else np.zeros_like(mean)
-    return np.exp(mean), np.exp(mean - std), np.exp(mean + std)
 
 
 class SiteContext:
@@ -308,9 +295,7 @@ class SiteContext:
                 ratios=[c.ratio for c in checks], title=None)
         systems = []
         for s in self.project.systems:
-            peaks = [results.response(s.id, r.id).peak_displacement_m
-                     for r in self.project.records_for(s)]
-            demand = float(np.mean(peaks)) if results.statistic == "mean" else max(peaks)
+            demand = results.statistics.systems[s.id].demand_displacement_m
             systems.append({"id": s.id, "name": s.name, "file": page_name(s.id),
                             "period": f"{number(s.period_s)} s",
                             "damping": f"{100 * s.damping:.3g} %",
@@ -419,7 +404,8 @@ class SiteContext:
 
     def suite_page(self) -> Page:
         results, d = self.results, self.display
-        index = _suite_damping_index(results)
+        statistics = results.statistics
+        index = statistics.damping_index
         periods = results.records[0].spectrum.periods_s
         zeta = results.records[0].spectrum.damping[index]
         scaling = results.scaling
@@ -427,13 +413,14 @@ class SiteContext:
         if scaling is not None and scaling.period_range_s:
             shaded = (*scaling.period_range_s, "scaling period range")
         figures = {}
-        for key, attr, scale, label in (
-                ("psa", "psa_m_s2", 1.0 / G, "Pseudo-spectral acceleration [g]"),
+        for key, attr, scale, band, label in (
+                ("psa", "psa_m_s2", 1.0 / G, statistics.psa_g,
+                 "Pseudo-spectral acceleration [g]"),
                 ("sd", "sd_m", d.convert(1.0, "length"),
+                 statistics.sd_m.scaled(d.convert(1.0, "length")),
                  f"Spectral displacement [{d.unit('length')}]")):
-            stack = np.array([getattr(r.spectrum, attr)[index] * scale
-                              for r in results.records])
-            curves = _suite_curves([r.record.id for r in results.records], stack)
+            stack = [getattr(r.spectrum, attr)[index] * scale for r in results.records]
+            curves = _suite_curves([r.record.id for r in results.records], stack, band)
             for curve, item in zip(curves, results.records):
                 curve["usable_max_s"] = usable_period_max_s(item.spec)
             figures[key] = self._figure(
@@ -445,7 +432,8 @@ class SiteContext:
         motion_figure, motion_label = None, ""
         if scaling is not None and scaling.criterion_spectra_g is not None:
             motion_label = scaling.criterion_label
-            curves = _suite_curves(scaling.criterion_names, scaling.criterion_spectra_g)
+            curves = _suite_curves(scaling.criterion_names, scaling.criterion_spectra_g,
+                                   statistics.criterion_g)
             if scaling.required_ratio is not None:
                 curves.append({"label": f"{100 * scaling.required_ratio:g} % of the target",
                                "values": scaling.required_ratio * scaling.target_sa_g,
@@ -503,7 +491,8 @@ class SiteContext:
             return {"target": None, "records": ", ".join(ids)}
         spec = self.project.design_spectrum.vertical
         low, high = vertical.period_range_s
-        curves = _suite_curves(vertical.record_ids, vertical.spectra_g)
+        curves = _suite_curves(vertical.record_ids, vertical.spectra_g,
+                               self.results.statistics.vertical_g)
         figure = self._figure(
             "figures/suite-vertical.svg", "spectra_figure",
             periods_s=vertical.periods_s, curves=curves,
@@ -531,12 +520,8 @@ class SiteContext:
         if not results.inelastic:
             return None
         periods = np.asarray(spec.periods_s)
-        outs = list(results.inelastic.values())
-        r_stack = np.array([o["ductility"].strength_reduction_factor for o in outs])
-        mu_stack = np.array([o["strength"].ductility for o in outs])
-        with np.errstate(invalid="ignore"):
-            r_mean = np.nanmean(r_stack, axis=0)
-            mu_mean = np.nanmean(mu_stack, axis=0)
+        means = results.statistics.inelastic
+        r_mean, mu_mean = means.strength_reduction_factor, means.ductility_demand
         curves = []
         for i, mu in enumerate(spec.ductility):
             curves.append({"label": f"μ = {mu:g}: suite mean R", "values": r_mean[i],
@@ -743,34 +728,32 @@ class SiteContext:
                     xlabel=f"Displacement [{d.unit('length')}]",
                     ylabel=f"Restoring force [{d.unit('force')}]")
                 energy = response.energy
-                imbalance = energy["imbalance"]
+                imbalance = energy.imbalance
                 energies.append({
-                    "record": rid, "input": d.show(energy["input_j"], "energy"),
-                    "kinetic": d.show(energy["kinetic_j"], "energy"),
-                    "damping": d.show(energy["damping_j"], "energy"),
-                    "strain": d.show(energy["strain_j"], "energy"),
-                    "hysteretic": d.show(energy["hysteretic_j"], "energy"),
+                    "record": rid, "input": d.show(energy.input_j, "energy"),
+                    "kinetic": d.show(energy.kinetic_j, "energy"),
+                    "damping": d.show(energy.damping_j, "energy"),
+                    "strain": d.show(energy.strain_j, "energy"),
+                    "hysteretic": d.show(energy.hysteretic_j, "energy"),
                     "imbalance": f"{100 * imbalance:.2f} %",
                     "flag": imbalance > ENERGY_IMBALANCE_FLAG,
                     "convergence": _convergence_text(response.convergence)})
             histories.append(item)
-        for label, reducer in (("mean", np.mean), ("maximum", np.max)):
-            def stat(attr, dim, absolute=False):
-                values = [getattr(r, attr) for r in responses]
-                if any(v is None for v in values):
+        suite = results.statistics.systems[system.id]
+        for label, values in (("mean", suite.mean), ("maximum", suite.maximum)):
+            def stat(value, dim):
+                if value is None:
                     return "–"
-                values = [abs(v) for v in values] if absolute else values
-                value = float(reducer(values))
                 return number(value) if dim is None else d.show(value, dim)
             row = {"record": label, "file_html": None, "summary": True,
-                   "displacement": stat("peak_displacement_m", "length"),
-                   "drift": stat("peak_drift_ratio", None),
-                   "shear": stat("peak_base_shear_n", "force"),
-                   "accel": stat("peak_total_accel_m_s2", "acceleration")}
+                   "displacement": stat(values.displacement_m, "length"),
+                   "drift": stat(values.drift_ratio, None),
+                   "shear": stat(values.base_shear_n, "force"),
+                   "accel": stat(values.total_accel_m_s2, "acceleration")}
             if nonlinear:
-                row.update({"ductility": stat("ductility", None), "residual": "–",
-                            "residual_abs": stat("residual_displacement_m", "length",
-                                                 True)})
+                row.update({"ductility": stat(values.ductility, None), "residual": "–",
+                            "residual_abs": stat(values.residual_displacement_abs_m,
+                                                 "length")})
             peaks.append(row)
         periods = results.records[0].spectrum.periods_s
         damping = results.records[0].spectrum.damping
@@ -982,12 +965,12 @@ def _basis(system, prefixes: tuple[str, ...], default: str) -> str:
     return "; ".join(lines) if lines else default
 
 
-def _convergence_text(convergence: dict | None) -> str:
-    if not convergence:
+def _convergence_text(convergence: Convergence | None) -> str:
+    if convergence is None:
         return ""
-    state = "converged" if convergence["converged"] else "NOT converged"
-    return (f"{state}; at most {convergence['max_iterations_used']} iterations, "
-            f"{convergence['subdivided_steps']} steps subdivided")
+    state = "converged" if convergence.converged else "NOT converged"
+    return (f"{state}; at most {convergence.max_iterations_used} iterations, "
+            f"{convergence.subdivided_steps} steps subdivided")
 
 
 _DESIGN_KEY_LABELS = {
@@ -1033,15 +1016,16 @@ def _design_label(design) -> str:
     return "design spectrum (table)"
 
 
-def _suite_curves(names: list[str], stack: np.ndarray) -> list[dict]:
+def _suite_curves(names: list[str], stack, band: SpectrumBand) -> list[dict]:
     """Each curve, the log-normal band (geometric mean ± 1σ of ln) and the arithmetic
-    suite mean, the statistic the scaling criteria test."""
-    geometric, low, high = _log_stats(stack)
+    suite mean, the statistic the scaling criteria test (``band``, computed by the
+    engine: sdofreport.suite_statistics)."""
     curves = [{"label": name, "values": stack[i], "style": "record"}
               for i, name in enumerate(names)]
-    curves.append({"label": "log-normal: geometric mean ± 1σ of ln", "values": geometric,
-                   "lower": low, "upper": high, "style": "band"})
-    curves.append({"label": "suite mean (arithmetic)", "values": np.mean(stack, axis=0),
+    curves.append({"label": "log-normal: geometric mean ± 1σ of ln",
+                   "values": band.geometric_mean, "lower": band.lower,
+                   "upper": band.upper, "style": "band"})
+    curves.append({"label": "suite mean (arithmetic)", "values": band.mean,
                    "style": "mean"})
     return curves
 
@@ -1166,12 +1150,8 @@ def _isolation_rows(system, results, d) -> list[dict]:
                               "each integration sub-step"})
     factors = model.get("property_factors")
     if factors:
-        peaks = {}
-        for run in ("lower", "upper"):
-            values = [results.bounds[(system.id, r.id)][run].peak_displacement_m
-                      for r in results.project.records_for(system)]
-            reduce = np.mean if results.statistic == "mean" else np.max
-            peaks[run] = d.show(float(reduce(values)), "length")
+        peaks = {run: d.show(value, "length") for run, value in
+                 results.statistics.systems[system.id].bound_displacement_m.items()}
         varied = ("friction × factor" if system.model_name == "sliding-pendulum" else
                   "Q_d = (1 − α) F_y and k_d = α k × factor (elastic stiffness kept: "
                   "F_y' = λ Q_d/(1 − λα), α' = λα)")

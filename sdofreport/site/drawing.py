@@ -13,11 +13,9 @@ This module only schedules: it calls the ``*_figure`` functions of
 
 from __future__ import annotations
 
-import hashlib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-import numpy as np
 
 from sdofreport import __version__
 from sdofreport.executors import local_pool, process_context, worker_state
@@ -39,37 +37,15 @@ def draw_figure(spec: FigureSpec) -> str:
     return getattr(figures, spec.function)(**spec.kwargs)
 
 
-def _feed(digest, value) -> None:
-    """Feed a figure argument into a hash: arrays by dtype, shape and bytes."""
-    if isinstance(value, np.ndarray):
-        array = np.ascontiguousarray(value)
-        digest.update(f"a{array.dtype.str}{array.shape}".encode())
-        digest.update(array.tobytes())
-    elif isinstance(value, dict):
-        digest.update(b"{")
-        for key in sorted(value):
-            digest.update(repr(key).encode())
-            _feed(digest, value[key])
-        digest.update(b"}")
-    elif isinstance(value, (list, tuple)):
-        digest.update(b"[")
-        for item in value:
-            _feed(digest, item)
-        digest.update(b"]")
-    else:
-        digest.update(repr(value).encode())
-
-
 def figure_key(spec: FigureSpec) -> str:
-    """Content hash of a figure: function, arguments, the versions that draw it and the
-    cache format and source fingerprint (:func:`sdofreport.cache.code_fingerprint`)."""
-    from sdofreport.cache import CACHE_FORMAT, code_fingerprint
+    """Cache key of a figure (:func:`sdofreport.cache.cache_key`): its function, its
+    arguments (arrays by digest) and the versions that draw it."""
+    from sdofreport.cache import cache_key
     from sdofreport.site.figures import matplotlib_version
 
-    digest = hashlib.sha256(f"figure|{__version__}|{matplotlib_version()}|{CACHE_FORMAT}|"
-                            f"{code_fingerprint()}|{spec.function}".encode())
-    _feed(digest, spec.kwargs)
-    return digest.hexdigest()
+    return cache_key({"version": __version__, "job": "figure",
+                      "matplotlib": matplotlib_version(), "function": spec.function,
+                      "kwargs": spec.kwargs})
 
 
 def _figure_svg(spec: FigureSpec, cache) -> str:

@@ -1,11 +1,13 @@
 """Print a built site into one review-packet PDF through headless Chromium.
 
-The packet is assembled from the site as written, never recomputed: the ``<main>`` of
-the summary, the suite, every record page and every system page (in that order) are
-placed into ``templates/print.html``, figures are loaded from the site folder by
-relative path, and Chromium prints the document with the DevTools command
-``Page.printToPDF``. Every PDF page carries the project in its header and the caution
-with "page X of Y" in its footer.
+The packet is assembled from the same page data the site's pages are rendered from
+(:meth:`sdofreport.site.context.SiteContext.pages` of the build's results), never by
+reading the written HTML back: the content block of the summary, the suite, every
+record page and every system page (in that order) is rendered from its page's context
+into ``templates/print.html``, figures are loaded from the site folder by relative path,
+and Chromium prints the document with the DevTools command ``Page.printToPDF``. Every PDF
+page carries the project in its header and the caution with "page X of Y" in its
+footer.
 
 Chromium and its chromedriver are system programs; ``selenium`` and ``pypdf`` are
 optional dependencies (extra ``pdf``: ``pip install 'selenium>=4.16' 'pypdf>=4.0'``); when
@@ -34,13 +36,13 @@ import shutil
 import tempfile
 import time
 from contextlib import contextmanager
+from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
 from urllib.parse import urlsplit
 
 from markupsafe import Markup
 
-from sdofreport import __version__
 from sdofreport.errors import BuildError
 from sdofreport.fsio import write_atomically
 from sdofreport.site.context import CAUTION_FULL, CAUTION_SHORT
@@ -175,36 +177,96 @@ def headless_chrome(chromium: str | os.PathLike | None = None,
             driver.quit()
 
 
-def packet_pages(site_dir: Path) -> list[str]:
+@dataclass(frozen=True)
+class PacketSection:
+    """One page of the site as the packet prints it."""
+
+    #: the page's path in the site (``index.html``, ``systems/frame.html``...)
+    path: str
+    #: the page's title (plain text)
+    title: str
+    #: the page's content block, rendered from its context (HTML, links relative to
+    #: the page's own folder)
+    main: str
+
+
+@dataclass(frozen=True)
+class Packet:
+    """What the review packet prints, all from the page data of one build."""
+
+    #: the sections, in packet order
+    sections: list[PacketSection]
+    #: the pages' project block: title, reference, revision, date, file...
+    project: dict[str, str | None]
+    #: ``signoff`` and ``revisions`` as the summary page shows them
+    signoff: dict[str, dict[str, str | None] | None]
+    revisions: list[dict[str, str | None]]
+    #: the run fingerprint (manifest.json) and the version that built the pages
+    fingerprint: str
+    version: str
+
+
+def _revision_page(results, fingerprint: str, site_dir: Path | None):
+    """The revision page's data (a :class:`~sdofreport.site.context.Page`) when the site
+    was built with ``--compare-to``: from the earlier results it keeps as an input and
+    this build's results, as the build made it; else None."""
+    from sdofreport.archive.compare import REVISION_TEMPLATE, revision_context
+    from sdofreport.results_json import results_document
+    from sdofreport.site.context import Page
+    from sdofreport.site.render import COMPARE_TO_FINGERPRINT, COMPARE_TO_INPUT
+
+    if site_dir is None or not (site_dir / COMPARE_TO_INPUT).is_file():
+        return None
+    try:
+        old = json.loads((site_dir / COMPARE_TO_INPUT).read_text("utf-8"))
+        kept = site_dir / COMPARE_TO_FINGERPRINT
+        old_fingerprint = kept.read_text("ascii").strip() if kept.is_file() else ""
+    except (OSError, ValueError) as exc:
+        raise BuildError(f"PDF: the earlier results kept in {site_dir} cannot be read "
+                         f"({exc}); rebuild the site.") from None
+    context, _ = revision_context(old, results_document(results), fingerprint=fingerprint,
+                                  old_fingerprint=old_fingerprint)
+    return Page("revision.html", REVISION_TEMPLATE, context)
+
+
+def review_packet(results, fingerprint: str = "", site_dir: str | os.PathLike | None = None
+                  ) -> Packet:
     """
-    Site paths of the pages in packet order: summary, suite, records, systems, others.
-
-    Records and systems follow the order in which the summary page links them (the
-    project file's order); pages it does not link come after, sorted.
+    The packet of a build's ``results``: its sections in order — summary, suite,
+    records, systems, as :meth:`~sdofreport.site.context.SiteContext.pages` lists them
+    (the project file's order), then the revision page of a site ``site_dir`` built
+    with ``--compare-to`` — each the content block of its page's template rendered from
+    the page's context, with the run ``fingerprint`` the summary shows.
     """
-    pages = sorted(p.relative_to(site_dir).as_posix() for p in site_dir.rglob("*.html")
-                   if not p.relative_to(site_dir).as_posix().startswith("inputs/"))
-    if "index.html" not in pages:
-        raise BuildError(f"PDF: {site_dir} has no index.html; build the site first.")
-    linked = [html.unescape(href) for _, name, href in
-              _ATTRIBUTE.findall((site_dir / "index.html").read_text("utf-8"))
-              if name == "href"]
-    order = ["index.html", "suite.html"]
-    for folder in ("records/", "systems/"):
-        order += [h for h in linked if h.startswith(folder) and h in pages]
-        order += [p for p in pages if p.startswith(folder)]
-    order += pages
-    seen: set[str] = set()
-    return [p for p in order if p in pages and not (p in seen or seen.add(p))]
+    import jinja2
+
+    from sdofreport.site.context import SiteContext
+    from sdofreport.site.render import _environment
+
+    env = _environment()
+    pages = SiteContext(results).pages()
+    revision = _revision_page(results, fingerprint,
+                              None if site_dir is None else Path(site_dir))
+    sections = []
+    for page in pages + ([revision] if revision is not None else []):
+        template = env.get_template(page.template)
+        try:
+            context = template.new_context({**page.context, "fingerprint": fingerprint,
+                                            "has_revision": False})
+            main = "".join(template.blocks["content"](context))
+        except (jinja2.TemplateError, KeyError) as exc:
+            raise BuildError(f"PDF: page {page.path} could not be rendered: {exc}") \
+                from None
+        sections.append(PacketSection(page.path, str(page.context["page_title"]),
+                                      f"\n{main}\n"))
+    summary = pages[0].context
+    return Packet(sections, summary["project"], summary["signoff"], summary["revisions"],
+                  fingerprint, summary["version"])
 
 
-def _main_of(page_html: str, page: str) -> str:
-    """The inner HTML of the page's ``<main>`` (the templates write exactly one)."""
-    start, end = page_html.find("<main>"), page_html.rfind("</main>")
-    if start < 0 or end < start:
-        raise BuildError(f"PDF: page {page} has no <main> element; was it built by "
-                         f"sdofreport?")
-    return page_html[start + len("<main>"):end]
+def packet_pages(packet: Packet) -> list[str]:
+    """Site paths of the packet's sections, in packet order."""
+    return [section.path for section in packet.sections]
 
 
 def _rebase(fragment: str, page: str, anchors: dict[str, str]) -> str:
@@ -250,24 +312,11 @@ def _project(site_dir: Path) -> dict:
 PAGE_PLACEHOLDER = "888"
 
 
-def _signoff(site_dir: Path, info: dict) -> dict:
-    """``signoff`` and ``revisions`` of the site's results.json (older sites: people only)."""
-    try:
-        project = json.loads((site_dir / "data" / "results.json").read_text("utf-8"))
-        project = project.get("project", {})
-    except (OSError, ValueError, AttributeError):
-        project = {}
-    signoff = project.get("signoff") or {
-        "prepared": {"by": info.get("prepared_by") or project.get("prepared_by"),
-                     "date": None},
-        "checked": {"by": project.get("checked_by"), "date": None}, "approved": None}
-    return {"signoff": signoff, "revisions": project.get("revisions") or []}
-
-
-def packet_html(site_dir: str | os.PathLike, page_numbers: dict[str, int] | None = None
-                ) -> str:
+def packet_html(site_dir: str | os.PathLike, packet: Packet,
+                page_numbers: dict[str, int] | None = None) -> str:
     """
-    The printable HTML document of the whole site (its ``<base>`` is the site).
+    The printable HTML document of ``packet`` (:func:`review_packet`); its ``<base>``
+    is the site folder, where the figures are.
 
     ``page_numbers`` (site path → PDF page where its section starts) fills the
     contents' page column; without it the column holds :data:`PAGE_PLACEHOLDER`.
@@ -277,34 +326,29 @@ def packet_html(site_dir: str | os.PathLike, page_numbers: dict[str, int] | None
     from sdofreport.site.render import template_dir
 
     site_dir = Path(site_dir).resolve()
-    manifest = _project(site_dir)
-    pages = packet_pages(site_dir)
-    anchors = {page: f"packet-{index:03d}" for index, page in enumerate(pages, start=1)}
-    sections = []
-    for page in pages:
-        text = (site_dir / page).read_text("utf-8")
-        title = re.search(r"<title>(.*?)</title>", text, re.S)
-        page_number = PAGE_PLACEHOLDER if page_numbers is None else page_numbers[page]
-        sections.append({
-            "path": page, "anchor": anchors[page], "page": page_number,
-            "title": Markup(title.group(1).split(" · ")[0]) if title else page,
-            "main": Markup(_rebase(_main_of(text, page), page, anchors))})
-    info = manifest.get("project", {})
+    anchors = {section.path: f"packet-{index:03d}"
+               for index, section in enumerate(packet.sections, start=1)}
+    rows = [{"path": section.path, "anchor": anchors[section.path],
+             "page": PAGE_PLACEHOLDER if page_numbers is None
+             else page_numbers[section.path], "title": section.title,
+             "main": Markup(_rebase(section.main, section.path, anchors))}
+            for section in packet.sections]
+    info = packet.project
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(template_dir())),
                              autoescape=True, undefined=jinja2.StrictUndefined)
     return env.get_template("print.html").render(
-        version=manifest.get("package", {}).get("version", __version__),
-        root="", base_href=site_dir.as_uri() + "/", page_title="Review packet",
-        page_kind="print", current_id="", nav_systems=[],
+        version=packet.version, root="", base_href=site_dir.as_uri() + "/",
+        page_title="Review packet", page_kind="print", current_id="", nav_systems=[],
         project={"title": info.get("title", ""), "reference": info.get("reference", ""),
                  "revision": info.get("revision", ""), "date": info.get("date"),
-                 "file": info.get("file", "")},
+                 # the project file as the site keeps it (manifest.json names it so)
+                 "file": f"inputs/{info.get('file', '')}"},
         cautions={"short": CAUTION_SHORT, "full": CAUTION_FULL},
-        fingerprint=manifest.get("fingerprint", ""), sections=sections,
-        **_signoff(site_dir, info))
+        fingerprint=packet.fingerprint, sections=rows, signoff=packet.signoff,
+        revisions=packet.revisions)
 
 
-def section_pages(pdf: bytes, site_dir: str | os.PathLike) -> dict[str, int]:
+def section_pages(pdf: bytes, packet: Packet) -> dict[str, int]:
     """
     Site path → page (from 1) on which its packet section starts, read from the named
     destinations Chromium writes for the anchors the contents links to.
@@ -314,7 +358,7 @@ def section_pages(pdf: bytes, site_dir: str | os.PathLike) -> dict[str, int]:
     pypdf = _pypdf()
     reader = pypdf.PdfReader(io.BytesIO(pdf))
     destinations = reader.named_destinations
-    pages = packet_pages(Path(site_dir).resolve())
+    pages = packet_pages(packet)
     found = {}
     for index, page in enumerate(pages, start=1):
         destination = destinations.get(f"/packet-{index:03d}")
@@ -430,17 +474,22 @@ def _print_once(driver, source: Path, site_dir: Path, header: str, footer: str) 
     return base64.b64decode(printed["data"])
 
 
-def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=None,
-              timeout_s: float = 120.0) -> int:
+def write_pdf(site_dir: Path, output_pdf: Path, results=None, *, chromium=None,
+              chromedriver=None, timeout_s: float = 120.0) -> int:
     """
-    Print the built site at ``site_dir`` into one review-packet PDF at ``output_pdf``.
+    Print the site at ``site_dir``, built from ``results``, into one review-packet PDF
+    at ``output_pdf``.
 
     Parameters
     ----------
     site_dir : path
-        A site written by ``sdofreport build`` (its manifest.json is checked).
+        The site ``sdofreport build`` wrote from ``results`` (its manifest.json is
+        checked; the figures are loaded from it).
     output_pdf : path
         The PDF to write; written whole through a temporary sibling, then swapped in.
+    results : sdofreport.engine.Results
+        The build's results (:attr:`sdofreport.build.BuildOutcome.results`): the pages'
+        data the packet is rendered from.
     chromium, chromedriver : path, optional
         The browser and its driver; found on ``PATH`` when not given.
     timeout_s : float
@@ -456,7 +505,11 @@ def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=N
     site_dir = Path(site_dir).resolve()
     output_pdf = Path(output_pdf)
     manifest = _project(site_dir)
-    header, footer = _header_footer(manifest)
+    if results is None:
+        raise BuildError("PDF: the review packet is printed from a build's results "
+                         "(sdofreport build --pdf); none were given.")
+    packet = review_packet(results, str(manifest.get("fingerprint", "")), site_dir)
+    header, footer = _header_footer({"project": packet.project})
     with tempfile.TemporaryDirectory(prefix="sdofreport-print-") as folder:
         source = Path(folder) / "packet.html"
         with headless_chrome(chromium, chromedriver) as driver:
@@ -468,16 +521,17 @@ def write_pdf(site_dir: Path, output_pdf: Path, *, chromium=None, chromedriver=N
             # follows only if they moved all the same.
             numbers = None
             for _ in range(3):
-                source.write_text(packet_html(site_dir, numbers), encoding="utf-8")
+                source.write_text(packet_html(site_dir, packet, numbers),
+                                  encoding="utf-8")
                 raw = _print_once(driver, source, site_dir, header, footer)
-                found = section_pages(raw, site_dir)
+                found = section_pages(raw, packet)
                 if found == numbers:
                     break
                 numbers = found
             else:
                 log.warning("the contents' page numbers of %s did not settle after "
                             "three prints", output_pdf)
-    pdf = _renumber_node_ids(_stamp_dates(raw, _fixed_date(manifest)))
+    pdf = _renumber_node_ids(_stamp_dates(raw, _fixed_date({"project": packet.project})))
     write_atomically(output_pdf, pdf)
     pages = pdf_page_count(pdf)
     log.info("printed %s into %s: %d pages in %.1f s", site_dir, output_pdf, pages,

@@ -38,6 +38,8 @@ MANIFEST_NAME = "manifest.json"
 #: Where a build with ``--compare-to`` keeps the earlier run's results.json: an input of
 #: the revision page, covered by the fingerprint, so ``verify --rerun`` rebuilds it.
 COMPARE_TO_INPUT = "inputs/_compare-to/results.json"
+#: The earlier run's fingerprint, kept beside its results.
+COMPARE_TO_FINGERPRINT = COMPARE_TO_INPUT.rsplit("/", 1)[0] + "/fingerprint.txt"
 
 
 def template_dir() -> Path:

@@ -22,6 +22,7 @@ from click.testing import CliRunner
 
 from sdofreport.cli import cli
 from sdofreport.errors import BuildError
+from tests.conftest import EXAMPLE
 
 
 def require_browser() -> None:
@@ -49,6 +50,20 @@ def example_site(request) -> Path:
     """The bundled example, the session's one shared build (read-only)."""
     require_browser()  # before the build, so a machine without a browser skips at once
     return request.getfixturevalue("built_example").site
+
+
+@pytest.fixture(scope="session")
+def example_build(request, example_site):
+    """The shared example build's folder (``output``) and its results (``results``, read
+    back through the build's own result cache), the page data the packet is printed from."""
+    from types import SimpleNamespace
+
+    from sdofreport.engine import run_project
+    from sdofreport.project import load_project
+
+    built = request.getfixturevalue("built_example")
+    results = run_project(load_project(EXAMPLE / "sdofreport.toml"), cache_dir=built.cache)
+    return SimpleNamespace(output=example_site, results=results)
 
 
 @pytest.fixture(scope="session")

@@ -9,9 +9,9 @@ import pytest
 
 from sdofreport.errors import BuildError
 from sdofreport.site.context import CAUTION_SHORT
-from sdofreport.site.pdf import (_fixed_date, _renumber_node_ids, _stamp_dates, packet_html,
-                                 packet_pages, pdf_target, write_pdf)
-from tests.browser.conftest import build_project
+from sdofreport.site.pdf import (_fixed_date, _project, _renumber_node_ids, _stamp_dates,
+                                 packet_html, packet_pages, pdf_target, review_packet,
+                                 write_pdf)
 
 
 def _words(text: str) -> str:
@@ -19,14 +19,20 @@ def _words(text: str) -> str:
 
 
 @pytest.fixture(scope="module")
-def packet(example_site, tmp_path_factory):
+def example_packet(example_build):
+    """The example's packet data (from its build's results, not from its HTML)."""
+    return review_packet(example_build.results, "f" * 16)
+
+
+@pytest.fixture(scope="module")
+def packet(example_site, example_build, tmp_path_factory):
     """The example's PDF, printed once with SOURCE_DATE_EPOCH unset."""
     pypdf = pytest.importorskip("pypdf", reason="pypdf is not installed "
                                 "(pip install -e '.[test]')")
     output = tmp_path_factory.mktemp("pdf") / "packet.pdf"
     saved = os.environ.pop("SOURCE_DATE_EPOCH", None)
     try:
-        count = write_pdf(example_site, output)
+        count = write_pdf(example_site, output, example_build.results)
     finally:
         if saved is not None:
             os.environ["SOURCE_DATE_EPOCH"] = saved
@@ -34,9 +40,9 @@ def packet(example_site, tmp_path_factory):
 
 
 def test_pdf_has_every_page_the_title_the_systems_and_the_caution(example_site, packet,
-                                                                   artifacts):
+                                                                   example_packet, artifacts):
     count, output, reader = packet
-    site_pages = packet_pages(example_site)
+    site_pages = packet_pages(example_packet)
     assert count == len(reader.pages)
     assert count >= len(site_pages)
     texts = [_words(page.extract_text()) for page in reader.pages]
@@ -60,7 +66,7 @@ def test_pdf_has_every_page_the_title_the_systems_and_the_caution(example_site, 
     print(f"review packet: {copy} ({count} pages)")
 
 
-def test_contents_page_numbers_are_where_each_section_starts(example_site, packet,
+def test_contents_page_numbers_are_where_each_section_starts(example_packet, packet,
                                                            artifacts):
     """The printed contents give, for every site page, the PDF page on which the text
     of its section ("Site page <path>") first appears, read back independently with
@@ -76,7 +82,7 @@ def test_contents_page_numbers_are_where_each_section_starts(example_site, packe
     for number, text in enumerate(texts, start=1):
         for path in re.findall(r"Site page (\S+\.html)", text):
             first.setdefault(path, number)
-    pages = packet_pages(example_site)
+    pages = packet_pages(example_packet)
     assert set(first) == set(pages)
     contents = " ".join(texts[:3])
     for index, path in enumerate(pages, start=1):
@@ -102,8 +108,8 @@ def test_packet_has_the_signoff_block_and_revision_history(packet):
     assert "A 2026-11-30 First issue for review (invented example)" in cover
 
 
-def test_pdf_packet_order_is_summary_suite_records_systems(example_site):
-    pages = packet_pages(example_site)
+def test_pdf_packet_order_is_summary_suite_records_systems(example_site, example_packet):
+    pages = packet_pages(example_packet)
     assert pages[:2] == ["index.html", "suite.html"]
     kinds = [page.split("/")[0] for page in pages[2:]]
     assert kinds == sorted(kinds, key=["records", "systems"].index)
@@ -111,18 +117,19 @@ def test_pdf_packet_order_is_summary_suite_records_systems(example_site):
         f"systems/{name}.html" for name in ("frame", "skid", "tank", "platform", "pier")]
 
 
-def test_packet_links_stay_inside_the_document(example_site):
-    document = packet_html(example_site)
+def test_packet_links_stay_inside_the_document(example_site, example_packet):
+    document = packet_html(example_site, example_packet)
     assert 'href="../' not in document and 'src="../' not in document
     assert 'loading="lazy"' not in document
     assert 'href="#packet-015"' in document  # systems/frame.html, the 15th page
     assert "<script" not in document.lower()
 
 
-def test_same_site_prints_the_same_bytes(example_site, packet, tmp_path, monkeypatch):
+def test_same_site_prints_the_same_bytes(example_site, example_build, packet, tmp_path,
+                                        monkeypatch):
     monkeypatch.delenv("SOURCE_DATE_EPOCH", raising=False)
     again = tmp_path / "again.pdf"
-    write_pdf(example_site, again)
+    write_pdf(example_site, again, example_build.results)
     assert again.read_bytes() == packet[1].read_bytes()
 
 
@@ -178,19 +185,51 @@ def test_missing_selenium_is_a_build_error_with_install_hint(tmp_path, monkeypat
 def test_a_folder_that_is_not_a_site_is_refused(tmp_path):
     (tmp_path / "index.html").write_text("<main></main>")
     with pytest.raises(BuildError, match=r"is not a site built by sdofreport"):
-        packet_html(tmp_path)
+        _project(tmp_path)
+
+
+def test_packet_sections_are_the_pages_content_rendered_from_their_data(example_site,
+                                                                       example_build):
+    """Each section is rendered from its page's context, not read from the site; the
+    written page's <main> (what a reader of the site sees) must hold the same HTML."""
+    manifest = _project(example_site)
+    packet = review_packet(example_build.results, manifest["fingerprint"])
+    written = sorted(p.relative_to(example_site).as_posix()
+                     for p in example_site.rglob("*.html"))
+    assert sorted(packet_pages(packet)) == written
+    for section in packet.sections:
+        page = (example_site / section.path).read_text("utf-8")
+        start, end = page.index("<main>") + len("<main>"), page.rindex("</main>")
+        assert section.main == page[start:end], section.path
+        assert f"<title>{section.title} · " in page
+
+
+def test_packet_needs_no_written_page(example_build, tmp_path):
+    """The packet document is made with every HTML page of the site removed: only the
+    manifest (fingerprint) and the figures (loaded by the browser) are read."""
+    import shutil
+
+    site = tmp_path / "site"
+    shutil.copytree(example_build.output, site)
+    for page in site.rglob("*.html"):
+        page.unlink()
+    packet = review_packet(example_build.results, _project(site)["fingerprint"])
+    document = packet_html(site, packet)
+    assert document.count('class="packet-page"') == len(packet.sections) > 10
+    assert "Harbourview Cold Store" in document
 
 
 def test_pdf_of_a_small_project_has_its_system(project_factory, tmp_path, valid_project_text):
     pypdf = pytest.importorskip("pypdf")
+    from sdofreport.build import build_site
     from tests.browser.conftest import require_browser
 
     require_browser()
-    site = build_project(project_factory(valid_project_text), tmp_path / "site",
-                         tmp_path / "cache")
-    count = write_pdf(site, tmp_path / "out" / "small.pdf")
+    outcome = build_site(project_factory(valid_project_text), tmp_path / "site",
+                         cache_dir=tmp_path / "cache")
+    count = write_pdf(outcome.output, tmp_path / "out" / "small.pdf", outcome.results)
     reader = pypdf.PdfReader(str(tmp_path / "out" / "small.pdf"))
-    assert count == len(reader.pages) >= len(packet_pages(site))
+    assert count == len(reader.pages) >= len(packet_pages(review_packet(outcome.results)))
     text = _words(" ".join(page.extract_text() for page in reader.pages))
     assert "s1 — System one" in text and "Test project" in text
 
@@ -203,3 +242,20 @@ def test_pdf_option_value(tmp_path):
                        r"got 'sdofreport\.toml'\. Put --pdf after the project file, or "
                        r"write --pdf=FILE\.pdf\.$"):
         pdf_target("sdofreport.toml", site)
+
+
+def test_packet_of_a_revised_site_ends_with_its_revision_page(example_build, tmp_path):
+    """A site built with --compare-to: the revision page is rendered from its data (the
+    kept earlier results and this build's) exactly as the site shows it."""
+    from sdofreport.build import build_site
+    from tests.conftest import EXAMPLE
+
+    outcome = build_site(EXAMPLE / "sdofreport.toml", tmp_path / "site",
+                         cache_dir=tmp_path / "cache",
+                         compare_to=example_build.output / "data" / "results.json")
+    packet = review_packet(outcome.results, _project(outcome.output)["fingerprint"],
+                           outcome.output)
+    assert packet_pages(packet)[-1] == "revision.html"
+    page = (outcome.output / "revision.html").read_text("utf-8")
+    start, end = page.index("<main>") + len("<main>"), page.rindex("</main>")
+    assert packet.sections[-1].main == page[start:end]
