@@ -120,10 +120,12 @@ def test_full_disk_names_the_file_of_every_writer(tmp_path, monkeypatch, writer)
             self.handle.close()
 
     if writer == "record":
+        from sdofreport import fsio
         from sdofreport.records import writers
 
+        # the record writers write through fsio.write_atomically (the one atomic write)
         real_fdopen = os.fdopen
-        monkeypatch.setattr(writers.os, "fdopen", lambda *a, **k: _Full(real_fdopen(*a, **k)))
+        monkeypatch.setattr(fsio.os, "fdopen", lambda *a, **k: _Full(real_fdopen(*a, **k)))
         target = tmp_path / "r.csv"
         with pytest.raises(BuildError, match=f"{target}: could not be written: "
                                              f"{os.strerror(errno.ENOSPC)}"):
