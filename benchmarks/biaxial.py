@@ -18,11 +18,10 @@ import tempfile
 import time
 from pathlib import Path
 
-import numpy as np
 
 from sdofreport.core.stochastic import kanai_tajimi_accelerogram
 from sdofreport.core.units import G
-from sdofreport.jobs import biaxial_job, response_job
+from sdofreport.engine.jobs import biaxial_job, response_job
 
 DT = 0.005
 A1 = kanai_tajimi_accelerogram(40.0, DT, seed=1, target_pga_m_s2=0.4 * G, high_pass_hz=0.2)
@@ -51,7 +50,7 @@ EXAMPLE = ROOT / "site_examples" / "harbourview_cold_store" / "sdofreport.toml"
 _CHILD = """
 import json, sys, time
 from sdofreport.core._jit import load_numba
-from sdofreport.engine import _later_steps, warm_kernels
+from sdofreport.engine.warmup import _later_steps, warm_kernels
 from sdofreport.project import load_project
 project = load_project(sys.argv[1])
 load_numba()

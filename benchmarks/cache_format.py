@@ -1,5 +1,5 @@
 """Cache entry format: time to write and read one job output, pickle against the typed
-entry (sdofreport.cache), and the time to convert the unit strings of a project with and
+entry (sdofreport.engine.cache), and the time to convert the unit strings of a project with and
 without the memo.
 
 Prints figures and ratios; asserts nothing. Run: python benchmarks/cache_format.py
@@ -12,8 +12,8 @@ import time
 
 import numpy as np
 
-from sdofreport import cache
-from sdofreport.jobs import record_job, responses_job
+from sdofreport.engine import cache
+from sdofreport.engine.jobs import record_job, responses_job
 
 
 def _best(function, repeat: int = 20) -> float:

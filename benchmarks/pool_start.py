@@ -1,7 +1,7 @@
 """What it costs to start a local pool, by start method (not a test).
 
 The engine sends a phase's jobs to worker processes only when they would save more
-than it costs to start them (sdofreport.executors.POOL_START_SECONDS, per start
+than it costs to start them (sdofreport.engine.executors.POOL_START_SECONDS, per start
 method). This measures that cost as the build pays it: the build process has loaded the
 compiled kernels (engine.warm_kernels), then a pool of two workers is started
 (executors.local_pool), each worker is handed a record job on a short made-up record
@@ -44,13 +44,14 @@ def main() -> None:
     parser.add_argument("--repeats", type=int, default=5, help="pools per start method")
     args = parser.parse_args()
 
-    from sdofreport import engine, executors
-    from sdofreport.jobs import run_job
+    from sdofreport import engine
+    from sdofreport.engine import executors
+    from sdofreport.engine.jobs import run_job
     from sdofreport.project import load_project
 
     project = load_project(EXAMPLE)
     engine.warm_kernels(project)  # as the build process has before its first phase
-    job = engine._record_args(engine._made_up_record(), project.analysis)
+    job = engine.plan._record_args(engine.warmup._made_up_record(), project.analysis)
     started = time.perf_counter()
     run_job("record", job)
     inline = time.perf_counter() - started

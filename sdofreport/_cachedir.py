@@ -19,7 +19,7 @@ import os
 import stat
 import tempfile
 
-log = logging.getLogger("sdofreport.cache")
+log = logging.getLogger("sdofreport.engine.cache")
 
 #: Mode of the cache folders we create: only their owner may enter them.
 PRIVATE_MODE = 0o700

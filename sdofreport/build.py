@@ -14,7 +14,7 @@ from sdofreport.engine import Progress, ResultCache, Results, default_cache_dir,
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
 from sdofreport.project.quantities import without_memo
-from sdofreport.serialize import json_text
+from sdofreport.outputs.serialize import json_text
 from sdofreport.site.render import (COMPARE_TO_FINGERPRINT, COMPARE_TO_INPUT, gather_site,
                                     prepare_output, recover_site, start_record_figures)
 from sdofreport.site.tree import OutputLock, StagedTree, output_folder

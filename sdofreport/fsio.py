@@ -12,7 +12,7 @@ Every rename of the package is here (a test keeps it so):
 * :func:`exchange` — two paths swapped in one step (Linux ``renameat2``), for a site
   folder replacing the previous one (:mod:`sdofreport.site.tree`).
 
-The caches (:mod:`sdofreport.cache`, the unit memo) write with ``durable=False``: their
+The caches (:mod:`sdofreport.engine.cache`, the unit memo) write with ``durable=False``: their
 entries carry a SHA-256 that is checked on every read, so one torn by a power cut is
 discarded and recomputed, and a flush per entry (hundreds per build) is not paid.
 

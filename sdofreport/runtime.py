@@ -3,7 +3,7 @@
 Importing sdofreport sets no environment variable, creates no folder and changes no
 other module. The command-line entry point calls :func:`configure` once, before any
 kernel runs; so do the engine's warm-up (the first kernels of a build) and every job a
-worker runs (:func:`sdofreport.jobs.run_job`: a spawned pool worker or a Dask worker
+worker runs (:func:`sdofreport.engine.jobs.run_job`: a spawned pool worker or a Dask worker
 has not run the entry point). A program that calls the core directly may call it too;
 without it the kernels give the same numbers, compiled in each process without numba's
 disk cache and with the processor's default vector width.

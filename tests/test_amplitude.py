@@ -101,13 +101,13 @@ def test_overflowed_values_never_reach_a_page(tmp_path):
 
 
 def test_a_non_finite_intensity_measure_is_a_problem():
-    """The last guard (sdofreport.amplitude.record_problems): any non-finite value of a
+    """The last guard (sdofreport.engine.amplitude.record_problems): any non-finite value of a
     record as used is a problem naming the record, whatever amplitude_ok says (IEEE 754:
     an overflowed square is inf)."""
     import dataclasses
     from types import SimpleNamespace
 
-    from sdofreport.amplitude import record_problems
+    from sdofreport.engine.amplitude import record_problems
     from sdofreport.core.intensity import intensity_measures
     from sdofreport.core.spectra import response_spectrum
 

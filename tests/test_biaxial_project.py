@@ -10,7 +10,7 @@ from sdofreport.engine import run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
 from sdofreport.records.writers import write_two_column
-from sdofreport.results_json import results_document
+from sdofreport.outputs.results_json import results_document
 from tests.conftest import PROJECT_HEAD, synthetic_acceleration
 
 PAIR = """\
@@ -285,7 +285,7 @@ def test_every_kind_runs_in_two_directions_and_its_stripes_use_pairs(paired):
     # two directions. The stripes of a two-direction system run each pair once (Baker
     # 2015 counts: one motion per pair) with the resultant as the demand: the counts
     # equal those of direct two-direction runs of the pair scaled by the stripe's factor.
-    from sdofreport.jobs import biaxial_job, pair_stripe_job
+    from sdofreport.engine.jobs import biaxial_job, pair_stripe_job
 
     text = (PROJECT_HEAD + '[fragility]\nlevels = [0.2, 3.0]\nsystems = ["frame"]\n' +
             PAIR + EVERY_KIND)

@@ -1,4 +1,4 @@
-"""The result cache cannot lie or run code (sdofreport.cache, sdofreport._cachedir).
+"""The result cache cannot lie or run code (sdofreport.engine.cache, sdofreport._cachedir).
 
 Sources of expected values: the values put into the cache are the reference for what
 comes out (numpy.testing.assert_array_equal, bit for bit); SHA-256 per FIPS 180-4 through
@@ -19,8 +19,9 @@ import stat
 import numpy as np
 import pytest
 
-from sdofreport import _cachedir, cache
-from sdofreport.cache import ResultCache
+from sdofreport import _cachedir
+from sdofreport.engine import cache
+from sdofreport.engine.cache import ResultCache
 from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.records import record_from_array
@@ -112,7 +113,7 @@ def test_truncated_and_foreign_entries_are_discarded(tmp_path, caplog):
     swapped = path_a.read_bytes()
     path_a.write_bytes(path_b.read_bytes())
     path_b.write_bytes(swapped)
-    with caplog.at_level(logging.WARNING, logger="sdofreport.cache"):
+    with caplog.at_level(logging.WARNING, logger="sdofreport.engine.cache"):
         assert store.get(KEY_A) is None and store.get(KEY_B) is None
     assert store.discarded == 2 and "another key" in caplog.text
     assert not path_a.exists() and not path_b.exists()  # removed, so reported once
@@ -164,7 +165,9 @@ def test_keys_change_with_the_format_and_the_sources(tmp_path, monkeypatch):
     monkeypatch.setattr(cache, "CACHE_FORMAT", cache.CACHE_FORMAT + 1)
     assert cache.cache_key(payload) != key
     # A copy of the package with one byte of one kernel changed has another fingerprint.
-    package = os.path.dirname(cache.__file__)
+    import sdofreport
+
+    package = os.path.dirname(sdofreport.__file__)  # the fingerprint covers the whole package
     shutil.copytree(package, tmp_path / "pkg", ignore=shutil.ignore_patterns("__pycache__"))
     first = cache.source_fingerprint(tmp_path / "pkg")
     exact = tmp_path / "pkg" / "core" / "exact.py"
@@ -186,7 +189,7 @@ def _shared(path):
 def test_a_folder_others_can_write_is_not_used(tmp_path, caplog):
     shared = _shared(tmp_path / "shared")
     (shared / "cache").mkdir(mode=0o700)
-    with caplog.at_level(logging.WARNING, logger="sdofreport.cache"):
+    with caplog.at_level(logging.WARNING, logger="sdofreport.engine.cache"):
         store = ResultCache(shared / "cache")  # safe itself, but inside a shared folder
         assert store.folder is None
         assert ResultCache(_shared(tmp_path / "open")).folder is None
@@ -254,7 +257,7 @@ def test_a_read_only_cache_serves_and_does_not_stop(tmp_path, caplog):
     with read_only_folder(tmp_path / "cache"):
         read_only = ResultCache(tmp_path / "cache")
         assert read_only.get(KEY_A) == "kept"
-        with caplog.at_level(logging.WARNING, logger="sdofreport.cache"):
+        with caplog.at_level(logging.WARNING, logger="sdofreport.engine.cache"):
             read_only.put(KEY_B, "lost")
             read_only.put("c" * 64, "lost")
         assert read_only.get(KEY_B) is None
@@ -274,3 +277,20 @@ def test_arrays_in_a_key_are_hashed_by_their_values_dtype_and_shape():
     assert cache.cache_key({"x": block.reshape(2, 3)}) != \
         cache.cache_key({"x": block.reshape(3, 2)})
     assert cache.cache_key({"x": [block]}) != cache.cache_key({"x": [block + 1e-12]})
+
+
+def test_the_code_fingerprint_covers_the_whole_package(monkeypatch):
+    # A cached number depends on every module of the package (core kernels, project
+    # loading, the engine), so the fingerprint must read the package root, not only the
+    # folder of the cache module (sdofreport/engine/).
+    import sdofreport
+
+    seen = []
+    monkeypatch.setattr(cache, "source_fingerprint", lambda root: seen.append(root) or "x")
+    cache.code_fingerprint.cache_clear()
+    try:
+        cache.code_fingerprint()
+    finally:
+        cache.code_fingerprint.cache_clear()
+    assert [os.path.realpath(r) for r in seen] == \
+        [os.path.realpath(os.path.dirname(sdofreport.__file__))]

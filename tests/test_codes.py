@@ -20,10 +20,10 @@ from sdofreport.engine import run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
 from sdofreport.project.schema import SCALING_RULES
-from sdofreport.results_json import results_document
+from sdofreport.outputs.results_json import results_document
 from sdofreport.site.context import SiteContext, _suite_curves
-from sdofreport.suite_statistics import spectrum_band
-from sdofreport.suite import period_range
+from sdofreport.engine.suite_statistics import spectrum_band
+from sdofreport.engine.suite import period_range
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD
 from tests.test_suite_scaling import ASCE, _asce_sa
 

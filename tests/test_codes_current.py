@@ -15,7 +15,7 @@ from sdofreport.core.design_spectra import design_spectrum
 from sdofreport.core.spectra_current import asce7_22_spectrum, en1998_1_1_spectrum
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
-from sdofreport.results_json import results_document
+from sdofreport.outputs.results_json import results_document
 from sdofreport.site.context import SiteContext
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD
 from tests.test_codes import _pairs, _run

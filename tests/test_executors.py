@@ -22,7 +22,7 @@ import pytest
 
 from sdofreport.engine import run_project
 from sdofreport.errors import BuildError
-from sdofreport.executors import execute
+from sdofreport.engine.executors import execute
 from sdofreport.project import load_project
 
 
@@ -155,7 +155,7 @@ def test_separate_scheduler_and_worker_processes(project_factory, valid_project_
 
 
 def test_unreachable_scheduler_is_a_user_error(monkeypatch):
-    monkeypatch.setattr("sdofreport.executors.SCHEDULER_TIMEOUT", "2s")
+    monkeypatch.setattr("sdofreport.engine.executors.SCHEDULER_TIMEOUT", "2s")
     jobs = [("a", _square, (2,))]
     with pytest.raises(BuildError, match="cannot reach a Dask scheduler"):
         _collect(jobs, scheduler="tcp://127.0.0.1:9")

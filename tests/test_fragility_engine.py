@@ -13,7 +13,7 @@ import pytest
 from sdofreport.core import fragility as fr
 from sdofreport.core.units import G
 from sdofreport.engine import ResponseResult, run_exceeds, run_project, system_model
-from sdofreport.jobs import stripe_job
+from sdofreport.engine.jobs import stripe_job
 from sdofreport.project import load_project
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD, TWO_RECORDS
 

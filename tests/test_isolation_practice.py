@@ -13,7 +13,7 @@ from sdofreport.engine import run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
 from sdofreport.records.writers import write_two_column
-from sdofreport.results_json import results_document
+from sdofreport.outputs.results_json import results_document
 from tests.conftest import PROJECT_HEAD, synthetic_acceleration
 
 EN = """\
@@ -290,7 +290,7 @@ def test_isolated_range_with_period_keeps_one_tm(project_factory):
         'period_range = "isolated-system"\n' + FPS
     project = load_project(project_factory(text))
     assert project.scaling.isolator is None
-    from sdofreport.suite import period_range
+    from sdofreport.engine.suite import period_range
     assert period_range(project)[0] == pytest.approx((0.75 * 2.4, 1.25 * 2.4), rel=1e-12)
 
 

@@ -1,4 +1,4 @@
-"""Local pool workers end with the process that started them (sdofreport.executors).
+"""Local pool workers end with the process that started them (sdofreport.engine.executors).
 
 Sources of expected values: process states reported by the operating system
 (/proc/<pid>/stat, proc(5)); prctl(2) PR_SET_PDEATHSIG for the Linux mechanism.
@@ -22,7 +22,7 @@ from tests.conftest import process_alive
 # workers idle (blocked on the task queue) or busy, prints their process ids and waits.
 _ORPHANS = r"""
 import sys, time
-from sdofreport.executors import local_pool
+from sdofreport.engine.executors import local_pool
 idle = local_pool(2)
 list(idle.map(time.sleep, [0.01, 0.01]))        # both workers started, now waiting
 busy = local_pool(1)

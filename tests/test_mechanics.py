@@ -11,7 +11,7 @@ from click.testing import CliRunner
 from sdofreport.cli import cli
 from sdofreport.engine import VERDICT_UNSTABLE, run_project
 from sdofreport.errors import ProjectError
-from sdofreport.results_json import results_document
+from sdofreport.outputs.results_json import results_document
 from sdofreport.site.context import SiteContext
 from tests.conftest import PROJECT_HEAD, TWO_RECORDS
 from tests.docs.test_schemas import _validator

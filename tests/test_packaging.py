@@ -13,7 +13,6 @@ on the 2-core reference machine).
 
 from __future__ import annotations
 
-import sys
 import zipfile
 from pathlib import Path
 

@@ -1,5 +1,5 @@
 """Worker processes started by spawn (the default start method on macOS and Windows)
-give the same site, byte for byte, as forked ones (sdofreport.executors.start_method).
+give the same site, byte for byte, as forked ones (sdofreport.engine.executors.start_method).
 
 Sources of expected values: the same project built by the same code with forked workers
 (the Linux default, the path the other tests check against closed forms and scipy);
@@ -14,7 +14,7 @@ import re
 
 import pytest
 
-from sdofreport import executors
+from sdofreport.engine import executors
 from sdofreport.build import build_site
 from sdofreport.errors import BuildError
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD, synthetic_acceleration
@@ -99,7 +99,7 @@ def _build(tmp_path, method: str, caplog) -> tuple[dict[str, bytes], set[str]]:
         # Workers for every phase, however short (the real threshold would keep this
         # small project's jobs in the build process under spawn).
         patch.setitem(executors.POOL_START_SECONDS, method, 1e-12)
-        with caplog.at_level(logging.DEBUG, logger="sdofreport.executors"):
+        with caplog.at_level(logging.DEBUG, logger="sdofreport.engine.executors"):
             build_site(folder / "sdofreport.toml", folder / "site", jobs=2,
                        cache_dir=folder / "cache")
     started = {m.group(2) for m in (re.match(r"starting \d+ (\w+) worker\(s\) for (.+)",

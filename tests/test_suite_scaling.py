@@ -8,7 +8,7 @@ import pytest
 from sdofreport.errors import ProjectError
 from sdofreport.engine import run_project
 from sdofreport.project import load_project
-from sdofreport.results_json import results_document
+from sdofreport.outputs.results_json import results_document
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD
 
 # Both components from the same file: identical components, so RotD100 = √2 SD and

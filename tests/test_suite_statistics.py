@@ -14,12 +14,13 @@ import numpy as np
 import pytest
 from scipy import stats
 
-from sdofreport import engine, results_types
+from sdofreport import engine
+from sdofreport.engine import results_types
 from sdofreport.core.units import G
 from sdofreport.engine import run_project
 from sdofreport.project import load_project
 from sdofreport.site.context import SiteContext
-from sdofreport.suite_statistics import spectrum_band
+from sdofreport.engine.suite_statistics import spectrum_band
 
 
 def test_spectrum_band_is_scipys_geometric_mean_and_standard_deviation():

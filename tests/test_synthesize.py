@@ -12,7 +12,7 @@ from scipy import signal
 
 from sdofreport.cli.synthesize import register
 from sdofreport.core.units import G
-from sdofreport.synthesize import parse_target
+from sdofreport.authoring.synthesize import parse_target
 
 INLINE = "asce7-16:sds=1.0,sd1=0.6,tl=8"
 FAST = ["--duration", "20", "--range", "0.05,2"]

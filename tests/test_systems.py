@@ -10,7 +10,7 @@ import pytest
 from sdofreport.engine import run_project
 from sdofreport.errors import ProjectError
 from sdofreport.project import load_project
-from sdofreport.results_json import results_document
+from sdofreport.outputs.results_json import results_document
 from tests.conftest import PROJECT_HEAD, TWO_RECORDS
 
 G = 9.80665  # ISO 80000-3 standard gravity [m/s²]

@@ -1,5 +1,5 @@
 """Cold builds with local workers read the records in a worker process while the build
-process loads the compiled kernels (sdofreport.engine._records_while_warming).
+process loads the compiled kernels (sdofreport.engine.warmup._records_while_warming).
 
 Sources of expected values: the records, errors and results of the same project read and
 computed in one process (sdofreport.engine.load_records, run_project with jobs=1, the
@@ -17,7 +17,7 @@ import numpy as np
 import pytest
 
 from sdofreport import engine
-from sdofreport.cache import ResultCache
+from sdofreport.engine.cache import ResultCache
 from sdofreport.errors import RecordError
 from sdofreport.project import load_project
 from tests.conftest import EXAMPLE
@@ -26,7 +26,7 @@ def test_records_read_while_warming_equal_records_read_here(project_factory,
                                                             valid_project_text, tmp_path):
     project = load_project(project_factory(valid_project_text))
     here = engine.load_records(project, ResultCache(None))
-    forked = engine._records_while_warming(project, ResultCache(tmp_path / "cache"))
+    forked = engine.warmup._records_while_warming(project, ResultCache(tmp_path / "cache"))
     assert [r.id for r in forked] == [r.id for r in here]
     for a, b in zip(forked, here):
         np.testing.assert_array_equal(a.acceleration_m_s2, b.acceleration_m_s2)
@@ -43,7 +43,7 @@ def test_record_error_in_the_reader_is_reported_as_here(project_factory,
     with pytest.raises(RecordError) as here:
         engine.load_records(project, ResultCache(None))
     with pytest.raises(RecordError) as forked:
-        engine._records_while_warming(project, ResultCache(tmp_path / "cache"))
+        engine.warmup._records_while_warming(project, ResultCache(tmp_path / "cache"))
     assert forked.value.message == here.value.message
 
 
@@ -51,10 +51,10 @@ def test_only_a_build_that_computes_counts_as_cold(project_factory, valid_projec
                                                    tmp_path):
     project = load_project(project_factory(valid_project_text))
     cache = ResultCache(tmp_path / "cache")
-    assert engine._probably_cold(project, cache)
-    assert engine._probably_cold(project, ResultCache(None))
+    assert engine.warmup._probably_cold(project, cache)
+    assert engine.warmup._probably_cold(project, ResultCache(None))
     engine.run_project(project, jobs=1, cache_dir=tmp_path / "cache")
-    assert not engine._probably_cold(project, cache)
+    assert not engine.warmup._probably_cold(project, cache)
 
 
 def test_cold_two_worker_build_matches_one_process(project_factory, valid_project_text,
@@ -77,8 +77,8 @@ configure()  # first, as the command line does: numba's cache at the per-user fo
 import numba
 from sdofreport.core._jit import _Kernel
 from sdofreport import engine
-from sdofreport.cache import ResultCache
-from sdofreport.jobs import run_job
+from sdofreport.engine.cache import ResultCache
+from sdofreport.engine.jobs import run_job
 from sdofreport.project import load_project
 import importlib, pkgutil
 import sdofreport.core
@@ -97,7 +97,7 @@ project = load_project(sys.argv[1])
 engine.warm_kernels(project)
 after_warm_up = loaded()
 for record in engine.load_records(project, ResultCache(None)):
-    run_job("record", engine._record_args(record, project.analysis))
+    run_job("record", engine.plan._record_args(record, project.analysis))
 print(json.dumps({"warm": after_warm_up, "real": loaded()}))
 """
 
@@ -149,7 +149,7 @@ def test_later_warm_up_shares_cover_every_step_once_and_shorten_the_longer():
     sdofreport.engine; the splits are enumerated here by itertools)."""
     from itertools import combinations
 
-    from sdofreport.engine import _COMPILE_COST_S, later_shares
+    from sdofreport.engine.warmup import _COMPILE_COST_S, later_shares
 
     def longer(reader, builder):
         return max(sum(_COMPILE_COST_S[n] for n in reader),

@@ -24,7 +24,7 @@ from sdofreport.archive._sitefiles import (
     read_bounded,
 )
 from sdofreport.archive._zipfiles import read_zip
-from sdofreport.serialize import json_text
+from sdofreport.outputs.serialize import json_text
 from sdofreport.site.display import DISPLAY_UNITS, Display, number
 from sdofreport.site.render import MANIFEST_NAME
 

@@ -32,7 +32,7 @@ from sdofreport.archive._sitefiles import (
 )
 from sdofreport.archive.verify import verify_files
 from sdofreport.project.model import natural_key
-from sdofreport.serialize import json_text
+from sdofreport.outputs.serialize import json_text
 from sdofreport.site.render import MANIFEST_NAME
 from sdofreport.site.tree import write_tree
 

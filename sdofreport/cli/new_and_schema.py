@@ -24,7 +24,7 @@ def new_command(folder):
     Example:
       sdofreport new pump_house && sdofreport build pump_house/sdofreport.toml -o _site
     """
-    from sdofreport.starter import PROJECT_FILE, write_starter
+    from sdofreport.authoring.starter import PROJECT_FILE, write_starter
 
     written = write_starter(folder)
     click.echo(f"Wrote {len(written)} files into {folder}. Next:\n"

@@ -6,7 +6,7 @@ from sdofreport.core.intensity import intensity_measures
 from sdofreport.core.spectra import default_periods, response_spectrum
 from sdofreport.errors import SdofreportError
 from sdofreport.records import read_record
-from sdofreport.serialize import (
+from sdofreport.outputs.serialize import (
     intensity_to_dict,
     record_summary,
     spectrum_csv_header,

@@ -60,7 +60,7 @@ def synthesize_command(target, count, duration_s, dt_s, seed, envelope, range_te
     Example:
       sdofreport synthesize --target asce7-16:sds=1.0,sd1=0.6,tl=8 --count 3 -o syn
     """
-    from sdofreport.synthesize import EUROCODE_NOTE, parse_target, synthesize
+    from sdofreport.authoring.synthesize import EUROCODE_NOTE, parse_target, synthesize
 
     parsed = parse_target(target)
     period_range = _range(range_text)

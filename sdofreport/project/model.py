@@ -256,7 +256,7 @@ class SystemSpec:
     @property
     def is_isolator(self) -> bool:
         """A sliding pendulum of finite radius, or a bilinear yielding system (an
-        isolator whose bounds and T_M sdofreport.isolation_bounds computes)."""
+        isolator whose bounds and T_M sdofreport.engine.isolation_bounds computes)."""
         if self.model_name == "sliding-pendulum":
             return self.model["radius_m"] != float("inf")
         return self.model_name == "bilinear"

@@ -49,7 +49,7 @@ PROVENANCE_KEYS = ("event", "station", "magnitude", "distance_km", "vs30_m_s", "
 PROVENANCE_RANGES = {"magnitude": (0.0, 10.0, True), "distance_km": (0.0, 20000.0, True),
                      "vs30_m_s": (0.0, 10000.0, False)}
 
-#: Intensity measures of the fragility stripes (sdofreport.jobs.stripe_job).
+#: Intensity measures of the fragility stripes (sdofreport.engine.jobs.stripe_job).
 FRAGILITY_MEASURES = ("sa", "pga")
 
 #: Components of a horizontal pair.

@@ -12,7 +12,8 @@ from importlib import metadata
 
 import numpy as np
 
-from sdofreport import __version__, codes, vertical_suite
+from sdofreport import __version__, codes
+from sdofreport.engine import vertical_suite
 from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.processing import pad_length_s
 from sdofreport.core.units import G
@@ -22,10 +23,10 @@ from sdofreport.project.ids import SAFE_ID, SAFE_ID_TEXT
 from sdofreport.project.schema import HYSTERESIS_PARAMETER_KEYS
 from sdofreport.site import design_formulas, provenance
 from sdofreport.site.display import CHECK_LABELS, Display, number
-from sdofreport.suite import usable_period_max_s
+from sdofreport.engine.suite import usable_period_max_s
 from sdofreport.site.notes import render_notes
-from sdofreport.results_json import signoff_block
-from sdofreport.results_types import Convergence, SpectrumBand
+from sdofreport.outputs.results_json import signoff_block
+from sdofreport.engine.results_types import Convergence, SpectrumBand
 
 CAUTION_SHORT = ("These results support, but never replace, the judgement of a licensed "
                  "engineer. The governing local code and the authority having jurisdiction "
@@ -1019,7 +1020,7 @@ def _design_label(design) -> str:
 def _suite_curves(names: list[str], stack, band: SpectrumBand) -> list[dict]:
     """Each curve, the log-normal band (geometric mean ± 1σ of ln) and the arithmetic
     suite mean, the statistic the scaling criteria test (``band``, computed by the
-    engine: sdofreport.suite_statistics)."""
+    engine: sdofreport.engine.suite_statistics)."""
     curves = [{"label": name, "values": stack[i], "style": "record"}
               for i, name in enumerate(names)]
     curves.append({"label": "log-normal: geometric mean ± 1σ of ln",

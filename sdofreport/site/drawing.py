@@ -18,7 +18,7 @@ from pathlib import Path
 
 
 from sdofreport import __version__
-from sdofreport.executors import local_pool, process_context, worker_state
+from sdofreport.engine.executors import local_pool, process_context, worker_state
 from sdofreport.site.context import FigureSpec
 from sdofreport.site.tree import write_file
 
@@ -38,9 +38,9 @@ def draw_figure(spec: FigureSpec) -> str:
 
 
 def figure_key(spec: FigureSpec) -> str:
-    """Cache key of a figure (:func:`sdofreport.cache.cache_key`): its function, its
+    """Cache key of a figure (:func:`sdofreport.engine.cache.cache_key`): its function, its
     arguments (arrays by digest) and the versions that draw it."""
-    from sdofreport.cache import cache_key
+    from sdofreport.engine.cache import cache_key
     from sdofreport.site.figures import matplotlib_version
 
     return cache_key({"version": __version__, "job": "figure",
@@ -72,7 +72,7 @@ def _write_figures(specs: list[FigureSpec], folder: str, cache, made: set[str]) 
 @dataclass
 class _Drawing:
     """What the workers of one :class:`FigureWriter` are started with (the ``state`` of
-    :func:`sdofreport.executors.local_pool`): the figures in drawing order, the tree
+    :func:`sdofreport.engine.executors.local_pool`): the figures in drawing order, the tree
     folder, the figure cache and the shared counter of the next figure to claim."""
 
     specs: list[FigureSpec]

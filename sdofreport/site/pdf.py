@@ -211,7 +211,7 @@ def _revision_page(results, fingerprint: str, site_dir: Path | None):
     was built with ``--compare-to``: from the earlier results it keeps as an input and
     this build's results, as the build made it; else None."""
     from sdofreport.archive.compare import REVISION_TEMPLATE, revision_context
-    from sdofreport.results_json import results_document
+    from sdofreport.outputs.results_json import results_document
     from sdofreport.site.context import Page
     from sdofreport.site.render import COMPARE_TO_FINGERPRINT, COMPARE_TO_INPUT
 

@@ -23,8 +23,8 @@ from sdofreport import __version__
 from sdofreport.engine import Results
 from sdofreport.errors import BuildError
 from sdofreport.fsio import move_into_place
-from sdofreport.results_json import checks_csv, peaks_csv, results_document, spectra_csv
-from sdofreport.serialize import json_text as _json_text
+from sdofreport.outputs.results_json import checks_csv, peaks_csv, results_document, spectra_csv
+from sdofreport.outputs.serialize import json_text as _json_text
 from sdofreport.site.context import SiteContext, dependency_versions, record_figures
 from sdofreport.site.drawing import FigureWriter
 from sdofreport.site.spreadsheet import results_workbook

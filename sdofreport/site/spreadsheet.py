@@ -124,7 +124,7 @@ def results_workbook(document: dict) -> bytes:
     Parameters
     ----------
     document : dict
-        The results document (``sdofreport.results_json.results_document``); values are
+        The results document (``sdofreport.outputs.results_json.results_document``); values are
         SI with the unit in the column name, as in the JSON.
 
     Returns

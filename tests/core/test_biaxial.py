@@ -11,7 +11,7 @@ from scipy import signal
 from sdofreport.core import hysteresis, nonlinear
 from sdofreport.core.biaxial import biaxial_elastic, biaxial_plastic, friction_at
 from sdofreport.core.units import G
-from sdofreport.jobs import biaxial_job
+from sdofreport.engine.jobs import biaxial_job
 from tests.core.conftest import enveloped_noise
 
 DT = 0.01

@@ -13,7 +13,7 @@ from sdofreport.core import hysteresis, nonlinear
 from sdofreport.core.rotd import rotated_peaks
 from sdofreport.core.spectra import oscillator_histories
 from sdofreport.core.units import G
-from sdofreport.jobs import biaxial_job, pair_stripe_job
+from sdofreport.engine.jobs import biaxial_job, pair_stripe_job
 from tests.core.conftest import enveloped_noise
 
 DT = 0.01

@@ -16,7 +16,7 @@ import pytest
 from sdofreport.core.units import G
 from sdofreport.project import load_project
 from sdofreport.records import read_record
-from sdofreport.starter import STARTER_MOTIONS, starter_files, write_starter
+from sdofreport.authoring.starter import STARTER_MOTIONS, starter_files, write_starter
 
 from .conftest import invoke, read_site
 

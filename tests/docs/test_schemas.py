@@ -19,7 +19,7 @@ from sdofreport.core.design_spectra import DESIGN_SPECTRUM_KINDS
 from sdofreport.core.spectra import SPECTRUM_METHODS
 from sdofreport.project.check_quantities import results_schema_rules
 from sdofreport.project.schema import SCALING_RULES, STATISTICS, SYSTEM_KINDS
-from sdofreport.results_json import RESULTS_SCHEMA
+from sdofreport.outputs.results_json import RESULTS_SCHEMA
 from sdofreport.schemas import SCHEMA_NAMES, load_schema, schema_text
 from sdofreport.site.render import MANIFEST_SCHEMA
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD, write_test_records

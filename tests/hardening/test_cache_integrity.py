@@ -1,5 +1,5 @@
 """A damaged or rearranged cache never changes a site: entries are discarded, recomputed
-and reported (sdofreport.cache), figures included.
+and reported (sdofreport.engine.cache), figures included.
 
 Source of expected values: the byte snapshot of the good site built with a clean cache
 (tests/hardening/conftest.py); a build that recomputes must give the same bytes
@@ -34,7 +34,7 @@ def test_one_flipped_bit_in_any_entry_is_never_served(good_build, tmp_path, capl
         position = rng.randrange(len(data))
         data[position] ^= 1 << rng.randrange(8)
         path.write_bytes(bytes(data))
-    with caplog.at_level(logging.WARNING, logger="sdofreport.cache"):
+    with caplog.at_level(logging.WARNING, logger="sdofreport.engine.cache"):
         result = _build(good_build, cache, tmp_path / "site")
     assert result.exit_code == 0, (result.output, result.exception)
     assert snapshot(tmp_path / "site") == good_build["snapshot"]
@@ -42,7 +42,7 @@ def test_one_flipped_bit_in_any_entry_is_never_served(good_build, tmp_path, capl
     # Flips inside the header's padding can leave an entry intact; all others are found.
     assert reported >= len(entries) - 2, caplog.text
     caplog.clear()
-    with caplog.at_level(logging.WARNING, logger="sdofreport.cache"):
+    with caplog.at_level(logging.WARNING, logger="sdofreport.engine.cache"):
         again = _build(good_build, cache, tmp_path / "site")
     assert again.exit_code == 0 and "discarded" not in caplog.text  # stored afresh
 

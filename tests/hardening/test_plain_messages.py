@@ -132,7 +132,7 @@ def test_full_disk_names_the_file_of_every_writer(tmp_path, monkeypatch, writer)
             writers.write_two_column(target, 0.01, [0.0, 0.1, 0.0], units="g")
         assert list(tmp_path.iterdir()) == []  # no temporary file left behind
     else:
-        from sdofreport import starter
+        from sdofreport.authoring import starter
 
         def full(self, data):
             raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))

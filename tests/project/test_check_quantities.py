@@ -27,7 +27,7 @@ from sdofreport.project.check_quantities import CHECK_QUANTITIES
 from sdofreport.project.model import Limits
 from sdofreport.project.quantities import DIMENSIONS
 from sdofreport.project.schema import SECTIONS
-from sdofreport.run_inputs import _si_name
+from sdofreport.outputs.run_inputs import _si_name
 from sdofreport.site.display import CHECK_LABELS, DISPLAY_UNITS, Display
 from tests.conftest import ONE_SYSTEM, PROJECT_HEAD, TWO_RECORDS
 
@@ -106,7 +106,7 @@ registry.CHECK_QUANTITIES = {**registry.CHECK_QUANTITIES,
 
 from sdofreport import engine
 from sdofreport.project import load_project
-from sdofreport.results_json import checks_csv
+from sdofreport.outputs.results_json import checks_csv
 from sdofreport.site.display import CHECK_LABELS, Display
 
 sys.path.insert(0, sys.argv[2])
@@ -118,7 +118,7 @@ records = project.records_for(system)
 responses = {(system.id, r.id): engine.ResponseResult(
     system.id, r.id, 0.01, 0.1, 1.0, None, None, np.zeros(0), np.zeros(0), np.zeros(0),
     peak_force_n=force) for r, force in zip(records, (250e3, 350e3))}
-checks = engine._checks(project, responses, "max")
+checks = engine.results._checks(project, responses, "max")
 print(json.dumps({
     "limits": system.limits.items(), "field": system.limits.restoring_force_n,
     "checks": [[c.quantity, c.demand, c.ratio, c.verdict] for c in checks],
@@ -155,7 +155,7 @@ def test_adding_a_quantity_needs_only_its_registry_entry(project_factory):
 
 @pytest.mark.parametrize("module, forbidden", [
     # results.json is written below the site: it reads the registry, not site.display.
-    ("sdofreport.results_json", ("sdofreport.site", "sdofreport.archive")),
+    ("sdofreport.outputs.results_json", ("sdofreport.site", "sdofreport.archive")),
     # The core and the records (with the number rule) read nothing above them.
     ("sdofreport.core.builders", ("sdofreport.project", "sdofreport.site",
                                   "sdofreport.records")),

@@ -335,8 +335,8 @@ def test_ids_are_put_in_natural_order():
 def test_records_and_pairs_follow_natural_order(project_factory):
     """Records listed as r10, r2, r1 in the file come out r1, r2, r10; pairs P10, P2
     come out P2, P10 (motions and pairs of the suite)."""
-    from sdofreport.engine import _pairs
-    from sdofreport.suite import motions
+    from sdofreport.engine.plan import _pairs
+    from sdofreport.engine.suite import motions
 
     text = PROJECT_HEAD + "\n" + "\n".join(
         f'[[records]]\nid = "{rid}"\nfile = "records/r1.csv"\npair = "{pair}"\n'

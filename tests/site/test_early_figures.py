@@ -60,14 +60,14 @@ def test_build_with_workers_equals_build_in_one_process(project_factory,
 def test_failure_after_early_figures_leaves_nothing(project_factory, valid_project_text,
                                                     tmp_path, monkeypatch):
     path = project_factory(valid_project_text)
-    real = engine._Phase.run
+    real = engine.run._Phase.run
 
     def fail_on_responses(self, plan):
         if plan and plan[0][1] == "responses":
             raise BuildError("stopped for the test after the record figures started")
         return real(self, plan)
 
-    monkeypatch.setattr(engine._Phase, "run", fail_on_responses)
+    monkeypatch.setattr(engine.run._Phase, "run", fail_on_responses)
     out = tmp_path / "out" / "site"
     with pytest.raises(BuildError, match="stopped for the test"):
         build_site(path, out, jobs=2, use_cache=False)

@@ -3,7 +3,7 @@
 Sources of expected values:
 
 * JSON: the Python standard library's ``json.dumps(document, indent=1,
-  ensure_ascii=False, allow_nan=False)`` (what ``sdofreport.serialize.json_text``
+  ensure_ascii=False, allow_nan=False)`` (what ``sdofreport.outputs.serialize.json_text``
   writes) and ``json.loads``.
 * CSV: the Python standard library's ``csv.writer(..., lineterminator="\\n")`` over rows
   built value by value in this file (each ``array[i, j] * scale`` as a numpy scalar,
@@ -26,8 +26,8 @@ from hypothesis import strategies as st
 
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
-from sdofreport.results_json import results_document, spectra_csv
-from sdofreport.serialize import (
+from sdofreport.outputs.results_json import results_document, spectra_csv
+from sdofreport.outputs.serialize import (
     SPECTRUM_CSV_COLUMNS,
     array_to_list,
     json_text,

@@ -106,7 +106,7 @@ class InelasticSpectra:
 
 
 # ---------------------------------------------------------------------------------------
-# Suite statistics: computed once by the engine (sdofreport.suite_statistics)
+# Suite statistics: computed once by the engine (sdofreport.engine.suite_statistics)
 
 
 @dataclass(frozen=True)

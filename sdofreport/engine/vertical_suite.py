@@ -137,7 +137,7 @@ def compute_vertical(project, spectra: dict, scaled: bool) -> VerticalScaling | 
 
 def attach_vertical(scaling, project, spectra: dict) -> None:
     """Compute the vertical scaling and put it and its factors on ``scaling``
-    (:class:`sdofreport.suite.SuiteScaling`), so the engine scales the vertical records
+    (:class:`sdofreport.engine.suite.SuiteScaling`), so the engine scales the vertical records
     and the vertical systems run under them."""
     found = compute_vertical(project, spectra, scaling.rule != "none")
     scaling.vertical = found

@@ -44,7 +44,7 @@ import numpy as np
 from sdofreport._cachedir import private_folder, report_unusable, user_cache_dir
 from sdofreport.fsio import write_atomically
 
-log = logging.getLogger("sdofreport.cache")
+log = logging.getLogger("sdofreport.engine.cache")
 
 #: Version of the entry format and of the encoding; part of every key and every header.
 CACHE_FORMAT = 2
@@ -113,7 +113,7 @@ def code_fingerprint() -> str:
                 break
         else:
             parts.append(f"{library} ?")
-    parts.append(source_fingerprint(Path(__file__).resolve().parent))
+    parts.append(source_fingerprint(Path(__file__).resolve().parents[1]))
     return hashlib.sha256("|".join(parts).encode()).hexdigest()
 
 

@@ -14,16 +14,16 @@ from sdofreport.core.fragility import STATISTIC_KEYS
 from sdofreport.core.units import G
 from sdofreport.engine import Results
 from sdofreport.project.check_quantities import CHECK_QUANTITIES
-from sdofreport.results_types import BoundRuns
-from sdofreport.run_inputs import inputs_block
-from sdofreport.serialize import (
+from sdofreport.engine.results_types import BoundRuns
+from sdofreport.outputs.run_inputs import inputs_block
+from sdofreport.outputs.serialize import (
     array_to_list,
     finite_or_none,
     intensity_to_dict,
     spectrum_csv_header,
     spectrum_csv_rows,
 )
-from sdofreport.suite import usable_period_max_s
+from sdofreport.engine.suite import usable_period_max_s
 
 RESULTS_SCHEMA = "sdofreport/results@1"
 

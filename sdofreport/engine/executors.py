@@ -27,7 +27,7 @@ from typing import Any, Callable
 
 from sdofreport.errors import BuildError
 
-log = logging.getLogger("sdofreport.executors")
+log = logging.getLogger("sdofreport.engine.executors")
 
 #: How long to wait for a Dask scheduler to answer before giving up.
 SCHEDULER_TIMEOUT = "20s"

@@ -19,11 +19,11 @@ from sdofreport.core import processing as core_processing
 from sdofreport.core import scaling as core_scaling
 from sdofreport.core.design_spectra import design_spectrum, en1998_1_parameters
 from sdofreport.core.units import G
-from sdofreport.isolation_bounds import isolation_periods
+from sdofreport.engine.isolation_bounds import isolation_periods
 from sdofreport.project.model import natural_key
 
 if TYPE_CHECKING:  # vertical_suite imports this module
-    from sdofreport.vertical_suite import VerticalScaling
+    from sdofreport.engine.vertical_suite import VerticalScaling
 
 #: Damping ratio of the spectra that rules naming no edition ("fit") read, and of the
 #: pairs' RotD spectra: 5 %, the target damping of every edition in sdofreport.codes.
@@ -64,7 +64,7 @@ class SuiteScaling:
     #: period_range "isolated-system" with an isolator system: {"upper", "lower"} ->
     #: core IsolatedPeriod (T_M at that bound), and "system", "clause"; else None
     isolation: dict | None = None
-    #: the vertical target and the vertical records' scaling (sdofreport.vertical_suite)
+    #: the vertical target and the vertical records' scaling (sdofreport.engine.vertical_suite)
     vertical: VerticalScaling | None = None
 
     def history_note(self, record_id: str, factor: float) -> str:

@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from sdofreport.core.units import G
-from sdofreport.results_types import (
+from sdofreport.engine.results_types import (
     InelasticMeans,
     PeakStatistics,
     SpectrumBand,
