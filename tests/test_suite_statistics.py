@@ -15,7 +15,7 @@ import pytest
 from scipy import stats
 
 from sdofreport import engine
-from sdofreport.engine import results_types
+from sdofreport.engine import isolation_bounds, results_types, suite, vertical_suite
 from sdofreport.core.units import G
 from sdofreport.engine import run_project
 from sdofreport.project import load_project
@@ -86,6 +86,8 @@ _CATCH_ALL = re.compile(r"\b(object|Any)\b|\b(dict|tuple|list)\b(?!\[)")
 @pytest.mark.parametrize("cls", [engine.RecordResult, engine.PairResult,
                                  engine.ResponseResult, engine.Check,
                                  engine.FragilityResult, engine.Results,
+                                 suite.SuiteScaling, vertical_suite.VerticalScaling,
+                                 isolation_bounds.IsolationPeriods,
                                  *(getattr(results_types, name)
                                    for name in results_types.__all__)])
 def test_result_fields_have_types(cls):

@@ -15,12 +15,14 @@ Isolation practice around the engine: bound models and T_M at the bounds.
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 import numpy as np
 
 from sdofreport.core.design_spectra import design_spectrum
 from sdofreport.core.hysteresis import collapse_displacement
 from sdofreport.core.isolation import (
+    IsolatedPeriod,
     bilinear_bound_properties,
     bilinear_effective_properties,
     isolated_period,
@@ -76,7 +78,27 @@ def _mce_target(design):
     return lambda t: float(np.asarray(spectrum.sa_g(np.array([t]))).ravel()[0])
 
 
-def isolation_periods(project, option) -> dict:
+@dataclass(frozen=True)
+class IsolationPeriods:
+    """T_M of the isolated-system period range at the two bounds (ASCE/SEI 7-16 §17.3.3,
+    from memory): the range runs from 0.75 T_M at the upper-bound properties to 1.25 T_M
+    at the lower-bound properties."""
+
+    #: id of the isolator system (``[scaling] isolator``)
+    system: str
+    #: the clause the range comes from (shown on the suite page)
+    clause: str
+    #: T_M and its effective properties at the upper-bound properties
+    upper: IsolatedPeriod
+    #: T_M and its effective properties at the lower-bound properties
+    lower: IsolatedPeriod
+
+    def runs(self) -> dict[str, IsolatedPeriod]:
+        """``{"upper": ..., "lower": ...}`` in the order results.json writes them."""
+        return {"upper": self.upper, "lower": self.lower}
+
+
+def isolation_periods(project, option) -> IsolationPeriods:
     """
     T_M at the upper- and the lower-bound properties of ``[scaling] isolator``.
 
@@ -88,9 +110,9 @@ def isolation_periods(project, option) -> dict:
 
     Returns
     -------
-    dict
-        ``{"upper": IsolatedPeriod, "lower": IsolatedPeriod}``; without
-        ``property_factors`` both are the nominal properties.
+    IsolationPeriods
+        T_M at the upper and the lower bound; without ``property_factors`` both are the
+        nominal properties.
 
     Raises
     ------
@@ -112,4 +134,4 @@ def isolation_periods(project, option) -> dict:
                 f"T_M is not defined; check the isolator's properties, or give T_M as "
                 f"[scaling] period without isolator")
         out[run] = found
-    return out
+    return IsolationPeriods(system=system.id, clause=option.isolation_clause, **out)

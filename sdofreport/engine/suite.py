@@ -19,7 +19,7 @@ from sdofreport.core import processing as core_processing
 from sdofreport.core import scaling as core_scaling
 from sdofreport.core.design_spectra import design_spectrum, en1998_1_parameters
 from sdofreport.core.units import G
-from sdofreport.engine.isolation_bounds import isolation_periods
+from sdofreport.engine.isolation_bounds import IsolationPeriods, isolation_periods
 from sdofreport.project.model import natural_key
 
 if TYPE_CHECKING:  # vertical_suite imports this module
@@ -35,7 +35,7 @@ class SuiteScaling:
     rule: str
     factors: dict[str, float]  # record id -> factor applied on top of its `scale`
     period_range_s: tuple[float, float] | None
-    result: object | None = None  # core ScalingResult, None for rule "none"
+    result: core_scaling.ScalingResult | None = None  # None for rule "none"
     motions: list[tuple[str, list[str]]] = field(default_factory=list)  # (name, record ids)
     notes: list[str] = field(default_factory=list)
     #: edition and chapter, as text; None for rules naming no standard
@@ -63,7 +63,7 @@ class SuiteScaling:
     memory_note: str = ""
     #: period_range "isolated-system" with an isolator system: {"upper", "lower"} ->
     #: core IsolatedPeriod (T_M at that bound), and "system", "clause"; else None
-    isolation: dict | None = None
+    isolation: IsolationPeriods | None = None
     #: the vertical target and the vertical records' scaling (sdofreport.engine.vertical_suite)
     vertical: VerticalScaling | None = None
 
@@ -101,8 +101,8 @@ def period_range(project) -> tuple[tuple[float, float], str | None, str]:
     option = codes.period_range_option(spec.rule, name)
     if option.damping_coefficient is not None and spec.isolator is not None:
         bounds = isolation_periods(project, option)
-        low = bounds["upper"].effective.period_s  # 0.75 T_M at the upper bound
-        high = bounds["lower"].effective.period_s  # 1.25 T_M at the lower bound
+        low = bounds.upper.effective.period_s  # 0.75 T_M at the upper bound
+        high = bounds.lower.effective.period_s  # 1.25 T_M at the lower bound
     elif option.needs_period:
         low = high = spec.period_s
     else:
@@ -282,11 +282,10 @@ def compute_scaling(project, spectra: dict, pairs: dict) -> SuiteScaling:
         isolation=_isolation(project, option))
 
 
-def _isolation(project, name: str | None) -> dict | None:
+def _isolation(project, name: str | None) -> IsolationPeriods | None:
     """T_M at both bounds when the range is "isolated-system" of an isolator system."""
     option = codes.period_range_option(project.scaling.rule, name or "")
     if option is None or option.damping_coefficient is None or \
             project.scaling.isolator is None:
         return None
-    return {**isolation_periods(project, option), "system": project.scaling.isolator,
-            "clause": option.isolation_clause}
+    return isolation_periods(project, option)

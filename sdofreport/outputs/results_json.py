@@ -189,18 +189,18 @@ def _isolation_block(system, results) -> dict:
     return block
 
 
-def _isolation_periods_block(isolation: dict | None) -> dict:
+def _isolation_periods_block(isolation) -> dict:
     """``scaling.isolation_periods``: T_M at the upper and the lower bound (SI)."""
     if not isolation:
         return {}
-    return {"isolation_periods": {"system": isolation["system"], **{run: {
+    return {"isolation_periods": {"system": isolation.system, **{run: {
         "period_s": found.effective.period_s,
         "displacement_m": found.effective.displacement_m,
         "stiffness_n_m": found.effective.stiffness_n_m,
         "damping": found.effective.damping,
         "damping_coefficient": found.damping_coefficient,
-        "spectral_accel_g": found.spectral_accel_g} for run, found in isolation.items()
-        if run in ("upper", "lower")}}}
+        "spectral_accel_g": found.spectral_accel_g}
+        for run, found in isolation.runs().items()}}}
 
 
 def _vertical_block(vertical) -> dict:

@@ -1088,23 +1088,23 @@ _TWO_DIRECTION_RULES = {
 }
 
 
-def _isolation_facts(isolation: dict | None, d) -> list[tuple[str, str]]:
+def _isolation_facts(isolation, d) -> list[tuple[str, str]]:
     """T_M at the upper and the lower bound of the isolated-system range, with D_M, k_M,
     β_M, B_M and S_a(T_M), and the clauses (none without an isolator system)."""
     if not isolation:
         return []
     rows = []
     for run, factor, end in (("upper", 0.75, "lower end"), ("lower", 1.25, "upper end")):
-        found = isolation[run]
+        found = isolation.runs()[run]
         e = found.effective
-        rows.append((f"T_M at the {run}-bound properties of {isolation['system']}",
+        rows.append((f"T_M at the {run}-bound properties of {isolation.system}",
                      f"{number(e.period_s)} s ({end}: {factor:g} T_M = "
                      f"{number(factor * e.period_s)} s): D_M = "
                      f"{d.show(e.displacement_m, 'length')}, k_M = "
                      f"{d.show(e.stiffness_n_m, 'stiffness')}, β_M = "
                      f"{100 * e.damping:.3g} %, B_M = {number(found.damping_coefficient)}, "
                      f"S_a(T_M) = {number(found.spectral_accel_g)} g"))
-    rows.append(("T_M, formula", isolation["clause"] + "; k_M, β_M: pendulum k = W/R + "
+    rows.append(("T_M, formula", isolation.clause + "; k_M, β_M: pendulum k = W/R + "
                  "μW/D, β = (2/π) μ/(μ + D/R); bilinear k = Q_d/D + k_d, β = 4 Q_d (D − "
                  "D_y)/(2π k D²) (sdofreport.core.isolation); the bound properties from "
                  "property_factors"))
