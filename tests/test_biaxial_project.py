@@ -294,7 +294,7 @@ def test_every_kind_runs_in_two_directions_and_its_stripes_use_pairs(paired):
     results = run_project(project, jobs=1, use_cache=False)
     frame = results.response("frame", "a1")
     assert frame.directions == 2 and frame.peak_damper_force_n > 0
-    assert frame.energy["imbalance"] < 1e-6  # Uang & Bertero (1990) balance
+    assert frame.energy.imbalance < 1e-6  # Uang & Bertero (1990) balance
     assert results.response("lamp", "a2").directions == 2
     fragility = next(f for f in results.fragility if f.system_id == "frame")
     assert list(fragility.fit.motions) == [1, 1]
