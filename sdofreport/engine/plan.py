@@ -5,24 +5,18 @@ from __future__ import annotations
 
 import dataclasses
 import hashlib
-from typing import TYPE_CHECKING
 
 import numpy as np
 
 from sdofreport import __version__
-from sdofreport.engine.amplitude import header_unit_problem
-from sdofreport.engine.cache import ResultCache, array_digest, cache_key
 from sdofreport.core.spectra import ResponseSpectrum
 from sdofreport.core.units import G
-from sdofreport.errors import RecordError
+from sdofreport.engine.amplitude import header_unit_problem
+from sdofreport.engine.cache import ResultCache, array_digest, cache_key
 from sdofreport.engine.isolation_bounds import BOUND_RUNS, bound_model
+from sdofreport.errors import RecordError
 from sdofreport.project.model import Project, RecordSpec, SystemSpec, natural_key
 from sdofreport.records import Record, process_record, read_record
-
-if TYPE_CHECKING:
-    pass
-
-
 
 
 def _with_acceleration(record: Record, acceleration: np.ndarray, note: str) -> Record:

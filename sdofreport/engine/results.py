@@ -19,11 +19,8 @@ from sdofreport.core.fragility import (
 from sdofreport.core.intensity import IntensityMeasures
 from sdofreport.core.rotd import RotDSpectrum
 from sdofreport.core.spectra import ResponseSpectrum
-from sdofreport.engine.plan import _fragility_systems, _pairs
 from sdofreport.engine.isolation_bounds import BOUND_RUNS, effective_at
-from sdofreport.project.check_quantities import CHECK_QUANTITIES
-from sdofreport.project.model import Project, RecordSpec, SystemSpec
-from sdofreport.records import Record
+from sdofreport.engine.plan import _fragility_systems, _pairs
 from sdofreport.engine.results_types import (
     BoundRuns,
     Convergence,
@@ -33,11 +30,12 @@ from sdofreport.engine.results_types import (
     SuiteStatistics,
 )
 from sdofreport.engine.suite import SuiteScaling
+from sdofreport.project.check_quantities import CHECK_QUANTITIES
+from sdofreport.project.model import Project, RecordSpec, SystemSpec
+from sdofreport.records import Record
 
 if TYPE_CHECKING:
     from sdofreport.core.isolation import EffectiveProperties
-
-
 
 
 VERDICT_WITHIN = "within limit"

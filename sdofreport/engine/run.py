@@ -6,13 +6,15 @@ from __future__ import annotations
 import dataclasses
 import os
 import time
-from typing import TYPE_CHECKING, Callable
+from typing import Callable
 
 import numpy as np
 
 from sdofreport import __version__
 from sdofreport.engine.amplitude import check_results
 from sdofreport.engine.cache import ResultCache, cache_key, default_cache_dir
+from sdofreport.engine.executors import execute, pool_start_seconds
+from sdofreport.engine.jobs import record_products, run_job
 from sdofreport.engine.plan import (
     _array_hash,
     _biaxial_plan,
@@ -40,10 +42,6 @@ from sdofreport.engine.results import (
     _response_result,
     _split_bounds,
 )
-from sdofreport.engine.warmup import _probably_cold, _records_while_warming
-from sdofreport.engine.executors import execute, pool_start_seconds
-from sdofreport.engine.jobs import record_products, run_job
-from sdofreport.project.model import Project
 from sdofreport.engine.results_types import (
     BoundRuns,
     InelasticSpectra,
@@ -51,12 +49,8 @@ from sdofreport.engine.results_types import (
 from sdofreport.engine.suite import SCALING_DAMPING, compute_scaling, scaling_damping
 from sdofreport.engine.suite_statistics import suite_statistics
 from sdofreport.engine.vertical_suite import attach_vertical
-
-if TYPE_CHECKING:
-    pass
-
-
-
+from sdofreport.engine.warmup import _probably_cold, _records_while_warming
+from sdofreport.project.model import Project
 
 Progress = Callable[[int, int, str], None]
 

@@ -4,11 +4,12 @@ between the build process and a worker that reads the records meanwhile."""
 from __future__ import annotations
 
 import logging
-from typing import TYPE_CHECKING
 
 import numpy as np
 
 from sdofreport.engine.cache import ResultCache
+from sdofreport.engine.executors import local_pool
+from sdofreport.engine.jobs import run_job
 from sdofreport.engine.plan import (
     _file_digest,
     _inelastic_args,
@@ -18,14 +19,8 @@ from sdofreport.engine.plan import (
     load_records,
     system_model,
 )
-from sdofreport.engine.executors import local_pool
-from sdofreport.engine.jobs import run_job
 from sdofreport.project.model import Project
 from sdofreport.records import Record
-
-if TYPE_CHECKING:
-    pass
-
 
 log = logging.getLogger("sdofreport.engine")
 
