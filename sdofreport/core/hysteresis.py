@@ -615,10 +615,15 @@ def integrate_model(ag, dt, n_sub, m, c, model, p, k_geo, c_d, a_d, v_r,
     ``dt`` time_step_s [s], ``n_sub`` sub-steps per sample, ``m`` mass_kg [kg].
     """
     npts = ag.size
-    sc = np.zeros(_STATE)
-    st = np.zeros(_STATE)
-    tsc = np.zeros(_STATE)
-    _initial_state(model, p, sc)
+    # np.empty and loops rather than np.zeros: one array constructor fewer for numba to
+    # compile in the process that compiles this kernel on a fresh machine
+    sc = np.empty(_STATE)
+    st = np.empty(_STATE)
+    tsc = np.empty(_STATE)
+    for q in range(_STATE):
+        st[q] = 0.0
+        tsc[q] = 0.0
+    _initial_state(model, p, sc)  # sets every entry of sc
     u = u_init
     v = v_init
     f, _, ku = _restoring(model, p, sc, u, v, 0.0, st)

@@ -464,11 +464,11 @@ def _recurrence_peaks(ag, shift, h, coef, cdamp, kstiff, u_init, v_init, peaks):
     nsteps = g.size - 1
     nseg = (nsteps + _SEGMENT - 1) // _SEGMENT
     h4 = h / 4.0
-    w = np.zeros(_ROWS * _BLOCK)
+    w = np.empty(_ROWS * _BLOCK)  # zeroed per block; np.empty: no np.zeros to compile
     a = np.empty(8)
     saved = np.empty((nseg, _SAVED * _BLOCK))
     pk = np.empty((3, _BLOCK))
-    first = np.zeros(_BLOCK, dtype=np.int64)
+    first = np.empty(_BLOCK, dtype=np.int64)  # zeroed per block
     rerun = 0
     for b0 in range(0, n, _BLOCK):
         m = min(_BLOCK, n - b0)

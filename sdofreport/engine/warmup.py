@@ -63,9 +63,10 @@ def warm_kernels(project: Project) -> None:
 
 
 #: Rough CPU seconds numba takes to compile each warm-up step on a fresh machine
-#: (measured on the 2-core development machine, 2026-12, for the bundled example): used
-#: only to share the later kernels between the build process and the reader process.
-_COMPILE_COST_S = {"linear": 3.6, "inelastic": 2.6, "responses": 3.0, "biaxial": 1.6}
+#: (measured on the 2-core development machine, 2026-12-05, for the bundled example,
+#: median of 3, each step in the order and process the build runs it): used only to
+#: share the later kernels between the build process and the reader process.
+_COMPILE_COST_S = {"linear": 3.4, "inelastic": 2.8, "responses": 2.8, "biaxial": 1.6}
 
 
 def _later_steps(project: Project) -> list[tuple[str, object]]:
