@@ -402,3 +402,41 @@ def test_suite_page_shows_the_vertical_target_and_states_the_rule(vertical_files
     assert (out / "figures" / "suite-vertical.svg").is_file()
     system = (out / "systems" / "chiller.html").read_text("utf-8")
     assert "licensed engineer" in page and "licensed engineer" in system  # cautions
+
+
+FRAGILITY = '[fragility]\nlevels = [0.2, 1.0]\nsystems = ["chiller"]\n'
+
+
+def test_a_vertical_systems_fragility_reads_the_vertical_target(vertical_files):
+    # EN 1998-1:2004 §3.2.2.3 Eq. (3.10) with Table 3.4 type 1 (from memory): at
+    # T = 0.2 s (T_C 0.15 s <= T <= T_D 1.0 s) S_ve = 3.0 a_vg T_C/T, a_vg = 0.90 ×
+    # 1.2 × 0.25 g. The horizontal target there (Eq. 3.2 plateau, 2.5 S a_g = 0.9 g) is
+    # not the level a vertical system's probability may be read at.
+    from sdofreport.site.context import SiteContext
+
+    text = PROJECT_HEAD + EN + "[design_spectrum.vertical]\nkind = \"en1998-1\"\n" + \
+        RECORDS + SYSTEMS + FRAGILITY
+    results = run_project(load_project(vertical_files(text)), jobs=1, use_cache=False)
+    found = [f for f in results.fragility if f.system_id == "chiller"]
+    assert found
+    by_hand = 3.0 * 0.9 * 1.2 * 0.25 * 0.15 / 0.2
+    assert all(f.design_level_g == pytest.approx(by_hand, rel=1e-12) for f in found)
+    chiller = next(s for s in results.project.systems if s.id == "chiller")
+    bits = SiteContext(results)._fragility_bits(chiller)
+    assert bits["design_source"].startswith("the vertical target, EN 1998-1:2004")
+
+
+def test_a_vertical_system_without_a_vertical_target_has_no_design_level(vertical_files):
+    # Without [design_spectrum.vertical] there is no vertical level: the horizontal
+    # target must not stand in for it (it would state a probability at a wrong level).
+    from sdofreport.site.context import SiteContext
+
+    text = PROJECT_HEAD + EN + RECORDS + SYSTEMS + FRAGILITY
+    results = run_project(load_project(vertical_files(text)), jobs=1, use_cache=False)
+    found = [f for f in results.fragility if f.system_id == "chiller"]
+    assert found and all(f.design_level_g is None and f.design_probability is None
+                         for f in found)
+    chiller = next(s for s in results.project.systems if s.id == "chiller")
+    bits = SiteContext(results)._fragility_bits(chiller)
+    assert bits["design"] is None and "no vertical target was given" in \
+        bits["no_design_reason"]

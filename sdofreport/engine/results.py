@@ -354,15 +354,23 @@ def run_exceeds(response: ResponseResult, quantity: str, limit: float) -> bool:
 
 def _design_level_g(project: Project, system: SystemSpec) -> float | None:
     """The level at which P(exceed) is stated: [fragility] design_level, else the target
-    spectrum at the system's period (``sa``) or at T = 0 (``pga``), else None."""
+    spectrum at the system's period (``sa``) or at T = 0 (``pga``), else None. A vertical
+    system reads the vertical target (``[design_spectrum.vertical]``), never the
+    horizontal one: without a vertical target it has no design level."""
     spec = project.fragility
     if spec.design_level_g is not None:
         return spec.design_level_g
     if project.design_spectrum is None:
         return None
     period = system.period_s if spec.measure == "sa" else 0.0
-    value = float(np.asarray(project.design_spectrum.spectrum().sa_g(
-        np.array([period]))).ravel()[0])
+    if system.direction == "vertical":
+        vertical = project.design_spectrum.vertical
+        if vertical is None:
+            return None
+        ordinates = vertical.sa_g(np.array([period]))
+    else:
+        ordinates = project.design_spectrum.spectrum().sa_g(np.array([period]))
+    value = float(np.asarray(ordinates).ravel()[0])
     return value if np.isfinite(value) and value > 0 else None
 
 
