@@ -537,8 +537,6 @@ def integrate_biaxial(ag, dt, n_sub, m, c, p, k_geo, w_fric, tol_force, max_iter
     stopped = 0
     for j in range(11):
         hist[j, 0] = 0.0
-    hist[4, 0] = 0.0
-    hist[5, 0] = 0.0
     stored = 1
     for i in range(npts - 1):
         n_try = n_sub
