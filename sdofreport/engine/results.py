@@ -140,6 +140,14 @@ class FragilityResult:
     fit: Fragility  # levels and median in g
     design_level_g: float | None = None
     design_probability: float | None = None  # P(exceed | design level) [-]
+    #: where the design level comes from (:data:`DESIGN_BASES`), None without one
+    design_basis: str | None = None
+
+
+#: Where a fragility's design level comes from: ``given`` ([fragility] design_level),
+#: ``target`` (the horizontal target), ``vertical-target`` ([design_spectrum.vertical]),
+#: ``no-vertical-target`` (a vertical system of a project without one: no level).
+DESIGN_BASES = ("given", "target", "vertical-target", "no-vertical-target")
 
 
 @dataclass
@@ -352,26 +360,28 @@ def run_exceeds(response: ResponseResult, quantity: str, limit: float) -> bool:
     return abs(value) > limit
 
 
-def _design_level_g(project: Project, system: SystemSpec) -> float | None:
-    """The level at which P(exceed) is stated: [fragility] design_level, else the target
-    spectrum at the system's period (``sa``) or at T = 0 (``pga``), else None. A vertical
-    system reads the vertical target (``[design_spectrum.vertical]``), never the
-    horizontal one: without a vertical target it has no design level."""
+def _design_level(project: Project, system: SystemSpec) -> tuple[float | None, str | None]:
+    """The level at which P(exceed) is stated [g] and its basis (:data:`DESIGN_BASES`):
+    [fragility] design_level, else the target spectrum at the system's period (``sa``)
+    or at T = 0 (``pga``), else (None, None). A vertical system reads the vertical target
+    (``[design_spectrum.vertical]``), never the horizontal one: without a vertical
+    target it has no design level."""
     spec = project.fragility
     if spec.design_level_g is not None:
-        return spec.design_level_g
+        return spec.design_level_g, "given"
     if project.design_spectrum is None:
-        return None
+        return None, None
     period = system.period_s if spec.measure == "sa" else 0.0
     if system.direction == "vertical":
         vertical = project.design_spectrum.vertical
         if vertical is None:
-            return None
-        ordinates = vertical.sa_g(np.array([period]))
+            return None, "no-vertical-target"
+        ordinates, basis = vertical.sa_g(np.array([period])), "vertical-target"
     else:
         ordinates = project.design_spectrum.spectrum().sa_g(np.array([period]))
+        basis = "target"
     value = float(np.asarray(ordinates).ravel()[0])
-    return value if np.isfinite(value) and value > 0 else None
+    return (value, basis) if np.isfinite(value) and value > 0 else (None, None)
 
 
 def _fragility_results(project: Project, outputs: list) -> list[FragilityResult]:
@@ -389,7 +399,7 @@ def _fragility_results(project: Project, outputs: list) -> list[FragilityResult]
                                        if raw["model"] == "linear" else raw)
                       for rid, raw in zip(ids, stripe["runs"])]
                      for stripe in stripes]
-        design = _design_level_g(project, system)
+        design, basis = _design_level(project, system)
         for quantity, limit in system.limits.items():
             if getattr(responses[0][0], CHECK_ATTRIBUTES[quantity]) is None:
                 continue
@@ -400,5 +410,5 @@ def _fragility_results(project: Project, outputs: list) -> list[FragilityResult]
             if fit.status == FITTED and design is not None:
                 probability = exceedance_probability(design, fit.median, fit.beta)
             results.append(FragilityResult(system.id, quantity, spec.measure, fit, design,
-                                           probability))
+                                           probability, basis))
     return results

@@ -228,18 +228,17 @@ class SiteContext:
         if system.directions == 2:  # each pair scaled on its RotD50 (Boore 2010)
             symbol = f"RotD50 {symbol}"
         design = found[0].design_level_g
+        basis = found[0].design_basis
         at = f"T = {number(system.period_s)} s" if measure == "sa" else "T = 0"
-        if self.project.fragility.design_level_g is not None:
+        design_source = None
+        if basis == "given":
             design_source = "as set in [fragility] design_level"
-        elif system.direction == "vertical":
-            vertical = self.project.design_spectrum.vertical \
-                if self.project.design_spectrum is not None else None
-            design_source = (None if vertical is None else
-                             f"the vertical target, {vertical_suite.STANDARDS[vertical.kind]}"
-                             f", at {at}")
-        else:
+        elif basis == "target":
             design_source = (f"the target spectrum, "
                              f"{_design_label(self.project.design_spectrum)}, at {at}")
+        elif basis == "vertical-target":
+            kind = self.project.design_spectrum.vertical.kind
+            design_source = f"the vertical target, {vertical_suite.STANDARDS[kind]}, at {at}"
         rows, curves = [], []
         for f in found:
             fit, label = f.fit, CHECK_LABELS[f.quantity]
@@ -260,11 +259,9 @@ class SiteContext:
                 "levels": ", ".join(f"{x:g}" for x in found[0].fit.levels),
                 "design": None if design is None else f"{number(design)} g",
                 "design_source": design_source,
-                "no_design_reason": None if design is not None else
-                ("no vertical target was given ([design_spectrum.vertical]), so no design "
-                 "level is read for this vertical system"
-                 if system.direction == "vertical" and
-                 self.project.fragility.design_level_g is None else None),
+                "no_design_reason": "no vertical target was given "
+                "([design_spectrum.vertical]), so no design level is read for this "
+                "vertical system" if basis == "no-vertical-target" else None,
                 "records": found[0].fit.motions[0], "per_pair": system.directions == 2}
 
     def _statistic_bits(self) -> dict:
