@@ -208,10 +208,6 @@ def _check_pair_steps(project: Project, records: list[Record], problems: list[st
                             f"{members[1].dt_s:g} s); resample one so both match")
 
 
-def _array_hash(acceleration: np.ndarray) -> str:
-    return array_digest(acceleration)
-
-
 def system_model(system: SystemSpec) -> dict:
     """The response job's description of a system (plain data, part of the cache key)."""
     return {"model": "linear", "period_s": system.period_s, "damping": system.damping,
@@ -243,8 +239,8 @@ def _biaxial_plan(project: Project, systems: list, scaled: dict, base: dict) -> 
     for name, (h1, h2) in _pairs(project).items():
         a1, a2 = scaled[h1].acceleration_m_s2, scaled[h2].acceleration_m_s2
         args = (a1, a2, scaled[h1].dt_s, models, project.analysis.method)
-        key = cache_key({**base, "job": "biaxial", "sha1": _array_hash(a1),
-                         "sha2": _array_hash(a2), "dt": scaled[h1].dt_s, "models": models})
+        key = cache_key({**base, "job": "biaxial", "sha1": array_digest(a1),
+                         "sha2": array_digest(a2), "dt": scaled[h1].dt_s, "models": models})
         plan.append((f"pair {name} (two-direction responses of {len(models)} systems)",
                      "biaxial", args, key))
     return plan
@@ -268,7 +264,7 @@ def _stripe_plan(project: Project, scaled: dict[str, Record], base: dict) -> lis
         records = [scaled[r.id] for r in project.records_for(system)]
         accelerations = tuple(r.acceleration_m_s2 for r in records)
         dts = tuple(r.dt_s for r in records)
-        shas = [_array_hash(a) for a in accelerations]
+        shas = [array_digest(a) for a in accelerations]
         model = {**system_model(system), "system_id": system.id}
         for level in spec.levels_g:
             args = (accelerations, dts, model, project.analysis.method, spec.measure,
@@ -289,7 +285,7 @@ def _pair_stripes(project: Project, system: SystemSpec, scaled: dict[str, Record
     pairs = tuple((scaled[h1].acceleration_m_s2, scaled[h2].acceleration_m_s2)
                   for h1, h2 in _pairs(project).values())
     dts = tuple(scaled[h1].dt_s for h1, _ in _pairs(project).values())
-    shas = [[_array_hash(a1), _array_hash(a2)] for a1, a2 in pairs]
+    shas = [[array_digest(a1), array_digest(a2)] for a1, a2 in pairs]
     model = {**system_model(system), "system_id": system.id,
              "stiffness_n_m": system.stiffness_n_m}
     plan = []

@@ -12,11 +12,10 @@ import numpy as np
 
 from sdofreport import __version__
 from sdofreport.engine.amplitude import check_results
-from sdofreport.engine.cache import ResultCache, cache_key, default_cache_dir
+from sdofreport.engine.cache import ResultCache, array_digest, cache_key, default_cache_dir
 from sdofreport.engine.executors import execute, pool_start_seconds
 from sdofreport.engine.jobs import record_products, run_job
 from sdofreport.engine.plan import (
-    _array_hash,
     _biaxial_plan,
     _bound_systems,
     _inelastic_args,
@@ -162,15 +161,15 @@ def run_project(project: Project, *, jobs: int | None = None,
     plan = []
     for record in records:
         args = _record_args(record, analysis, damping)
-        key = cache_key({**base, "job": "record", "sha": _array_hash(args[0]),
+        key = cache_key({**base, "job": "record", "sha": array_digest(args[0]),
                             "dt": record.dt_s, "periods": list(analysis.periods_s),
                             "damping": list(damping)})
         plan.append((f"record {record.id} (spectra)", "record", args, key))
     for name, (h1, h2) in pairs.items():
         a1, a2 = by_id[h1].acceleration_m_s2, by_id[h2].acceleration_m_s2
         args = (a1, a2, by_id[h1].dt_s, analysis.periods_s, pair_damping, analysis.method)
-        key = cache_key({**base, "job": "pair", "sha1": _array_hash(a1),
-                            "sha2": _array_hash(a2), "dt": by_id[h1].dt_s,
+        key = cache_key({**base, "job": "pair", "sha1": array_digest(a1),
+                            "sha2": array_digest(a2), "dt": by_id[h1].dt_s,
                             "periods": list(analysis.periods_s), "damping": pair_damping})
         plan.append((f"pair {name} (RotD)", "pair", args, key))
     first = phase.run(plan)
@@ -213,7 +212,7 @@ def run_project(project: Project, *, jobs: int | None = None,
         models = [{**system_model(system), "system_id": system.id}
                   for system in driven[record.id]]
         args = (record.acceleration_m_s2, record.dt_s, models, analysis.method)
-        key = cache_key({**base, "job": "responses", "sha": _array_hash(args[0]),
+        key = cache_key({**base, "job": "responses", "sha": array_digest(args[0]),
                             "dt": record.dt_s, "models": models})
         plan.append((f"record {record.id} (responses of {len(models)} systems)",
                      "responses", args, key))
@@ -221,7 +220,7 @@ def run_project(project: Project, *, jobs: int | None = None,
     if inelastic_spec is not None:
         for record in (scaled[r.id] for r in project.records):
             args = _inelastic_args(record, inelastic_spec)
-            key = cache_key({**base, "job": "inelastic", "sha": _array_hash(args[0]),
+            key = cache_key({**base, "job": "inelastic", "sha": array_digest(args[0]),
                                 "dt": record.dt_s, "spec": dataclasses.asdict(
                                     inelastic_spec)})
             plan.append((f"record {record.id} (inelastic spectra)", "inelastic", args,
