@@ -68,7 +68,7 @@ import numpy as np
 
 from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
-from sdofreport.core.exact import _check_ground_acceleration, _check_time_step, _phi_series
+from sdofreport.core.exact import _phi_series
 
 __all__ = ["MIN_STEPS_PER_PERIOD", "bilinear_peak_displacement"]
 
@@ -335,8 +335,8 @@ def bilinear_peak_displacement(acceleration_m_s2, time_step_s, natural_period_s,
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    ag = _check_ground_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    ag = _checks.acceleration_history(acceleration_m_s2)
+    dt = _checks.time_step(time_step_s)
     t = _checks.positive(natural_period_s, "natural_period_s", "s")
     zeta = _checks.damping_ratio(damping_ratio)
     uy = float(yield_displacement_m)

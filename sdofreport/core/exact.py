@@ -59,13 +59,6 @@ _SERIES_TERMS = 30
 _SERIES_LIMIT = 1.0
 
 
-# --------------------------------------------------------------------------- checks
-# The argument checks live in ``_checks``; these names stay for the modules importing them.
-_check_time_step = _checks.time_step
-_check_ground_acceleration = _checks.acceleration_history
-_check_oscillators = _checks.oscillators
-
-
 # --------------------------------------------------------------- coefficient algebra
 @njit(inline="always", **JIT_OPTIONS)
 def _phi_series(theta, r, zeta, terms, eps):
@@ -193,8 +186,8 @@ def exact_coefficients(natural_periods_s, damping_ratios, time_step_s) -> np.nda
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    h = _check_time_step(time_step_s)
-    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
+    h = _checks.time_step(time_step_s)
+    periods, zeta = _checks.oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
     coef = np.empty((8, periods.size))
     _exact_coefficients_into(2.0 * np.pi / periods, zeta, h, coef, _SERIES_TERMS,
                              _SERIES_LIMIT)
@@ -264,8 +257,8 @@ def recurrence_response(coefficients, natural_periods_s, damping_ratios, acceler
         each of shape ``(n, npts)``.
     """
     coef = np.ascontiguousarray(coefficients, dtype=np.float64)
-    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
-    ag = _check_ground_acceleration(acceleration_m_s2)
+    periods, zeta = _checks.oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
+    ag = _checks.acceleration_history(acceleration_m_s2)
     n = coef.shape[1]
     if periods.size != n:
         raise ValueError(
@@ -313,8 +306,8 @@ def exact_response(acceleration_m_s2, time_step_s, natural_period_s, damping_rat
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    dt = _check_time_step(time_step_s)
-    periods, zeta = _check_oscillators(natural_period_s, damping_ratio, allow_zero_period=False,
+    dt = _checks.time_step(time_step_s)
+    periods, zeta = _checks.oscillators(natural_period_s, damping_ratio, allow_zero_period=False,
                                        periods_name="natural_period_s",
                                        ratios_name="damping_ratio")
     coef = exact_coefficients(periods, zeta, dt)

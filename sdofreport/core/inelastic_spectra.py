@@ -61,7 +61,6 @@ from sdofreport.core.bilinear_exact import (
     _bilinear_peak,
     _branch_coefficients,
 )
-from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
 from sdofreport.core.nonlinear import (
     _check_workers,
     _for_each_period,
@@ -283,8 +282,8 @@ def _ductility_period(ag, dt, n_sub, w, zeta, alpha, targets, ratio, eta_min, re
 # ---------------------------------------------------------------------- plumbing
 def _check_common(acceleration_m_s2, time_step_s, periods_s, damping_ratio, hardening_ratio,
                   steps_per_period):
-    ag = _check_ground_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    ag = _checks.acceleration_history(acceleration_m_s2)
+    dt = _checks.time_step(time_step_s)
     t = _checks.values_above(periods_s, "periods_s", "s", 0.0)
     zeta = _checks.damping_ratio(damping_ratio)
     a = _checks.ratio(hardening_ratio, "hardening_ratio")

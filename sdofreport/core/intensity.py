@@ -37,9 +37,6 @@ def _as_acceleration(acceleration_m_s2, name: str = "acceleration_m_s2") -> np.n
     return np.array(_checks.finite_array(acceleration_m_s2, name, "m/s²", min_size=2))
 
 
-_check_time_step = _checks.time_step
-
-
 def pga(acceleration_m_s2) -> float:
     """
     Peak ground acceleration, the largest absolute sample.
@@ -74,7 +71,7 @@ def ground_velocity(acceleration_m_s2, time_step_s) -> np.ndarray:
         Velocity at the same instants, first value 0. [m/s]
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     return cumulative_trapezoid(acc, dt)
 
 
@@ -135,7 +132,7 @@ def arias_intensity(acceleration_m_s2, time_step_s) -> float:
        Power Plants*, R. J. Hansen, Ed. Cambridge, MA, USA: MIT Press, 1970, pp. 438-483.
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     return float(np.pi / (2.0 * G) * trapezoid(acc * acc, dt))
 
 
@@ -161,7 +158,7 @@ def husid(acceleration_m_s2, time_step_s) -> np.ndarray:
         If the record is all zeros (Arias intensity 0: the curve is undefined).
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     cumulative = _cumulative_arias(acc, dt)
     total = cumulative[-1]
     if total <= 0.0:
@@ -215,7 +212,7 @@ def significant_duration(acceleration_m_s2, time_step_s, start=0.05, end=0.95) -
             f"start and end must satisfy 0 <= start < end <= 1 [-]; got start={start!r}, "
             f"end={end!r}"
         )
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     fraction = husid(acceleration_m_s2, dt)
     return _crossing_time(fraction, float(end), dt) - _crossing_time(fraction, float(start), dt)
 
@@ -247,7 +244,7 @@ def cav(acceleration_m_s2, time_step_s) -> float:
        Rep. NP-5930, 1988.
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     a0, a1 = np.abs(acc[:-1]), np.abs(acc[1:])
     same_sign = acc[:-1] * acc[1:] >= 0.0
     total_abs = a0 + a1
@@ -279,7 +276,7 @@ def fourier_amplitude(acceleration_m_s2, time_step_s) -> tuple[np.ndarray, np.nd
         Fourier amplitude, the discrete approximation of |∫ üg e^(−i2πft) dt|. [m/s]
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     frequency_hz = np.fft.rfftfreq(acc.size, d=dt)
     amplitude_m_s = np.abs(np.fft.rfft(acc)) * dt
     return frequency_hz, amplitude_m_s
@@ -369,7 +366,7 @@ def intensity_measures(acceleration_m_s2, time_step_s) -> IntensityMeasures:
         or mean period that is undefined (all-zero record, no frequency in band) is NaN.
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     if np.any(acc != 0.0):
         d5_95 = significant_duration(acc, dt, 0.05, 0.95)
         d5_75 = significant_duration(acc, dt, 0.05, 0.75)

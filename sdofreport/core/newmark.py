@@ -34,11 +34,6 @@ import numpy as np
 
 from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
-from sdofreport.core.exact import (
-    _check_ground_acceleration,
-    _check_oscillators,
-    _check_time_step,
-)
 
 __all__ = [
     "METHODS",
@@ -184,8 +179,8 @@ def newmark_coefficients(natural_periods_s, damping_ratios, time_step_s, gamma=0
     .. [1] N. M. Newmark, "A method of computation for structural dynamics,"
        J. Eng. Mech. Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
     """
-    h = _check_time_step(time_step_s)
-    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
+    h = _checks.time_step(time_step_s)
+    periods, zeta = _checks.oscillators(natural_periods_s, damping_ratios, allow_zero_period=False)
     gamma, beta = newmark_parameters("newmark-average", gamma, beta)
     check_newmark_step(h, periods, gamma, beta)
     wn = 2.0 * np.pi / periods
@@ -269,9 +264,9 @@ def newmark_beta(acceleration_m_s2, time_step_s, natural_period_s, damping_ratio
     .. [1] N. M. Newmark, "A method of computation for structural dynamics,"
        J. Eng. Mech. Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
     """
-    ag = _check_ground_acceleration(acceleration_m_s2)
-    h = _check_time_step(time_step_s)
-    periods, zeta = _check_oscillators(natural_period_s, damping_ratio, allow_zero_period=False,
+    ag = _checks.acceleration_history(acceleration_m_s2)
+    h = _checks.time_step(time_step_s)
+    periods, zeta = _checks.oscillators(natural_period_s, damping_ratio, allow_zero_period=False,
                                        periods_name="natural_period_s",
                                        ratios_name="damping_ratio")
     if periods.size != 1:

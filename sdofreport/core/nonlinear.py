@@ -61,7 +61,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from sdofreport.core import _checks
-from sdofreport.core.exact import _check_ground_acceleration, _check_time_step
 from sdofreport.core.units import G
 
 __all__ = [
@@ -387,8 +386,8 @@ def nonlinear_response(acceleration_m_s2, time_step_s, system, damping_ratio, *,
     """
     from sdofreport.core import hysteresis as hy
 
-    ag = _check_ground_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    ag = _checks.acceleration_history(acceleration_m_s2)
+    dt = _checks.time_step(time_step_s)
     zeta = _check_damping(damping_ratio)
     u0 = _number(initial_displacement_m, "initial_displacement_m", "m")
     v0 = _number(initial_velocity_m_s, "initial_velocity_m_s", "m/s")

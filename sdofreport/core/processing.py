@@ -17,9 +17,10 @@ References
 from __future__ import annotations
 
 import numpy as np
-from sdofreport.core._numeric import cumulative_trapezoid
 
-from sdofreport.core.intensity import _as_acceleration, _check_time_step
+from sdofreport.core import _checks
+from sdofreport.core._numeric import cumulative_trapezoid
+from sdofreport.core.intensity import _as_acceleration
 
 #: Polynomial orders accepted by :func:`baseline_correction`.
 BASELINE_ORDERS = (0, 1, 2, 3)
@@ -63,7 +64,7 @@ def baseline_correction(acceleration_m_s2, time_step_s, order) -> np.ndarray:
        pp. 93-115, 2005, doi:10.1016/j.soildyn.2004.10.007.
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     if isinstance(order, bool) or not isinstance(order, (int, np.integer)) or (
         order not in BASELINE_ORDERS
     ):
@@ -167,7 +168,7 @@ def bandpass(acceleration_m_s2, time_step_s, low_hz, high_hz, order=4,
        Seismol. Soc. Am., vol. 95, no. 2, pp. 745-750, 2005, doi:10.1785/0120040160.
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     if isinstance(order, bool) or not isinstance(order, (int, np.integer)) or not (
         1 <= order <= MAX_FILTER_ORDER
     ):
@@ -277,7 +278,7 @@ def cosine_taper(acceleration_m_s2, time_step_s, taper_s) -> np.ndarray:
        pp. 93-115, 2005, doi:10.1016/j.soildyn.2004.10.007.
     """
     acc = _as_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    dt = _checks.time_step(time_step_s)
     try:
         ramp_s = float(taper_s)
     except (TypeError, ValueError):

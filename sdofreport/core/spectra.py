@@ -85,12 +85,7 @@ import numpy as np
 
 from sdofreport.core import _checks
 from sdofreport.core._jit import JIT_OPTIONS, njit
-from sdofreport.core.exact import (
-    _check_ground_acceleration,
-    _check_oscillators,
-    _check_time_step,
-    exact_coefficients,
-)
+from sdofreport.core.exact import exact_coefficients
 from sdofreport.core.newmark import (
     check_newmark_step,
     newmark_coefficients,
@@ -702,7 +697,7 @@ def load_peak_kernel() -> None:
     the kernels it calls) alone, on a made-up 2-sample input with the argument types
     :func:`_run` passes (see :func:`load_history_kernel`).
     """
-    ag = _check_ground_acceleration([0.0, 0.0])
+    ag = _checks.acceleration_history([0.0, 0.0])
     one = np.zeros(1)
     _recurrence_peaks(ag, 0, 0.01, np.zeros((8, 1)), one, one, one, one, np.empty((3, 1)))
 
@@ -717,7 +712,7 @@ def load_history_kernel() -> None:
     not the values, decide what numba compiles, and compiled kernels land in the kernel
     cache, where later processes find them.
     """
-    ag = _check_ground_acceleration([0.0, 0.0])
+    ag = _checks.acceleration_history([0.0, 0.0])
     one = np.zeros(1)
     hu, hv, ha = (np.empty((1, ag.size)) for _ in range(3))
     _recurrence_samples(ag, 0, np.zeros((8, 1)), one, one, one, one, hu, hv, ha)
@@ -776,9 +771,9 @@ def oscillator_peaks(acceleration_m_s2, time_step_s, natural_periods_s, damping_
     .. [2] N. M. Newmark, "A method of computation for structural dynamics,"
        J. Eng. Mech. Div. ASCE, vol. 85, no. EM3, pp. 67-94, 1959.
     """
-    ag = _check_ground_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
-    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios)
+    ag = _checks.acceleration_history(acceleration_m_s2)
+    dt = _checks.time_step(time_step_s)
+    periods, zeta = _checks.oscillators(natural_periods_s, damping_ratios)
     raw, _, _ = _run(ag, dt, periods, zeta, method, gamma, beta, steps_per_period, False)
     return _peaks_from(raw)
 
@@ -822,9 +817,9 @@ def oscillator_histories(acceleration_m_s2, time_step_s, natural_periods_s, damp
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    ag = _check_ground_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
-    periods, zeta = _check_oscillators(natural_periods_s, damping_ratios)
+    ag = _checks.acceleration_history(acceleration_m_s2)
+    dt = _checks.time_step(time_step_s)
+    periods, zeta = _checks.oscillators(natural_periods_s, damping_ratios)
     n = periods.size
     try:
         u0 = np.array(np.broadcast_to(np.asarray(initial_displacement_m, float), (n,)))
@@ -889,8 +884,8 @@ def response_spectrum(acceleration_m_s2, time_step_s, periods_s, damping_ratios,
        strong-motion earthquake records," Bull. Seismol. Soc. Am., vol. 59, no. 2,
        pp. 909-922, 1969.
     """
-    ag = _check_ground_acceleration(acceleration_m_s2)
-    dt = _check_time_step(time_step_s)
+    ag = _checks.acceleration_history(acceleration_m_s2)
+    dt = _checks.time_step(time_step_s)
     t_list = (np.atleast_1d(np.asarray(periods_s, dtype=np.float64))
               if _numeric(periods_s) else None)
     z_list = (np.atleast_1d(np.asarray(damping_ratios, dtype=np.float64))
@@ -903,7 +898,7 @@ def response_spectrum(acceleration_m_s2, time_step_s, periods_s, damping_ratios,
         raise ValueError(
             f"damping_ratios must be a number or a 1-D list of numbers [-]; got {damping_ratios!r}"
         )
-    grid_t, grid_z = _check_oscillators(t_list[None, :], z_list[:, None], periods_name="periods_s")
+    grid_t, grid_z = _checks.oscillators(t_list[None, :], z_list[:, None], periods_name="periods_s")
     raw, _, _ = _run(ag, dt, grid_t, grid_z, method, gamma, beta, steps_per_period, False)
     shape = (z_list.size, t_list.size)
     sd = raw[0].reshape(shape)
