@@ -898,7 +898,8 @@ def response_spectrum(acceleration_m_s2, time_step_s, periods_s, damping_ratios,
         raise ValueError(
             f"damping_ratios must be a number or a 1-D list of numbers [-]; got {damping_ratios!r}"
         )
-    grid_t, grid_z = _checks.oscillators(t_list[None, :], z_list[:, None], periods_name="periods_s")
+    grid_t, grid_z = _checks.oscillators(t_list[None, :], z_list[:, None],
+                                         periods_name="periods_s")
     raw, _, _ = _run(ag, dt, grid_t, grid_z, method, gamma, beta, steps_per_period, False)
     shape = (z_list.size, t_list.size)
     sd = raw[0].reshape(shape)
